@@ -1,0 +1,167 @@
+// Command warmfit learns the coefficients of a local Hamiltonian from
+// measurements of its thermal (Gibbs) state. Run "warmfit help" for the
+// list of subcommands.
+package main
+
+import (
+	"errors"
+	"fmt"
+	"io"
+	"os"
+	"sort"
+	"strings"
+
+	"github.com/spf13/pflag"
+)
+
+// command is one subcommand. Each lives in its own file and registers
+// itself from an init function.
+type command struct {
+	Name    string
+	Short   string // one line for the command list
+	Usage   string // "warmfit NAME [flags]" line
+	Long    string // paragraphs shown by --help
+	Example string // at least one runnable example
+	// Flags adds the command's flags to fs; Run then executes it.
+	Flags func(fs *pflag.FlagSet)
+	Run   func(env *runEnv, args []string) error
+}
+
+// runEnv carries the standard streams, so commands are testable.
+type runEnv struct {
+	Stdout io.Writer
+	Stderr io.Writer
+	Stdin  io.Reader
+}
+
+var commands = map[string]*command{}
+
+func register(c *command) {
+	if _, dup := commands[c.Name]; dup {
+		panic("warmfit: command registered twice: " + c.Name)
+	}
+	commands[c.Name] = c
+}
+
+// usageError marks a mistake in how the command was called (exit 2).
+type usageError struct{ msg string }
+
+func (e *usageError) Error() string { return e.msg }
+
+func usagef(format string, args ...any) error {
+	return &usageError{msg: fmt.Sprintf(format, args...)}
+}
+
+// Exit codes: 0 success, 1 failure (bad data, no convergence), 2 usage.
+const (
+	exitOK      = 0
+	exitFailure = 1
+	exitUsage   = 2
+)
+
+func main() {
+	env := &runEnv{Stdout: os.Stdout, Stderr: os.Stderr, Stdin: os.Stdin}
+	os.Exit(run(env, os.Args[1:]))
+}
+
+// run executes one warmfit invocation and returns its exit code.
+func run(env *runEnv, args []string) int {
+	if len(args) == 0 {
+		printCommandList(env.Stderr)
+		return exitUsage
+	}
+	name := args[0]
+	switch name {
+	case "help", "-h", "--help":
+		if len(args) > 1 {
+			c, ok := commands[args[1]]
+			if !ok {
+				fmt.Fprintf(env.Stderr, "warmfit help: unknown command %q\n", args[1])
+				return exitUsage
+			}
+			printCommandHelp(env.Stdout, c, nil)
+			return exitOK
+		}
+		printCommandList(env.Stdout)
+		return exitOK
+	}
+	c, ok := commands[name]
+	if !ok {
+		fmt.Fprintf(env.Stderr, "warmfit: unknown command %q\nRun 'warmfit help' for the list of commands.\n", name)
+		return exitUsage
+	}
+	fs := pflag.NewFlagSet(c.Name, pflag.ContinueOnError)
+	fs.SetOutput(io.Discard)
+	fs.SortFlags = false
+	if c.Flags != nil {
+		c.Flags(fs)
+	}
+	if err := fs.Parse(args[1:]); err != nil {
+		if errors.Is(err, pflag.ErrHelp) {
+			printCommandHelp(env.Stdout, c, fs)
+			return exitOK
+		}
+		fmt.Fprintf(env.Stderr, "warmfit %s: %v\nRun 'warmfit help %s' for usage.\n", c.Name, err, c.Name)
+		return exitUsage
+	}
+	err := c.Run(env, fs.Args())
+	if err == nil {
+		return exitOK
+	}
+	var ue *usageError
+	if errors.As(err, &ue) {
+		fmt.Fprintf(env.Stderr, "warmfit %s: %v\nRun 'warmfit help %s' for usage.\n", c.Name, err, c.Name)
+		return exitUsage
+	}
+	fmt.Fprintf(env.Stderr, "warmfit %s: %v\n", c.Name, err)
+	return exitFailure
+}
+
+func printCommandList(w io.Writer) {
+	fmt.Fprint(w, `warmfit learns local Hamiltonians from measurements of their thermal states.
+
+Usage:
+
+	warmfit <command> [flags]
+
+Commands:
+
+`)
+	names := make([]string, 0, len(commands))
+	for n := range commands {
+		names = append(names, n)
+	}
+	sort.Strings(names)
+	for _, n := range names {
+		fmt.Fprintf(w, "\t%-10s %s\n", n, commands[n].Short)
+	}
+	fmt.Fprint(w, "\nUse \"warmfit help <command>\" for more about a command.\n")
+}
+
+func printCommandHelp(w io.Writer, c *command, fs *pflag.FlagSet) {
+	fmt.Fprintf(w, "usage: %s\n\n", c.Usage)
+	if c.Long != "" {
+		fmt.Fprintf(w, "%s\n\n", strings.TrimSpace(c.Long))
+	}
+	if fs == nil {
+		fs = pflag.NewFlagSet(c.Name, pflag.ContinueOnError)
+		fs.SortFlags = false
+		if c.Flags != nil {
+			c.Flags(fs)
+		}
+	}
+	if fs.HasFlags() {
+		fmt.Fprintf(w, "Flags:\n%s\n", fs.FlagUsages())
+	}
+	fmt.Fprintf(w, "Example:\n\n%s\n", indent(strings.TrimSpace(c.Example), "\t"))
+}
+
+func indent(s, prefix string) string {
+	lines := strings.Split(s, "\n")
+	for i, l := range lines {
+		if l != "" {
+			lines[i] = prefix + l
+		}
+	}
+	return strings.Join(lines, "\n")
+}

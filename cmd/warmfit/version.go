@@ -1,0 +1,28 @@
+package main
+
+import (
+	"fmt"
+	"runtime"
+
+	"github.com/spf13/pflag"
+)
+
+const version = "0.1.0-dev"
+
+func init() {
+	register(&command{
+		Name:    "version",
+		Short:   "print the warmfit version",
+		Usage:   "warmfit version",
+		Long:    "Version prints the warmfit version and the Go runtime it was built with.",
+		Example: "warmfit version",
+		Flags:   func(fs *pflag.FlagSet) {},
+		Run: func(env *runEnv, args []string) error {
+			if len(args) > 0 {
+				return usagef("version takes no arguments")
+			}
+			fmt.Fprintf(env.Stdout, "warmfit %s (%s, %s/%s)\n", version, runtime.Version(), runtime.GOOS, runtime.GOARCH)
+			return nil
+		},
+	})
+}
