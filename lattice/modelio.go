@@ -1,0 +1,307 @@
+package lattice
+
+import (
+	"bytes"
+	"encoding/json"
+	"errors"
+	"fmt"
+	"io"
+	"math"
+	"os"
+	"strconv"
+)
+
+// ReadModel reads and validates the model file at path (JSON, see
+// ParseModel).
+func ReadModel(path string) (*Model, error) {
+	f, err := os.Open(path)
+	if err != nil {
+		return nil, err
+	}
+	defer f.Close()
+	return ParseModel(f, path)
+}
+
+// ParseModel reads a model in the JSON format of formats.md from r; name
+// (usually the file name) prefixes every error, together with the line
+// and column and the JSON path of the offending value.
+//
+// Terms may be given in any site order: they are put in canonical form
+// (sites increasing, letters permuted along, so "XZ" on [3, 1] becomes
+// "ZX" on [1, 3]); two terms equal after that are an error. A missing
+// "coeff" means 0 (useful in fitting templates); "beta", "group",
+// "stderr", "units" and "fit" are optional, and unknown fields are
+// ignored. The lattice may also be given as a specification string such
+// as "square:3x3". The result passes Validate.
+func ParseModel(r io.Reader, name string) (*Model, error) {
+	doc, err := io.ReadAll(r)
+	if err != nil {
+		return nil, fmt.Errorf("%s: %w", name, err)
+	}
+	p := &modelParser{doc: doc, name: name}
+	return p.parse()
+}
+
+type modelParser struct {
+	doc  []byte
+	name string
+}
+
+// errAt builds a ModelError for the value at byte offset off.
+func (p *modelParser) errAt(off int, path string, err error) *ModelError {
+	line, col := lineCol(p.doc, off)
+	return &ModelError{File: p.name, Line: line, Col: col, Path: path, Err: err}
+}
+
+func (p *modelParser) parse() (*Model, error) {
+	var raw json.RawMessage
+	if err := json.Unmarshal(p.doc, &raw); err != nil {
+		var se *json.SyntaxError
+		if errors.As(err, &se) {
+			off := int(se.Offset) - 1 // Offset counts the bytes read, the culprit included
+			return nil, p.errAt(off, "", fmt.Errorf("invalid JSON: %v", se))
+		}
+		return nil, &ModelError{File: p.name, Err: fmt.Errorf("invalid JSON: %v", err)}
+	}
+	start := skipSeparators(p.doc, 0)
+	members, err := objectMembers(p.doc, 0)
+	if err != nil {
+		return nil, p.errAt(start, "", fmt.Errorf("a model file must hold one JSON object: %v", err))
+	}
+	fields := map[string]jsonMember{}
+	for _, f := range members {
+		switch f.Key {
+		case "lattice", "beta", "terms", "units", "fit":
+			if prev, dup := fields[f.Key]; dup {
+				pl, _ := lineCol(p.doc, prev.Off)
+				return nil, p.errAt(f.Off, f.Key, fmt.Errorf("given twice (first on line %d)", pl))
+			}
+			fields[f.Key] = f
+		}
+	}
+
+	m := &Model{}
+	lat, ok := fields["lattice"]
+	if !ok || isNull(lat.Value) {
+		return nil, p.errAt(start, "lattice", fmt.Errorf("missing: the model must say which lattice it lives on"))
+	}
+	if m.Lattice, err = p.lattice(lat); err != nil {
+		return nil, err
+	}
+	if f, ok := fields["beta"]; ok && !isNull(f.Value) {
+		b, err := parseNumber(f.Value)
+		if err == nil && !(b > 0) {
+			err = fmt.Errorf("must be > 0, got %v", b)
+		}
+		if err != nil {
+			return nil, p.errAt(f.Off, "beta", err)
+		}
+		m.Beta = b
+	}
+	if f, ok := fields["units"]; ok && !isNull(f.Value) {
+		if err := json.Unmarshal(f.Value, &m.Units); err != nil {
+			return nil, p.errAt(f.Off, "units", fmt.Errorf("must be a string, got %s", jsonKind(f.Value)))
+		}
+	}
+	if f, ok := fields["fit"]; ok && !isNull(f.Value) {
+		if k := jsonKind(f.Value); k != "object" {
+			return nil, p.errAt(f.Off, "fit", fmt.Errorf("must be a JSON object, got %s", k))
+		}
+		var buf bytes.Buffer
+		if err := json.Compact(&buf, f.Value); err != nil {
+			return nil, p.errAt(f.Off, "fit", err)
+		}
+		m.Fit = json.RawMessage(buf.Bytes())
+	}
+	tf, ok := fields["terms"]
+	if !ok || isNull(tf.Value) {
+		return nil, p.errAt(start, "terms", fmt.Errorf("missing: the model must list its terms"))
+	}
+	if m.Terms, err = p.terms(tf, m.Lattice); err != nil {
+		return nil, err
+	}
+	if err := m.Validate(); err != nil {
+		// Everything Validate checks was checked above with positions;
+		// this only guards against the two drifting apart.
+		return nil, &ModelError{File: p.name, Err: err}
+	}
+	return m, nil
+}
+
+func (p *modelParser) lattice(f jsonMember) (*Lattice, error) {
+	if jsonKind(f.Value) == "string" {
+		var spec string
+		_ = json.Unmarshal(f.Value, &spec)
+		s, err := ParseSpec(spec)
+		if err != nil {
+			return nil, p.errAt(f.Off, "lattice", err)
+		}
+		l, err := Build(s)
+		if err != nil {
+			return nil, p.errAt(f.Off, "lattice", err)
+		}
+		return l, nil
+	}
+	if k := jsonKind(f.Value); k != "object" {
+		return nil, p.errAt(f.Off, "lattice", fmt.Errorf("must be an object such as {\"kind\": \"chain\", \"size\": [8]} or a specification string, got %s", k))
+	}
+	l, err := DecodeLatticeJSON(f.Value, "") // the ModelError adds the file name
+	if err != nil {
+		return nil, p.errAt(f.Off, "lattice", err)
+	}
+	return l, nil
+}
+
+func (p *modelParser) terms(f jsonMember, l *Lattice) ([]Term, error) {
+	elems, err := arrayElements(f.Value, f.Off)
+	if err != nil {
+		return nil, p.errAt(f.Off, "terms", err)
+	}
+	if len(elems) == 0 {
+		return nil, p.errAt(f.Off, "terms", fmt.Errorf("the model has no terms"))
+	}
+	terms := make([]Term, len(elems))
+	seen := make(map[string]int, len(elems))
+	for i, e := range elems {
+		t, err := p.term(e, i, l)
+		if err != nil {
+			return nil, err
+		}
+		key := t.Key()
+		if j, dup := seen[key]; dup {
+			jl, _ := lineCol(p.doc, elems[j].Off)
+			return nil, p.errAt(e.Off, fmt.Sprintf("terms[%d]", i),
+				fmt.Errorf("%s duplicates terms[%d] (line %d): both are %s on %v in canonical form",
+					p.termAsWritten(e), j, jl, t.Pauli, t.Sites))
+		}
+		seen[key] = i
+		terms[i] = t
+	}
+	return terms, nil
+}
+
+// termAsWritten describes a term the way the file spells it, for
+// duplicate messages ("XZ on [3 1]").
+func (p *modelParser) termAsWritten(e jsonMember) string {
+	var t struct {
+		Pauli string `json:"pauli"`
+		Sites []int  `json:"sites"`
+	}
+	_ = json.Unmarshal(e.Value, &t)
+	return fmt.Sprintf("%s on %v", t.Pauli, t.Sites)
+}
+
+func (p *modelParser) term(e jsonMember, i int, l *Lattice) (Term, error) {
+	path := fmt.Sprintf("terms[%d]", i)
+	members, err := objectMembers(e.Value, e.Off)
+	if err != nil {
+		return Term{}, p.errAt(e.Off, path, err)
+	}
+	var (
+		t                 Term
+		pauli             string
+		sites             []int
+		havePauli, haveSi bool
+	)
+	given := map[string]int{}
+	for _, f := range members {
+		fp := path + "." + f.Key
+		switch f.Key {
+		case "pauli", "sites", "coeff", "group", "stderr":
+			if prev, dup := given[f.Key]; dup {
+				pl, _ := lineCol(p.doc, prev)
+				return Term{}, p.errAt(f.Off, fp, fmt.Errorf("given twice (first on line %d)", pl))
+			}
+			given[f.Key] = f.Off
+		}
+		switch f.Key {
+		case "pauli":
+			if err := json.Unmarshal(f.Value, &pauli); err != nil {
+				return Term{}, p.errAt(f.Off, fp, fmt.Errorf("must be a string of X, Y, Z letters, got %s", jsonKind(f.Value)))
+			}
+			havePauli = true
+		case "sites":
+			if sites, err = parseSites(f.Value); err != nil {
+				return Term{}, p.errAt(f.Off, fp, err)
+			}
+			haveSi = true
+		case "coeff":
+			if isNull(f.Value) {
+				continue
+			}
+			if t.Coeff, err = parseNumber(f.Value); err != nil {
+				return Term{}, p.errAt(f.Off, fp, err)
+			}
+		case "group":
+			if isNull(f.Value) {
+				continue
+			}
+			if err := json.Unmarshal(f.Value, &t.Group); err != nil {
+				return Term{}, p.errAt(f.Off, fp, fmt.Errorf("must be a string, got %s", jsonKind(f.Value)))
+			}
+		case "stderr":
+			if isNull(f.Value) {
+				continue
+			}
+			v, err := parseNumber(f.Value)
+			if err == nil {
+				err = checkStderr(v)
+			}
+			if err != nil {
+				return Term{}, p.errAt(f.Off, fp, err)
+			}
+			t.Stderr, t.HasStderr = v, true
+		}
+	}
+	if !havePauli {
+		return Term{}, p.errAt(e.Off, path+".pauli", fmt.Errorf("missing"))
+	}
+	if !haveSi {
+		return Term{}, p.errAt(e.Off, path+".sites", fmt.Errorf("missing"))
+	}
+	cp, cs, field, err := checkTermSupport(l, pauli, sites)
+	if err != nil {
+		off := e.Off
+		if o, ok := given[field[1:]]; ok {
+			off = o
+		}
+		return Term{}, p.errAt(off, path+field, err)
+	}
+	t.Pauli, t.Sites = cp, cs
+	return t, nil
+}
+
+// parseNumber reads a JSON number as a finite float64. Strings such as
+// "NaN" and numbers too large for float64 (1e999) are refused.
+func parseNumber(raw json.RawMessage) (float64, error) {
+	if k := jsonKind(raw); k != "number" {
+		return 0, fmt.Errorf("must be a number, got %s %s", k, bytes.TrimSpace(raw))
+	}
+	s := string(bytes.TrimSpace(raw))
+	v, err := strconv.ParseFloat(s, 64)
+	if err != nil || math.IsInf(v, 0) || math.IsNaN(v) {
+		return 0, fmt.Errorf("%s is not a finite float64 number", s)
+	}
+	return v, nil
+}
+
+// parseSites reads a JSON array of site indices.
+func parseSites(raw json.RawMessage) ([]int, error) {
+	if k := jsonKind(raw); k != "array" {
+		return nil, fmt.Errorf("must be an array of site indices, got %s", k)
+	}
+	var nums []json.RawMessage
+	if err := json.Unmarshal(raw, &nums); err != nil {
+		return nil, err
+	}
+	sites := make([]int, len(nums))
+	for i, n := range nums {
+		s := string(bytes.TrimSpace(n))
+		v, err := strconv.Atoi(s)
+		if jsonKind(n) != "number" || err != nil {
+			return nil, fmt.Errorf("site %s is not a non-negative integer", s)
+		}
+		sites[i] = v
+	}
+	return sites, nil
+}
