@@ -1,0 +1,157 @@
+package cluster
+
+import (
+	"errors"
+	"fmt"
+	"math"
+
+	"gonum.org/v1/gonum/blas"
+	"gonum.org/v1/gonum/lapack"
+	"gonum.org/v1/gonum/lapack/gonum"
+)
+
+// MaxDenseQubits is the largest number of qubits Diagonalize accepts. A
+// dense Hermitian problem on 12 qubits holds five 4096×4096 float64
+// matrices (670 MB) and takes minutes; larger systems need matrix-free
+// thermal typicality (package validate).
+const MaxDenseQubits = 12
+
+// Spectrum is the complete eigendecomposition H = V diag(E) V^† of a
+// Hamiltonian: eigenvalues in ascending order and orthonormal eigenvectors.
+//
+// Eigenvectors are stored as columns of a row-major Dim×Dim matrix, real
+// when the Hamiltonian matrix is real and as separate real and imaginary
+// parts otherwise, so that all later products run through real BLAS.
+//
+// A Spectrum keeps its workspace: Factorize on the same value reuses the
+// memory, which matters when millions of small clusters are diagonalised.
+// A Spectrum is not safe for concurrent modification.
+type Spectrum struct {
+	nq, dim int
+	real    bool
+	values  []float64
+	// vecs holds V row-major: vecs[b*dim+k] is component b of eigenvector k.
+	// In the complex case vecs[dim*dim:] holds the imaginary parts.
+	vecs []float64
+
+	work    []float64 // LAPACK workspace
+	scratch []float64 // Hermitian path: the second 2·dim² buffer
+	z       []float64 // Hermitian path: tridiagonal eigenvectors
+	diag    []float64 // Hermitian path: tridiagonal, reflector scales, phases
+	sub     []float64
+	tau     []float64
+	phase   []float64
+	tmp     []float64
+}
+
+// Diagonalize returns the spectrum of h. Terms with an odd number of Y
+// letters and a nonzero coefficient make the matrix complex; otherwise
+// the real symmetric solver is used. It refuses more than MaxDenseQubits
+// qubits before allocating anything.
+func Diagonalize(h *Hamiltonian) (*Spectrum, error) {
+	var s Spectrum
+	if err := s.Factorize(h); err != nil {
+		return nil, err
+	}
+	return &s, nil
+}
+
+// Factorize computes the spectrum of h into s, reusing the memory of s.
+// Any Thermal built on s becomes invalid.
+//
+// Real matrices go to LAPACK Dsyev (gonum). Complex Hermitian matrices are
+// reduced to a real symmetric tridiagonal matrix by Householder
+// reflections and a diagonal phase transformation, and the tridiagonal
+// problem is solved by Dsteqr; see eigen_hermitian.go for why this was chosen
+// over the real 2D×2D embedding.
+func (s *Spectrum) Factorize(h *Hamiltonian) error {
+	if h.NumQubits > MaxDenseQubits {
+		return fmt.Errorf("cluster: %d qubits exceed the dense diagonalisation limit of %d (MaxDenseQubits); use the matrix-free thermal typicality of package validate for larger systems",
+			h.NumQubits, MaxDenseQubits)
+	}
+	if err := h.check(); err != nil {
+		return err
+	}
+	s.nq = h.NumQubits
+	s.dim = h.Dim()
+	s.real = h.realMatrix()
+	d := s.dim
+	s.values = grow(s.values, d)
+	var err error
+	if s.real {
+		s.vecs = grow(s.vecs, d*d)
+		h.fillReal(s.vecs)
+		err = s.solveReal()
+	} else {
+		s.vecs = grow(s.vecs, 2*d*d)
+		h.fillComplex(s.vecs[:d*d], s.vecs[d*d:])
+		err = s.solveHermitian()
+	}
+	if err != nil {
+		return err
+	}
+	for _, v := range s.values {
+		if math.IsNaN(v) || math.IsInf(v, 0) {
+			return errors.New("cluster: eigenvalue is not finite")
+		}
+	}
+	return nil
+}
+
+func (s *Spectrum) solveReal() error {
+	d := s.dim
+	var impl gonum.Implementation
+	s.work = grow(s.work, 1)
+	impl.Dsyev(lapack.EVCompute, blas.Upper, d, s.vecs, d, s.values, s.work, -1)
+	lwork := int(s.work[0])
+	s.work = grow(s.work, lwork)
+	if !impl.Dsyev(lapack.EVCompute, blas.Upper, d, s.vecs, d, s.values, s.work, lwork) {
+		return errors.New("cluster: symmetric eigensolver did not converge")
+	}
+	return nil
+}
+
+// NumQubits returns the number of qubits of the diagonalised Hamiltonian.
+func (s *Spectrum) NumQubits() int { return s.nq }
+
+// Dim returns the Hilbert space dimension.
+func (s *Spectrum) Dim() int { return s.dim }
+
+// IsReal reports whether the eigenvectors are real.
+func (s *Spectrum) IsReal() bool { return s.real }
+
+// Values returns a copy of the eigenvalues in ascending order.
+func (s *Spectrum) Values() []float64 {
+	return append([]float64(nil), s.values...)
+}
+
+// Vector stores eigenvector k (the eigenvector of Values()[k]) in dst,
+// which is allocated when it is too short, and returns it. Component b is
+// the amplitude of the computational basis state whose bit q is qubit q.
+func (s *Spectrum) Vector(k int, dst []complex128) []complex128 {
+	if k < 0 || k >= s.dim {
+		panic(fmt.Sprintf("cluster: eigenvector %d out of range [0,%d)", k, s.dim))
+	}
+	d := s.dim
+	if cap(dst) < d {
+		dst = make([]complex128, d)
+	}
+	dst = dst[:d]
+	for b := range dst {
+		re := s.vecs[b*d+k]
+		im := 0.0
+		if !s.real {
+			im = s.vecs[d*d+b*d+k]
+		}
+		dst[b] = complex(re, im)
+	}
+	return dst
+}
+
+// grow returns buf resliced to length n, reallocating when it is too short.
+func grow(buf []float64, n int) []float64 {
+	if cap(buf) < n {
+		return make([]float64, n)
+	}
+	return buf[:n]
+}
