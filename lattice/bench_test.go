@@ -1,0 +1,65 @@
+package lattice
+
+import "testing"
+
+// BenchmarkClustersSquare20x20Order8 enumerates (visits, with sorted
+// sites) every connected cluster of up to 8 sites of the open 20x20
+// square lattice: 1 106 367 clusters.
+func BenchmarkClustersSquare20x20Order8(b *testing.B) {
+	l := mustBuild(b, "square:20x20")
+	var n int64
+	b.ResetTimer()
+	for range b.N {
+		l.EachCluster(8, func([]int) bool { n++; return true })
+	}
+	b.ReportMetric(float64(n)/b.Elapsed().Seconds(), "clusters/s")
+}
+
+// BenchmarkCountClustersSquare20x20Order8 counts the same clusters in
+// parallel without building the largest ones.
+func BenchmarkCountClustersSquare20x20Order8(b *testing.B) {
+	l := mustBuild(b, "square:20x20")
+	var n int64
+	b.ResetTimer()
+	for range b.N {
+		n += sum(l.CountClusters(8))
+	}
+	b.ReportMetric(float64(n)/b.Elapsed().Seconds(), "clusters/s")
+}
+
+// BenchmarkBuildClustersSquare20x20Order8 stores the same clusters in a
+// ClusterList (counting pass, then parallel fill).
+func BenchmarkBuildClustersSquare20x20Order8(b *testing.B) {
+	l := mustBuild(b, "square:20x20")
+	var n int64
+	b.ResetTimer()
+	for range b.N {
+		list, err := l.BuildClusters(8, 0)
+		if err != nil {
+			b.Fatal(err)
+		}
+		n += int64(list.Len())
+	}
+	b.ReportMetric(float64(n)/b.Elapsed().Seconds(), "clusters/s")
+}
+
+// BenchmarkCountClustersCubic8x8x8Order8 is a 3-D counting load.
+func BenchmarkCountClustersCubic8x8x8Order8(b *testing.B) {
+	l := mustBuild(b, "cubic:8x8x8")
+	var n int64
+	b.ResetTimer()
+	for range b.N {
+		n += sum(l.CountClusters(8))
+	}
+	b.ReportMetric(float64(n)/b.Elapsed().Seconds(), "clusters/s")
+}
+
+// BenchmarkEstimateClustersSquare200x200Order14 is the cost of the
+// planning estimate on a large lattice.
+func BenchmarkEstimateClustersSquare200x200Order14(b *testing.B) {
+	l := mustBuild(b, "square:200x200")
+	b.ResetTimer()
+	for range b.N {
+		l.EstimateClusters(14)
+	}
+}
