@@ -8,7 +8,9 @@ import (
 	"io"
 	"math"
 	"os"
+	"slices"
 	"strconv"
+	"strings"
 )
 
 // ReadModel reads and validates the model file at path (JSON, see
@@ -32,7 +34,8 @@ func ReadModel(path string) (*Model, error) {
 // "coeff" means 0 (useful in fitting templates); "beta", "group",
 // "stderr", "units" and "fit" are optional, and unknown fields are
 // ignored. The lattice may also be given as a specification string such
-// as "square:3x3". The result passes Validate.
+// as "square:3x3". ParseModel makes the checks of Validate as it goes
+// (with positions), so the result passes Validate.
 func ParseModel(r io.Reader, name string) (*Model, error) {
 	doc, err := io.ReadAll(r)
 	if err != nil {
@@ -54,8 +57,9 @@ func (p *modelParser) errAt(off int, path string, err error) *ModelError {
 }
 
 func (p *modelParser) parse() (*Model, error) {
-	var raw json.RawMessage
-	if err := json.Unmarshal(p.doc, &raw); err != nil {
+	if !json.Valid(p.doc) {
+		var v any
+		err := json.Unmarshal(p.doc, &v)
 		var se *json.SyntaxError
 		if errors.As(err, &se) {
 			off := int(se.Offset) - 1 // Offset counts the bytes read, the culprit included
@@ -63,7 +67,7 @@ func (p *modelParser) parse() (*Model, error) {
 		}
 		return nil, &ModelError{File: p.name, Err: fmt.Errorf("invalid JSON: %v", err)}
 	}
-	start := skipSeparators(p.doc, 0)
+	start := skipSpace(p.doc, 0)
 	members, err := objectMembers(p.doc, 0)
 	if err != nil {
 		return nil, p.errAt(start, "", fmt.Errorf("a model file must hold one JSON object: %v", err))
@@ -119,11 +123,6 @@ func (p *modelParser) parse() (*Model, error) {
 	}
 	if m.Terms, err = p.terms(tf, m.Lattice); err != nil {
 		return nil, err
-	}
-	if err := m.Validate(); err != nil {
-		// Everything Validate checks was checked above with positions;
-		// this only guards against the two drifting apart.
-		return nil, &ModelError{File: p.name, Err: err}
 	}
 	return m, nil
 }
@@ -191,84 +190,91 @@ func (p *modelParser) termAsWritten(e jsonMember) string {
 	return fmt.Sprintf("%s on %v", t.Pauli, t.Sites)
 }
 
+// termFields are the members of a term object the reader knows.
+var termFields = [...]string{"pauli", "sites", "coeff", "group", "stderr"}
+
 func (p *modelParser) term(e jsonMember, i int, l *Lattice) (Term, error) {
-	path := fmt.Sprintf("terms[%d]", i)
+	fail := func(off int, field string, err error) error {
+		return p.errAt(off, fmt.Sprintf("terms[%d]%s", i, field), err)
+	}
 	members, err := objectMembers(e.Value, e.Off)
 	if err != nil {
-		return Term{}, p.errAt(e.Off, path, err)
+		return Term{}, fail(e.Off, "", err)
 	}
 	var (
-		t                 Term
-		pauli             string
-		sites             []int
-		havePauli, haveSi bool
+		t     Term
+		pauli string
+		sites []int
+		at    [len(termFields)]int // offset of each known member + 1; 0 if absent
 	)
-	given := map[string]int{}
 	for _, f := range members {
-		fp := path + "." + f.Key
-		switch f.Key {
-		case "pauli", "sites", "coeff", "group", "stderr":
-			if prev, dup := given[f.Key]; dup {
-				pl, _ := lineCol(p.doc, prev)
-				return Term{}, p.errAt(f.Off, fp, fmt.Errorf("given twice (first on line %d)", pl))
-			}
-			given[f.Key] = f.Off
+		k := slices.Index(termFields[:], f.Key)
+		if k < 0 {
+			continue // unknown members are allowed
+		}
+		fp := "." + f.Key
+		if at[k] > 0 {
+			pl, _ := lineCol(p.doc, at[k]-1)
+			return Term{}, fail(f.Off, fp, fmt.Errorf("given twice (first on line %d)", pl))
+		}
+		at[k] = f.Off + 1
+		if isNull(f.Value) && f.Key != "pauli" && f.Key != "sites" {
+			continue // an optional member given as null is absent
 		}
 		switch f.Key {
 		case "pauli":
-			if err := json.Unmarshal(f.Value, &pauli); err != nil {
-				return Term{}, p.errAt(f.Off, fp, fmt.Errorf("must be a string of X, Y, Z letters, got %s", jsonKind(f.Value)))
+			if pauli, err = parseString(f.Value); err != nil {
+				return Term{}, fail(f.Off, fp, fmt.Errorf("must be a string of X, Y, Z letters, got %s", jsonKind(f.Value)))
 			}
-			havePauli = true
 		case "sites":
 			if sites, err = parseSites(f.Value); err != nil {
-				return Term{}, p.errAt(f.Off, fp, err)
+				return Term{}, fail(f.Off, fp, err)
 			}
-			haveSi = true
 		case "coeff":
-			if isNull(f.Value) {
-				continue
-			}
 			if t.Coeff, err = parseNumber(f.Value); err != nil {
-				return Term{}, p.errAt(f.Off, fp, err)
+				return Term{}, fail(f.Off, fp, err)
 			}
 		case "group":
-			if isNull(f.Value) {
-				continue
-			}
-			if err := json.Unmarshal(f.Value, &t.Group); err != nil {
-				return Term{}, p.errAt(f.Off, fp, fmt.Errorf("must be a string, got %s", jsonKind(f.Value)))
+			if t.Group, err = parseString(f.Value); err != nil {
+				return Term{}, fail(f.Off, fp, fmt.Errorf("must be a string, got %s", jsonKind(f.Value)))
 			}
 		case "stderr":
-			if isNull(f.Value) {
-				continue
-			}
 			v, err := parseNumber(f.Value)
 			if err == nil {
 				err = checkStderr(v)
 			}
 			if err != nil {
-				return Term{}, p.errAt(f.Off, fp, err)
+				return Term{}, fail(f.Off, fp, err)
 			}
 			t.Stderr, t.HasStderr = v, true
 		}
 	}
-	if !havePauli {
-		return Term{}, p.errAt(e.Off, path+".pauli", fmt.Errorf("missing"))
+	if at[0] == 0 {
+		return Term{}, fail(e.Off, ".pauli", fmt.Errorf("missing"))
 	}
-	if !haveSi {
-		return Term{}, p.errAt(e.Off, path+".sites", fmt.Errorf("missing"))
+	if at[1] == 0 {
+		return Term{}, fail(e.Off, ".sites", fmt.Errorf("missing"))
 	}
 	cp, cs, field, err := checkTermSupport(l, pauli, sites)
 	if err != nil {
 		off := e.Off
-		if o, ok := given[field[1:]]; ok {
-			off = o
+		if k := slices.Index(termFields[:], strings.TrimPrefix(field, ".")); k >= 0 && at[k] > 0 {
+			off = at[k] - 1
 		}
-		return Term{}, p.errAt(off, path+field, err)
+		return Term{}, fail(off, field, err)
 	}
 	t.Pauli, t.Sites = cp, cs
 	return t, nil
+}
+
+// parseString reads a JSON string.
+func parseString(raw json.RawMessage) (string, error) {
+	if len(raw) >= 2 && raw[0] == '"' && bytes.IndexByte(raw, '\\') < 0 {
+		return string(raw[1 : len(raw)-1]), nil
+	}
+	var s string
+	err := json.Unmarshal(raw, &s)
+	return s, err
 }
 
 // parseNumber reads a JSON number as a finite float64. Strings such as
@@ -290,18 +296,41 @@ func parseSites(raw json.RawMessage) ([]int, error) {
 	if k := jsonKind(raw); k != "array" {
 		return nil, fmt.Errorf("must be an array of site indices, got %s", k)
 	}
-	var nums []json.RawMessage
-	if err := json.Unmarshal(raw, &nums); err != nil {
+	elems, err := arrayElements(raw, 0)
+	if err != nil {
 		return nil, err
 	}
-	sites := make([]int, len(nums))
-	for i, n := range nums {
-		s := string(bytes.TrimSpace(n))
-		v, err := strconv.Atoi(s)
-		if jsonKind(n) != "number" || err != nil {
-			return nil, fmt.Errorf("site %s is not a non-negative integer", s)
+	sites := make([]int, len(elems))
+	for i, e := range elems {
+		v, ok := parseIndex(e.Value)
+		if !ok {
+			return nil, fmt.Errorf("site %s is not a non-negative integer", e.Value)
 		}
 		sites[i] = v
 	}
 	return sites, nil
+}
+
+// parseIndex reads an integer written with decimal digits only (an
+// optional minus sign included, so that negative sites get a range
+// error rather than a syntax one).
+func parseIndex(b []byte) (int, bool) {
+	neg := len(b) > 0 && b[0] == '-'
+	if neg {
+		b = b[1:]
+	}
+	if len(b) == 0 || len(b) > 9 {
+		return 0, false
+	}
+	v := 0
+	for _, c := range b {
+		if c < '0' || c > '9' {
+			return 0, false
+		}
+		v = 10*v + int(c-'0')
+	}
+	if neg {
+		v = -v
+	}
+	return v, true
 }

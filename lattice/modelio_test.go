@@ -99,6 +99,9 @@ func TestModelRoundTrip(t *testing.T) {
 				t.Fatalf("%v\n%s", err, first)
 			}
 			sameModel(t, back, m)
+			if err := back.Validate(); err != nil {
+				t.Error(err)
+			}
 			// Writing what was read gives the same bytes.
 			buf.Reset()
 			if err := WriteModel(&buf, back); err != nil {
@@ -135,7 +138,8 @@ func TestParseModelCanonicalises(t *testing.T) {
 	doc := `{"lattice": {"kind": "chain", "size": [4]},
 	 "terms": [{"pauli": "XZ", "sites": [2, 1], "coeff": 0.5, "extra": [1, {"a": null}]},
 	           {"pauli": "XYZ", "sites": [3, 1, 2]},
-	           {"pauli": "Y", "sites": [0], "coeff": -2, "stderr": 0.1, "group": null}]}`
+	           {"pauli": "Y", "sites": [0], "coeff": -2, "stderr": 0.1, "group": null},
+	           {"p\u0061uli": "X", "sites": [ 3 ] , "group": "a\"]}[{,:b", "coeff":1E-2 }]}`
 	m, err := ParseModel(strings.NewReader(doc), "c.json")
 	if err != nil {
 		t.Fatal(err)
@@ -144,12 +148,17 @@ func TestParseModelCanonicalises(t *testing.T) {
 		{Pauli: "ZX", Sites: []int{1, 2}, Coeff: 0.5},
 		{Pauli: "YZX", Sites: []int{1, 2, 3}}, // letters follow their sites; missing coeff is 0
 		{Pauli: "Y", Sites: []int{0}, Coeff: -2, Stderr: 0.1, HasStderr: true},
+		// An escaped key and a group name full of JSON punctuation.
+		{Pauli: "X", Sites: []int{3}, Coeff: 0.01, Group: `a"]}[{,:b`},
 	}
 	if !reflect.DeepEqual(m.Terms, want) {
 		t.Errorf("got %+v\nwant %+v", m.Terms, want)
 	}
 	if m.Beta != 0 {
 		t.Errorf("beta %v without a beta field", m.Beta)
+	}
+	if err := m.Validate(); err != nil {
+		t.Error(err)
 	}
 }
 
