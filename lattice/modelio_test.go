@@ -119,6 +119,50 @@ func TestModelRoundTrip(t *testing.T) {
 	}
 }
 
+func TestModelRoundTripCustomGraph(t *testing.T) {
+	// A ring of 40 sites on a circle with one chord: long "sites" and
+	// "bonds" arrays that the writer wraps.
+	const n = 40
+	coords := make([][]float64, n)
+	var bonds []Bond
+	for i := range coords {
+		a := 2 * math.Pi * float64(i) / n
+		coords[i] = []float64{10 * math.Cos(a), 10 * math.Sin(a)}
+		bonds = append(bonds, Bond{i, (i + 1) % n})
+	}
+	bonds = append(bonds, Bond{0, n / 2})
+	l, err := FromGraph(coords, bonds, 1)
+	if err != nil {
+		t.Fatal(err)
+	}
+	terms, err := Preset(l, "tfim", map[string]float64{"hx": -0.5})
+	if err != nil {
+		t.Fatal(err)
+	}
+	m := &Model{Lattice: l, Beta: 1.5, Terms: terms}
+	var buf bytes.Buffer
+	if err := WriteModel(&buf, m); err != nil {
+		t.Fatal(err)
+	}
+	for i, line := range strings.Split(buf.String(), "\n") {
+		if len(line) > maxInlineWidth+8 {
+			t.Errorf("line %d has %d characters", i+1, len(line))
+		}
+	}
+	back, err := ParseModel(&buf, "graph.json")
+	if err != nil {
+		t.Fatal(err)
+	}
+	sameModel(t, back, m)
+	if !reflect.DeepEqual(back.Lattice.Coords, coords) {
+		t.Error("coordinates changed")
+	}
+	// The chord makes ZZ on [0 20] a valid term: n ring bonds + 1 chord.
+	if got := countByPauli(back.Terms)["ZZ"]; got != n+1 {
+		t.Errorf("%d ZZ terms, want %d", got, n+1)
+	}
+}
+
 func TestReadModelSample(t *testing.T) {
 	m, err := ReadModel(filepath.Join("..", "testdata", "models", "square3x3_tfim.json"))
 	if err != nil {

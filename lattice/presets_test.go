@@ -20,7 +20,10 @@ func TestPresetTermCounts(t *testing.T) {
 	// Bond counts are closed forms: open chain of L sites L-1 bonds,
 	// periodic chain L; open W x H square W(H-1) + H(W-1) nearest and
 	// 2(W-1)(H-1) diagonal (next-nearest) bonds; open chain L-2
-	// next-nearest bonds.
+	// next-nearest bonds; open L-rung ladder 2(L-1) + L; open L^3 cube
+	// 3 L^2 (L-1); a periodic lattice of N sites and coordination z has
+	// zN/2 bonds (triangular z = 6, honeycomb 3, kagome 4, square 4 for
+	// both the nearest and the diagonal shell).
 	tests := []struct {
 		spec, preset string
 		values       map[string]float64
@@ -42,6 +45,12 @@ func TestPresetTermCounts(t *testing.T) {
 		{"square:3x3:shells=2", "j1j2", nil, map[string]int{"XX": 20, "YY": 20, "ZZ": 20}},
 		{"chain:6:shells=2", "j1j2", map[string]float64{"J2": 0}, map[string]int{"XX": 5, "YY": 5, "ZZ": 5}},
 		{"chain:6:shells=2", "j1j2", nil, map[string]int{"XX": 9, "YY": 9, "ZZ": 9}},
+		{"triangular:4x4:periodic", "tfim", nil, map[string]int{"ZZ": 48, "X": 16}},
+		{"honeycomb:3x3:periodic", "heisenberg", nil, map[string]int{"XX": 27, "YY": 27, "ZZ": 27}},
+		{"kagome:2x3:periodic", "xy", nil, map[string]int{"XX": 36, "YY": 36}},
+		{"cubic:2x2x2", "tfim", nil, map[string]int{"ZZ": 12, "X": 8}},
+		{"ladder:5", "xxz", map[string]float64{"hz": 1}, map[string]int{"XX": 13, "YY": 13, "ZZ": 13, "Z": 10}},
+		{"square:4x4:periodic:shells=2", "j1j2", nil, map[string]int{"XX": 64, "YY": 64, "ZZ": 64}},
 		// A two-shell lattice does not change a nearest-neighbour preset.
 		{"square:3x3:shells=2", "tfim", nil, map[string]int{"ZZ": 12, "X": 9}},
 		// all2local on open 3x3: 9*12 two-site + 3*9 one-site terms.
