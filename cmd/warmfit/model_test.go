@@ -51,6 +51,46 @@ func TestModelCommandPresets(t *testing.T) {
 	}
 }
 
+func TestModelCommandLatticeFiles(t *testing.T) {
+	dir := t.TempDir()
+	graph := filepath.Join(dir, "path4.json")
+	// A 4-site path: 3 bonds, and 2 pairs at graph distance 2.
+	doc := `{"kind": "graph", "sites": [[0, 0], [1, 0], [2, 0], [3, 0]], "bonds": [[0, 1], [1, 2], [2, 3]]}`
+	if err := os.WriteFile(graph, []byte(doc), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	sample := filepath.Join("..", "..", "testdata", "models", "square3x3_tfim.json")
+	tests := []struct {
+		args  []string
+		terms int
+	}{
+		{[]string{"--lattice", graph, "--preset", "j1j2", "--shells", "2"}, 3 * (3 + 2)},
+		{[]string{"--lattice", graph, "--preset", "tfim"}, 3 + 4},
+		// --shells 1 takes the diagonals of a two-shell specification away:
+		// all2local on the open 3x3 square, 9*12 + 3*9 terms.
+		{[]string{"--lattice", "square:3x3:shells=2", "--shells", "1", "--preset", "all2local"}, 135},
+		// The lattice of a model file: open 3x3 square, 12 bonds x 3 + 0 fields.
+		{[]string{"--lattice", sample, "--preset", "heisenberg"}, 36},
+	}
+	for _, tc := range tests {
+		code, out, errs := runCapture(append([]string{"model"}, tc.args...)...)
+		if code != exitOK {
+			t.Fatalf("%v: exit %d: %s", tc.args, code, errs)
+		}
+		if m := parseOutputModel(t, out); len(m.Terms) != tc.terms {
+			t.Errorf("%v: %d terms, want %d", tc.args, len(m.Terms), tc.terms)
+		}
+	}
+	// A broken lattice file is a failure (exit 1), not a usage error.
+	bad := filepath.Join(dir, "bad.json")
+	if err := os.WriteFile(bad, []byte(`{"kind": "graph", "sites": [[0, 0]], "bonds": [[0, 5]]}`), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	if code, _, errs := runCapture("model", "--lattice", bad, "--preset", "tfim"); code != exitFailure || !strings.Contains(errs, "bad.json") {
+		t.Errorf("bad lattice file: exit %d, %s", code, errs)
+	}
+}
+
 func TestModelCommandValuesBetaTie(t *testing.T) {
 	code, out, errs := runCapture("model", "--lattice", "chain:4", "--preset", "xxz",
 		"--set", "Jxy=-1,Jz=2", "--beta", "0.7", "--tie", "--units", "MHz")
