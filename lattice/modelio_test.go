@@ -2,6 +2,7 @@ package lattice
 
 import (
 	"bytes"
+	"encoding/json"
 	"errors"
 	"math"
 	"os"
@@ -389,6 +390,20 @@ func TestValidate(t *testing.T) {
 	var buf bytes.Buffer
 	if err := WriteModel(&buf, m); err != nil || strings.Contains(buf.String(), "NaN") || strings.Contains(buf.String(), "stderr") {
 		t.Errorf("err %v, output %s", err, buf.String())
+	}
+}
+
+func TestFormatNumberMatchesEncodingJSON(t *testing.T) {
+	// Reference: encoding/json's own float formatting.
+	for _, v := range []float64{0, math.Copysign(0, -1), 1, -0.5, 0.1 + 0.2, 1e-6, 9.99e-7, 1e-7, 1.5e-300,
+		5e-324, 1e20, 1e21, 123456789e15, -1.7976931348623157e308, 2.5e-10, 1e100} {
+		want, err := json.Marshal(v)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if got := formatNumber(v); got != string(want) {
+			t.Errorf("%v: %s, want %s", v, got, want)
+		}
 	}
 }
 

@@ -5,6 +5,7 @@ import (
 	"encoding/json"
 	"fmt"
 	"io"
+	"math"
 	"strconv"
 )
 
@@ -56,37 +57,53 @@ func WriteModel(w io.Writer, m *Model) error {
 }
 
 func writeTerm(b *bytes.Buffer, t Term) {
-	b.WriteString(`{"pauli": `)
-	b.WriteString(quote(t.Pauli))
-	b.WriteString(`, "sites": [`)
+	var num [32]byte
+	b.WriteString(`{"pauli": "`)
+	b.WriteString(t.Pauli) // validated: letters X, Y, Z only
+	b.WriteString(`", "sites": [`)
 	for i, s := range t.Sites {
 		if i > 0 {
 			b.WriteString(", ")
 		}
-		b.WriteString(strconv.Itoa(s))
+		b.Write(strconv.AppendInt(num[:0], int64(s), 10))
 	}
 	b.WriteString(`], "coeff": `)
-	b.WriteString(formatNumber(t.Coeff))
+	b.Write(appendNumber(num[:0], t.Coeff))
 	if t.Group != "" {
 		b.WriteString(`, "group": `)
 		b.WriteString(quote(t.Group))
 	}
 	if t.HasStderr {
 		b.WriteString(`, "stderr": `)
-		b.WriteString(formatNumber(t.Stderr))
+		b.Write(appendNumber(num[:0], t.Stderr))
 	}
 	b.WriteByte('}')
 }
 
-// formatNumber writes a finite float64 as encoding/json does: the
-// shortest decimal that parses back to the same value. Callers have
-// checked finiteness.
+// formatNumber writes a finite float64 the way encoding/json does: the
+// shortest decimal that parses back to the same value, in exponent form
+// only below 1e-6 or from 1e21 on. Callers have checked finiteness.
 func formatNumber(v float64) string {
-	out, err := json.Marshal(v)
-	if err != nil {
-		panic("lattice: formatNumber of a non-finite value: " + err.Error())
+	return string(appendNumber(make([]byte, 0, 24), v))
+}
+
+func appendNumber(b []byte, v float64) []byte {
+	if math.IsNaN(v) || math.IsInf(v, 0) {
+		panic(fmt.Sprintf("lattice: formatting the non-finite number %v", v))
 	}
-	return string(out)
+	format := byte('f')
+	if a := math.Abs(v); a != 0 && (a < 1e-6 || a >= 1e21) {
+		format = 'e'
+	}
+	b = strconv.AppendFloat(b, v, format, -1, 64)
+	if format == 'e' {
+		// 1e-07 -> 1e-7, as encoding/json writes it.
+		if n := len(b); n >= 4 && b[n-4] == 'e' && b[n-3] == '-' && b[n-2] == '0' {
+			b[n-2] = b[n-1]
+			b = b[:n-1]
+		}
+	}
+	return b
 }
 
 func quote(s string) string {
