@@ -187,7 +187,7 @@ func TestNumbering(t *testing.T) {
 		{"square:4x3", 5, []float64{1, 1}},
 		{"square:4x3", 11, []float64{3, 2}},
 		{"triangular:4x3", 4, []float64{0.5, s3 / 2}},
-		{"triangular:4x3", 9, []float64{1 + 1, s3}}, // cell (1,2)
+		{"triangular:4x3", 9, []float64{1 + 1, s3}},  // cell (1,2)
 		{"honeycomb:3x3", 7, []float64{s3 / 2, 2.5}}, // b=1 of cell (0,1)
 		{"kagome:2x3", 10, []float64{4, s3}},         // b=1 of cell (1,1)
 		{"kagome:2x3", 5, []float64{2.5, s3 / 2}},    // b=2 of cell (1,0)
