@@ -22,8 +22,8 @@ var modelOptions struct {
 	set      []string
 	disorder float64
 	seed     uint64
-	beta     optionalFloat
-	shells   optionalInt
+	beta     modelFloatFlag
+	shells   modelIntFlag
 	tie      bool
 	units    string
 	out      string
@@ -40,7 +40,7 @@ func init() {
 		Example: modelExample,
 		Flags: func(fs *pflag.FlagSet) {
 			o := &modelOptions
-			o.beta, o.shells = optionalFloat{}, optionalInt{}
+			o.beta, o.shells = modelFloatFlag{}, modelIntFlag{}
 			fs.StringVar(&o.lattice, "lattice", "", "lattice specification (square:4x4, chain:12:periodic, ...) or JSON file")
 			fs.StringVar(&o.preset, "preset", "", "model family: "+strings.Join(lattice.PresetNames(), ", "))
 			fs.StringSliceVar(&o.set, "set", nil, "coefficients, NAME=VALUE[,NAME=VALUE...] (repeatable)")
@@ -89,7 +89,7 @@ seed gives the same model everywhere.
 Presets:
 `)
 	for _, p := range lattice.Presets() {
-		fmt.Fprintf(&b, "\n  %s\n", indentAfterFirst(wrapText(p.Name+": "+p.Hamiltonian, 74), "      "))
+		fmt.Fprintf(&b, "\n  %s\n", modelIndentAfterFirst(modelWrapText(p.Name+": "+p.Hamiltonian, 74), "      "))
 		if p.Shells > 1 {
 			fmt.Fprintf(&b, "    needs --shells 2 (or a lattice specification ending in :shells=2)\n")
 		}
@@ -189,12 +189,12 @@ func parseSetFlags(pairs []string, info lattice.PresetInfo) (map[string]float64,
 // openModelLattice opens the lattice named by spec (a specification or a
 // JSON file) and applies --shells. Mistakes in a specification are usage
 // errors; an unreadable or invalid file is a failure.
-func openModelLattice(spec string, shells optionalInt) (*lattice.Lattice, error) {
+func openModelLattice(spec string, shells modelIntFlag) (*lattice.Lattice, error) {
 	l, err := lattice.Open(spec)
 	if err != nil {
-		return nil, latticeError(err)
+		return nil, modelLatticeError(err)
 	}
-	if !shells.set || normalShells(l.Spec.Shells) == shells.v {
+	if !shells.set || modelShells(l.Spec.Shells) == shells.v {
 		return l, nil
 	}
 	if l.Spec.Kind == "graph" {
@@ -205,12 +205,12 @@ func openModelLattice(spec string, shells optionalInt) (*lattice.Lattice, error)
 		l, err = lattice.Build(s)
 	}
 	if err != nil {
-		return nil, latticeError(err)
+		return nil, modelLatticeError(err)
 	}
 	return l, nil
 }
 
-func latticeError(err error) error {
+func modelLatticeError(err error) error {
 	var se *lattice.SpecError
 	if errors.As(err, &se) {
 		return usagef("--lattice: %v", err)
@@ -218,7 +218,7 @@ func latticeError(err error) error {
 	return err
 }
 
-func normalShells(s int) int {
+func modelShells(s int) int {
 	if s == 2 {
 		return 2
 	}
@@ -242,7 +242,7 @@ func checkModel(env *runEnv) error {
 	if o.beta.set {
 		m.Beta = o.beta.v
 	}
-	fmt.Fprintln(env.Stdout, wrapText(modelSummary(o.check, m), 78))
+	fmt.Fprintln(env.Stdout, modelWrapText(modelSummary(o.check, m), 78))
 	return nil
 }
 
@@ -254,7 +254,7 @@ func modelSummary(name string, m *lattice.Model) string {
 	if c := len(l.Components()); c > 1 {
 		fmt.Fprintf(&b, " in %d disconnected pieces", c)
 	}
-	fmt.Fprintf(&b, ". %d terms: %s", len(m.Terms), countLetters(m.Terms))
+	fmt.Fprintf(&b, ". %d terms: %s", len(m.Terms), modelCountLetters(m.Terms))
 
 	groups := map[string]bool{}
 	grouped := 0
@@ -280,7 +280,7 @@ func modelSummary(name string, m *lattice.Model) string {
 	if m.Units != "" {
 		unit = " " + m.Units
 	}
-	fmt.Fprintf(&b, ". Coefficients from %s to %s%s (max |coeff| %s)", g4(lo), g4(hi), unit, g4(maxAbs))
+	fmt.Fprintf(&b, ". Coefficients from %s to %s%s (max |coeff| %s)", modelG4(lo), modelG4(hi), unit, modelG4(maxAbs))
 	if withErr > 0 {
 		fmt.Fprintf(&b, ", %d with standard errors", withErr)
 	}
@@ -288,7 +288,7 @@ func modelSummary(name string, m *lattice.Model) string {
 		b.WriteString("; the file carries a fit report")
 	}
 	if m.Beta > 0 {
-		fmt.Fprintf(&b, ". beta = %s, beta*max|coeff| = %s (the expansion converges best when this is small)", g4(m.Beta), g4(m.Beta*maxAbs))
+		fmt.Fprintf(&b, ". beta = %s, beta*max|coeff| = %s (the expansion converges best when this is small)", modelG4(m.Beta), modelG4(m.Beta*maxAbs))
 	} else {
 		b.WriteString(". No beta: give --beta to commands that need one")
 	}
@@ -296,8 +296,8 @@ func modelSummary(name string, m *lattice.Model) string {
 	return b.String()
 }
 
-// countLetters lists term counts by Pauli string, longer strings first.
-func countLetters(terms []lattice.Term) string {
+// modelCountLetters lists term counts by Pauli string, longer strings first.
+func modelCountLetters(terms []lattice.Term) string {
 	count := map[string]int{}
 	for _, t := range terms {
 		count[t.Pauli]++
@@ -319,10 +319,10 @@ func countLetters(terms []lattice.Term) string {
 	return strings.Join(parts, ", ")
 }
 
-func g4(v float64) string { return strconv.FormatFloat(v, 'g', 4, 64) }
+func modelG4(v float64) string { return strconv.FormatFloat(v, 'g', 4, 64) }
 
-// wrapText breaks a paragraph into lines of at most width characters.
-func wrapText(s string, width int) string {
+// modelWrapText breaks a paragraph into lines of at most width characters.
+func modelWrapText(s string, width int) string {
 	var b strings.Builder
 	n := 0
 	for i, w := range strings.Fields(s) {
@@ -339,25 +339,25 @@ func wrapText(s string, width int) string {
 	return b.String()
 }
 
-// indentAfterFirst indents every line but the first.
-func indentAfterFirst(s, prefix string) string {
+// modelIndentAfterFirst indents every line but the first.
+func modelIndentAfterFirst(s, prefix string) string {
 	return strings.ReplaceAll(s, "\n", "\n"+prefix)
 }
 
-// optionalFloat is a float flag that records whether it was given.
-type optionalFloat struct {
+// modelFloatFlag is a float flag that records whether it was given.
+type modelFloatFlag struct {
 	v   float64
 	set bool
 }
 
-func (f *optionalFloat) String() string {
+func (f *modelFloatFlag) String() string {
 	if !f.set {
 		return ""
 	}
 	return strconv.FormatFloat(f.v, 'g', -1, 64)
 }
 
-func (f *optionalFloat) Set(s string) error {
+func (f *modelFloatFlag) Set(s string) error {
 	v, err := strconv.ParseFloat(s, 64)
 	if err != nil {
 		return fmt.Errorf("%q is not a number", s)
@@ -366,22 +366,22 @@ func (f *optionalFloat) Set(s string) error {
 	return nil
 }
 
-func (f *optionalFloat) Type() string { return "float" }
+func (f *modelFloatFlag) Type() string { return "float" }
 
-// optionalInt is an int flag that records whether it was given.
-type optionalInt struct {
+// modelIntFlag is an int flag that records whether it was given.
+type modelIntFlag struct {
 	v   int
 	set bool
 }
 
-func (f *optionalInt) String() string {
+func (f *modelIntFlag) String() string {
 	if !f.set {
 		return ""
 	}
 	return strconv.Itoa(f.v)
 }
 
-func (f *optionalInt) Set(s string) error {
+func (f *modelIntFlag) Set(s string) error {
 	v, err := strconv.Atoi(s)
 	if err != nil {
 		return fmt.Errorf("%q is not an integer", s)
@@ -390,9 +390,9 @@ func (f *optionalInt) Set(s string) error {
 	return nil
 }
 
-func (f *optionalInt) Type() string { return "int" }
+func (f *modelIntFlag) Type() string { return "int" }
 
-func pluralS(n int) string {
+func modelPlural(n int) string {
 	if n == 1 {
 		return ""
 	}

@@ -10,14 +10,14 @@ import (
 	"warmfit/lattice"
 )
 
-// runCapture runs warmfit with args and returns exit code, stdout, stderr.
-func runCapture(args ...string) (int, string, string) {
+// runModelCmd runs warmfit with args and returns exit code, stdout, stderr.
+func runModelCmd(args ...string) (int, string, string) {
 	var out, errb bytes.Buffer
 	code := run(&runEnv{Stdout: &out, Stderr: &errb, Stdin: strings.NewReader("")}, args)
 	return code, out.String(), errb.String()
 }
 
-func parseOutputModel(t *testing.T, out string) *lattice.Model {
+func parseModelOutput(t *testing.T, out string) *lattice.Model {
 	t.Helper()
 	m, err := lattice.ParseModel(strings.NewReader(out), "stdout")
 	if err != nil {
@@ -41,11 +41,11 @@ func TestModelCommandPresets(t *testing.T) {
 		{[]string{"--lattice", "square:3x3", "--preset", "all2local"}, 135},
 	}
 	for _, tc := range tests {
-		code, out, errs := runCapture(append([]string{"model"}, tc.args...)...)
+		code, out, errs := runModelCmd(append([]string{"model"}, tc.args...)...)
 		if code != exitOK {
 			t.Fatalf("%v: exit %d: %s", tc.args, code, errs)
 		}
-		if m := parseOutputModel(t, out); len(m.Terms) != tc.terms {
+		if m := parseModelOutput(t, out); len(m.Terms) != tc.terms {
 			t.Errorf("%v: %d terms, want %d", tc.args, len(m.Terms), tc.terms)
 		}
 	}
@@ -73,11 +73,11 @@ func TestModelCommandLatticeFiles(t *testing.T) {
 		{[]string{"--lattice", sample, "--preset", "heisenberg"}, 36},
 	}
 	for _, tc := range tests {
-		code, out, errs := runCapture(append([]string{"model"}, tc.args...)...)
+		code, out, errs := runModelCmd(append([]string{"model"}, tc.args...)...)
 		if code != exitOK {
 			t.Fatalf("%v: exit %d: %s", tc.args, code, errs)
 		}
-		if m := parseOutputModel(t, out); len(m.Terms) != tc.terms {
+		if m := parseModelOutput(t, out); len(m.Terms) != tc.terms {
 			t.Errorf("%v: %d terms, want %d", tc.args, len(m.Terms), tc.terms)
 		}
 	}
@@ -86,18 +86,18 @@ func TestModelCommandLatticeFiles(t *testing.T) {
 	if err := os.WriteFile(bad, []byte(`{"kind": "graph", "sites": [[0, 0]], "bonds": [[0, 5]]}`), 0o644); err != nil {
 		t.Fatal(err)
 	}
-	if code, _, errs := runCapture("model", "--lattice", bad, "--preset", "tfim"); code != exitFailure || !strings.Contains(errs, "bad.json") {
+	if code, _, errs := runModelCmd("model", "--lattice", bad, "--preset", "tfim"); code != exitFailure || !strings.Contains(errs, "bad.json") {
 		t.Errorf("bad lattice file: exit %d, %s", code, errs)
 	}
 }
 
 func TestModelCommandValuesBetaTie(t *testing.T) {
-	code, out, errs := runCapture("model", "--lattice", "chain:4", "--preset", "xxz",
+	code, out, errs := runModelCmd("model", "--lattice", "chain:4", "--preset", "xxz",
 		"--set", "Jxy=-1,Jz=2", "--beta", "0.7", "--tie", "--units", "MHz")
 	if code != exitOK {
 		t.Fatalf("exit %d: %s", code, errs)
 	}
-	m := parseOutputModel(t, out)
+	m := parseModelOutput(t, out)
 	if m.Beta != 0.7 || m.Units != "MHz" {
 		t.Errorf("beta %v units %q", m.Beta, m.Units)
 	}
@@ -114,13 +114,13 @@ func TestModelCommandValuesBetaTie(t *testing.T) {
 
 func TestModelCommandDisorderDeterministic(t *testing.T) {
 	args := []string{"model", "--lattice", "square:3x3", "--preset", "heisenberg", "--disorder", "0.2", "--seed", "11"}
-	_, a, _ := runCapture(args...)
-	_, b, _ := runCapture(args...)
-	code, c, errs := runCapture(append(args[:len(args)-1:len(args)-1], "12")...)
+	_, a, _ := runModelCmd(args...)
+	_, b, _ := runModelCmd(args...)
+	code, c, errs := runModelCmd(append(args[:len(args)-1:len(args)-1], "12")...)
 	if code != exitOK || a != b || a == c {
 		t.Fatalf("exit %d (%s); same seed equal: %v, other seed differs: %v", code, errs, a == b, a != c)
 	}
-	for _, term := range parseOutputModel(t, a).Terms {
+	for _, term := range parseModelOutput(t, a).Terms {
 		if term.Coeff < 0.8 || term.Coeff >= 1.2 {
 			t.Errorf("coefficient %v outside 1 +- 0.2", term.Coeff)
 		}
@@ -152,7 +152,7 @@ func TestModelCommandUsageErrors(t *testing.T) {
 		{[]string{"--bogus"}, "unknown flag"},
 	}
 	for _, tc := range tests {
-		code, out, errs := runCapture(append([]string{"model"}, tc.args...)...)
+		code, out, errs := runModelCmd(append([]string{"model"}, tc.args...)...)
 		if code != exitUsage || out != "" || !strings.Contains(errs, tc.msg) {
 			t.Errorf("%v: exit %d, stdout %q, stderr %q; want exit 2 mentioning %q", tc.args, code, out, errs, tc.msg)
 		}
@@ -162,7 +162,7 @@ func TestModelCommandUsageErrors(t *testing.T) {
 func TestModelCommandOutputFile(t *testing.T) {
 	dir := t.TempDir()
 	path := filepath.Join(dir, "m.json")
-	code, out, errs := runCapture("model", "--lattice", "chain:3", "--preset", "heisenberg", "-o", path)
+	code, out, errs := runModelCmd("model", "--lattice", "chain:3", "--preset", "heisenberg", "-o", path)
 	if code != exitOK || out != "" {
 		t.Fatalf("exit %d, stdout %q, stderr %s", code, out, errs)
 	}
@@ -180,7 +180,7 @@ func TestModelCommandOutputFile(t *testing.T) {
 		{"model", "--lattice", "chain:3", "--preset", "tfim", "--set", "nope=1", "-o", path},
 		{"model", "--lattice", filepath.Join(dir, "missing.json"), "--preset", "tfim", "-o", path},
 	} {
-		code, _, _ := runCapture(args...)
+		code, _, _ := runModelCmd(args...)
 		if code == exitOK {
 			t.Errorf("%v: exit 0", args)
 		}
@@ -188,7 +188,7 @@ func TestModelCommandOutputFile(t *testing.T) {
 			t.Errorf("%v clobbered the output file: %q", args, got)
 		}
 	}
-	if code, _, _ := runCapture("model", "--lattice", filepath.Join(dir, "missing.json"), "--preset", "tfim"); code != exitFailure {
+	if code, _, _ := runModelCmd("model", "--lattice", filepath.Join(dir, "missing.json"), "--preset", "tfim"); code != exitFailure {
 		t.Errorf("missing lattice file: exit %d, want 1", code)
 	}
 	entries, _ := os.ReadDir(dir)
@@ -199,7 +199,7 @@ func TestModelCommandOutputFile(t *testing.T) {
 
 func TestModelCheck(t *testing.T) {
 	sample := filepath.Join("..", "..", "testdata", "models", "square3x3_tfim.json")
-	code, out, errs := runCapture("model", "--check", sample)
+	code, out, errs := runModelCmd("model", "--check", sample)
 	if code != exitOK {
 		t.Fatalf("exit %d: %s", code, errs)
 	}
@@ -212,24 +212,24 @@ func TestModelCheck(t *testing.T) {
 			t.Errorf("summary lacks %q:\n%s", want, out)
 		}
 	}
-	code, out, _ = runCapture("model", "--check", sample, "--beta", "2")
+	code, out, _ = runModelCmd("model", "--check", sample, "--beta", "2")
 	if code != exitOK || !strings.Contains(out, "beta = 2,") {
 		t.Errorf("--beta did not override: %s", out)
 	}
 
 	bad := filepath.Join("..", "..", "testdata", "models", "bad_syntax.json")
-	code, out, errs = runCapture("model", "--check", bad)
+	code, out, errs = runModelCmd("model", "--check", bad)
 	if code != exitFailure || out != "" || !strings.Contains(errs, bad+":6:") {
 		t.Errorf("bad file: exit %d, stdout %q, stderr %q", code, out, errs)
 	}
-	code, _, _ = runCapture("model", "--check", filepath.Join(t.TempDir(), "none.json"))
+	code, _, _ = runModelCmd("model", "--check", filepath.Join(t.TempDir(), "none.json"))
 	if code != exitFailure {
 		t.Errorf("missing file: exit %d", code)
 	}
 }
 
 func TestModelHelp(t *testing.T) {
-	code, out, _ := runCapture("help", "model")
+	code, out, _ := runModelCmd("help", "model")
 	if code != exitOK {
 		t.Fatalf("exit %d", code)
 	}
@@ -238,7 +238,7 @@ func TestModelHelp(t *testing.T) {
 			t.Errorf("help does not describe preset %s", p)
 		}
 	}
-	if code, out, _ := runCapture("model", "--help"); code != exitOK || !strings.Contains(out, "--check") {
+	if code, out, _ := runModelCmd("model", "--help"); code != exitOK || !strings.Contains(out, "--check") {
 		t.Errorf("--help: exit %d", code)
 	}
 }
