@@ -334,3 +334,27 @@ func TestGraphQueries(t *testing.T) {
 		t.Errorf("square:4x3:shells=2 has %d interaction bonds, want 17 + 12", got)
 	}
 }
+
+func TestWithShells(t *testing.T) {
+	l := mustBuild(t, "square:3x3")
+	two, err := l.WithShells(2)
+	if err != nil || two.Spec.Shells != 2 || len(two.InteractionBonds()) != 12+8 {
+		t.Errorf("square:3x3 with two shells: %v, %v", two, err)
+	}
+	if same, _ := l.WithShells(1); same != l {
+		t.Error("WithShells(1) of a one-shell lattice is not the lattice itself")
+	}
+	if _, err := mustBuild(t, "triangular:3x3:periodic").WithShells(2); !errors.As(err, new(*SpecError)) {
+		t.Errorf("triangular:3x3:periodic with two shells: %v, want a *SpecError", err)
+	}
+	g, err := FromGraph(ring(5), []Bond{{0, 1}, {1, 2}}, 1)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if g2, err := g.WithShells(2); err != nil || !g2.HasBond(0, 2) || g.HasBond(0, 2) {
+		t.Errorf("graph with two shells: %v", err)
+	}
+	if _, err := l.WithShells(3); err == nil {
+		t.Error("WithShells(3) accepted")
+	}
+}

@@ -54,11 +54,26 @@ func (e *enumerator) reset(maxSize int, lo int32, visit func([]int) bool, counts
 
 func (e *enumerator) neighbours(v int) []int32 { return e.nbr[e.start[v]:e.start[v+1]] }
 
+// add puts w into V, marking its closed neighbourhood.
 func (e *enumerator) add(w int) {
 	e.touch[w]++
 	for _, u := range e.neighbours(w) {
 		e.touch[u]++
 	}
+	e.insert(w)
+}
+
+// remove takes w out of V, unmarking its closed neighbourhood.
+func (e *enumerator) remove(w int) {
+	e.touch[w]--
+	for _, u := range e.neighbours(w) {
+		e.touch[u]--
+	}
+	e.delete(w)
+}
+
+// insert puts w into the sorted set.
+func (e *enumerator) insert(w int) {
 	s := append(e.sub, 0)
 	k := len(s) - 1
 	for k > 0 && s[k-1] > w {
@@ -69,11 +84,8 @@ func (e *enumerator) add(w int) {
 	e.sub = s
 }
 
-func (e *enumerator) remove(w int) {
-	e.touch[w]--
-	for _, u := range e.neighbours(w) {
-		e.touch[u]--
-	}
+// delete takes w out of the sorted set.
+func (e *enumerator) delete(w int) {
 	s := e.sub
 	k := len(s) - 1
 	for s[k] != w {
@@ -155,11 +167,12 @@ func (e *enumerator) extend(depth int, ext []int32) bool {
 			e.counts[e.max-1] += int64(len(ext))
 			return true
 		}
+		// No extension lists follow, so the sets need no touch marks.
 		for k := len(ext) - 1; k >= 0; k-- {
 			w := int(ext[k])
-			e.add(w)
+			e.insert(w)
 			ok := e.visit(e.sub)
-			e.remove(w)
+			e.delete(w)
 			if !ok {
 				return false
 			}

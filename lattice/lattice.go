@@ -249,3 +249,22 @@ func (l *Lattice) Perimeter(sites []int) int {
 	slices.Sort(outside)
 	return len(slices.Compact(outside))
 }
+
+// WithShells returns the lattice with 1 or 2 neighbour shells in its
+// interaction graph: l itself when that is already so, otherwise a
+// rebuilt copy (which may be refused, as a *SpecError, when a periodic
+// size is too small for two shells).
+func (l *Lattice) WithShells(shells int) (*Lattice, error) {
+	if shells != 1 && shells != 2 {
+		return nil, specErrorf(l.Spec.String(), "shells %d: want 1 or 2", shells)
+	}
+	if l.shells() == shells {
+		return l, nil
+	}
+	if l.Spec.Kind == "graph" {
+		return FromGraph(l.Coords, l.NN, shells)
+	}
+	spec := l.Spec
+	spec.Shells = shells
+	return Build(spec)
+}
