@@ -1,7 +1,10 @@
 package validate
 
 import (
+	"fmt"
 	"math"
+	"math/rand/v2"
+	"sync"
 	"testing"
 
 	"gonum.org/v1/gonum/mat"
@@ -111,12 +114,59 @@ func (m kronMatrix) embed(real bool) *mat.SymDense {
 	return e
 }
 
+// The reference of the 10-qubit transverse-field Ising chain with random
+// couplings is shared by the free-fermion and typicality tests: one dense
+// diagonalisation of 1024 x 1024 is the slowest step of the suite.
+const tfim10Beta = 0.7
+
+func tfim10Terms() []lattice.Term {
+	return randomTFIM(rand.New(rand.NewPCG(41, 42)), 10, false)
+}
+
+var (
+	kronRefMu    sync.Mutex
+	kronRefCache = map[string]*kronRef{}
+)
+
+// cachedKronRef returns the reference for (key, n, terms), computing it
+// once per test binary.
+func cachedKronRef(t testing.TB, key string, n int, terms []lattice.Term) *kronRef {
+	t.Helper()
+	kronRefMu.Lock()
+	defer kronRefMu.Unlock()
+	full := fmt.Sprintf("%s/%d/%v", key, n, terms)
+	if r, ok := kronRefCache[full]; ok {
+		return r
+	}
+	r := newKronRef(t, n, terms)
+	kronRefCache[full] = r
+	return r
+}
+
 // kronRef is the dense spectral decomposition of a Hamiltonian.
 type kronRef struct {
 	n    int
 	real bool // no embedding
 	vals []float64
 	vecs *mat.Dense
+
+	rhoMu    sync.Mutex
+	rhoCache map[float64]*mat.Dense
+}
+
+// cachedRho is rho(beta), computed once.
+func (r *kronRef) cachedRho(beta float64) *mat.Dense {
+	r.rhoMu.Lock()
+	defer r.rhoMu.Unlock()
+	if m, ok := r.rhoCache[beta]; ok {
+		return m
+	}
+	if r.rhoCache == nil {
+		r.rhoCache = map[float64]*mat.Dense{}
+	}
+	m := r.rho(beta)
+	r.rhoCache[beta] = m
+	return m
 }
 
 func newKronRef(t testing.TB, n int, terms []lattice.Term) *kronRef {
