@@ -16,7 +16,13 @@ import (
 // The slice handed to a visit function is reused between calls: read it,
 // or copy it, but do not modify or keep it.
 
-func (l *Lattice) getEnumerator() *enumerator  { return l.scratch.Get().(*enumerator) }
+func (l *Lattice) getEnumerator() *enumerator {
+	if l.scratch == nil {
+		panic("lattice: Lattice not made by Build, Open, FromGraph or DecodeLatticeJSON")
+	}
+	return l.scratch.Get().(*enumerator)
+}
+
 func (l *Lattice) putEnumerator(e *enumerator) { e.visit, e.prune = nil, nil; l.scratch.Put(e) }
 
 // EachClusterFrom calls visit for every connected cluster of at most

@@ -47,6 +47,8 @@ type Bond struct{ I, J int }
 // Make lattices with Build, Open, FromGraph or DecodeLatticeJSON: they
 // set up the interaction graph the methods below use. The fields are for
 // reading; changing them after construction leaves that graph stale.
+// All methods are safe for concurrent use, and enumerations may be
+// nested (a visit function may start another enumeration).
 type Lattice struct {
 	Spec   Spec
 	Coords [][]float64 // one point per site, 2 or 3 components
