@@ -6,7 +6,6 @@ import (
 	"math"
 
 	"gonum.org/v1/gonum/blas"
-	"gonum.org/v1/gonum/lapack"
 	"gonum.org/v1/gonum/lapack/gonum"
 )
 
@@ -59,11 +58,11 @@ func Diagonalize(h *Hamiltonian) (*Spectrum, error) {
 // Factorize computes the spectrum of h into s, reusing the memory of s.
 // Any Thermal built on s becomes invalid.
 //
-// Real matrices go to LAPACK Dsyev (gonum). Complex Hermitian matrices are
-// reduced to a real symmetric tridiagonal matrix by Householder
-// reflections and a diagonal phase transformation, and the tridiagonal
-// problem is solved by Dsteqr; see eigen_hermitian.go for why this was chosen
-// over the real 2D×2D embedding.
+// Real matrices are reduced to tridiagonal form by LAPACK Dsytrd (gonum).
+// Complex Hermitian matrices are reduced to a real symmetric tridiagonal
+// matrix by Householder reflections and a diagonal phase transformation;
+// see eigen_hermitian.go for why this was chosen over the real 2D×2D
+// embedding. Both then use the implicit QL solver of eigen_tridiag.go.
 func (s *Spectrum) Factorize(h *Hamiltonian) error {
 	if h.NumQubits > MaxDenseQubits {
 		return fmt.Errorf("cluster: %d qubits exceed the dense diagonalisation limit of %d (MaxDenseQubits); use the matrix-free thermal typicality of package validate for larger systems",
@@ -98,17 +97,50 @@ func (s *Spectrum) Factorize(h *Hamiltonian) error {
 	return nil
 }
 
+// solveReal diagonalises the real symmetric matrix in s.vecs: LAPACK
+// Dsytrd and Dorgtr (gonum) reduce it to tridiagonal form, and the
+// tridiagonal problem is solved by implicit QL on the rows of Q^T (see
+// tridiagEigen for why not Dsteqr).
 func (s *Spectrum) solveReal() error {
 	d := s.dim
-	var impl gonum.Implementation
-	s.work = grow(s.work, 1)
-	impl.Dsyev(lapack.EVCompute, blas.Upper, d, s.vecs, d, s.values, s.work, -1)
-	lwork := int(s.work[0])
-	s.work = grow(s.work, lwork)
-	if !impl.Dsyev(lapack.EVCompute, blas.Upper, d, s.vecs, d, s.values, s.work, lwork) {
-		return errors.New("cluster: symmetric eigensolver did not converge")
+	a := s.vecs
+	if d == 1 {
+		s.values[0] = a[0]
+		a[0] = 1
+		return nil
 	}
+	var impl gonum.Implementation
+	s.sub = grow(s.sub, d)
+	s.tau = grow(s.tau, d)
+	s.work = grow(s.work, 1)
+	impl.Dsytrd(blas.Upper, d, a, d, s.values, s.sub, s.tau, s.work, -1)
+	lwork := int(s.work[0])
+	impl.Dorgtr(blas.Upper, d, a, d, s.tau, s.work, -1)
+	lwork = max(lwork, int(s.work[0]), d)
+	s.work = grow(s.work, lwork)
+	impl.Dsytrd(blas.Upper, d, a, d, s.values, s.sub, s.tau, s.work, lwork)
+	impl.Dorgtr(blas.Upper, d, a, d, s.tau, s.work, lwork)
+	s.z = grow(s.z, d*d)
+	transpose(d, s.z, a)
+	if err := tridiagEigen(d, s.values, s.sub, s.z); err != nil {
+		return err
+	}
+	transpose(d, a, s.z)
 	return nil
+}
+
+// transpose writes the transpose of the n×n matrix src into dst.
+func transpose(n int, dst, src []float64) {
+	const blk = 32
+	for i0 := 0; i0 < n; i0 += blk {
+		for j0 := 0; j0 < n; j0 += blk {
+			for i := i0; i < min(i0+blk, n); i++ {
+				for j := j0; j < min(j0+blk, n); j++ {
+					dst[j*n+i] = src[i*n+j]
+				}
+			}
+		}
+	}
 }
 
 // NumQubits returns the number of qubits of the diagonalised Hamiltonian.

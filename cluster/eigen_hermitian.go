@@ -1,13 +1,10 @@
 package cluster
 
 import (
-	"errors"
 	"math"
 
 	"gonum.org/v1/gonum/blas"
 	"gonum.org/v1/gonum/blas/blas64"
-	"gonum.org/v1/gonum/lapack"
-	"gonum.org/v1/gonum/lapack/gonum"
 )
 
 // solveHermitian diagonalises the complex Hermitian matrix whose real and
@@ -16,8 +13,8 @@ import (
 // gonum has no complex Hermitian eigensolver. Of the two ways to build one
 // from real LAPACK, this uses a Householder reduction of the complex
 // matrix to tridiagonal form, a diagonal phase transformation that makes
-// the tridiagonal real, Dsteqr for the real tridiagonal problem and one
-// real Dgemm for the back-transformation. The alternative, the real
+// the tridiagonal real, implicit QL for the real tridiagonal problem and
+// one real Dgemm for the back-transformation. The alternative, the real
 // symmetric embedding [[A,-B],[B,A]] of dimension 2D, costs 8 times the
 // real problem, doubles every eigenvalue and needs a pivoted complex
 // Gram–Schmidt within each (numerically) degenerate group to recover D
@@ -33,7 +30,7 @@ func (s *Spectrum) solveHermitian() error {
 		ar[0], ai[0] = 1, 0
 		return nil
 	}
-	s.sub = grow(s.sub, d-1)
+	s.sub = grow(s.sub, d)
 	s.tau = grow(s.tau, d)
 	s.phase = grow(s.phase, 2*d)
 	s.tmp = grow(s.tmp, 6*d)
@@ -59,15 +56,17 @@ func (s *Spectrum) solveHermitian() error {
 	s.scratch = grow(s.scratch, 2*d*d)
 	formQ(d, ar, ai, s.tau, s.scratch[:d*d], s.scratch[d*d:], fr, fi, s.tmp[:2*d])
 
-	var impl gonum.Implementation
 	s.z = grow(s.z, d*d)
-	s.work = grow(s.work, max(1, 2*d-2))
-	if !impl.Dsteqr(lapack.EVTridiag, d, s.values, s.sub, s.z, d, s.work) {
-		return errors.New("cluster: tridiagonal eigensolver did not converge")
+	clear(s.z)
+	for i := 0; i < d; i++ {
+		s.z[i*d+i] = 1
 	}
-	// V = (QΦ) Z for both parts at once; the reflectors in s.vecs are no
-	// longer needed.
-	blas64.Implementation().Dgemm(blas.NoTrans, blas.NoTrans, 2*d, d, d, 1, s.scratch, d, s.z, d, 0, s.vecs, d)
+	if err := tridiagEigen(d, s.values, s.sub, s.z); err != nil {
+		return err
+	}
+	// V = (QΦ) Z for both parts at once, with s.z holding Z^T; the
+	// reflectors in s.vecs are no longer needed.
+	blas64.Implementation().Dgemm(blas.NoTrans, blas.Trans, 2*d, d, d, 1, s.scratch, d, s.z, d, 0, s.vecs, d)
 	return nil
 }
 
