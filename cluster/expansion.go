@@ -1,0 +1,607 @@
+package cluster
+
+import (
+	"fmt"
+	"math"
+	"runtime"
+	"sort"
+	"sync"
+	"sync/atomic"
+
+	"golang.org/x/sync/errgroup"
+
+	"warmfit/lattice"
+)
+
+// Expansion is the numerical linked-cluster expansion (NLCE) of a model on
+// a lattice: every extensive property P of the whole system is the sum of
+// the connected-cluster weights W(c) = P(c) - sum_{s proper connected
+// subcluster of c} W(s) over all connected clusters c with at most Order
+// sites (Rigol, Bryant, Singh, arXiv 0706.3254). Clusters have open
+// boundaries and hold every term whose support lies inside them.
+//
+// Instead of storing every subcluster's weight, the sum is reorganised by
+// inclusion–exclusion over the perimeter of each cluster: a cluster t with
+// |t| sites and b perimeter sites (sites outside t adjacent to it) enters
+// the order-L sum with the multiplier
+//
+//	m_L(t) = sum_{j=0}^{L-|t|} (-1)^j C(b, j),
+//
+// because W(c) = sum over connected t in c with c inside t ∪ ∂t of
+// (-1)^{|c|-|t|} P(t) (the full Möbius inversion on the subset lattice,
+// whose weights vanish on disconnected sets since P is additive over
+// components). So each cluster is diagonalised once, in any order, and
+// contributes to all orders |t|..L at once: the expansion streams over
+// clusters with memory independent of their number.
+type Expansion struct {
+	lat   *lattice.Lattice
+	terms []lattice.Term
+
+	// sorted lists term indices by smallest site; bySite[s]..bySite[s+1]
+	// are the positions in sorted of the terms whose smallest site is s.
+	sorted []int32
+	bySite []int32
+	pos    []int32 // pos[k]: position of term k in sorted
+}
+
+// NewExpansion prepares the expansion of the given terms on lat. Every
+// term's support must be a connected set of the lattice's interaction
+// graph, otherwise the linked-cluster identity fails.
+func NewExpansion(lat *lattice.Lattice, terms []lattice.Term) (*Expansion, error) {
+	n := lat.NumSites()
+	if n == 0 {
+		return nil, fmt.Errorf("lattice has no sites")
+	}
+	if n > math.MaxInt32 {
+		return nil, fmt.Errorf("lattice has %d sites, more than the expansion supports", n)
+	}
+	for k, t := range terms {
+		if len(t.Sites) == 0 || len(t.Sites) != len(t.Pauli) {
+			return nil, fmt.Errorf("term %d (%s): %d letters on %d sites", k, t.Pauli, len(t.Pauli), len(t.Sites))
+		}
+		for i, s := range t.Sites {
+			if s < 0 || s >= n {
+				return nil, fmt.Errorf("term %d (%s): site %d out of range [0,%d)", k, t.Key(), s, n)
+			}
+			if i > 0 && s <= t.Sites[i-1] {
+				return nil, fmt.Errorf("term %d (%s): sites not strictly increasing", k, t.Key())
+			}
+		}
+		for i := 0; i < len(t.Pauli); i++ {
+			if c := t.Pauli[i]; c != 'X' && c != 'Y' && c != 'Z' {
+				return nil, fmt.Errorf("term %d (%s): letter %q is not X, Y or Z", k, t.Key(), c)
+			}
+		}
+		if !lat.Connected(t.Sites) {
+			return nil, fmt.Errorf("term %d (%s): support is not connected on the lattice's interaction graph", k, t.Key())
+		}
+	}
+	e := &Expansion{lat: lat, terms: terms}
+	e.sorted = make([]int32, len(terms))
+	for k := range e.sorted {
+		e.sorted[k] = int32(k)
+	}
+	sort.SliceStable(e.sorted, func(a, b int) bool {
+		return terms[e.sorted[a]].Sites[0] < terms[e.sorted[b]].Sites[0]
+	})
+	e.pos = make([]int32, len(terms))
+	for p, k := range e.sorted {
+		e.pos[k] = int32(p)
+	}
+	e.bySite = make([]int32, n+1)
+	p := 0
+	for s := 0; s <= n; s++ {
+		for p < len(e.sorted) && terms[e.sorted[p]].Sites[0] < s {
+			p++
+		}
+		e.bySite[s] = int32(p)
+	}
+	return e, nil
+}
+
+// Lattice returns the lattice the expansion runs on.
+func (e *Expansion) Lattice() *lattice.Lattice { return e.lat }
+
+// Terms returns the model terms, in the caller's order.
+func (e *Expansion) Terms() []lattice.Term { return e.terms }
+
+// Options controls one evaluation of the expansion.
+type Options struct {
+	// Order is the largest cluster size L (sites).
+	Order int
+	// Response also accumulates the sparse matrix d<E_k>/d lambda_j at
+	// the highest order.
+	Response bool
+	// Workers bounds the parallelism; <= 0 means GOMAXPROCS. Results do
+	// not depend on it.
+	Workers int
+	// MaxWork refuses evaluations whose estimated cost exceeds it, in
+	// units of dense-matrix elements diagonalised (sum over clusters of
+	// 4^|c|); <= 0 means DefaultMaxWork.
+	MaxWork float64
+	// Progress, when set, is called after each block of anchor sites with
+	// the number of blocks done and the total. It may be called from
+	// several goroutines, one call at a time.
+	Progress func(done, total int)
+}
+
+// DefaultMaxWork is about an hour of work on a current 2-core machine.
+const DefaultMaxWork = 2e12
+
+// Result holds the partial sums of the expansion at every order 1..Order.
+// Extensive quantities are totals over the lattice; divide by NumSites for
+// per-site values.
+type Result struct {
+	Order    int
+	NumSites int
+	Beta     float64
+	// Clusters[s-1] is the number of connected clusters with s sites.
+	Clusters []int64
+
+	// Series indexed by order-1. LogZ is log(Z / 2^N), the part of log Z
+	// that depends on the Hamiltonian.
+	LogZ         []float64
+	Energy       []float64
+	HeatCapacity []float64
+	// Expect[o][k] is <E_k> summed to order o+1.
+	Expect [][]float64
+	// Response is d<E_k>/d lambda_j at the highest order, when requested.
+	Response *SparseSym
+}
+
+// LogZTotal returns log Z (with the 2^N) at the highest order.
+func (r *Result) LogZTotal() float64 {
+	return r.LogZ[r.Order-1] + float64(r.NumSites)*math.Ln2
+}
+
+// Entropy returns the von Neumann entropy S = log Z + beta E at order o
+// (1-based), in nats.
+func (r *Result) Entropy(o int) float64 {
+	return r.LogZ[o-1] + float64(r.NumSites)*math.Ln2 + r.Beta*r.Energy[o-1]
+}
+
+// EstimateWork returns the expected number of clusters and the work
+// (sum of 4^size, the dense-matrix elements diagonalised) of an
+// evaluation at the given order, without enumerating.
+func (e *Expansion) EstimateWork(order int) (clusters int64, work float64) {
+	counts := estimateClusterCounts(e.lat, order)
+	for s, c := range counts {
+		clusters += int64(c)
+		work += c * math.Pow(4, float64(s+1))
+	}
+	return clusters, work
+}
+
+// estimateClusterCounts estimates the number of clusters of each size
+// 1..order by enumerating from a few anchors spread over the lattice and
+// scaling by the number of sites. Anchors far from the lattice's edges
+// dominate on large lattices; on small ones every anchor is sampled and the
+// count is exact.
+func estimateClusterCounts(lat *lattice.Lattice, order int) []float64 {
+	n := lat.NumSites()
+	const sample = 24
+	step := 1
+	if n > sample {
+		step = n / sample
+	}
+	counts := make([]float64, order)
+	used := 0
+	for a := 0; a < n; a += step {
+		used++
+		lat.EachClusterFrom(a, order, func(sites []int) bool {
+			counts[len(sites)-1]++
+			return true
+		})
+	}
+	for i := range counts {
+		counts[i] *= float64(n) / float64(used)
+	}
+	return counts
+}
+
+// Evaluate sums the expansion for the coefficients coeffs (one per term,
+// in the order of Terms) at inverse temperature beta.
+func (e *Expansion) Evaluate(coeffs []float64, beta float64, opt Options) (*Result, error) {
+	if len(coeffs) != len(e.terms) {
+		panic(fmt.Sprintf("cluster: %d coefficients for %d terms", len(coeffs), len(e.terms)))
+	}
+	if !(beta >= 0) || math.IsInf(beta, 0) {
+		return nil, fmt.Errorf("beta = %v: must be finite and >= 0", beta)
+	}
+	L, workers, err := e.checkRun(coeffs, opt)
+	if err != nil {
+		return nil, err
+	}
+	n := e.lat.NumSites()
+	blocks := anchorBlocks(n)
+	accs := make([]*blockAcc, len(blocks))
+	err = e.runBlocks(blocks, workers, opt.Progress, func(w *clusterWork, b int) error {
+		acc, err := e.evaluateBlock(w, blocks[b], coeffs, beta, L, opt.Response)
+		accs[b] = acc
+		return err
+	})
+	if err != nil {
+		return nil, err
+	}
+	return e.merge(accs, L, beta, opt.Response), nil
+}
+
+// checkRun validates coefficients and options and returns the order and
+// the worker count.
+func (e *Expansion) checkRun(coeffs []float64, opt Options) (L, workers int, err error) {
+	for k, c := range coeffs {
+		if math.IsNaN(c) || math.IsInf(c, 0) {
+			return 0, 0, fmt.Errorf("term %d (%s): coefficient %v is not finite", k, e.terms[k].Key(), c)
+		}
+	}
+	L = opt.Order
+	if L < 1 {
+		return 0, 0, fmt.Errorf("expansion order %d: must be at least 1", L)
+	}
+	if L > MaxDenseQubits {
+		return 0, 0, fmt.Errorf("expansion order %d: clusters above %d sites are beyond dense diagonalisation", L, MaxDenseQubits)
+	}
+	maxWork := opt.MaxWork
+	if maxWork <= 0 {
+		maxWork = DefaultMaxWork
+	}
+	if nc, work := e.EstimateWork(L); work > maxWork {
+		return 0, 0, fmt.Errorf("expansion order %d on %d sites: about %d clusters and %.3g units of work, over the limit %.3g; lower the order", L, e.lat.NumSites(), nc, work, maxWork)
+	}
+	workers = opt.Workers
+	if workers <= 0 {
+		workers = runtime.GOMAXPROCS(0)
+	}
+	return L, workers, nil
+}
+
+// runBlocks runs task for every block on at most workers goroutines, each
+// with its own scratch space, reporting progress after each block.
+func (e *Expansion) runBlocks(blocks [][2]int, workers int, progress func(done, total int), task func(w *clusterWork, b int) error) error {
+	n := e.lat.NumSites()
+	pool := sync.Pool{New: func() any { return newClusterWork(n) }}
+	var done atomic.Int64
+	var progressMu sync.Mutex
+	g := new(errgroup.Group)
+	g.SetLimit(workers)
+	for b := range blocks {
+		g.Go(func() error {
+			w := pool.Get().(*clusterWork)
+			defer pool.Put(w)
+			if err := task(w, b); err != nil {
+				return err
+			}
+			if progress != nil {
+				d := int(done.Add(1))
+				progressMu.Lock()
+				progress(d, len(blocks))
+				progressMu.Unlock()
+			}
+			return nil
+		})
+	}
+	return g.Wait()
+}
+
+// anchorBlocks cuts the anchor sites into contiguous blocks whose number
+// depends only on n, so the summation order, and hence every bit of the
+// result, is the same for any worker count.
+func anchorBlocks(n int) [][2]int {
+	const target = 256
+	size := (n + target - 1) / target
+	if size < 1 {
+		size = 1
+	}
+	var out [][2]int
+	for a := 0; a < n; a += size {
+		out = append(out, [2]int{a, min(a+size, n)})
+	}
+	return out
+}
+
+// blockAcc accumulates the contributions of the clusters anchored in one
+// block. Terms are addressed by their position in Expansion.sorted minus
+// lo: clusters anchored at a hold only terms whose smallest site is >= a.
+type blockAcc struct {
+	lo       int
+	expect   [][]float64 // [order][pos-lo]
+	logZ     []float64
+	energy   []float64
+	heat     []float64
+	clusters []int64
+	resp     map[uint64]float64
+}
+
+func (a *blockAcc) grow(hi int) {
+	for o := range a.expect {
+		if need := hi - a.lo; need > len(a.expect[o]) {
+			a.expect[o] = append(a.expect[o], make([]float64, need-len(a.expect[o]))...)
+		}
+	}
+}
+
+// clusterWork is one worker's scratch space.
+type clusterWork struct {
+	local  []int32 // global site -> local qubit, -1 outside the cluster
+	mark   []int32 // perimeter marks, tagged by cluster serial
+	serial int32
+	pos    []int32 // sorted positions of the terms inside the cluster
+	ham    Hamiltonian
+	vals   []float64
+	resp   []float64
+	mult   []float64
+}
+
+func newClusterWork(n int) *clusterWork {
+	w := &clusterWork{local: make([]int32, n), mark: make([]int32, n)}
+	for i := range w.local {
+		w.local[i] = -1
+	}
+	return w
+}
+
+func (e *Expansion) evaluateBlock(w *clusterWork, block [2]int, coeffs []float64, beta float64, L int, wantResp bool) (*blockAcc, error) {
+	acc := &blockAcc{
+		lo:       int(e.bySite[block[0]]),
+		expect:   make([][]float64, L),
+		logZ:     make([]float64, L),
+		energy:   make([]float64, L),
+		heat:     make([]float64, L),
+		clusters: make([]int64, L),
+	}
+	if wantResp {
+		acc.resp = make(map[uint64]float64)
+	}
+	err := e.eachBlockCluster(w, block, coeffs, L, func(c *clusterView) error {
+		acc.clusters[c.size-1]++
+		if len(c.pos) == 0 {
+			return nil
+		}
+		return e.addCluster(w, acc, c, beta, L, wantResp)
+	})
+	return acc, err
+}
+
+// clusterView is one connected cluster as the visitor sees it: its size,
+// the sorted positions of the terms inside it, its Hamiltonian in local
+// qubits and its multipliers m_o for o = size..L. Everything is scratch
+// space reused for the next cluster.
+type clusterView struct {
+	sites []int
+	size  int
+	pos   []int32
+	ham   *Hamiltonian
+	mult  []float64
+}
+
+// eachBlockCluster calls visit for every connected cluster of at most L
+// sites anchored in block, with the cluster's terms and multipliers set
+// up in w.
+func (e *Expansion) eachBlockCluster(w *clusterWork, block [2]int, coeffs []float64, L int, visit func(c *clusterView) error) error {
+	var err error
+	view := &clusterView{ham: &w.ham}
+	for anchor := block[0]; anchor < block[1] && err == nil; anchor++ {
+		e.lat.EachClusterFrom(anchor, L, func(sites []int) bool {
+			e.loadCluster(w, sites, coeffs)
+			view.sites, view.size, view.pos = sites, len(sites), w.pos
+			view.mult = view.mult[:0]
+			if len(w.pos) > 0 {
+				w.mult = multipliers(w.mult, len(sites), e.perimeter(w, sites), L)
+				view.mult = w.mult
+			}
+			err = visit(view)
+			for _, s := range sites {
+				w.local[s] = -1
+			}
+			return err == nil
+		})
+	}
+	return err
+}
+
+// loadCluster maps the cluster's sites to local qubits (w.local, which
+// the caller resets) and collects the terms inside it, found from their
+// smallest site, into w.pos and w.ham.
+func (e *Expansion) loadCluster(w *clusterWork, sites []int, coeffs []float64) {
+	for i, s := range sites {
+		w.local[s] = int32(i)
+	}
+	w.pos = w.pos[:0]
+	w.ham.NumQubits = len(sites)
+	w.ham.Ops = w.ham.Ops[:0]
+	w.ham.Coeffs = w.ham.Coeffs[:0]
+	for _, s := range sites {
+		for p := e.bySite[s]; p < e.bySite[s+1]; p++ {
+			k := e.sorted[p]
+			t := &e.terms[k]
+			var op PauliString
+			inside := true
+			for i, site := range t.Sites {
+				q := w.local[site]
+				if q < 0 {
+					inside = false
+					break
+				}
+				bit := uint64(1) << uint(q)
+				switch t.Pauli[i] {
+				case 'X':
+					op.X |= bit
+				case 'Y':
+					op.X |= bit
+					op.Z |= bit
+				case 'Z':
+					op.Z |= bit
+				}
+			}
+			if !inside {
+				continue
+			}
+			w.pos = append(w.pos, p)
+			w.ham.Ops = append(w.ham.Ops, op)
+			w.ham.Coeffs = append(w.ham.Coeffs, coeffs[k])
+		}
+	}
+}
+
+// addCluster diagonalises one cluster and adds its multiplied properties
+// to every order from its size up to L.
+func (e *Expansion) addCluster(w *clusterWork, acc *blockAcc, c *clusterView, beta float64, L int, wantResp bool) error {
+	size := c.size
+	spec, err := Diagonalize(&w.ham)
+	if err != nil {
+		return fmt.Errorf("cluster %v: %v", c.sites, err)
+	}
+	th, err := NewThermal(spec, beta)
+	if err != nil {
+		return fmt.Errorf("cluster %v: %v", c.sites, err)
+	}
+	logZ := th.LogZ() - float64(size)*math.Ln2
+	energy := th.Energy()
+	heat := th.HeatCapacity()
+	if cap(w.vals) < len(w.pos) {
+		w.vals = make([]float64, len(w.pos))
+	}
+	w.vals = w.vals[:len(w.pos)]
+	th.ExpectAll(w.ham.Ops, w.vals)
+
+	maxPos := 0
+	for _, p := range w.pos {
+		maxPos = max(maxPos, int(p))
+	}
+	acc.grow(maxPos + 1)
+	for o := size; o <= L; o++ {
+		m := c.mult[o-size]
+		if m == 0 {
+			continue
+		}
+		acc.logZ[o-1] += m * logZ
+		acc.energy[o-1] += m * energy
+		acc.heat[o-1] += m * heat
+		ex := acc.expect[o-1]
+		for i, p := range w.pos {
+			ex[int(p)-acc.lo] += m * w.vals[i]
+		}
+	}
+	if wantResp {
+		m := c.mult[L-size]
+		if m != 0 {
+			nt := len(w.pos)
+			if cap(w.resp) < nt*nt {
+				w.resp = make([]float64, nt*nt)
+			}
+			w.resp = w.resp[:nt*nt]
+			th.Response(w.ham.Ops, w.resp)
+			for a := 0; a < nt; a++ {
+				for b := a; b < nt; b++ {
+					pa, pb := w.pos[a], w.pos[b]
+					if pa > pb {
+						pa, pb = pb, pa
+					}
+					acc.resp[uint64(pa)<<32|uint64(pb)] += m * w.resp[a*nt+b]
+				}
+			}
+		}
+	}
+	return nil
+}
+
+// perimeter counts the sites outside the cluster adjacent to it; it needs
+// w.local set for the cluster.
+func (e *Expansion) perimeter(w *clusterWork, sites []int) int {
+	w.serial++
+	if w.serial == math.MaxInt32 {
+		for i := range w.mark {
+			w.mark[i] = 0
+		}
+		w.serial = 1
+	}
+	b := 0
+	for _, s := range sites {
+		for _, nb := range e.lat.Neighbors(s) {
+			if w.local[nb] < 0 && w.mark[nb] != w.serial {
+				w.mark[nb] = w.serial
+				b++
+			}
+		}
+	}
+	return b
+}
+
+// multipliers returns m_o for o = size..L: the weight with which a
+// cluster of the given size and perimeter enters the order-o sum,
+// m_o = sum_{j=0}^{o-size} (-1)^j C(perimeter, j).
+func multipliers(dst []float64, size, perimeter, L int) []float64 {
+	dst = dst[:0]
+	sum, binom := 0.0, 1.0
+	for j := 0; j <= L-size; j++ {
+		if j > 0 {
+			binom = binom * float64(perimeter-j+1) / float64(j)
+		}
+		if j%2 == 0 {
+			sum += binom
+		} else {
+			sum -= binom
+		}
+		dst = append(dst, math.Round(sum))
+	}
+	return dst
+}
+
+// merge adds the block accumulators in block order.
+func (e *Expansion) merge(accs []*blockAcc, L int, beta float64, wantResp bool) *Result {
+	K := len(e.terms)
+	r := &Result{
+		Order:        L,
+		NumSites:     e.lat.NumSites(),
+		Beta:         beta,
+		Clusters:     make([]int64, L),
+		LogZ:         make([]float64, L),
+		Energy:       make([]float64, L),
+		HeatCapacity: make([]float64, L),
+		Expect:       make([][]float64, L),
+	}
+	bySorted := make([][]float64, L)
+	for o := range bySorted {
+		bySorted[o] = make([]float64, K)
+	}
+	var resp map[uint64]float64
+	if wantResp {
+		resp = make(map[uint64]float64)
+	}
+	for _, a := range accs {
+		for o := 0; o < L; o++ {
+			r.Clusters[o] += a.clusters[o]
+			r.LogZ[o] += a.logZ[o]
+			r.Energy[o] += a.energy[o]
+			r.HeatCapacity[o] += a.heat[o]
+			for i, v := range a.expect[o] {
+				bySorted[o][a.lo+i] += v
+			}
+		}
+		// Map order is random, but each key's sum runs in block order.
+		for key, v := range a.resp {
+			resp[key] += v
+		}
+	}
+	for o := 0; o < L; o++ {
+		r.Expect[o] = make([]float64, K)
+		for p, k := range e.sorted {
+			r.Expect[o][k] = bySorted[o][p]
+		}
+	}
+	if wantResp {
+		r.Response = newSparseSymFromPairs(K, resp, e.sorted)
+	}
+	return r
+}
+
+// Multiplier returns the integer weight m_L(t) with which a connected
+// cluster of the given size and perimeter enters the order-L sum of the
+// expansion (zero when size > L).
+func Multiplier(size, perimeter, order int) float64 {
+	if size > order {
+		return 0
+	}
+	m := multipliers(nil, size, perimeter, order)
+	return m[len(m)-1]
+}

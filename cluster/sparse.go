@@ -1,0 +1,80 @@
+package cluster
+
+import "sort"
+
+// SparseSym is a symmetric sparse matrix in compressed-row form holding
+// both triangles, used for the response d<E_k>/d lambda_j of the expansion:
+// only term pairs that share a cluster are stored.
+type SparseSym struct {
+	N      int
+	RowPtr []int   // row i occupies RowPtr[i]..RowPtr[i+1]
+	Col    []int32 // column indices, increasing within a row
+	Val    []float64
+}
+
+// At returns element (i, j), zero when it is not stored.
+func (s *SparseSym) At(i, j int) float64 {
+	cols := s.Col[s.RowPtr[i]:s.RowPtr[i+1]]
+	k := sort.Search(len(cols), func(k int) bool { return int(cols[k]) >= j })
+	if k < len(cols) && int(cols[k]) == j {
+		return s.Val[s.RowPtr[i]+k]
+	}
+	return 0
+}
+
+// MulVec sets dst = S x.
+func (s *SparseSym) MulVec(dst, x []float64) {
+	for i := 0; i < s.N; i++ {
+		var sum float64
+		for p := s.RowPtr[i]; p < s.RowPtr[i+1]; p++ {
+			sum += s.Val[p] * x[s.Col[p]]
+		}
+		dst[i] = sum
+	}
+}
+
+// Diag returns the diagonal.
+func (s *SparseSym) Diag() []float64 {
+	d := make([]float64, s.N)
+	for i := range d {
+		d[i] = s.At(i, i)
+	}
+	return d
+}
+
+// NNZ returns the number of stored elements.
+func (s *SparseSym) NNZ() int { return len(s.Val) }
+
+// newSparseSymFromPairs builds the matrix from upper-triangle entries keyed
+// by (position a)<<32 | (position b), a <= b, positions into sorted (which
+// maps a position to the caller's index).
+func newSparseSymFromPairs(n int, pairs map[uint64]float64, sorted []int32) *SparseSym {
+	type entry struct {
+		i, j int32
+		v    float64
+	}
+	entries := make([]entry, 0, 2*len(pairs))
+	for key, v := range pairs {
+		i, j := sorted[key>>32], sorted[key&0xffffffff]
+		entries = append(entries, entry{i, j, v})
+		if i != j {
+			entries = append(entries, entry{j, i, v})
+		}
+	}
+	sort.Slice(entries, func(a, b int) bool {
+		if entries[a].i != entries[b].i {
+			return entries[a].i < entries[b].i
+		}
+		return entries[a].j < entries[b].j
+	})
+	s := &SparseSym{N: n, RowPtr: make([]int, n+1), Col: make([]int32, len(entries)), Val: make([]float64, len(entries))}
+	for p, e := range entries {
+		s.RowPtr[e.i+1]++
+		s.Col[p] = e.j
+		s.Val[p] = e.v
+	}
+	for i := 0; i < n; i++ {
+		s.RowPtr[i+1] += s.RowPtr[i]
+	}
+	return s
+}
