@@ -1,0 +1,442 @@
+package main
+
+import (
+	"bytes"
+	"encoding/csv"
+	"fmt"
+	"io"
+	"math"
+	"os"
+	"path/filepath"
+	"strconv"
+	"strings"
+	"time"
+
+	"github.com/spf13/pflag"
+
+	"warmfit/fit"
+	"warmfit/lattice"
+)
+
+// fitOptions holds the flags of "warmfit fit"; Flags resets them on every
+// invocation.
+var fitOptions struct {
+	model    string
+	data     string
+	beta     float64
+	order    string
+	budget   time.Duration
+	truth    string
+	format   string
+	out      string
+	tol      float64
+	maxIter  int
+	start    string
+	fdr      float64
+	covDist  int
+	workers  int
+	verbose  bool
+	maxOrder int
+}
+
+func init() {
+	register(&command{
+		Name:    "fit",
+		Short:   "learn a Hamiltonian's coefficients from measurements of its Gibbs state",
+		Usage:   "warmfit fit --model TEMPLATE.json --data FILE [--beta B] [--order L|auto] [--budget 60s] [--truth M.json] [--format json|csv] [-o OUT.json]",
+		Long:    fitLong,
+		Example: fitExample,
+		Flags: func(fs *pflag.FlagSet) {
+			o := &fitOptions
+			fs.StringVar(&o.model, "model", "", "template model `FILE`: lattice, terms, groups (coefficients are ignored unless --start template)")
+			fs.StringVar(&o.data, "data", "", "expectation table or snapshot `FILE` (told apart by the header)")
+			fs.Float64Var(&o.beta, "beta", 0, "inverse temperature (overrides the template's; without either, beta*lambda is fitted)")
+			fs.StringVar(&o.order, "order", "auto", "expansion order L (largest cluster), or auto")
+			fs.IntVar(&o.maxOrder, "max-order", 0, "highest order --order auto may use (default: sites, at most 12)")
+			fs.DurationVar(&o.budget, "budget", 60*time.Second, "wall time --order auto may spend")
+			fs.StringVar(&o.truth, "truth", "", "true model `FILE`: report z-scores and L2/Linf errors against it")
+			fs.StringVar(&o.format, "format", "json", "output format: json (fitted model with report) or csv")
+			fs.StringVarP(&o.out, "output", "o", "", "write the fit to `FILE` instead of stdout")
+			fs.Float64Var(&o.tol, "tol", 1e-3, "stop when every gradient component is below tol x its data noise")
+			fs.IntVar(&o.maxIter, "max-iter", 50, "Newton iterations per order")
+			fs.StringVar(&o.start, "start", "first-order", "starting point: first-order (lambda = -e/beta) or template")
+			fs.Float64Var(&o.fdr, "fdr", 0.05, "false-discovery rate of the significance flags (Benjamini-Hochberg)")
+			fs.IntVar(&o.covDist, "cov-distance", 1, "snapshots: keep covariances of terms within this graph distance")
+			fs.IntVar(&o.workers, "workers", 0, "parallel workers (default: all cores)")
+			fs.BoolVarP(&o.verbose, "verbose", "v", false, "log every Newton iteration")
+		},
+		Run: runFit,
+	})
+}
+
+const fitLong = `Fit finds the coefficients lambda of H = sum_k lambda_k E_k whose Gibbs state
+exp(-beta H)/Z reproduces the measured expectation values e_k, by minimising the
+convex maximum-entropy dual G(lambda) = log Z(lambda) + beta sum_k lambda_k e_k with
+log Z from the numerical linked-cluster expansion. Newton steps are solved by
+conjugate gradients on the sparse Hessian and damped by a line search on G.
+
+The template (--model) gives the lattice and the terms; terms sharing a "group" share
+one coefficient. The data (--data) are an expectation table (pauli,sites,value,stderr;
+an empty stderr marks an exact value) or a snapshot file (basis,outcome,count), from
+which expectations and their covariance are estimated. Every template term needs
+data; data terms missing from the template are an error.
+
+Convergence: the fit stops when every component of the gradient is below --tol
+times its data noise (for exact data, when the mean residual is below 1e-10). A fit
+that does not converge exits with status 1, says why, leaves -o untouched and
+writes its last iterate to OUT.unconverged.json.
+
+Error bars: delta method, Cov(theta) = M Cov(e) M^T with M = (A^T R A)^{-1} A^T,
+R = d<E>/d lambda at the solution. With --order auto (the default), the order rises
+until the change of the coefficients between orders is at most 0.1 x their median
+statistical error, or --budget runs out; the report says plainly when the
+truncation error is larger. The report also gives the sufficient-temperature bound,
+the number of term expectations whose expansion has not converged, chi^2/dof for
+tied groups, and, with --truth, z-scores and L2/Linf errors.
+
+Structure learning: every coefficient gets "significant": true/false from the
+two-sided z = |coeff|/stderr with the Benjamini-Hochberg rule at false-discovery
+rate --fdr (default q = 0.05).
+
+Without beta (neither --beta nor the template's), the products beta*lambda are
+fitted and written with beta = 1; the report says so.
+
+Output: the fitted model as JSON with a per-term "stderr" and a "fit" report object
+(it feeds straight back into 'warmfit expect'), or with --format csv the table
+pauli,sites,coeff,stderr,significant. A plain-language summary goes to stderr, with
+WARNING lines whenever the result could mislead.`
+
+const fitExample = `# simulate, then learn back a disordered XXZ model on a 4x4 lattice
+warmfit model --lattice square:4x4 --preset xxz --set Jxy=0.4,Jz=0.3,hz=0.2 --disorder 0.1 --beta 0.5 -o truth.json
+warmfit model --lattice square:4x4 --preset xxz --beta 0.5 -o template.json
+warmfit expect --model truth.json --order 8 -o e.csv
+warmfit fit --model template.json --data e.csv --truth truth.json -o fitted.json
+
+# snapshots, fixed order, coefficients as CSV
+warmfit fit --model template.json --data shots.csv --order 5 --format csv -o fitted.csv`
+
+func runFit(env *runEnv, args []string) error {
+	o := fitOptions
+	if len(args) > 0 {
+		return usagef("unexpected argument %q", args[0])
+	}
+	if o.model == "" {
+		return usagef("--model is required")
+	}
+	if o.data == "" {
+		return usagef("--data is required")
+	}
+	if o.format != "json" && o.format != "csv" {
+		return usagef("--format %q: want json or csv", o.format)
+	}
+	if o.beta < 0 || math.IsNaN(o.beta) || math.IsInf(o.beta, 0) {
+		return usagef("--beta %v: must be a positive finite number", o.beta)
+	}
+	order := 0
+	if o.order != "auto" {
+		n, err := strconv.Atoi(o.order)
+		if err != nil || n < 1 {
+			return usagef("--order %q: want a positive integer or auto", o.order)
+		}
+		order = n
+	}
+	if o.budget <= 0 {
+		return usagef("--budget %v: must be positive", o.budget)
+	}
+	if !(o.tol > 0) || o.maxIter < 1 || !(o.fdr > 0 && o.fdr < 1) {
+		return usagef("--tol and --fdr must be in range (tol > 0, 0 < fdr < 1) and --max-iter at least 1")
+	}
+	if o.start != "first-order" && o.start != "template" {
+		return usagef("--start %q: want first-order or template", o.start)
+	}
+
+	tmpl, err := lattice.ReadModel(o.model)
+	if err != nil {
+		return err
+	}
+	beta := tmpl.Beta
+	betaSource := "from " + o.model
+	if o.beta > 0 {
+		beta, betaSource = o.beta, "from --beta"
+	}
+	est, kind, err := fitLoadData(o.data, o.model, tmpl, o.covDist)
+	if err != nil {
+		return err
+	}
+	var truth *lattice.Model
+	if o.truth != "" {
+		if truth, err = lattice.ReadModel(o.truth); err != nil {
+			return err
+		}
+	}
+
+	opt := fit.Options{
+		Order: order, MaxOrder: o.maxOrder, Budget: o.budget, Tol: o.tol, MaxIter: o.maxIter,
+		FDR: o.fdr, Workers: o.workers,
+	}
+	if o.start == "template" {
+		opt.Start = make([]float64, len(tmpl.Terms))
+		for k, t := range tmpl.Terms {
+			opt.Start[k] = t.Coeff
+		}
+	}
+	opt.Log = func(format string, args ...any) {
+		line := fmt.Sprintf(format, args...)
+		if o.verbose || !strings.Contains(line, "iteration") {
+			fmt.Fprintln(env.Stderr, "fit: "+line)
+		}
+	}
+	bar := newProgressBar(env, "expanding")
+	opt.Progress = bar.Update
+
+	n := tmpl.Lattice.NumSites()
+	fmt.Fprintf(env.Stderr, "fit: %s, %d sites, %d terms; data: %s %s\n", tmpl.Lattice.Spec.Kind, n, len(tmpl.Terms), kind, o.data)
+	if beta > 0 {
+		fmt.Fprintf(env.Stderr, "fit: beta %s (%s)\n", fmtFloat(beta), betaSource)
+	} else {
+		fmt.Fprintln(env.Stderr, "fit: beta unknown (neither --beta nor the template gives one): fitting the products beta*lambda, written with beta = 1")
+	}
+	res, err := fit.Fit(&fit.Problem{Lattice: tmpl.Lattice, Terms: tmpl.Terms, Data: est, Beta: beta}, opt)
+	bar.Done()
+	if err != nil {
+		return fmt.Errorf("%s: %w", o.data, err)
+	}
+	mode := "auto"
+	if order > 0 {
+		mode = "fixed"
+	}
+	rep := fit.NewReport(res, mode, kind, o.data, o.tol)
+	var cmp *fit.TruthComparison
+	if truth != nil {
+		scale := 1.0
+		if !res.BetaKnown && truth.Beta > 0 {
+			scale = truth.Beta
+		}
+		if cmp, err = fit.CompareTruth(res, truth.Terms, scale); err != nil {
+			return err
+		}
+		rep.SetTruth(cmp, res, o.truth)
+	}
+	fitSummary(env.Stderr, res, rep, cmp)
+
+	if !res.Converged {
+		path := fitUnconvergedPath(o.out)
+		werr := writeFileAtomic(path, func(w io.Writer) error { return fitWriteModel(w, tmpl, res, rep) })
+		if werr != nil {
+			return fmt.Errorf("the fit did not converge (%s); writing the last iterate also failed: %v", res.Reason, werr)
+		}
+		return fmt.Errorf("the fit did not converge: %s; the last iterate is in %s (not an estimate)", res.Reason, path)
+	}
+	return writeOutput(env, o.out, func(w io.Writer) error {
+		if o.format == "csv" {
+			return fitWriteCSV(w, res, rep)
+		}
+		return fitWriteModel(w, tmpl, res, rep)
+	})
+}
+
+// fitLoadData reads a table or snapshot file into estimates aligned with
+// the template's terms.
+func fitLoadData(path, tmplPath string, tmpl *lattice.Model, covDist int) (*fit.Estimates, string, error) {
+	kind, err := fit.DetectDataKind(path)
+	if err != nil {
+		return nil, "", err
+	}
+	switch kind {
+	case fit.KindTable:
+		t, err := fit.ReadTableFile(path)
+		if err != nil {
+			return nil, "", err
+		}
+		est, unused, err := fit.EstimatesFromTable(t, tmpl.Terms, nil)
+		if err != nil {
+			return nil, "", fmt.Errorf("%s: %w", path, err)
+		}
+		if len(unused) > 0 {
+			show := unused[:min(10, len(unused))]
+			more := ""
+			if len(unused) > len(show) {
+				more = fmt.Sprintf(" and %d more", len(unused)-len(show))
+			}
+			return nil, "", fmt.Errorf("%s: %d data term(s) are not in the template %s: %s%s (add them to the template or drop them from the data)",
+				path, len(unused), tmplPath, strings.Join(show, "; "), more)
+		}
+		return est, kind, nil
+	case fit.KindSnapshots:
+		f, err := os.Open(path)
+		if err != nil {
+			return nil, "", err
+		}
+		defer f.Close()
+		copt := fit.CovarianceOptions{Distance: covDist, Neighbors: tmpl.Lattice.Neighbors}
+		est, err := fit.EstimateSnapshots(f, path, tmpl.Lattice.NumSites(), tmpl.Terms, copt)
+		if err != nil {
+			return nil, "", err
+		}
+		return est, kind, nil
+	}
+	return nil, "", fmt.Errorf("%s: unknown data kind %q", path, kind)
+}
+
+// fitUnconvergedPath names the file for the last iterate of a fit that
+// did not converge: beside -o, never over it.
+func fitUnconvergedPath(out string) string {
+	if out == "" || out == "-" {
+		return "warmfit-fit.unconverged.json"
+	}
+	dir, base := filepath.Split(out)
+	base = strings.TrimSuffix(base, filepath.Ext(base))
+	return filepath.Join(dir, base+".unconverged.json")
+}
+
+// fitWriteModel writes the fitted model with per-term stderr and the fit
+// report; terms get "significant" when it was computed.
+func fitWriteModel(w io.Writer, tmpl *lattice.Model, res *fit.Result, rep *fit.Report) error {
+	raw, err := rep.JSON()
+	if err != nil {
+		return fmt.Errorf("fit report: %v", err)
+	}
+	m := &lattice.Model{Lattice: tmpl.Lattice, Beta: res.Beta, Terms: res.Terms, Units: tmpl.Units, Fit: raw}
+	var buf bytes.Buffer
+	if err := lattice.WriteModel(&buf, m); err != nil {
+		return err
+	}
+	out := buf.Bytes()
+	if res.Significance != nil {
+		flags := make([]bool, len(res.Terms))
+		for k := range flags {
+			flags[k] = res.Significance.Significant[res.Params.Of[k]]
+		}
+		if marked, ok := fitMarkTerms(out, flags); ok {
+			out = marked
+		}
+	}
+	_, err = w.Write(out)
+	return err
+}
+
+// fitMarkTerms adds "significant": true/false to every term object of a
+// model written by lattice.WriteModel (one term per line between
+// `"terms": [` and `]`). It reports false, leaving the document alone,
+// if the layout is not the one expected or the result does not read back.
+func fitMarkTerms(doc []byte, flags []bool) ([]byte, bool) {
+	lines := strings.Split(string(doc), "\n")
+	start := -1
+	for i, l := range lines {
+		if strings.TrimSpace(l) == `"terms": [` {
+			start = i + 1
+			break
+		}
+	}
+	if start < 0 || start+len(flags) > len(lines) {
+		return doc, false
+	}
+	for k, flag := range flags {
+		l := lines[start+k]
+		trimmed := strings.TrimSuffix(l, ",")
+		comma := l[len(trimmed):]
+		if !strings.HasSuffix(trimmed, "}") || !strings.Contains(trimmed, `"pauli"`) {
+			return doc, false
+		}
+		lines[start+k] = trimmed[:len(trimmed)-1] + `, "significant": ` + strconv.FormatBool(flag) + "}" + comma
+	}
+	if strings.TrimSpace(lines[start+len(flags)]) != "]" {
+		return doc, false
+	}
+	out := []byte(strings.Join(lines, "\n"))
+	if _, err := lattice.ParseModel(bytes.NewReader(out), "fit output"); err != nil {
+		return doc, false
+	}
+	return out, true
+}
+
+// fitWriteCSV writes pauli,sites,coeff,stderr,significant with the
+// report's headline as comment lines.
+func fitWriteCSV(w io.Writer, res *fit.Result, rep *fit.Report) error {
+	fmt.Fprintf(w, "# warmfit fit: converged %t, order %d, %s\n", res.Converged, res.Order, map[bool]string{true: "coefficients are lambda", false: "beta unknown: coefficients are beta*lambda"}[res.BetaKnown])
+	for _, warn := range rep.Warnings {
+		fmt.Fprintf(w, "# WARNING: %s\n", warn)
+	}
+	cw := csv.NewWriter(w)
+	if err := cw.Write([]string{"pauli", "sites", "coeff", "stderr", "significant"}); err != nil {
+		return err
+	}
+	for k, t := range res.Terms {
+		if math.IsNaN(t.Coeff) || math.IsInf(t.Coeff, 0) {
+			return fmt.Errorf("term %s: coefficient %v is not finite", t.Key(), t.Coeff)
+		}
+		se, sig := "", ""
+		if t.HasStderr {
+			se = strconv.FormatFloat(t.Stderr, 'g', -1, 64)
+		}
+		if res.Significance != nil {
+			sig = strconv.FormatBool(res.Significance.Significant[res.Params.Of[k]])
+		}
+		if err := cw.Write([]string{t.Pauli, lattice.SitesString(t.Sites), strconv.FormatFloat(t.Coeff, 'g', -1, 64), se, sig}); err != nil {
+			return err
+		}
+	}
+	cw.Flush()
+	return cw.Error()
+}
+
+// fitSummary writes the plain-language summary to stderr.
+func fitSummary(w io.Writer, res *fit.Result, rep *fit.Report, cmp *fit.TruthComparison) {
+	p := func(format string, args ...any) { fmt.Fprintf(w, "fit: "+format+"\n", args...) }
+	status := "converged"
+	if !res.Converged {
+		status = "did NOT converge"
+	}
+	grad := "gradient " + fmtG3(res.GradientSigma) + " x data noise"
+	if res.Exact {
+		grad = "mean residual " + fmtG3(res.GradientAbs) + " (exact data)"
+	}
+	p("%s at order %d (%s selection, orders %v) after %d Newton iterations, %s, %.1fs",
+		status, res.Order, rep.OrderMode, rep.Truncation.Orders, res.Iterations, grad, res.Elapsed.Seconds())
+	p("%d terms, %d fitted parameters", len(res.Terms), res.Params.NumParams())
+	if res.ThetaStderr != nil && !res.Exact {
+		p("error bars by the delta method (%s): median stderr %s", res.ErrorMethod, fmtG3(rep.Truncation.StatError))
+	}
+	tr := res.Truncation
+	switch {
+	case tr.Exact:
+		p("truncation: none, the order covers the whole lattice")
+	case tr.Known:
+		p("truncation error %s (largest change of a coefficient over the last orders) vs target %s", fmtG3(tr.Error), fmtG3(tr.Target))
+	case res.Converged:
+		p("truncation error unknown")
+	}
+	if rep.Chi2 != nil {
+		p("chi2/dof = %s over %d degrees of freedom (p = %s; diagonal approximation)", fmtG3(rep.Chi2.PerDof), rep.Chi2.Dof, fmtG3(rep.Chi2.P))
+	}
+	if b := rep.Threshold.Beta; b != nil {
+		p("sufficient-temperature bound beta < %s (term-overlap degree %d); beta = %s; %d of %d expectations unconverged in the expansion",
+			fmtG3(*b), rep.Threshold.Degree, fmtG3(res.Beta), rep.Series.Untrusted, rep.Series.Terms)
+	}
+	if s := rep.Significance; s != nil {
+		p("significant (Benjamini-Hochberg, q = %g): %d of %d parameters", s.Q, s.Significant, s.Parameters)
+	}
+	if cmp != nil {
+		line := fmt.Sprintf("against the truth: L2 error %s, Linf error %s", fmtG3(cmp.L2), fmtG3(cmp.Linf))
+		if cmp.RMSZ > 0 {
+			line += fmt.Sprintf(", z-scores rms %s, max |z| %s", fmtG3(cmp.RMSZ), fmtG3(cmp.MaxAbsZ))
+		}
+		if cmp.Missing > 0 {
+			line += fmt.Sprintf(", %d true terms missing from the template", cmp.Missing)
+		}
+		p("%s", line)
+	}
+	for _, n := range res.Notes {
+		p("note: %s", n)
+	}
+	for _, warn := range res.Warnings {
+		fmt.Fprintf(w, "WARNING: %s\n", warn)
+	}
+}
+
+func fmtG3(v float64) string {
+	if math.IsNaN(v) || math.IsInf(v, 0) {
+		return "n/a"
+	}
+	return strconv.FormatFloat(v, 'g', 3, 64)
+}

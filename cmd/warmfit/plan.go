@@ -1,0 +1,223 @@
+package main
+
+import (
+	"encoding/csv"
+	"encoding/json"
+	"fmt"
+	"io"
+	"math"
+	"strconv"
+	"strings"
+
+	"github.com/spf13/pflag"
+
+	"warmfit/fit"
+	"warmfit/lattice"
+)
+
+// planOptions holds the flags of "warmfit plan"; Flags resets them on
+// every invocation.
+var planOptions struct {
+	model      string
+	beta       float64
+	target     float64
+	norm       string
+	bases      string
+	seed       uint64
+	order      int
+	confidence float64
+	format     string
+	out        string
+	workers    int
+}
+
+func init() {
+	register(&command{
+		Name:    "plan",
+		Short:   "how many shots learn a model's coefficients to a target precision",
+		Usage:   "warmfit plan --model M.json --beta B --target EPS [--norm linf|l2] [--bases covering|random:N] [--format text|csv|json] [-o FILE]",
+		Long:    planLong,
+		Example: planExample,
+		Flags: func(fs *pflag.FlagSet) {
+			o := &planOptions
+			fs.StringVar(&o.model, "model", "", "model `FILE` whose coefficients are to be learned (a best guess)")
+			fs.Float64Var(&o.beta, "beta", 0, "inverse temperature (overrides the model's)")
+			fs.Float64Var(&o.target, "target", 0, "target error eps of the coefficients")
+			fs.StringVar(&o.norm, "norm", fit.NormLinf, "linf: every coefficient within eps at 95% (Bonferroni); l2: expected squared L2 error <= eps^2")
+			fs.StringVar(&o.bases, "bases", "covering", "measurement scheme: covering (few bases serving every term) or random:N")
+			fs.Uint64Var(&o.seed, "seed", 1, "seed of random:N bases")
+			fs.IntVar(&o.order, "order", 0, "expansion order for the prediction (default 4)")
+			fs.Float64Var(&o.confidence, "confidence", 0.95, "confidence of the linf guarantee")
+			fs.StringVar(&o.format, "format", "text", "text (summary), csv (per term) or json")
+			fs.StringVarP(&o.out, "output", "o", "", "write to `FILE` instead of stdout")
+			fs.IntVar(&o.workers, "workers", 0, "parallel workers (default: all cores)")
+		},
+		Run: runPlan,
+	})
+}
+
+const planLong = `Plan predicts how many shots per measurement basis a fit needs to learn the model's
+coefficients to precision eps, before any data are taken. It evaluates the expectations
+e_k and the response R = d<E>/d lambda at the model (linked-cluster expansion) and
+propagates shot noise by the delta method used by 'warmfit fit':
+
+  Var(e_k) = (1 - e_k^2) / (N n_k)    (N shots per basis, n_k bases measure term k)
+  Cov(lambda) = P^{-1} A^T Cov(e) A P^{-1},  P = -A^T R A
+
+Covariances between estimates that share shots are ignored (diagonal approximation).
+With --norm linf, N = ceil(z^2 max_k Var_k(1) / eps^2), z the two-sided normal quantile
+of a Bonferroni union bound over the fitted parameters at --confidence (95%), so that
+every coefficient is within eps at once with at least that probability; with
+--norm l2, N = ceil(sum_k Var_k(1) / eps^2), the expected squared L2 error.
+
+The summary gives shots per basis, the number of bases, the total number of shots
+and the predicted standard errors; --format csv lists pauli,sites,coverage,stderr per
+term, --format json the whole plan.`
+
+const planExample = `warmfit model --lattice square:6x6 --preset xxz --set Jxy=0.4,Jz=0.3,hz=0.2 --beta 0.5 -o m.json
+warmfit plan --model m.json --target 0.01
+warmfit plan --model m.json --target 0.05 --norm l2 --bases random:200 --format csv -o plan.csv`
+
+func runPlan(env *runEnv, args []string) error {
+	o := planOptions
+	if len(args) > 0 {
+		return usagef("unexpected argument %q", args[0])
+	}
+	if o.model == "" {
+		return usagef("--model is required")
+	}
+	if !(o.target > 0) || math.IsInf(o.target, 0) {
+		return usagef("--target is required and must be a positive number")
+	}
+	if o.norm != fit.NormLinf && o.norm != fit.NormL2 {
+		return usagef("--norm %q: want linf or l2", o.norm)
+	}
+	if o.format != "text" && o.format != "csv" && o.format != "json" {
+		return usagef("--format %q: want text, csv or json", o.format)
+	}
+	if !(o.confidence > 0 && o.confidence < 1) {
+		return usagef("--confidence %v: must lie in (0, 1)", o.confidence)
+	}
+	if o.order < 0 {
+		return usagef("--order %d: must be positive", o.order)
+	}
+	m, beta, err := loadModelBeta(o.model, o.beta)
+	if err != nil {
+		return err
+	}
+	n := m.Lattice.NumSites()
+	var bases []string
+	scheme := o.bases
+	switch {
+	case o.bases == "covering":
+		if bases, err = fit.CoveringBases(n, m.Terms); err != nil {
+			return err
+		}
+	case strings.HasPrefix(o.bases, "random:"):
+		count, err := strconv.Atoi(strings.TrimPrefix(o.bases, "random:"))
+		if err != nil || count < 1 {
+			return usagef("--bases %q: want random:N with N a positive integer", o.bases)
+		}
+		bases = fit.RandomBases(n, count, o.seed)
+		scheme = fmt.Sprintf("%s (seed %d)", o.bases, o.seed)
+	default:
+		return usagef("--bases %q: want covering or random:N", o.bases)
+	}
+	plan, err := fit.PlanShots(m.Lattice, m.Terms, beta, fit.PlanOptions{
+		Target: o.target, Norm: o.norm, Confidence: o.confidence, Bases: bases, Order: o.order, Workers: o.workers,
+	})
+	if err != nil {
+		return err
+	}
+	fmt.Fprintf(env.Stderr, "plan: %s, %d sites, %d terms, beta %s, order-%d expansion\n", m.Lattice.Spec.Kind, n, len(m.Terms), fmtFloat(beta), plan.Order)
+	return writeOutput(env, o.out, func(w io.Writer) error {
+		switch o.format {
+		case "csv":
+			return planWriteCSV(w, m.Terms, plan)
+		case "json":
+			return planWriteJSON(w, m.Terms, plan, scheme)
+		}
+		return planWriteText(w, m.Terms, plan, scheme)
+	})
+}
+
+func planWriteText(w io.Writer, terms []lattice.Term, p *fit.Plan, scheme string) error {
+	worst := 0
+	for k, v := range p.Stderr {
+		if v > p.Stderr[worst] {
+			worst = k
+		}
+	}
+	fmt.Fprintf(w, "target          %s (%s norm)\n", fmtFloat(p.Target), p.Norm)
+	fmt.Fprintf(w, "bases           %d (%s)\n", len(p.Bases), scheme)
+	fmt.Fprintf(w, "shots per basis %d\n", p.ShotsPerBasis)
+	fmt.Fprintf(w, "total shots     %d\n", p.TotalShots)
+	fmt.Fprintf(w, "stderr          largest %s (%s), root-sum-square %s\n", fmtFloat(p.PredictedLinf()), terms[worst].Key(), fmtFloat(p.PredictedL2()))
+	for _, n := range p.Notes {
+		fmt.Fprintf(w, "note            %s\n", n)
+	}
+	if len(p.Bases) <= 12 {
+		for i, b := range p.Bases {
+			fmt.Fprintf(w, "basis %-9d %s\n", i+1, b)
+		}
+	}
+	return nil
+}
+
+func planWriteCSV(w io.Writer, terms []lattice.Term, p *fit.Plan) error {
+	fmt.Fprintf(w, "# warmfit plan: %d bases x %d shots = %d shots, target %s (%s)\n", len(p.Bases), p.ShotsPerBasis, p.TotalShots, fmtFloat(p.Target), p.Norm)
+	cw := csv.NewWriter(w)
+	if err := cw.Write([]string{"pauli", "sites", "coverage", "stderr"}); err != nil {
+		return err
+	}
+	for k, t := range terms {
+		rec := []string{t.Pauli, lattice.SitesString(t.Sites), strconv.Itoa(p.Coverage[k]), strconv.FormatFloat(p.Stderr[k], 'g', 6, 64)}
+		if err := cw.Write(rec); err != nil {
+			return err
+		}
+	}
+	cw.Flush()
+	return cw.Error()
+}
+
+// planJSON is the plan as written by --format json.
+type planJSON struct {
+	Target        float64        `json:"target"`
+	Norm          string         `json:"norm"`
+	Confidence    float64        `json:"confidence,omitempty"`
+	Z             float64        `json:"z,omitempty"`
+	Scheme        string         `json:"scheme"`
+	Bases         []string       `json:"bases"`
+	ShotsPerBasis int64          `json:"shots_per_basis"`
+	TotalShots    int64          `json:"total_shots"`
+	Order         int            `json:"order"`
+	Parameters    int            `json:"parameters"`
+	MaxStderr     float64        `json:"max_stderr"`
+	L2Stderr      float64        `json:"l2_stderr"`
+	Notes         []string       `json:"notes"`
+	Terms         []planTermJSON `json:"terms"`
+}
+
+type planTermJSON struct {
+	Pauli    string  `json:"pauli"`
+	Sites    []int   `json:"sites"`
+	Coverage int     `json:"coverage"`
+	Stderr   float64 `json:"stderr"`
+}
+
+func planWriteJSON(w io.Writer, terms []lattice.Term, p *fit.Plan, scheme string) error {
+	out := planJSON{
+		Target: p.Target, Norm: p.Norm, Scheme: scheme, Bases: p.Bases,
+		ShotsPerBasis: p.ShotsPerBasis, TotalShots: p.TotalShots, Order: p.Order, Parameters: p.Params,
+		MaxStderr: p.PredictedLinf(), L2Stderr: p.PredictedL2(), Notes: p.Notes,
+	}
+	if p.Norm == fit.NormLinf {
+		out.Confidence, out.Z = p.Confidence, p.Z
+	}
+	for k, t := range terms {
+		out.Terms = append(out.Terms, planTermJSON{Pauli: t.Pauli, Sites: t.Sites, Coverage: p.Coverage[k], Stderr: p.Stderr[k]})
+	}
+	enc := json.NewEncoder(w)
+	enc.SetIndent("", "  ")
+	return enc.Encode(out)
+}

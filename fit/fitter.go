@@ -1,0 +1,415 @@
+package fit
+
+import (
+	"errors"
+	"fmt"
+	"math"
+	"time"
+
+	"warmfit/cluster"
+	"warmfit/lattice"
+)
+
+// Problem is one fitting task: a template of terms on a lattice and the
+// measured expectation values of those terms in a Gibbs state.
+type Problem struct {
+	Lattice *lattice.Lattice
+	// Terms is the template: which Pauli strings H may contain and which
+	// share a coefficient (Group). Coefficients are not used unless
+	// Options.Start says so.
+	Terms []lattice.Term
+	// Data holds one estimate per template term, aligned with Terms
+	// (Values, Stderr and Cov; see EstimatesFromTable and
+	// EstimateSnapshots). A zero Stderr marks an exact value.
+	Data *Estimates
+	// Beta is the inverse temperature; 0 when unknown, in which case the
+	// fit determines the products beta*lambda (reported with beta = 1).
+	Beta float64
+}
+
+// Options controls Fit. The zero value selects the automatic order and
+// the defaults documented on each field.
+type Options struct {
+	// Order is the expansion order (largest cluster size). 0 selects it
+	// automatically: orders rise from StartOrder until the change of the
+	// fitted coefficients between consecutive orders is at most
+	// TruncationFraction times the median statistical error, or Budget
+	// runs out.
+	Order int
+	// StartOrder is the first order tried by the automatic selection;
+	// default: the largest term support.
+	StartOrder int
+	// MaxOrder bounds the automatic selection; default: the smaller of
+	// the number of sites and cluster.MaxDenseQubits.
+	MaxOrder int
+	// Budget is the wall time the automatic selection may spend; default
+	// 60 s. The cost of the next order is predicted from the measured
+	// time of the last one and cluster.Expansion.EstimateWork.
+	Budget time.Duration
+	// Tol stops Newton when every gradient component is below Tol times
+	// its data noise: max_q |A^T(e - <E>)|_q / sd((A^T e)_q) <= Tol.
+	// Default 1e-3.
+	Tol float64
+	// AbsTol replaces Tol for parameters whose data are exact (zero
+	// stderr): the mean residual |A^T(e - <E>)|_q / |q| must be at most
+	// AbsTol. Default 1e-10.
+	AbsTol float64
+	// MaxIter bounds the Newton iterations per order; default 50.
+	MaxIter int
+	// MaxStep bounds beta*|Delta lambda| per Newton step; default 1.
+	MaxStep float64
+	// TruncationFraction: the truncation error must not exceed this
+	// fraction of the median statistical error; default 0.1.
+	TruncationFraction float64
+	// TruncationTarget, when positive, replaces the statistical target by
+	// an absolute one (in units of the coefficients). With exact data the
+	// default is 1e-6.
+	TruncationTarget float64
+	// SkipTruncation skips the lower-order refits of a fixed-order fit
+	// (the truncation error is then unknown).
+	SkipTruncation bool
+	// FDR is the false-discovery rate of the significance flags
+	// (Benjamini–Hochberg); default 0.05.
+	FDR float64
+	// Start, when not nil, gives per-term starting coefficients (averaged
+	// over groups); by default the fit starts from the first-order
+	// inversion lambda_k = -e_k/beta.
+	Start []float64
+	// Workers bounds the parallelism of each expansion evaluation and of
+	// the error-bar solves; <= 0 means GOMAXPROCS. Results do not depend
+	// on it.
+	Workers int
+	// MaxWork is passed to the expansion (cluster.Options.MaxWork).
+	MaxWork float64
+	// DenseLimit is the largest number of parameters whose error bars come
+	// from a dense Cholesky factorisation; above it they come from one
+	// conjugate-gradient solve per parameter (blocks of right-hand sides
+	// in parallel). Default 2500, about where the two cost the same.
+	DenseLimit int
+	// Log, when set, receives one line per step of progress (orders,
+	// Newton iterations, timings).
+	Log func(format string, args ...any)
+	// Progress, when set, is passed to every expansion evaluation.
+	Progress func(done, total int)
+}
+
+func (o Options) withDefaults() Options {
+	if o.Budget <= 0 {
+		o.Budget = 60 * time.Second
+	}
+	if o.Tol <= 0 {
+		o.Tol = 1e-3
+	}
+	if o.AbsTol <= 0 {
+		o.AbsTol = 1e-10
+	}
+	if o.MaxIter <= 0 {
+		o.MaxIter = 50
+	}
+	if o.MaxStep <= 0 {
+		o.MaxStep = 1
+	}
+	if o.TruncationFraction <= 0 {
+		o.TruncationFraction = 0.1
+	}
+	if o.FDR <= 0 {
+		o.FDR = 0.05
+	}
+	if o.DenseLimit <= 0 {
+		o.DenseLimit = 2500
+	}
+	return o
+}
+
+func (o Options) logf(format string, args ...any) {
+	if o.Log != nil {
+		o.Log(format, args...)
+	}
+}
+
+// fitter holds what every order's fit shares.
+type fitter struct {
+	prob   *Problem
+	opt    Options
+	exp    *cluster.Expansion
+	params *Params
+	beta   float64
+	values []float64
+	cov    termMatrix // Cov(e)
+	sigma  []float64  // per parameter: sd of (A^T e)_q
+	exact  bool       // every stderr is zero
+	minL   int        // smallest order holding every term
+	sites  int
+}
+
+// Fit learns the template's coefficients from the data. It returns an
+// error for invalid input (data not aligned with the template, values no
+// Gibbs state can have, an impossible order); a fit that does not
+// converge is not an error: the Result has Converged false, the reason,
+// and the best iterate reached.
+func Fit(p *Problem, opt Options) (*Result, error) {
+	start := time.Now()
+	f, err := newFitter(p, opt.withDefaults())
+	if err != nil {
+		return nil, err
+	}
+	theta0 := f.startingPoint()
+	var res *Result
+	if f.opt.Order > 0 {
+		res, err = f.fixedOrder(f.opt.Order, theta0)
+	} else {
+		res, err = f.autoOrder(theta0, start)
+	}
+	if err != nil {
+		return nil, err
+	}
+	res.Elapsed = time.Since(start)
+	return res, nil
+}
+
+func newFitter(p *Problem, opt Options) (*fitter, error) {
+	if p == nil || p.Lattice == nil {
+		return nil, errors.New("fit: problem without a lattice")
+	}
+	K := len(p.Terms)
+	if K == 0 {
+		return nil, errors.New("the template has no terms")
+	}
+	if p.Data == nil || len(p.Data.Values) != K || len(p.Data.Stderr) != K {
+		return nil, fmt.Errorf("data do not match the template's %d terms", K)
+	}
+	if len(p.Data.Missing) > 0 {
+		return nil, fmt.Errorf("%d template terms have no data (first: %s); every term, grouped or not, needs a measured value", len(p.Data.Missing), p.Terms[p.Data.Missing[0]].Key())
+	}
+	if math.IsNaN(p.Beta) || math.IsInf(p.Beta, 0) || p.Beta < 0 {
+		return nil, fmt.Errorf("beta = %v: must be a finite positive number, or 0 when unknown", p.Beta)
+	}
+	if opt.Start != nil && len(opt.Start) != K {
+		return nil, fmt.Errorf("%d starting coefficients for %d terms", len(opt.Start), K)
+	}
+	exp, err := cluster.NewExpansion(p.Lattice, p.Terms)
+	if err != nil {
+		return nil, fmt.Errorf("template: %v", err)
+	}
+	f := &fitter{prob: p, opt: opt, exp: exp, params: NewParams(p.Terms), beta: p.Beta, values: p.Data.Values, sites: p.Lattice.NumSites()}
+	if f.beta == 0 {
+		f.beta = 1
+	}
+	for _, t := range p.Terms {
+		f.minL = max(f.minL, len(t.Sites))
+	}
+	f.exact = true
+	for k, e := range p.Data.Values {
+		s := p.Data.Stderr[k]
+		if math.IsNaN(e) || math.IsInf(e, 0) || math.IsNaN(s) || math.IsInf(s, 0) || s < 0 {
+			return nil, fmt.Errorf("term %s: value %v with stderr %v: not usable", p.Terms[k].Key(), e, s)
+		}
+		if s > 0 {
+			f.exact = false
+		}
+	}
+	if p.Data.Cov != nil && p.Data.Cov.Dim() == K {
+		f.cov = covMatrix{p.Data.Cov}
+	} else {
+		v := make([]float64, K)
+		for k, s := range p.Data.Stderr {
+			v[k] = s * s
+		}
+		f.cov = diagMatrix(v)
+	}
+	b := f.params.project(f.cov, 1)
+	f.sigma = make([]float64, f.params.NumParams())
+	for q, d := range b.diag() {
+		f.sigma[q] = math.Sqrt(math.Max(d, 0))
+	}
+	// A Pauli expectation in a full-rank state lies strictly inside
+	// (-1, 1): a parameter whose data reach the edge cannot be matched.
+	mean := make([]float64, f.params.NumParams())
+	f.params.Average(mean, f.values)
+	for q, m := range mean {
+		if math.Abs(m) >= 1 {
+			return nil, fmt.Errorf("%s: measured value %v is not inside (-1, 1); no Gibbs state at finite temperature has it, so the fit cannot converge (drop the term or fix the data)",
+				describeParam(f.params, p.Terms, q), m)
+		}
+	}
+	return f, nil
+}
+
+// describeParam names parameter q for messages.
+func describeParam(p *Params, terms []lattice.Term, q int) string {
+	m := p.Members[q]
+	if len(m) == 1 {
+		return "term " + terms[m[0]].Key()
+	}
+	return fmt.Sprintf("group %q (%d terms)", p.Names[q], len(m))
+}
+
+// startingPoint returns theta from Options.Start or from the first-order
+// inversion <E_k> = -beta lambda_k + O(beta^2), valid for traceless Paulis
+// with tr(E_a E_b) = 2^n delta_ab (references.md, "first-order
+// inversion"), averaged over each group.
+func (f *fitter) startingPoint() []float64 {
+	lambda := make([]float64, len(f.values))
+	if f.opt.Start != nil {
+		copy(lambda, f.opt.Start)
+	} else {
+		for k, e := range f.values {
+			lambda[k] = -e / f.beta
+		}
+	}
+	theta := make([]float64, f.params.NumParams())
+	f.params.Average(theta, lambda)
+	return theta
+}
+
+// evaluator returns the expansion at order L as an evaluator.
+func (f *fitter) evaluator(L int) evaluator {
+	return func(lambda []float64, response bool) (*thermalEval, error) {
+		res, err := f.exp.Evaluate(lambda, f.beta, cluster.Options{
+			Order: L, Response: response, Workers: f.opt.Workers, MaxWork: f.opt.MaxWork, Progress: f.opt.Progress,
+		})
+		if err != nil {
+			return nil, err
+		}
+		ev := &thermalEval{logZ: res.LogZ[L-1], expect: res.Expect[L-1], raw: res}
+		if response {
+			if res.Response == nil {
+				return nil, errors.New("expansion returned no response")
+			}
+			ev.response = responseMatrix{res.Response}
+		}
+		return ev, nil
+	}
+}
+
+// orderFit is the outcome of the minimisation at one order.
+type orderFit struct {
+	order   int
+	out     *newtonOutcome
+	elapsed time.Duration
+}
+
+func (f *fitter) fitOrder(L int, theta0 []float64) (*orderFit, error) {
+	if L < f.minL {
+		return nil, fmt.Errorf("order %d cannot hold terms on %d sites: the order must be at least %d", L, f.minL, f.minL)
+	}
+	if L > cluster.MaxDenseQubits {
+		return nil, fmt.Errorf("order %d: clusters above %d sites are beyond dense diagonalisation", L, cluster.MaxDenseQubits)
+	}
+	t0 := time.Now()
+	np := &newtonProblem{
+		params: f.params, beta: f.beta, values: f.values, sigma: f.sigma,
+		tol: f.opt.Tol, absTol: f.opt.AbsTol, maxIter: f.opt.MaxIter, maxStep: f.opt.MaxStep,
+		eval: f.evaluator(L),
+	}
+	if f.opt.Log != nil {
+		np.logf = func(format string, args ...any) { f.opt.logf("order %d, "+format, append([]any{L}, args...)...) }
+	}
+	out, err := np.minimize(theta0)
+	if err != nil {
+		return nil, fmt.Errorf("order %d: %v", L, err)
+	}
+	of := &orderFit{order: L, out: out, elapsed: time.Since(t0)}
+	status := "converged"
+	if !out.converged {
+		status = "NOT converged: " + out.reason
+	}
+	f.opt.logf("order %d: %s after %d iterations (%d evaluations, %.2fs)", L, status, out.iterations, out.evaluations, of.elapsed.Seconds())
+	return of, nil
+}
+
+// exactOrder reports whether order L covers the whole lattice, so that
+// the expansion equals the exact log Z.
+func (f *fitter) exactOrder(L int) bool { return L >= f.sites }
+
+// fixedOrder fits at order L, then refits at L-1 and L-2 from the solution
+// to measure the truncation error.
+func (f *fitter) fixedOrder(L int, theta0 []float64) (*Result, error) {
+	main, err := f.fitOrder(L, theta0)
+	if err != nil {
+		return nil, err
+	}
+	history := []*orderFit{main}
+	if main.out.converged && !f.exactOrder(L) && !f.opt.SkipTruncation {
+		for low := L - 1; low >= max(f.minL, L-2); low-- {
+			lf, err := f.fitOrder(low, main.out.state.theta)
+			if err != nil {
+				return nil, err
+			}
+			if !lf.out.converged {
+				break
+			}
+			history = append([]*orderFit{lf}, history...)
+		}
+	}
+	return f.finish(main, history, nil)
+}
+
+// autoOrder raises the order until the truncation error is small against
+// the statistical error or the budget is spent.
+func (f *fitter) autoOrder(theta0 []float64, start time.Time) (*Result, error) {
+	first := max(f.minL, f.opt.StartOrder)
+	last := min(f.sites, cluster.MaxDenseQubits)
+	if f.opt.MaxOrder > 0 {
+		last = min(last, f.opt.MaxOrder)
+	}
+	if first > last {
+		first = last
+	}
+	var history []*orderFit
+	var notes []string
+	var statErr float64 = -1
+	theta := theta0
+	for L := first; L <= last; L++ {
+		of, err := f.fitOrder(L, theta)
+		if err != nil {
+			if len(history) == 0 {
+				return nil, err
+			}
+			notes = append(notes, fmt.Sprintf("order %d could not be evaluated (%v); the result is from order %d", L, err, history[len(history)-1].order))
+			break
+		}
+		if !of.out.converged {
+			if len(history) == 0 {
+				return f.finish(of, []*orderFit{of}, notes)
+			}
+			notes = append(notes, fmt.Sprintf("the fit at order %d did not converge (%s); the result is from order %d", L, of.out.reason, history[len(history)-1].order))
+			break
+		}
+		history = append(history, of)
+		theta = of.out.state.theta
+		if f.exactOrder(L) {
+			break
+		}
+		if statErr < 0 {
+			statErr = f.statisticalScale(of)
+		}
+		tr := f.truncation(history, statErr)
+		f.opt.logf("order %d: truncation error %s against target %.3g", L, fmtMaybe(tr.Error, tr.Known), tr.Target)
+		if tr.Known && tr.OK {
+			break
+		}
+		if L == last {
+			break
+		}
+		_, wNow := f.exp.EstimateWork(L)
+		_, wNext := f.exp.EstimateWork(L + 1)
+		predicted := time.Duration(float64(of.elapsed) * wNext / math.Max(wNow, 1))
+		if rest := f.opt.Budget - time.Since(start); predicted > rest {
+			notes = append(notes, fmt.Sprintf("stopped at order %d: order %d would take about %s, more than the %s left of the budget",
+				L, L+1, predicted.Round(time.Second), rest.Round(time.Second)))
+			break
+		}
+		if f.opt.MaxWork > 0 && wNext > f.opt.MaxWork {
+			break
+		}
+	}
+	return f.finish(history[len(history)-1], history, notes)
+}
+
+func fmtMaybe(v float64, known bool) string {
+	if !known {
+		return "unknown"
+	}
+	return fmt.Sprintf("%.3g", v)
+}

@@ -1,0 +1,200 @@
+package fit
+
+import (
+	"encoding/json"
+	"math"
+)
+
+// Report is the "fit" object written into a fitted model file: what was
+// done, how far it can be trusted, and every warning. Optional numbers are
+// pointers, omitted when undefined, so that no NaN or infinity is ever
+// written.
+type Report struct {
+	Converged     bool     `json:"converged"`
+	Reason        string   `json:"reason,omitempty"`
+	Iterations    int      `json:"iterations"`
+	Evaluations   int      `json:"evaluations"`
+	GradientSigma *float64 `json:"gradient_sigma,omitempty"` // max |gradient| / data noise
+	GradientAbs   *float64 `json:"gradient_abs,omitempty"`   // exact data: max mean residual
+	Tolerance     float64  `json:"tolerance"`
+	Order         int      `json:"order"`
+	OrderMode     string   `json:"order_selection"` // "fixed" or "auto"
+	Beta          float64  `json:"beta"`
+	BetaKnown     bool     `json:"beta_known"`
+	CoeffMeaning  string   `json:"coefficients"` // "lambda" or "beta*lambda"
+	Terms         int      `json:"terms"`
+	Parameters    int      `json:"parameters"`
+	DataKind      string   `json:"data,omitempty"`
+	DataFile      string   `json:"data_file,omitempty"`
+	ExactData     bool     `json:"exact_data"`
+	ErrorMethod   string   `json:"error_bars,omitempty"`
+
+	Truncation   ReportTruncation    `json:"truncation"`
+	Chi2         *ReportChi2         `json:"chi2,omitempty"`
+	Threshold    ReportThreshold     `json:"threshold"`
+	Series       ReportSeries        `json:"series"`
+	Significance *ReportSignificance `json:"significance,omitempty"`
+	Truth        *ReportTruth        `json:"truth,omitempty"`
+
+	Warnings       []string `json:"warnings"`
+	Notes          []string `json:"notes,omitempty"`
+	ElapsedSeconds float64  `json:"elapsed_seconds"`
+}
+
+// ReportTruncation is Truncation in the report.
+type ReportTruncation struct {
+	Known     bool      `json:"known"`
+	Exact     bool      `json:"exact"`
+	Orders    []int     `json:"orders"`
+	Steps     []float64 `json:"steps"`
+	Error     *float64  `json:"error,omitempty"`
+	StatError float64   `json:"statistical_error"`
+	Target    float64   `json:"target"`
+	OK        bool      `json:"ok"`
+	MaxRatio  *float64  `json:"max_ratio,omitempty"`
+}
+
+// ReportChi2 is the goodness of fit of tied parameters.
+type ReportChi2 struct {
+	Value  float64 `json:"value"`
+	Dof    int     `json:"dof"`
+	PerDof float64 `json:"per_dof"`
+	P      float64 `json:"p_value"`
+	Note   string  `json:"note"`
+}
+
+// ReportThreshold is the sufficient-temperature bound at the solution.
+type ReportThreshold struct {
+	Degree    int      `json:"degree"`
+	MaxCoeff  float64  `json:"max_coeff"`
+	Beta      *float64 `json:"beta_bound,omitempty"` // omitted when infinite
+	Satisfied bool     `json:"satisfied"`
+}
+
+// ReportSeries summarises the convergence of the term expectations.
+type ReportSeries struct {
+	Terms     int    `json:"terms"`
+	Untrusted int    `json:"untrusted"`
+	Criterion string `json:"criterion"`
+}
+
+// ReportSignificance summarises structure learning.
+type ReportSignificance struct {
+	Method      string  `json:"method"`
+	Q           float64 `json:"q"`
+	Significant int     `json:"significant"`
+	Parameters  int     `json:"parameters"`
+	CutoffP     float64 `json:"cutoff_p"`
+}
+
+// ReportTruth is a TruthComparison in the report.
+type ReportTruth struct {
+	File        string   `json:"file,omitempty"`
+	L2          float64  `json:"l2"`
+	Linf        float64  `json:"linf"`
+	WorstTerm   string   `json:"worst_term,omitempty"`
+	MaxAbsZ     *float64 `json:"max_abs_z,omitempty"`
+	RMSZ        *float64 `json:"rms_z,omitempty"`
+	Missing     int      `json:"missing_terms"`
+	MissingLinf float64  `json:"missing_linf,omitempty"`
+}
+
+func finitePtr(v float64) *float64 {
+	if math.IsNaN(v) || math.IsInf(v, 0) {
+		return nil
+	}
+	return &v
+}
+
+// NewReport builds the report of a fit. mode is "fixed" or "auto"; data
+// kind and file label the input; tol is the stopping tolerance used.
+func NewReport(r *Result, mode, dataKind, dataFile string, tol float64) *Report {
+	rep := &Report{
+		Converged:    r.Converged,
+		Reason:       r.Reason,
+		Iterations:   r.Iterations,
+		Evaluations:  r.Evaluations,
+		Tolerance:    tol,
+		Order:        r.Order,
+		OrderMode:    mode,
+		Beta:         r.Beta,
+		BetaKnown:    r.BetaKnown,
+		CoeffMeaning: "lambda",
+		Terms:        len(r.Terms),
+		Parameters:   r.Params.NumParams(),
+		DataKind:     dataKind,
+		DataFile:     dataFile,
+		ExactData:    r.Exact,
+		ErrorMethod:  r.ErrorMethod,
+		Warnings:     append([]string{}, r.Warnings...),
+		Notes:        r.Notes,
+	}
+	rep.ElapsedSeconds = math.Round(r.Elapsed.Seconds()*1000) / 1000
+	if !r.BetaKnown {
+		rep.CoeffMeaning = "beta*lambda"
+	}
+	if r.Exact {
+		rep.GradientAbs = finitePtr(r.GradientAbs)
+	} else {
+		rep.GradientSigma = finitePtr(r.GradientSigma)
+		if r.GradientAbs > 0 {
+			rep.GradientAbs = finitePtr(r.GradientAbs)
+		}
+	}
+	t := r.Truncation
+	rep.Truncation = ReportTruncation{
+		Known: t.Known, Exact: t.Exact, Orders: t.Orders, Steps: t.Steps,
+		StatError: t.StatError, Target: t.Target, OK: t.OK,
+	}
+	if rep.Truncation.Orders == nil {
+		rep.Truncation.Orders = []int{r.Order}
+	}
+	if rep.Truncation.Steps == nil {
+		rep.Truncation.Steps = []float64{}
+	}
+	if t.Known {
+		rep.Truncation.Error = finitePtr(t.Error)
+	}
+	if t.MaxRatio > 0 {
+		rep.Truncation.MaxRatio = finitePtr(t.MaxRatio)
+	}
+	if r.Dof > 0 {
+		rep.Chi2 = &ReportChi2{
+			Value: r.Chi2, Dof: r.Dof, PerDof: r.Chi2 / float64(r.Dof), P: r.Chi2P,
+			Note: "residuals of tied parameters weighted by the data variances (diagonal approximation: covariances between estimates ignored)",
+		}
+	}
+	rep.Threshold = ReportThreshold{Degree: r.Bound.Degree, MaxCoeff: r.Bound.MaxCoeff, Beta: finitePtr(r.Bound.Beta), Satisfied: r.Beta < r.Bound.Beta}
+	rep.Series = ReportSeries{Terms: len(r.Terms), Untrusted: len(r.Untrusted), Criterion: "change of <E_k> over the last two orders at most 0.1 x its stderr"}
+	if r.Exact {
+		rep.Series.Criterion = "change of <E_k> over the last two orders at most 1e-6 (exact data)"
+	}
+	if s := r.Significance; s != nil {
+		rep.Significance = &ReportSignificance{
+			Method:      "two-sided z = |coeff|/stderr, Benjamini-Hochberg false-discovery rate",
+			Q:           s.Q,
+			Significant: s.Count,
+			Parameters:  len(s.Significant),
+			CutoffP:     s.Cutoff,
+		}
+	}
+	return rep
+}
+
+// SetTruth adds a comparison with the true model to the report.
+func (rep *Report) SetTruth(c *TruthComparison, r *Result, file string) {
+	t := &ReportTruth{File: file, L2: c.L2, Linf: c.Linf, Missing: c.Missing, MissingLinf: c.MissingLinf}
+	if c.WorstTerm >= 0 {
+		t.WorstTerm = r.Terms[c.WorstTerm].Key()
+	}
+	if c.RMSZ > 0 {
+		t.MaxAbsZ = finitePtr(c.MaxAbsZ)
+		t.RMSZ = finitePtr(c.RMSZ)
+	}
+	rep.Truth = t
+}
+
+// JSON returns the report as a JSON object.
+func (rep *Report) JSON() (json.RawMessage, error) {
+	return json.Marshal(rep)
+}

@@ -1,0 +1,226 @@
+package fit
+
+import (
+	"fmt"
+	"math"
+	"time"
+
+	"gonum.org/v1/gonum/stat/distuv"
+
+	"warmfit/cluster"
+	"warmfit/lattice"
+)
+
+// Result is the outcome of Fit.
+type Result struct {
+	// Terms are the template terms with the fitted Coeff and, when the
+	// error bars could be computed, Stderr (HasStderr set).
+	Terms  []lattice.Term
+	Params *Params
+	// Theta and ThetaStderr are the fitted parameters and their
+	// standard errors (nil when not computed); Coeffs = A Theta.
+	Theta       []float64
+	ThetaStderr []float64
+	Coeffs      []float64
+	// Expect holds <E_k> at the solution, at the order used.
+	Expect []float64
+	// Beta is the inverse temperature used; BetaKnown is false when the
+	// problem gave none, in which case Beta is 1 and the coefficients
+	// are the products beta*lambda.
+	Beta      float64
+	BetaKnown bool
+	// Order is the expansion order of the answer.
+	Order int
+
+	// Converged reports that Newton met the stopping rule; when false,
+	// Reason says why and the other fields describe the best iterate.
+	Converged   bool
+	Reason      string
+	Iterations  int // Newton iterations at the answer's order
+	Evaluations int // expansion evaluations over all orders
+	// GradientSigma is max_q |A^T(e - <E>)|_q / sd((A^T e)_q) over
+	// parameters with noisy data; GradientAbs the largest mean residual
+	// |A^T(e - <E>)|_q / |q| over parameters with exact data.
+	GradientSigma float64
+	GradientAbs   float64
+	// Exact is true when every data value is exact (zero stderr).
+	Exact bool
+
+	// ErrorMethod says how the error bars were computed ("" when they
+	// were not).
+	ErrorMethod string
+	Truncation  Truncation
+	// Chi2 and Dof: goodness of fit of tied parameters (diagonal
+	// approximation); Dof is 0 when the fit is not over-determined.
+	Chi2   float64
+	Dof    int
+	Chi2P  float64 // upper-tail probability of Chi2 with Dof degrees of freedom
+	Bound  cluster.ThresholdBound
+	Series []cluster.Convergence // per-term convergence of <E_k> at the solution
+	// Untrusted lists the terms whose expectation series has not settled
+	// to SeriesTol[k] at the answer's order.
+	Untrusted []int
+	SeriesTol []float64
+
+	Significance *Significance // nil without error bars
+
+	Warnings []string // things that could make the result mislead
+	Notes    []string // other facts worth knowing
+	Elapsed  time.Duration
+}
+
+// exactSeriesTol is the tolerance on the expectation series for exact
+// data (there is no data noise to compare with).
+const exactSeriesTol = 1e-6
+
+// finish assembles the result of the fit at main (the answer) with the
+// fits at lower orders in history (sorted by order, main last).
+func (f *fitter) finish(main *orderFit, history []*orderFit, notes []string) (*Result, error) {
+	out := main.out
+	st := out.state
+	K := len(f.prob.Terms)
+	r := &Result{
+		Params:        f.params,
+		Theta:         st.theta,
+		Coeffs:        st.lambda,
+		Expect:        st.ev.expect,
+		Beta:          f.beta,
+		BetaKnown:     f.prob.Beta > 0,
+		Order:         main.order,
+		Converged:     out.converged,
+		Reason:        out.reason,
+		Iterations:    out.iterations,
+		GradientSigma: out.gradSigma,
+		GradientAbs:   out.gradAbs,
+		Exact:         f.exact,
+		Notes:         append([]string(nil), notes...),
+	}
+	for _, h := range history {
+		r.Evaluations += h.out.evaluations
+	}
+	if !containsFit(history, main) {
+		r.Evaluations += out.evaluations
+	}
+	r.Notes = append(r.Notes, out.notes...)
+	if !r.BetaKnown {
+		r.Notes = append(r.Notes, "beta not given: the coefficients are the products beta*lambda, reported with beta = 1")
+	}
+
+	// Error bars (also for an unconverged iterate, where they describe the
+	// local curvature only).
+	if r.Converged && !f.exact {
+		se, method, err := f.paramStderr(out)
+		if err != nil {
+			r.Warnings = append(r.Warnings, "error bars not available: "+err.Error())
+		} else {
+			r.ThetaStderr, r.ErrorMethod = se, method
+		}
+	} else if r.Converged && f.exact {
+		r.ThetaStderr = make([]float64, f.params.NumParams())
+		r.ErrorMethod = "exact data"
+	}
+
+	r.Terms = make([]lattice.Term, K)
+	for k, t := range f.prob.Terms {
+		t.Sites = append([]int(nil), t.Sites...)
+		t.Coeff = st.lambda[k]
+		t.Stderr, t.HasStderr = math.NaN(), false
+		if r.ThetaStderr != nil {
+			t.Stderr, t.HasStderr = r.ThetaStderr[f.params.Of[k]], true
+		}
+		r.Terms[k] = t
+	}
+
+	// Truncation against statistics.
+	statErr := 0.0
+	if r.ThetaStderr != nil {
+		statErr = median(r.ThetaStderr)
+	}
+	if r.Converged {
+		r.Truncation = f.truncation(history, statErr)
+		if r.ThetaStderr != nil {
+			r.Truncation.perParameterRatio(history, r.ThetaStderr)
+		}
+	}
+
+	// Convergence of every term's expectation series at the solution.
+	if raw := st.ev.raw; raw != nil {
+		r.Series = make([]cluster.Convergence, K)
+		r.SeriesTol = make([]float64, K)
+		series := make([]float64, raw.Order)
+		for k, t := range f.prob.Terms {
+			for o := range series {
+				series[o] = raw.Expect[o][k]
+			}
+			tol := 0.1 * f.prob.Data.Stderr[k]
+			if tol == 0 {
+				tol = exactSeriesTol
+			}
+			r.SeriesTol[k] = tol
+			c := cluster.Converge(series, len(t.Sites), tol)
+			if f.exactOrder(main.order) {
+				c.Trusted = true
+			}
+			r.Series[k] = c
+			if !c.Trusted {
+				r.Untrusted = append(r.Untrusted, k)
+			}
+		}
+	}
+	r.Bound = cluster.SufficientBeta(r.Terms, st.lambda)
+
+	if f.params.Tied() && r.Converged {
+		if c, ok := residualChiSquare(f.params, f.values, f.prob.Data.Stderr, st.ev.expect); ok {
+			r.Chi2, r.Dof = c.Value, c.Dof
+			r.Chi2P = distuv.ChiSquared{K: float64(c.Dof)}.Survival(c.Value)
+		}
+	}
+	if r.ThetaStderr != nil && !f.exact {
+		r.Significance = NewSignificance(r.Theta, r.ThetaStderr, f.opt.FDR)
+	}
+	f.addWarnings(r)
+	return r, nil
+}
+
+func containsFit(h []*orderFit, x *orderFit) bool {
+	for _, y := range h {
+		if y == x {
+			return true
+		}
+	}
+	return false
+}
+
+// addWarnings states plainly everything that could make the numbers
+// mislead.
+func (f *fitter) addWarnings(r *Result) {
+	if !r.Converged {
+		r.Warnings = append(r.Warnings, "the fit did NOT converge: "+r.Reason+"; the coefficients are the last iterate, not an estimate")
+		return
+	}
+	tr := r.Truncation
+	switch {
+	case tr.Exact:
+		r.Notes = append(r.Notes, fmt.Sprintf("order %d covers all %d sites: the expansion is exact, no truncation error", r.Order, f.sites))
+	case !tr.Known:
+		r.Warnings = append(r.Warnings, fmt.Sprintf("truncation error unknown: no lower order than %d could be fitted to compare with (the smallest order holding every term is %d)", r.Order, f.minL))
+	case !tr.OK && tr.StatError > 0 && f.opt.TruncationTarget <= 0:
+		r.Warnings = append(r.Warnings, fmt.Sprintf("truncation error %.3g exceeds %g x statistical error %.3g: the temperature may be too low for this order (%d)",
+			tr.Error, f.opt.TruncationFraction, tr.StatError, r.Order))
+	case !tr.OK:
+		r.Warnings = append(r.Warnings, fmt.Sprintf("truncation error %.3g exceeds the target %.3g: the temperature may be too low for this order (%d)", tr.Error, tr.Target, r.Order))
+	}
+	if n := len(r.Untrusted); n > 0 {
+		crit := "0.1 x their stderr"
+		if f.exact {
+			crit = fmt.Sprintf("%g, the tolerance for exact data", exactSeriesTol)
+		}
+		r.Warnings = append(r.Warnings, fmt.Sprintf("%d of %d term expectations have not converged in the expansion at order %d (change over the last two orders above %s)", n, len(r.Terms), r.Order, crit))
+		if r.Beta > r.Bound.Beta {
+			r.Warnings = append(r.Warnings, fmt.Sprintf("beta %.4g is above the sufficient convergence bound %.4g and the series did not converge: the fitted coefficients may be unreliable", r.Beta, r.Bound.Beta))
+		}
+	}
+	if r.Dof > 0 && r.Chi2P < 1e-3 {
+		r.Warnings = append(r.Warnings, fmt.Sprintf("chi2/dof = %.3g over %d degrees of freedom (p = %.2g): the tied groups do not describe the data", r.Chi2/float64(r.Dof), r.Dof, r.Chi2P))
+	}
+}

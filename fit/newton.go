@@ -1,0 +1,301 @@
+package fit
+
+import (
+	"errors"
+	"fmt"
+	"math"
+
+	"warmfit/cluster"
+)
+
+// thermalEval is what the fitter needs from one evaluation of the model
+// at given coefficients: log(Z/2^N), the expectations <E_k> and, when
+// asked for, the response R = d<E>/d lambda (negative semidefinite).
+type thermalEval struct {
+	logZ     float64
+	expect   []float64
+	response termMatrix
+	raw      *cluster.Result // the full series, when the expansion made it
+}
+
+// evaluator computes the thermal quantities at term coefficients lambda.
+type evaluator func(lambda []float64, response bool) (*thermalEval, error)
+
+// newtonProblem is the minimisation of the dual
+// G(theta) = log Z(A theta) + beta theta . A^T e at one expansion order.
+type newtonProblem struct {
+	params *Params
+	beta   float64
+	values []float64 // e_k, per term
+	// sigma[q] is the standard deviation of (A^T e)_q, the data noise of
+	// parameter q's gradient component; 0 for exact data.
+	sigma   []float64
+	tol     float64 // on |r_q| / sigma_q
+	absTol  float64 // on |r_q| / |members of q| where sigma_q = 0
+	maxIter int
+	maxStep float64 // largest beta |Delta lambda| per Newton step
+	eval    evaluator
+	logf    func(format string, args ...any)
+}
+
+// newtonState is an iterate with its evaluation.
+type newtonState struct {
+	theta  []float64
+	lambda []float64
+	ev     *thermalEval
+	g      float64   // G(theta)
+	resid  []float64 // r = A^T (e - <E>); the gradient of G is beta r
+}
+
+// newtonOutcome is the end of a minimisation: the best iterate reached
+// and, for a converged one, the parameter-space Hessian there.
+type newtonOutcome struct {
+	state       *newtonState
+	converged   bool
+	reason      string // why it did not converge
+	iterations  int
+	evaluations int
+	gradSigma   float64 // max |r_q| / sigma_q over noisy parameters
+	gradAbs     float64 // max |r_q| / |q| over exact parameters
+	hessian     *csr    // P = -A^T R A at state (positive semidefinite)
+	notes       []string
+}
+
+// maxCoefficient bounds beta |lambda| during a fit: beyond it the Gibbs
+// state is essentially a ground state and no cluster expansion describes
+// it, so the iteration is diverging (typically because the data lie
+// outside the expectations any Gibbs state of the template can produce).
+const maxCoefficient = 30
+
+// maxNonConvex is how many iterates with a Hessian that is not positive
+// definite a minimisation tolerates before giving up.
+const maxNonConvex = 3
+
+// state evaluates the dual at theta.
+func (np *newtonProblem) state(theta []float64, response bool) (*newtonState, error) {
+	s := &newtonState{
+		theta:  append([]float64(nil), theta...),
+		lambda: make([]float64, np.params.NumTerms()),
+		resid:  make([]float64, np.params.NumParams()),
+	}
+	np.params.Expand(s.lambda, s.theta)
+	ev, err := np.eval(s.lambda, response)
+	if err != nil {
+		return nil, err
+	}
+	if math.IsNaN(ev.logZ) || math.IsInf(ev.logZ, 0) {
+		return nil, fmt.Errorf("log Z is %v", ev.logZ)
+	}
+	diff := make([]float64, len(s.lambda))
+	var dual float64
+	for k, e := range np.values {
+		x := ev.expect[k]
+		if math.IsNaN(x) || math.IsInf(x, 0) {
+			return nil, fmt.Errorf("expectation of term %d is %v", k, x)
+		}
+		diff[k] = e - x
+		dual += s.lambda[k] * e
+	}
+	s.ev = ev
+	s.g = ev.logZ + np.beta*dual
+	np.params.Reduce(s.resid, diff)
+	return s, nil
+}
+
+// criterion returns the scaled gradient: the largest |r_q|/sigma_q over
+// parameters with noisy data and the largest |r_q|/|q| over exact ones.
+func (np *newtonProblem) criterion(resid []float64) (sig, abs float64) {
+	for q, r := range resid {
+		if s := np.sigma[q]; s > 0 {
+			sig = math.Max(sig, math.Abs(r)/s)
+		} else {
+			abs = math.Max(abs, math.Abs(r)/float64(len(np.params.Members[q])))
+		}
+		if math.IsNaN(r) {
+			return math.NaN(), math.NaN()
+		}
+	}
+	return sig, abs
+}
+
+func (np *newtonProblem) done(resid []float64) bool {
+	sig, abs := np.criterion(resid)
+	return sig <= np.tol && abs <= np.absTol
+}
+
+// hessian returns P = -A^T R A from the state's response.
+func (np *newtonProblem) hessian(s *newtonState) *csr {
+	return np.params.project(s.ev.response, -1)
+}
+
+// roundoff bounds the floating-point noise of G at a state, below which
+// the line search cannot tell values apart.
+func (np *newtonProblem) roundoff(s *newtonState) float64 {
+	var sum float64
+	for k, e := range np.values {
+		sum += math.Abs(s.lambda[k] * e)
+	}
+	return 1e-12 * (math.Abs(s.ev.logZ) + np.beta*sum + 1)
+}
+
+// minimize runs damped Newton from theta0: each step solves P d = -r by
+// Jacobi-preconditioned conjugate gradients on the sparse parameter-space
+// Hessian and backtracks on G until the Armijo condition holds (Nocedal
+// and Wright, Numerical Optimization, 2nd ed., Alg. 3.1 and 7.1). It stops
+// when every gradient component is negligible against the data's noise.
+func (np *newtonProblem) minimize(theta0 []float64) (*newtonOutcome, error) {
+	out := &newtonOutcome{}
+	cur, err := np.state(theta0, true)
+	out.evaluations++
+	if err != nil {
+		return nil, fmt.Errorf("at the starting point: %v", err)
+	}
+	out.state = cur
+	nParam := np.params.NumParams()
+	d := make([]float64, nParam)
+	nonConvex := 0
+	for {
+		out.gradSigma, out.gradAbs = np.criterion(cur.resid)
+		if math.IsNaN(out.gradSigma) || math.IsNaN(out.gradAbs) {
+			out.reason = "the gradient is not a number"
+			return out, nil
+		}
+		out.hessian = np.hessian(cur)
+		if np.done(cur.resid) {
+			out.converged = true
+			return out, nil
+		}
+		if out.iterations >= np.maxIter {
+			out.reason = fmt.Sprintf("no convergence in %d Newton iterations (gradient %s)", np.maxIter, np.gradientText(out))
+			return out, nil
+		}
+		out.iterations++
+
+		diag := out.hessian.diag()
+		res, err := solveCG(out.hessian, diag, cur.resid, d, 1e-10, 10*nParam+100)
+		for i := range d {
+			d[i] = -d[i]
+		}
+		switch {
+		case errors.Is(err, errNotPositive):
+			// A truncated expansion need not be convex far from high
+			// temperature. Fall back to the preconditioned gradient, but
+			// not for long: a dual that stays non-convex has no reliable
+			// minimum at this order.
+			nonConvex++
+			if nonConvex > maxNonConvex {
+				out.reason = fmt.Sprintf("the truncated expansion of log Z is not convex here (its Hessian was not positive definite at %d iterates): the temperature is too low for this order", nonConvex)
+				return out, nil
+			}
+			note := fmt.Sprintf("iteration %d: the Hessian of the order-truncated log Z is not positive definite here; took a preconditioned gradient step", out.iterations)
+			out.notes = append(out.notes, note)
+			for i, r := range cur.resid {
+				d[i] = -r
+				if diag[i] > 0 {
+					d[i] = -r / diag[i]
+				}
+			}
+		case err != nil:
+			if res.Residual > 1e-3 || math.IsNaN(res.Residual) {
+				out.reason = fmt.Sprintf("iteration %d: Newton system not solved (%v, relative residual %.2g): the Hessian is singular or badly conditioned; some parameters may not be determined by the data", out.iterations, err, res.Residual)
+				return out, nil
+			}
+		}
+		// Directional derivative of G along d: beta r . d (< 0 for a descent direction).
+		slope := np.beta * dot(cur.resid, d)
+		if !(slope < 0) {
+			out.reason = fmt.Sprintf("iteration %d: no descent direction (slope %v)", out.iterations, slope)
+			return out, nil
+		}
+		scale := 1.0
+		if big := np.beta * maxAbs(d); big > np.maxStep {
+			scale = np.maxStep / big
+		}
+		next, t, err := np.lineSearch(cur, d, scale, slope, out)
+		if err != nil {
+			out.reason = fmt.Sprintf("iteration %d: %v", out.iterations, err)
+			return out, nil
+		}
+		if np.logf != nil {
+			sig, abs := np.criterion(next.resid)
+			np.logf("iteration %d: step %.3g, CG %d steps, gradient %s", out.iterations, t, res.Iterations, formatGradient(sig, abs, np.hasNoise(), np.hasExact()))
+		}
+		cur = next
+		out.state = cur
+		if np.beta*maxAbs(cur.lambda) > maxCoefficient {
+			out.reason = fmt.Sprintf("coefficients diverge (beta |lambda| reached %.3g): the data may lie outside the expectations any Gibbs state of this template can produce, or the temperature is too low for the expansion", np.beta*maxAbs(cur.lambda))
+			out.gradSigma, out.gradAbs = np.criterion(cur.resid)
+			out.hessian = np.hessian(cur)
+			return out, nil
+		}
+	}
+}
+
+// lineSearch backtracks from the step scale*d until G decreases enough
+// (Armijo, c = 1e-4), halving the step; it evaluates the response only at
+// the accepted point.
+func (np *newtonProblem) lineSearch(cur *newtonState, d []float64, scale, slope float64, out *newtonOutcome) (*newtonState, float64, error) {
+	const c1 = 1e-4
+	slack := np.roundoff(cur)
+	theta := make([]float64, len(cur.theta))
+	t := scale
+	var lastErr error
+	for try := 0; try < 40; try++ {
+		for i := range theta {
+			theta[i] = cur.theta[i] + t*d[i]
+		}
+		withResponse := try == 0 // a full step is accepted most of the time
+		next, err := np.state(theta, withResponse)
+		out.evaluations++
+		if err == nil && next.g <= cur.g+c1*t*slope+slack {
+			if !withResponse {
+				next, err = np.state(theta, true)
+				out.evaluations++
+				if err != nil {
+					return nil, t, err
+				}
+			}
+			return next, t, nil
+		}
+		if err != nil {
+			lastErr = err
+		}
+		t /= 2
+	}
+	if lastErr != nil {
+		return nil, t, fmt.Errorf("line search failed: %v", lastErr)
+	}
+	return nil, t, errors.New("line search found no decrease of the dual: the gradient is below the floating-point resolution of log Z, or the expansion is not a valid log Z at this order and temperature")
+}
+
+func (np *newtonProblem) hasNoise() bool {
+	for _, s := range np.sigma {
+		if s > 0 {
+			return true
+		}
+	}
+	return false
+}
+
+func (np *newtonProblem) hasExact() bool {
+	for _, s := range np.sigma {
+		if s == 0 {
+			return true
+		}
+	}
+	return false
+}
+
+func (np *newtonProblem) gradientText(out *newtonOutcome) string {
+	return formatGradient(out.gradSigma, out.gradAbs, np.hasNoise(), np.hasExact())
+}
+
+func formatGradient(sig, abs float64, noise, exact bool) string {
+	switch {
+	case noise && exact:
+		return fmt.Sprintf("%.3g sigma, exact terms %.3g", sig, abs)
+	case exact:
+		return fmt.Sprintf("%.3g (absolute, exact data)", abs)
+	}
+	return fmt.Sprintf("%.3g sigma", sig)
+}

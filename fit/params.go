@@ -1,0 +1,157 @@
+package fit
+
+import (
+	"fmt"
+	"sort"
+
+	"warmfit/lattice"
+)
+
+// Params maps fitted parameters theta to term coefficients lambda = A theta,
+// where A is the 0/1 matrix that sends every term to its parameter: terms
+// sharing a non-empty Group share one parameter, every other term has its
+// own. Parameters are numbered in the order of their first term.
+type Params struct {
+	// Of[k] is the parameter of term k.
+	Of []int
+	// Members[p] lists the terms of parameter p, increasing.
+	Members [][]int
+	// Names[p] is the group name, or the term key for an ungrouped term.
+	Names []string
+}
+
+// NewParams builds the term-to-parameter map of terms.
+func NewParams(terms []lattice.Term) *Params {
+	p := &Params{Of: make([]int, len(terms))}
+	byGroup := map[string]int{}
+	for k, t := range terms {
+		if t.Group != "" {
+			if q, ok := byGroup[t.Group]; ok {
+				p.Of[k] = q
+				p.Members[q] = append(p.Members[q], k)
+				continue
+			}
+			byGroup[t.Group] = len(p.Members)
+		}
+		p.Of[k] = len(p.Members)
+		p.Members = append(p.Members, []int{k})
+		name := t.Group
+		if name == "" {
+			name = t.Key()
+		}
+		p.Names = append(p.Names, name)
+	}
+	return p
+}
+
+// NumParams returns the number of fitted parameters.
+func (p *Params) NumParams() int { return len(p.Members) }
+
+// NumTerms returns the number of terms.
+func (p *Params) NumTerms() int { return len(p.Of) }
+
+// Tied reports whether some parameter is shared by several terms.
+func (p *Params) Tied() bool { return p.NumParams() < p.NumTerms() }
+
+// Expand sets lambda = A theta.
+func (p *Params) Expand(lambda, theta []float64) {
+	p.checkLens(lambda, theta)
+	for k, q := range p.Of {
+		lambda[k] = theta[q]
+	}
+}
+
+// Reduce sets theta = A^T lambda: the sum over each parameter's terms.
+func (p *Params) Reduce(theta, lambda []float64) {
+	p.checkLens(lambda, theta)
+	for q, m := range p.Members {
+		var s float64
+		for _, k := range m {
+			s += lambda[k]
+		}
+		theta[q] = s
+	}
+}
+
+// Average sets theta to the mean of lambda over each parameter's terms,
+// the least-squares inverse of Expand.
+func (p *Params) Average(theta, lambda []float64) {
+	p.Reduce(theta, lambda)
+	for q, m := range p.Members {
+		theta[q] /= float64(len(m))
+	}
+}
+
+func (p *Params) checkLens(lambda, theta []float64) {
+	if len(lambda) != len(p.Of) || len(theta) != len(p.Members) {
+		panic(fmt.Sprintf("fit: Params with %d terms and %d parameters given vectors of %d and %d",
+			len(p.Of), len(p.Members), len(lambda), len(theta)))
+	}
+}
+
+// csr is a square sparse matrix in compressed-row form with sorted
+// columns; the fitter keeps the parameter-space Hessian in it.
+type csr struct {
+	n      int
+	rowPtr []int
+	col    []int32
+	val    []float64
+}
+
+func (m *csr) mulVec(dst, x []float64) {
+	for i := 0; i < m.n; i++ {
+		var s float64
+		for p := m.rowPtr[i]; p < m.rowPtr[i+1]; p++ {
+			s += m.val[p] * x[m.col[p]]
+		}
+		dst[i] = s
+	}
+}
+
+func (m *csr) diag() []float64 {
+	d := make([]float64, m.n)
+	for i := 0; i < m.n; i++ {
+		for p := m.rowPtr[i]; p < m.rowPtr[i+1]; p++ {
+			if int(m.col[p]) == i {
+				d[i] = m.val[p]
+			}
+		}
+	}
+	return d
+}
+
+// termMatrix is the read interface of a symmetric term-space matrix
+// (the expansion's response, or a data covariance).
+type termMatrix interface {
+	dim() int
+	doRow(i int, fn func(j int, v float64))
+}
+
+// Project returns s A^T M A in parameter space for a symmetric term-space
+// matrix M given row by row. The sums run in a fixed order, so the result
+// is reproducible bit for bit.
+func (p *Params) project(m termMatrix, s float64) *csr {
+	np := p.NumParams()
+	out := &csr{n: np, rowPtr: make([]int, np+1)}
+	acc := map[int]float64{}
+	var cols []int
+	for q, members := range p.Members {
+		clear(acc)
+		for _, k := range members {
+			m.doRow(k, func(j int, v float64) {
+				acc[p.Of[j]] += v
+			})
+		}
+		cols = cols[:0]
+		for c := range acc {
+			cols = append(cols, c)
+		}
+		sort.Ints(cols)
+		for _, c := range cols {
+			out.col = append(out.col, int32(c))
+			out.val = append(out.val, s*acc[c])
+		}
+		out.rowPtr[q+1] = len(out.col)
+	}
+	return out
+}

@@ -1,0 +1,225 @@
+package fit
+
+import (
+	"errors"
+	"fmt"
+	"math"
+
+	"gonum.org/v1/gonum/stat/distuv"
+
+	"warmfit/cluster"
+	"warmfit/lattice"
+)
+
+// Norms of the target error accepted by PlanShots.
+const (
+	NormLinf = "linf"
+	NormL2   = "l2"
+)
+
+// PlanOptions controls PlanShots.
+type PlanOptions struct {
+	// Target is the error eps the fitted coefficients should reach.
+	Target float64
+	// Norm is NormLinf (default): every coefficient within Target at
+	// Confidence, simultaneously; or NormL2: the expected squared L2
+	// error sum_k E(fit_k - lambda_k)^2 at most Target^2.
+	Norm string
+	// Confidence of the NormLinf guarantee; default 0.95.
+	Confidence float64
+	// Bases is the measurement scheme (one letter per qubit each); nil
+	// means CoveringBases.
+	Bases []string
+	// Order is the expansion order used to predict the response;
+	// default: 4, or the number of sites when smaller, and at least the
+	// largest term support.
+	Order   int
+	Workers int
+	// DenseLimit as in Options; default 2500.
+	DenseLimit int
+}
+
+// Plan is a shot budget for learning a model to a target precision.
+type Plan struct {
+	Bases []string
+	// Coverage[k] is the number of bases that measure term k.
+	Coverage      []int
+	ShotsPerBasis int64
+	TotalShots    int64
+	// VarPerShot[k] is the variance of the fitted coefficient of term k
+	// with one shot per basis; Stderr[k] the predicted standard error at
+	// ShotsPerBasis.
+	VarPerShot []float64
+	Stderr     []float64
+	Norm       string
+	Target     float64
+	Confidence float64
+	// Z is the two-sided normal quantile of the Bonferroni bound
+	// (NormLinf), Phi^{-1}(1 - (1 - Confidence)/(2 m)) over the m fitted
+	// parameters.
+	Z     float64
+	Order int
+	// Params is the number of fitted parameters (groups count once).
+	Params int
+	// Expect holds <E_k> at the model (the order-Order expansion).
+	Expect []float64
+	Notes  []string
+}
+
+// PlanShots predicts how many shots per basis learn the model's
+// coefficients to the target precision when every basis of the scheme is
+// measured equally often, from the expectations and the response of the
+// model itself (the delta method of Fit, evaluated before any data).
+//
+// With N shots per basis, term k is measured N n_k times (n_k bases
+// serve it), so Var(e_k) = (1 - e_k^2)/(N n_k) (references.md,
+// "Measurement statistics"). The covariances between estimates from the
+// same shots are ignored (diagonal approximation): Cov(e) = D/N with
+// D = diag((1 - e_k^2)/n_k). Then Cov(theta) = P^{-1} A^T D A P^{-1} / N
+// with P = -A^T R A and R = d<E>/d lambda, which already holds the factor
+// beta, and
+//
+//	NormLinf: N = ceil(z^2 max_k Var_k(1) / eps^2), z from a Bonferroni
+//	          union bound over the m parameters at the confidence;
+//	NormL2:   N = ceil(sum_k Var_k(1) / eps^2).
+func PlanShots(lat *lattice.Lattice, terms []lattice.Term, beta float64, opt PlanOptions) (*Plan, error) {
+	if lat == nil || len(terms) == 0 {
+		return nil, errors.New("plan: no lattice or no terms")
+	}
+	if !(beta > 0) || math.IsInf(beta, 0) {
+		return nil, fmt.Errorf("plan: beta = %v must be positive and finite", beta)
+	}
+	if !(opt.Target > 0) || math.IsInf(opt.Target, 0) {
+		return nil, fmt.Errorf("plan: target %v must be positive and finite", opt.Target)
+	}
+	if opt.Norm == "" {
+		opt.Norm = NormLinf
+	}
+	if opt.Norm != NormLinf && opt.Norm != NormL2 {
+		return nil, fmt.Errorf("plan: norm %q: want %s or %s", opt.Norm, NormLinf, NormL2)
+	}
+	if opt.Confidence == 0 {
+		opt.Confidence = 0.95
+	}
+	if !(opt.Confidence > 0 && opt.Confidence < 1) {
+		return nil, fmt.Errorf("plan: confidence %v must lie in (0, 1)", opt.Confidence)
+	}
+	if opt.DenseLimit <= 0 {
+		opt.DenseLimit = 2500
+	}
+	n := lat.NumSites()
+	minL := 0
+	for _, t := range terms {
+		minL = max(minL, len(t.Sites))
+	}
+	L := opt.Order
+	if L <= 0 {
+		L = max(min(4, n), minL)
+	}
+	if L < minL {
+		return nil, fmt.Errorf("plan: order %d cannot hold terms on %d sites", L, minL)
+	}
+	bases := opt.Bases
+	if bases == nil {
+		var err error
+		if bases, err = CoveringBases(n, terms); err != nil {
+			return nil, err
+		}
+	}
+	for i, b := range bases {
+		if len(b) != n {
+			return nil, fmt.Errorf("plan: basis %d has %d letters for %d qubits", i, len(b), n)
+		}
+	}
+	p := &Plan{Bases: bases, Norm: opt.Norm, Target: opt.Target, Confidence: opt.Confidence, Order: L}
+	p.Coverage = make([]int, len(terms))
+	var uncovered []string
+	for k, t := range terms {
+		for _, b := range bases {
+			if Serves(b, t) {
+				p.Coverage[k]++
+			}
+		}
+		if p.Coverage[k] == 0 && len(uncovered) < 10 {
+			uncovered = append(uncovered, t.Key())
+		}
+	}
+	if len(uncovered) > 0 {
+		return nil, fmt.Errorf("plan: no basis measures term(s) %v: the scheme cannot learn them", uncovered)
+	}
+
+	exp, err := cluster.NewExpansion(lat, terms)
+	if err != nil {
+		return nil, err
+	}
+	coeffs := make([]float64, len(terms))
+	for k, t := range terms {
+		coeffs[k] = t.Coeff
+	}
+	res, err := exp.Evaluate(coeffs, beta, cluster.Options{Order: L, Response: true, Workers: opt.Workers})
+	if err != nil {
+		return nil, err
+	}
+	p.Expect = res.Expect[L-1]
+	params := NewParams(terms)
+	p.Params = params.NumParams()
+	d := make([]float64, len(terms))
+	for k, e := range p.Expect {
+		if math.Abs(e) >= 1 || math.IsNaN(e) {
+			return nil, fmt.Errorf("plan: the expansion gives <%s> = %v at order %d: the temperature is too low for this order", terms[k].Key(), e, L)
+		}
+		d[k] = (1 - e*e) / float64(p.Coverage[k])
+	}
+	hess := params.project(responseMatrix{res.Response}, -1)
+	vars, _, err := paramVariances(hess, params.project(diagMatrix(d), 1), opt.DenseLimit, opt.Workers)
+	if err != nil {
+		return nil, fmt.Errorf("plan: %v", err)
+	}
+	p.VarPerShot = make([]float64, len(terms))
+	var maxVar, sumVar float64
+	for k := range terms {
+		v := vars[params.Of[k]]
+		p.VarPerShot[k] = v
+		maxVar = math.Max(maxVar, v)
+		sumVar += v
+	}
+	var shots float64
+	switch opt.Norm {
+	case NormLinf:
+		alpha := 1 - opt.Confidence
+		p.Z = distuv.UnitNormal.Quantile(1 - alpha/(2*float64(p.Params)))
+		shots = p.Z * p.Z * maxVar / (opt.Target * opt.Target)
+	case NormL2:
+		shots = sumVar / (opt.Target * opt.Target)
+	}
+	if shots > math.MaxInt64/float64(len(bases)+1) {
+		return nil, fmt.Errorf("plan: about %.3g shots per basis needed: beyond any experiment", shots)
+	}
+	p.ShotsPerBasis = max(int64(math.Ceil(shots)), 2)
+	p.TotalShots = p.ShotsPerBasis * int64(len(bases))
+	p.Stderr = make([]float64, len(terms))
+	for k, v := range p.VarPerShot {
+		p.Stderr[k] = math.Sqrt(v / float64(p.ShotsPerBasis))
+	}
+	p.Notes = append(p.Notes,
+		"diagonal approximation: covariances between estimates that share shots are ignored",
+		fmt.Sprintf("response and expectations from the order-%d expansion at the model", L))
+	if opt.Norm == NormLinf {
+		p.Notes = append(p.Notes, fmt.Sprintf("linf: Bonferroni union bound over %d parameters at %g confidence, z = %.4g", p.Params, opt.Confidence, p.Z))
+	} else {
+		p.Notes = append(p.Notes, "l2: expected squared L2 error of all term coefficients at most target^2")
+	}
+	return p, nil
+}
+
+// PredictedLinf returns the largest predicted standard error.
+func (p *Plan) PredictedLinf() float64 { return maxAbs(p.Stderr) }
+
+// PredictedL2 returns the predicted root expected squared L2 error.
+func (p *Plan) PredictedL2() float64 {
+	var s float64
+	for _, v := range p.Stderr {
+		s += v * v
+	}
+	return math.Sqrt(s)
+}
