@@ -44,16 +44,17 @@ type Operator struct {
 // flipGroup holds the terms sharing the flip mask x. Term j contributes
 // coef_j (-1)^popcount(b&z_j) to <b^x|H|b>, with coef_j = c_j i^{nY_j}:
 // real when nY_j is even (then stored in cr), imaginary otherwise (ci).
+// Members with z_j = 0 (bare X strings) are summed into the constant
+// kr + i ki; the lists hold the others.
 type flipGroup struct {
-	x  uint64
-	z  []uint64
-	cr []float64
-	ci []float64
-	// constant is set when every member has z = 0, so that the matrix
-	// element does not depend on b (bare X strings, the common field
-	// term); kr + i ki is then that element.
-	constant bool
-	kr, ki   float64
+	x      uint64
+	kr, ki float64
+	z      []uint64
+	cr     []float64
+	ci     []float64
+	// realCoef is set when every coefficient of the group is real, so the
+	// complex kernel can scale by a real number.
+	realCoef bool
 }
 
 // NewOperator builds the operator of H = sum_k terms[k].Coeff P_k on n
@@ -150,14 +151,21 @@ func newOperator(n int, ops []cluster.PauliString, coeffs []float64, workers int
 	}
 	for i := range op.groups {
 		g := &op.groups[i]
-		g.constant = true
-		for j, z := range g.z {
-			if z != 0 {
-				g.constant = false
+		var z []uint64
+		var cr, ci []float64
+		g.realCoef = true
+		for j := range g.z {
+			if g.ci[j] != 0 {
+				g.realCoef = false
 			}
-			g.kr += g.cr[j]
-			g.ki += g.ci[j]
+			if g.z[j] == 0 {
+				g.kr += g.cr[j]
+				g.ki += g.ci[j]
+				continue
+			}
+			z, cr, ci = append(z, g.z[j]), append(cr, g.cr[j]), append(ci, g.ci[j])
 		}
+		g.z, g.cr, g.ci = z, cr, ci
 	}
 	if len(diagOps) > 0 {
 		op.diag = make([]float64, 1<<uint(n))
@@ -206,10 +214,7 @@ func (op *Operator) Norm1() float64 { return op.norm1 }
 // Apply sets dst = H src. Both must have length Dim and must not overlap.
 func (op *Operator) Apply(dst, src []complex128) {
 	op.checkLen(len(dst), len(src))
-	op.parallel(func(_, c int) {
-		lo, hi := op.chunk(c)
-		op.applyComplex(dst, src, nil, lo, hi, 1, 0, 0, 0)
-	})
+	newVecOps(op, false).step(stateVec{c: dst}, stateVec{c: src}, stateVec{}, 1, 0, 0, 0)
 }
 
 // ApplyReal sets dst = H src for a real Hamiltonian (IsReal must hold).
@@ -218,10 +223,7 @@ func (op *Operator) ApplyReal(dst, src []float64) {
 		panic("validate: ApplyReal on a Hamiltonian with imaginary matrix elements")
 	}
 	op.checkLen(len(dst), len(src))
-	op.parallel(func(_, c int) {
-		lo, hi := op.chunk(c)
-		op.applyReal(dst, src, nil, lo, hi, 1, 0, 0, 0)
-	})
+	newVecOps(op, true).step(stateVec{r: dst}, stateVec{r: src}, stateVec{}, 1, 0, 0, 0)
 }
 
 func (op *Operator) checkLen(lens ...int) {
@@ -283,39 +285,72 @@ func (op *Operator) parallel(fn func(worker, chunk int)) {
 //	y = alpha (H src)[a] + beta src[a] + gamma dst[a];  dst[a] = y;
 //	psi[a] += c y (when psi is not nil),
 //
-// and returns sum |y|^2 and sum |psi[a]|^2 over the range. dst[a] is read
-// only when gamma is not zero, so it may hold garbage otherwise; dst may be
-// the same slice as neither src nor psi.
-func (op *Operator) applyComplex(dst, src, psi []complex128, lo, hi int, alpha, beta, gamma, c float64) (ny, npsi float64) {
-	for a := lo; a < hi; a++ {
-		var acc complex128
-		if op.diag != nil {
-			acc = complex(op.diag[a], 0) * src[a]
+// and returns sum |y|^2 and sum |psi[a]|^2 over the range. acc is scratch
+// of at least hi-lo amplitudes. dst[a] is read only when gamma is not
+// zero, so it may hold garbage otherwise; dst may be the same slice as
+// neither src nor psi. The loop runs term group by term group over the
+// range, so each inner loop streams through memory with one flip mask.
+func (op *Operator) applyComplex(acc, dst, src, psi []complex128, lo, hi int, alpha, beta, gamma, c float64) (ny, npsi float64) {
+	acc = acc[:hi-lo]
+	if op.diag != nil {
+		d, s := op.diag[lo:hi], src[lo:hi]
+		for i := range acc {
+			acc[i] = complex(d[i], 0) * s[i]
 		}
-		for gi := range op.groups {
-			g := &op.groups[gi]
-			b := uint64(a) ^ g.x
-			var sr, si float64
-			if g.constant {
-				sr, si = g.kr, g.ki
-			} else {
+	} else {
+		clear(acc)
+	}
+	for gi := range op.groups {
+		g := &op.groups[gi]
+		base := uint64(lo) ^ g.x
+		switch {
+		case len(g.z) == 0 && g.realCoef:
+			k := g.kr
+			for i := range acc {
+				v := src[base^uint64(i)]
+				acc[i] += complex(k*real(v), k*imag(v))
+			}
+		case len(g.z) == 0:
+			k := complex(g.kr, g.ki)
+			for i := range acc {
+				acc[i] += k * src[base^uint64(i)]
+			}
+		case g.realCoef:
+			for i := range acc {
+				b := base ^ uint64(i)
+				s := g.kr
 				for j, z := range g.z {
 					// Flip the sign bit for odd parity: branch-free.
-					s := uint64(bits.OnesCount64(b&z)&1) << 63
-					sr += math.Float64frombits(math.Float64bits(g.cr[j]) ^ s)
-					si += math.Float64frombits(math.Float64bits(g.ci[j]) ^ s)
+					sb := uint64(bits.OnesCount64(b&z)&1) << 63
+					s += math.Float64frombits(math.Float64bits(g.cr[j]) ^ sb)
 				}
+				v := src[b]
+				acc[i] += complex(s*real(v), s*imag(v))
 			}
-			acc += complex(sr, si) * src[b]
+		default:
+			for i := range acc {
+				b := base ^ uint64(i)
+				sr, si := g.kr, g.ki
+				for j, z := range g.z {
+					sb := uint64(bits.OnesCount64(b&z)&1) << 63
+					sr += math.Float64frombits(math.Float64bits(g.cr[j]) ^ sb)
+					si += math.Float64frombits(math.Float64bits(g.ci[j]) ^ sb)
+				}
+				acc[i] += complex(sr, si) * src[b]
+			}
 		}
-		y := complex(alpha, 0)*acc + complex(beta, 0)*src[a]
+	}
+	ca, cb, cg, cc := complex(alpha, 0), complex(beta, 0), complex(gamma, 0), complex(c, 0)
+	for i, h := range acc {
+		a := lo + i
+		y := ca*h + cb*src[a]
 		if gamma != 0 {
-			y += complex(gamma, 0) * dst[a]
+			y += cg * dst[a]
 		}
 		dst[a] = y
 		ny += real(y)*real(y) + imag(y)*imag(y)
 		if psi != nil {
-			p := psi[a] + complex(c, 0)*y
+			p := psi[a] + cc*y
 			psi[a] = p
 			npsi += real(p)*real(p) + imag(p)*imag(p)
 		}
@@ -324,27 +359,39 @@ func (op *Operator) applyComplex(dst, src, psi []complex128, lo, hi int, alpha, 
 }
 
 // applyReal is applyComplex for a real Hamiltonian on real vectors.
-func (op *Operator) applyReal(dst, src, psi []float64, lo, hi int, alpha, beta, gamma, c float64) (ny, npsi float64) {
-	for a := lo; a < hi; a++ {
-		var acc float64
-		if op.diag != nil {
-			acc = op.diag[a] * src[a]
+func (op *Operator) applyReal(acc, dst, src, psi []float64, lo, hi int, alpha, beta, gamma, c float64) (ny, npsi float64) {
+	acc = acc[:hi-lo]
+	if op.diag != nil {
+		d, s := op.diag[lo:hi], src[lo:hi]
+		for i := range acc {
+			acc[i] = d[i] * s[i]
 		}
-		for gi := range op.groups {
-			g := &op.groups[gi]
-			b := uint64(a) ^ g.x
-			var s float64
-			if g.constant {
-				s = g.kr
-			} else {
-				for j, z := range g.z {
-					sb := uint64(bits.OnesCount64(b&z)&1) << 63
-					s += math.Float64frombits(math.Float64bits(g.cr[j]) ^ sb)
-				}
+	} else {
+		clear(acc)
+	}
+	for gi := range op.groups {
+		g := &op.groups[gi]
+		base := uint64(lo) ^ g.x
+		if len(g.z) == 0 {
+			k := g.kr
+			for i := range acc {
+				acc[i] += k * src[base^uint64(i)]
 			}
-			acc += s * src[b]
+			continue
 		}
-		y := alpha*acc + beta*src[a]
+		for i := range acc {
+			b := base ^ uint64(i)
+			s := g.kr
+			for j, z := range g.z {
+				sb := uint64(bits.OnesCount64(b&z)&1) << 63
+				s += math.Float64frombits(math.Float64bits(g.cr[j]) ^ sb)
+			}
+			acc[i] += s * src[b]
+		}
+	}
+	for i, h := range acc {
+		a := lo + i
+		y := alpha*h + beta*src[a]
 		if gamma != 0 {
 			y += gamma * dst[a]
 		}

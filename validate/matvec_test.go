@@ -202,3 +202,37 @@ func TestNewOperatorErrors(t *testing.T) {
 		}
 	}
 }
+
+// xxzTerms is the XXZ chain sum (X X + Y Y + 0.5 Z Z) + 0.3 sum X, open.
+func xxzTerms(n int) []lattice.Term {
+	var terms []lattice.Term
+	for i := 0; i+1 < n; i++ {
+		for _, l := range []struct {
+			p string
+			c float64
+		}{{"XX", 1}, {"YY", 1}, {"ZZ", 0.5}} {
+			terms = append(terms, lattice.Term{Pauli: l.p, Sites: []int{i, i + 1}, Coeff: l.c})
+		}
+	}
+	for i := 0; i < n; i++ {
+		terms = append(terms, lattice.Term{Pauli: "X", Sites: []int{i}, Coeff: 0.3})
+	}
+	return terms
+}
+
+func benchmarkApply(b *testing.B, n int, real bool) {
+	op, err := NewOperator(n, xxzTerms(n), 0)
+	if err != nil {
+		b.Fatal(err)
+	}
+	o := newVecOps(op, real)
+	x, y := o.newVec(), o.newVec()
+	o.random(x, 1, 1)
+	b.ResetTimer()
+	for b.Loop() {
+		o.step(y, x, stateVec{}, 1, 0, 0, 0)
+	}
+}
+
+func BenchmarkOperatorApplyReal20Qubits(b *testing.B)    { benchmarkApply(b, 20, true) }
+func BenchmarkOperatorApplyComplex20Qubits(b *testing.B) { benchmarkApply(b, 20, false) }

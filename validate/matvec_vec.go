@@ -22,13 +22,26 @@ type vecOps struct {
 	op   *Operator
 	real bool
 	part []float64 // two slots per chunk
+	// Per-worker accumulators of one chunk for the matrix-vector product.
+	accR [][]float64
+	accC [][]complex128
 }
 
 func newVecOps(op *Operator, real bool) *vecOps {
 	if real && !op.real {
 		panic("validate: real vectors for a Hamiltonian with imaginary matrix elements")
 	}
-	return &vecOps{op: op, real: real, part: make([]float64, 2*op.numChunks())}
+	o := &vecOps{op: op, real: real, part: make([]float64, 2*op.numChunks())}
+	w := min(op.workers, op.numChunks())
+	size := min(op.Dim(), 1<<chunkBits)
+	for i := 0; i < w; i++ {
+		if real {
+			o.accR = append(o.accR, make([]float64, size))
+		} else {
+			o.accC = append(o.accC, make([]complex128, size))
+		}
+	}
+	return o
 }
 
 func (o *vecOps) newVec() stateVec {
@@ -59,13 +72,13 @@ func (o *vecOps) sums() (s0, s1 float64) {
 // psi += c dst; it returns |dst|^2 and |psi|^2. dst must differ from src
 // and psi. With gamma = 0 the old content of dst is not read.
 func (o *vecOps) step(dst, src, psi stateVec, alpha, beta, gamma, c float64) (ndst, npsi float64) {
-	o.op.parallel(func(_, ch int) {
+	o.op.parallel(func(worker, ch int) {
 		lo, hi := o.op.chunk(ch)
 		var a, b float64
 		if o.real {
-			a, b = o.op.applyReal(dst.r, src.r, psi.r, lo, hi, alpha, beta, gamma, c)
+			a, b = o.op.applyReal(o.accR[worker], dst.r, src.r, psi.r, lo, hi, alpha, beta, gamma, c)
 		} else {
-			a, b = o.op.applyComplex(dst.c, src.c, psi.c, lo, hi, alpha, beta, gamma, c)
+			a, b = o.op.applyComplex(o.accC[worker], dst.c, src.c, psi.c, lo, hi, alpha, beta, gamma, c)
 		}
 		o.part[2*ch], o.part[2*ch+1] = a, b
 	})

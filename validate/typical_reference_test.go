@@ -123,6 +123,13 @@ func tfim10Terms() []lattice.Term {
 	return randomTFIM(rand.New(rand.NewPCG(41, 42)), 10, false)
 }
 
+// random8Reference returns a random 8-qubit Hamiltonian (real or with
+// imaginary matrix elements) and its dense reference, shared by tests.
+func random8Reference(t testing.TB, real bool) ([]lattice.Term, *kronRef) {
+	terms := randomTerms(rand.New(rand.NewPCG(51, 52)), 8, real)
+	return terms, cachedKronRef(t, "random8", 8, terms)
+}
+
 var (
 	kronRefMu    sync.Mutex
 	kronRefCache = map[string]*kronRef{}

@@ -99,8 +99,7 @@ func TestTypicalMatchesDenseED8(t *testing.T) {
 		beta float64
 	}{{"real", true, 0.6}, {"complex", false, 0.6}, {"complex cold", false, 3}} {
 		t.Run(tc.name, func(t *testing.T) {
-			terms := randomTerms(rand.New(rand.NewPCG(51, 52)), 8, tc.real)
-			ref := cachedKronRef(t, "random8 "+tc.name[:4], 8, terms)
+			terms, ref := random8Reference(t, tc.real)
 			res, err := TypicalThermal(8, terms, tc.beta, paulis(t, obs), TypicalityOptions{Vectors: 48, Seed: 2})
 			if err != nil {
 				t.Fatal(err)
@@ -120,8 +119,7 @@ func TestTypicalMatchesDenseED8(t *testing.T) {
 // z-score follows roughly Student's t with R-1 degrees of freedom, RMS
 // sqrt((R-1)/(R-3)) = 1.07 for R = 16 (common practice).
 func TestTypicalErrorBarsAreHonest(t *testing.T) {
-	terms := randomTerms(rand.New(rand.NewPCG(51, 52)), 8, true)
-	ref := cachedKronRef(t, "random8 real", 8, terms)
+	terms, ref := random8Reference(t, true)
 	obs := []obsSpec{{"X", []int{0}}, {"Z", []int{7}}, {"YY", []int{4, 5}}, {"ZXZ", []int{1, 2, 3}}}
 	var ss float64
 	var count int
@@ -217,8 +215,7 @@ func TestTypicalMatchesFreeFermions16(t *testing.T) {
 // Large beta (ground-state dominated) must neither overflow nor lose
 // accuracy: the Chebyshev scale is carried as a logarithm.
 func TestTypicalLargeAndNegativeBeta(t *testing.T) {
-	terms := randomTerms(rand.New(rand.NewPCG(51, 52)), 8, true)
-	ref := cachedKronRef(t, "random8 real", 8, terms)
+	terms, ref := random8Reference(t, true)
 	obs := []obsSpec{{"X", []int{0}}, {"ZZ", []int{3, 4}}}
 	for _, beta := range []float64{40, -0.8} {
 		res, err := TypicalThermal(8, terms, beta, paulis(t, obs), TypicalityOptions{Vectors: 24, Seed: 5})
@@ -345,7 +342,8 @@ func benchmarkTypicality(b *testing.B, n int) {
 		if err != nil {
 			b.Fatal(err)
 		}
-		b.ReportMetric(float64(res.ChebyshevTerms), "terms")
+		b.ReportMetric(float64(res.ChebyshevTerms), "cheb-terms")
+		b.ReportMetric(float64(res.LanczosSteps), "lanczos-steps")
 	}
 }
 
