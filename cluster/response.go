@@ -16,15 +16,14 @@ var responseBudget = 1 << 20
 
 // responseWork is the reusable workspace of Response.
 type responseWork struct {
-	sqrtW []float64
-	sk    []float64 // sqrt(f_nm k_nm) on the current block of eigenstate pairs
-	w     []float64 // P V on the block's columns; stacked real over imaginary
-	w2    []float64 // i P V (complex case), stacked the same way
-	m     []float64 // <n|P|m> on the block, real part then imaginary part
-	y     []float64 // weighted matrix elements of every operator, one row each
-	cov   []float64
-	mean  []float64
-	odd   []bool
+	sk   []float64 // sqrt(f_nm k_nm) on the current block of eigenstate pairs
+	w    []float64 // P V on the block's columns; stacked real over imaginary
+	w2   []float64 // i P V (complex case), stacked the same way
+	m    []float64 // <n|P|m> on the block, real part then imaginary part
+	y    []float64 // weighted matrix elements of every operator, one row each
+	cov  []float64
+	mean []float64
+	odd  []bool
 }
 
 func (r *responseWork) grow(p *[]float64, n int) []float64 {
@@ -36,20 +35,22 @@ func (r *responseWork) grow(p *[]float64, n int) []float64 {
 // where c_b is the coefficient of ops[b] added to the Hamiltonian:
 //
 //	d<A>/dc_B = -beta (<A;B> - <A><B>),
-//	<A;B> = sum_{n,m} k_nm Re(<n|A|m> <m|B|n>),
-//	k_nm = (1/beta) ∫_0^beta tr(...) = (w_n - w_m) / (beta (E_m - E_n)),
+//	<A;B>     = sum_{n,m} k_nm Re(<n|A|m> <m|B|n>),
+//	k_nm      = (1/beta) ∫_0^beta ds e^{-(beta-s) E_m} e^{-s E_n} / Z
+//	          = (w_n - w_m) / (beta (E_m - E_n)),
 //
-// the Kubo–Mori (Bogoliubov) covariance. It is written as
-// k_nm = w_n (1 - exp(-x))/x with x = beta (E_m - E_n) >= 0 and w_n the
-// weight of the lower level, evaluated with expm1, so exact and near
-// degeneracies (x -> 0, k_nm -> w_n) are as accurate as distinct levels
-// and nothing overflows at large beta. The matrix is symmetric. dst must
-// have at least len(ops)^2 elements; every operator must act within the
-// qubits of the Hamiltonian.
+// with w the normalised Boltzmann weights: -beta times the Kubo–Mori
+// (Bogoliubov) covariance. It is evaluated as k_nm = w_n (1 - e^{-x})/x,
+// x = beta (E_m - E_n) >= 0 with n the lower level, using expm1, so exact
+// and near degeneracies (x -> 0, k_nm -> w_n) are as accurate as distinct
+// levels and nothing overflows at large beta. The result is symmetric and
+// its diagonal is non-positive. dst must have at least len(ops)^2
+// elements; every operator must act within the qubits of the Hamiltonian.
 //
-// The cost is O(len(ops) · Dim² · active) for the matrix elements (BLAS
-// Dgemm, only pairs n <= m with n among the thermally active states) plus
-// O(len(ops)² · Dim · active) for the covariances.
+// Cost: O(len(ops) · Dim² · active) for the matrix elements (BLAS Dgemm,
+// only pairs n <= m with n among the thermally active states; four times
+// that for complex eigenvectors) plus O(len(ops)² · Dim · active) for the
+// covariances.
 func (t *Thermal) Response(ops []PauliString, dst []float64) {
 	n := len(ops)
 	if len(dst) < n*n {
@@ -166,10 +167,11 @@ func (t *Thermal) matrixElements(p PauliString, n0, rows, cols int) {
 	bl := blas64.Implementation()
 	if s.real {
 		w := r.grow(&r.w, d*rows)
+		nyHalf := p.NumY() >> 1
 		for b := 0; b < d; b++ {
 			src := s.vecs[b*d+n0 : b*d+n0+rows]
 			out := w[int(uint64(b)^p.X)*rows : int(uint64(b)^p.X)*rows+rows]
-			if (p.NumY()>>1+bits.OnesCount64(uint64(b)&p.Z))&1 == 0 {
+			if (nyHalf+bits.OnesCount64(uint64(b)&p.Z))&1 == 0 {
 				copy(out, src)
 			} else {
 				for i, v := range src {

@@ -32,8 +32,9 @@ type Thermal struct {
 
 	// u holds sqrt(w_k) V[c,k] for k < active, row c contiguous; in the
 	// complex case row c is [real parts, imaginary parts] (length 2·active).
-	u   []float64
-	pop []float64 // diagonal of rho in the computational basis
+	u     []float64
+	pop   []float64 // diagonal of rho in the computational basis
+	sqrtW []float64
 
 	resp responseWork
 }
@@ -111,7 +112,8 @@ func (t *Thermal) fillAmplitudes() {
 	}
 	t.u = grow(t.u, d*width)
 	t.pop = grow(t.pop, d)
-	sw := t.resp.grow(&t.resp.sqrtW, na)
+	t.sqrtW = grow(t.sqrtW, na)
+	sw := t.sqrtW
 	for k := range sw {
 		sw[k] = math.Sqrt(t.weights[k])
 	}

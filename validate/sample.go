@@ -31,7 +31,13 @@ type Sampler struct {
 	th      *cluster.Thermal
 	weights []float64
 	active  int
-	cache   map[string][]float64 // basis -> cumulative distribution
+	cache   map[string]basisDistribution
+}
+
+// basisDistribution holds the outcome probabilities of one basis and their
+// running sums.
+type basisDistribution struct {
+	p, cdf []float64
 }
 
 // Count is one distinct outcome and how often it occurred. Outcome has one
@@ -55,7 +61,7 @@ func NewSampler(n int, terms []lattice.Term, beta float64) (*Sampler, error) {
 
 // NewSamplerFromThermal samples from an existing Gibbs state.
 func NewSamplerFromThermal(th *cluster.Thermal) *Sampler {
-	s := &Sampler{n: th.Spectrum().NumQubits(), th: th, cache: make(map[string][]float64)}
+	s := &Sampler{n: th.Spectrum().NumQubits(), th: th, cache: make(map[string]basisDistribution)}
 	s.weights = th.Weights(nil)
 	// Weights below 1e-18/D change no probability by more than 1e-18.
 	cut := 1e-18 / float64(len(s.weights))
@@ -74,17 +80,11 @@ func (s *Sampler) NumQubits() int { return s.n }
 // (one letter X, Y or Z per qubit): element o is the probability of the
 // outcome whose bit q is the digit of qubit q. The result is a fresh copy.
 func (s *Sampler) Distribution(basis string) ([]float64, error) {
-	cdf, err := s.cumulative(basis)
+	dist, err := s.distribution(basis)
 	if err != nil {
 		return nil, err
 	}
-	p := make([]float64, len(cdf))
-	prev := 0.0
-	for i, c := range cdf {
-		p[i] = c - prev
-		prev = c
-	}
-	return p, nil
+	return append([]float64(nil), dist.p...), nil
 }
 
 // Sample draws shots snapshots in the given basis using rng and returns
@@ -97,10 +97,11 @@ func (s *Sampler) Sample(basis string, shots int, rng *rand.Rand) ([]Count, erro
 	if rng == nil {
 		return nil, errors.New("validate: Sample needs a random number generator")
 	}
-	cdf, err := s.cumulative(basis)
+	dist, err := s.distribution(basis)
 	if err != nil {
 		return nil, err
 	}
+	cdf := dist.cdf
 	total := cdf[len(cdf)-1]
 	counts := make([]int, len(cdf))
 	for range shots {
@@ -133,35 +134,37 @@ func OutcomeString(o uint64, n int) string {
 	return string(b)
 }
 
-// cumulative returns the cached cumulative outcome distribution of a basis.
-func (s *Sampler) cumulative(basis string) ([]float64, error) {
+// distribution returns the cached outcome distribution of a basis.
+func (s *Sampler) distribution(basis string) (basisDistribution, error) {
 	if len(basis) != s.n {
-		return nil, fmt.Errorf("validate: basis %q has %d letters for %d qubits", basis, len(basis), s.n)
+		return basisDistribution{}, fmt.Errorf("validate: basis %q has %d letters for %d qubits", basis, len(basis), s.n)
 	}
 	for i := 0; i < len(basis); i++ {
 		switch basis[i] {
 		case 'X', 'Y', 'Z':
 		default:
-			return nil, fmt.Errorf("validate: basis %q: letter %q at qubit %d is not X, Y or Z", basis, basis[i], i)
+			return basisDistribution{}, fmt.Errorf("validate: basis %q: letter %q at qubit %d is not X, Y or Z", basis, basis[i], i)
 		}
 	}
-	if cdf, ok := s.cache[basis]; ok {
-		return cdf, nil
+	if dist, ok := s.cache[basis]; ok {
+		return dist, nil
 	}
 	p, err := s.probabilities(basis)
 	if err != nil {
-		return nil, err
+		return basisDistribution{}, err
 	}
+	cdf := make([]float64, len(p))
 	var acc float64
 	for i, v := range p {
 		acc += v
-		p[i] = acc
+		cdf[i] = acc
 	}
 	if math.Abs(acc-1) > 1e-9 {
-		return nil, fmt.Errorf("validate: outcome probabilities in basis %q sum to %v", basis, acc)
+		return basisDistribution{}, fmt.Errorf("validate: outcome probabilities in basis %q sum to %v", basis, acc)
 	}
-	s.cache[basis] = p
-	return p, nil
+	dist := basisDistribution{p: p, cdf: cdf}
+	s.cache[basis] = dist
+	return dist, nil
 }
 
 // probabilities computes sum_k w_k |U v_k|^2 over the thermally relevant
