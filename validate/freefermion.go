@@ -114,6 +114,10 @@ func buildMajorana(n int, ops []cluster.PauliString, terms []lattice.Term, fr le
 	parity := parityWord(n)
 	for k, p0 := range ops {
 		c := terms[k].Coeff
+		if c == 0 {
+			// A template may list interacting terms switched off.
+			continue
+		}
 		p, sign := fr.apply(p0)
 		c *= sign
 		w := pauliWord(p)

@@ -372,6 +372,12 @@ func TestFreeFermionChainRejectsInteracting(t *testing.T) {
 			t.Errorf("%s: accepted as free fermions", tc.name)
 		}
 	}
+	// Interacting terms with zero coefficient are ignored.
+	xx, _ := XXChainTerms(4, 1, false)
+	xx = append(xx, lattice.Term{Pauli: "ZZ", Sites: []int{1, 2}, Coeff: 0})
+	if _, err := NewFreeFermionChain(4, xx, 1); err != nil {
+		t.Errorf("XX chain with a zero ZZ term: %v", err)
+	}
 	// Bad input.
 	if _, err := NewFreeFermionChain(3, []lattice.Term{{Pauli: "X", Sites: []int{5}, Coeff: 1}}, 1); err == nil {
 		t.Error("site outside the chain accepted")
@@ -418,7 +424,9 @@ func TestFreeFermionLongRing(t *testing.T) {
 }
 
 func ExampleNewFreeFermionChain() {
-	// Open transverse-field Ising chain -sum Z_i Z_{i+1} - sum X_i, 10 sites.
+	// Open transverse-field Ising chain -sum Z_i Z_{i+1} - sum X_i, 10 sites
+	// (the printed values agree with dense diagonalisation of the
+	// 1024 x 1024 matrix to all digits shown).
 	terms, _ := TFIMChainTerms(10, 1, 1, false)
 	f, err := NewFreeFermionChain(10, terms, 0.5)
 	if err != nil {

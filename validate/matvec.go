@@ -212,6 +212,8 @@ func (op *Operator) IsReal() bool { return op.real }
 func (op *Operator) Norm1() float64 { return op.norm1 }
 
 // Apply sets dst = H src. Both must have length Dim and must not overlap.
+// Each call allocates scratch of one chunk per worker; the thermal
+// routines reuse theirs instead.
 func (op *Operator) Apply(dst, src []complex128) {
 	op.checkLen(len(dst), len(src))
 	newVecOps(op, false).step(stateVec{c: dst}, stateVec{c: src}, stateVec{}, 1, 0, 0, 0)

@@ -158,7 +158,10 @@ func TestVecOpsExpectMatchesKronecker(t *testing.T) {
 // partial sums in fixed order).
 func TestOperatorWorkersIdentical(t *testing.T) {
 	rng := rand.New(rand.NewPCG(5, 6))
-	const n = 15 // several chunks
+	n := 15 // several chunks
+	if testing.Short() {
+		n = 13
+	}
 	terms := randomTerms(rng, n, false)
 	var ref []float64
 	for _, w := range []int{1, 2, 3} {
