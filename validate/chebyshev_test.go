@@ -4,6 +4,7 @@ import (
 	"errors"
 	"math"
 	"math/rand/v2"
+	"slices"
 	"testing"
 
 	"warmfit/lattice"
@@ -150,7 +151,7 @@ func TestChebyshevDetectsSpectrumEscape(t *testing.T) {
 	o := newVecOps(op, true)
 	a, b, psi := o.newVec(), o.newVec(), o.newVec()
 	o.random(a, 1, 1)
-	e0, emax := ref.vals[0], ref.vals[len(ref.vals)-1]
+	e0, emax := slices.Min(ref.vals), slices.Max(ref.vals)
 	// Lower bound well above the ground state.
 	cheb := newChebyshevExp(3, e0+0.3*(emax-e0), emax)
 	if _, _, err := cheb.propagate(o, psi, a, b, 1e-12); !errors.Is(err, errSpectrumEscape) {
@@ -181,7 +182,7 @@ func TestSpectralBoundsContainSpectrum(t *testing.T) {
 			if err != nil {
 				t.Fatal(err)
 			}
-			e0, emax := ref.vals[0], ref.vals[len(ref.vals)-1]
+			e0, emax := slices.Min(ref.vals), slices.Max(ref.vals)
 			w := emax - e0
 			if lo > e0 || hi < emax {
 				t.Errorf("n=%d real=%v: bounds [%v, %v] miss spectrum [%v, %v]", n, real, lo, hi, e0, emax)

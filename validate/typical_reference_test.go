@@ -3,7 +3,10 @@ package validate
 import (
 	"fmt"
 	"math"
+	"math/bits"
 	"math/rand/v2"
+	"slices"
+	"strings"
 	"sync"
 	"testing"
 
@@ -17,6 +20,30 @@ import (
 // built as Kronecker products of 2x2 Pauli matrices (no bit tricks) and
 // diagonalised with gonum's EigenSym, complex Hermitian matrices through
 // the real embedding A + iB -> [[A, -B], [B, A]] (each eigenvalue twice).
+
+// The parity blocks of the reference must not change its answers.
+func TestKronRefParityBlocks(t *testing.T) {
+	tf, _ := TFIMChainTerms(6, 1, 0.7, false)
+	xx, _ := XXChainTerms(6, 1, true)
+	xx = append(xx, lattice.Term{Pauli: "XY", Sites: []int{1, 2}, Coeff: 0.3}) // complex, still even
+	for _, terms := range [][]lattice.Term{tf, xx} {
+		a := newKronRefBlocks(t, 6, terms, true)
+		b := newKronRefBlocks(t, 6, terms, false)
+		if a.frame == 0 && len(terms) == len(tf) {
+			t.Error("TFIM reference not rotated")
+		}
+		const beta = 0.9
+		if d := a.logZ(beta) - b.logZ(beta); math.Abs(d) > 1e-12 {
+			t.Errorf("ln Z differs by %g", d)
+		}
+		ra, rb := a.rho(beta), b.rho(beta)
+		for _, o := range []obsSpec{{"X", []int{1}}, {"ZZ", []int{2, 3}}, {"XY", []int{0, 1}}, {"YZY", []int{2, 3, 4}}, {"Z", []int{5}}} {
+			if d := a.expect(ra, o.letters, o.sites) - b.expect(rb, o.letters, o.sites); math.Abs(d) > 1e-12 {
+				t.Errorf("<%s%v> differs by %g", o.letters, o.sites, d)
+			}
+		}
+	}
+}
 
 // kronMatrix is a dense complex matrix stored as real and imaginary parts.
 type kronMatrix struct {
@@ -152,10 +179,11 @@ func cachedKronRef(t testing.TB, key string, n int, terms []lattice.Term) *kronR
 
 // kronRef is the dense spectral decomposition of a Hamiltonian.
 type kronRef struct {
-	n    int
-	real bool // no embedding
-	vals []float64
-	vecs *mat.Dense
+	n     int
+	real  bool // no embedding
+	frame int  // 1: the matrices are in the Hadamard-rotated basis
+	vals  []float64
+	vecs  *mat.Dense
 
 	rhoMu    sync.Mutex
 	rhoCache map[float64]*mat.Dense
@@ -178,23 +206,119 @@ func (r *kronRef) cachedRho(beta float64) *mat.Dense {
 
 func newKronRef(t testing.TB, n int, terms []lattice.Term) *kronRef {
 	t.Helper()
-	h := kronHamiltonian(n, terms)
-	real := h.isReal()
-	var eig mat.EigenSym
-	if !eig.Factorize(h.embed(real), true) {
-		t.Fatal("dense reference: EigenSym failed")
+	return newKronRefBlocks(t, n, terms, true)
+}
+
+// newKronRefBlocks is newKronRef with the parity blocks optional.
+func newKronRefBlocks(t testing.TB, n int, terms []lattice.Term, blocksAllowed bool) *kronRef {
+	t.Helper()
+	// A Hamiltonian whose terms all flip an even number of qubits (after
+	// the global Hadamard X<->Z, Y -> -Y if need be, a unitary change of
+	// basis) commutes with the parity Z_0...Z_{n-1}: its matrix splits into
+	// blocks of even and odd basis states, each diagonalised on its own.
+	frame := 0
+	var rotated []lattice.Term
+	switch {
+	case evenFlips(terms):
+		rotated = terms
+	case evenFlips(hadamardTerms(terms)):
+		frame, rotated = 1, hadamardTerms(terms)
+	default:
+		rotated = terms
+		frame = -1 // no parity blocks
 	}
-	r := &kronRef{n: n, real: real, vals: eig.Values(nil), vecs: new(mat.Dense)}
-	eig.VectorsTo(r.vecs)
+	if !blocksAllowed {
+		rotated, frame = terms, -1
+	}
+	h := kronHamiltonian(n, rotated)
+	real := h.isReal()
+	full := h.embed(real)
+	dd := full.SymmetricDim()
+	d := h.dim
+	r := &kronRef{n: n, real: real, frame: max(frame, 0), vecs: mat.NewDense(dd, dd, nil)}
+	var blocks [][]int
+	if frame < 0 {
+		blocks = [][]int{nil}
+		for e := 0; e < dd; e++ {
+			blocks[0] = append(blocks[0], e)
+		}
+	} else {
+		blocks = make([][]int, 2)
+		for e := 0; e < dd; e++ {
+			p := bits.OnesCount(uint(e%d)) % 2
+			blocks[p] = append(blocks[p], e)
+		}
+	}
+	col := 0
+	for _, idx := range blocks {
+		m := len(idx)
+		sub := mat.NewSymDense(m, nil)
+		for i := 0; i < m; i++ {
+			for j := i; j < m; j++ {
+				sub.SetSym(i, j, full.At(idx[i], idx[j]))
+			}
+		}
+		var eig mat.EigenSym
+		if !eig.Factorize(sub, true) {
+			t.Fatal("dense reference: EigenSym failed")
+		}
+		var v mat.Dense
+		eig.VectorsTo(&v)
+		r.vals = append(r.vals, eig.Values(nil)...)
+		for j := 0; j < m; j++ {
+			for i := 0; i < m; i++ {
+				r.vecs.Set(idx[i], col+j, v.At(i, j))
+			}
+		}
+		col += m
+	}
 	return r
+}
+
+// evenFlips reports whether every term has an even number of X and Y
+// letters.
+func evenFlips(terms []lattice.Term) bool {
+	for _, t := range terms {
+		if (strings.Count(t.Pauli, "X")+strings.Count(t.Pauli, "Y"))%2 == 1 {
+			return false
+		}
+	}
+	return true
+}
+
+// hadamardLetters maps letters under the global Hadamard: X <-> Z and
+// Y -> -Y, returning the new letters and the sign.
+func hadamardLetters(p string) (string, float64) {
+	out := []byte(p)
+	sign := 1.0
+	for i, l := range out {
+		switch l {
+		case 'X':
+			out[i] = 'Z'
+		case 'Z':
+			out[i] = 'X'
+		case 'Y':
+			sign = -sign
+		}
+	}
+	return string(out), sign
+}
+
+func hadamardTerms(terms []lattice.Term) []lattice.Term {
+	out := make([]lattice.Term, len(terms))
+	for i, t := range terms {
+		p, s := hadamardLetters(t.Pauli)
+		out[i] = lattice.Term{Pauli: p, Sites: t.Sites, Coeff: s * t.Coeff}
+	}
+	return out
 }
 
 // weights returns e^{-beta (E_j - E_0)} and ln of their sum, with the
 // shift E_0 the lowest (highest for negative beta) eigenvalue.
 func (r *kronRef) weights(beta float64) (w []float64, shift float64) {
-	shift = r.vals[0]
+	shift = slices.Min(r.vals)
 	if beta < 0 {
-		shift = r.vals[len(r.vals)-1]
+		shift = slices.Max(r.vals)
 	}
 	w = make([]float64, len(r.vals))
 	for j, e := range r.vals {
@@ -248,6 +372,14 @@ func (r *kronRef) rho(beta float64) *mat.Dense {
 
 // expect returns tr(rho O) for the observable letters on sites.
 func (r *kronRef) expect(rho *mat.Dense, letters string, sites []int) float64 {
+	sign := 1.0
+	if r.frame == 1 {
+		letters, sign = hadamardLetters(letters)
+	}
+	return sign * r.expectInFrame(rho, letters, sites)
+}
+
+func (r *kronRef) expectInFrame(rho *mat.Dense, letters string, sites []int) float64 {
 	o := kronPauli(r.n, letters, sites)
 	d := o.dim
 	var s float64
@@ -281,6 +413,9 @@ func (r *kronRef) expect(rho *mat.Dense, letters string, sites []int) float64 {
 
 // expMinus returns exp(-tau H) r.
 func (r *kronRef) expMinus(tau float64, v []complex128) []complex128 {
+	if r.frame != 0 {
+		panic("expMinus in a rotated basis")
+	}
 	d := 1 << uint(r.n)
 	dd := len(r.vals)
 	x := make([]float64, dd)
