@@ -16,14 +16,15 @@ var responseBudget = 1 << 20
 
 // responseWork is the reusable workspace of Response.
 type responseWork struct {
-	sk   []float64 // sqrt(f_nm k_nm) on the current block of eigenstate pairs
-	w    []float64 // P V on the block's columns; stacked real over imaginary
-	w2   []float64 // i P V (complex case), stacked the same way
-	m    []float64 // <n|P|m> on the block, real part then imaginary part
-	y    []float64 // weighted matrix elements of every operator, one row each
-	cov  []float64
-	mean []float64
-	odd  []bool
+	sk    []float64 // sqrt(f_nm k_nm) on the current block of eigenstate pairs
+	w     []float64 // P V on the block's columns; stacked real over imaginary
+	w2    []float64 // complex case: Re + Im of P V on the block's columns
+	vdiff []float64 // complex case: Re V - Im V
+	m     []float64 // <n|P|m> on the block, real part then imaginary part
+	y     []float64 // weighted matrix elements of every operator, one row each
+	cov   []float64
+	mean  []float64
+	odd   []bool
 }
 
 func (r *responseWork) grow(p *[]float64, n int) []float64 {
@@ -48,7 +49,7 @@ func (r *responseWork) grow(p *[]float64, n int) []float64 {
 // elements; every operator must act within the qubits of the Hamiltonian.
 //
 // Cost: O(len(ops) · Dim² · active) for the matrix elements (BLAS Dgemm,
-// only pairs n <= m with n among the thermally active states; four times
+// only pairs n <= m with n among the thermally active states; three times
 // that for complex eigenvectors) plus O(len(ops)² · Dim · active) for the
 // covariances.
 func (t *Thermal) Response(ops []PauliString, dst []float64) {
@@ -84,6 +85,12 @@ func (t *Thermal) Response(ops []PauliString, dst []float64) {
 		odd[a] = s.real && p.NumY()&1 == 1
 	}
 
+	if !s.real {
+		vd := r.grow(&r.vdiff, d*d)
+		for i := range vd {
+			vd[i] = s.vecs[i] - s.vecs[d*d+i]
+		}
+	}
 	// Eigenstate rows are processed in blocks of c so that the weighted
 	// matrix elements of all operators fit the budget.
 	c := min(na, max(1, responseBudget/(n*d*parts)))
@@ -184,10 +191,12 @@ func (t *Thermal) matrixElements(p PauliString, n0, rows, cols int) {
 		bl.Dgemm(blas.Trans, blas.NoTrans, rows, cols, d, 1, w, rows, s.vecs[n0:], d, 0, m, cols)
 		return
 	}
-	// Complex: W = P V stacked [Re; Im] and W2 = i W stacked, so that with
-	// V stacked the same way, Re(W^† V) = W^T V and Im(W^† V) = W2^T V.
+	// Complex: with W = P V_blk = Wr + i Wi and V = Vr + i Vi,
+	// <n|P|m> = (W^† V)_nm has real part T1 + T2 and imaginary part
+	// T1 - T2 - T3, where T1 = Wr^T Vr, T2 = Wi^T Vi and
+	// T3 = (Wr + Wi)^T (Vr - Vi): three real products instead of four.
 	w := r.grow(&r.w, 2*d*rows)
-	w2 := r.grow(&r.w2, 2*d*rows)
+	wsum := r.grow(&r.w2, d*rows)
 	vi := s.vecs[d*d:]
 	for b := 0; b < d; b++ {
 		srcR := s.vecs[b*d+n0 : b*d+n0+rows]
@@ -213,13 +222,18 @@ func (t *Thermal) matrixElements(p PauliString, n0, rows, cols int) {
 				outR[i], outI[i] = srcI[i], -srcR[i]
 			}
 		}
-		w2R := w2[e*rows : e*rows+rows]
-		w2I := w2[(d+e)*rows : (d+e)*rows+rows]
-		for i := range outR {
-			w2R[i], w2I[i] = -outI[i], outR[i]
+		sum := wsum[e*rows : e*rows+rows]
+		for i := range sum {
+			sum[i] = outR[i] + outI[i]
 		}
 	}
 	m := r.grow(&r.m, 2*rows*cols)
-	bl.Dgemm(blas.Trans, blas.NoTrans, rows, cols, 2*d, 1, w, rows, s.vecs[n0:], d, 0, m[:rows*cols], cols)
-	bl.Dgemm(blas.Trans, blas.NoTrans, rows, cols, 2*d, 1, w2, rows, s.vecs[n0:], d, 0, m[rows*cols:], cols)
+	mr, mi := m[:rows*cols], m[rows*cols:]
+	bl.Dgemm(blas.Trans, blas.NoTrans, rows, cols, d, 1, w[:d*rows], rows, s.vecs[n0:], d, 0, mr, cols)
+	bl.Dgemm(blas.Trans, blas.NoTrans, rows, cols, d, 1, w[d*rows:], rows, vi[n0:], d, 0, mi, cols)
+	for i, t1 := range mr {
+		t2 := mi[i]
+		mr[i], mi[i] = t1+t2, t1-t2
+	}
+	bl.Dgemm(blas.Trans, blas.NoTrans, rows, cols, d, -1, wsum, rows, r.vdiff[n0:], d, 1, mi, cols)
 }
