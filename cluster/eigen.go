@@ -94,7 +94,37 @@ func (s *Spectrum) Factorize(h *Hamiltonian) error {
 			return errors.New("cluster: eigenvalue is not finite")
 		}
 	}
+	snapDegenerate(s.values)
 	return nil
+}
+
+// snapDegenerate replaces each run of eigenvalues closer than the solver's
+// rounding error (64 eps max|E|) by its mean. Exact degeneracies come out
+// of the solver split by a few eps·|E|, and at large beta that split would
+// weight the members of a multiplet unequally (by exp(beta·split)),
+// breaking symmetries of expectations; levels that close cannot be
+// resolved numerically anyway.
+func snapDegenerate(vals []float64) {
+	n := len(vals)
+	if n < 2 {
+		return
+	}
+	tol := 64 * 0x1p-52 * math.Max(math.Abs(vals[0]), math.Abs(vals[n-1]))
+	for i := 0; i < n; {
+		j := i + 1
+		sum := vals[i]
+		for j < n && vals[j]-vals[j-1] <= tol {
+			sum += vals[j]
+			j++
+		}
+		if j-i > 1 {
+			mean := sum / float64(j-i)
+			for k := i; k < j; k++ {
+				vals[k] = mean
+			}
+		}
+		i = j
+	}
 }
 
 // solveReal diagonalises the real symmetric matrix in s.vecs: LAPACK

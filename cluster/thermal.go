@@ -88,12 +88,16 @@ func (t *Thermal) Set(s *Spectrum, beta float64) error {
 	}
 	t.energy = e0 + excite
 	t.entropy = beta*excite + logShifted
-	var variance float64
+	// beta^2 Var(H), with beta inside the square and vanishing weights
+	// skipped so that a huge beta cannot produce Inf·0.
+	t.heatCap = 0
 	for k := range w {
-		dk := (e[k] - e0) - excite
-		variance += w[k] * dk * dk
+		if w[k] == 0 {
+			continue
+		}
+		x := beta * ((e[k] - e0) - excite)
+		t.heatCap += w[k] * x * x
 	}
-	t.heatCap = beta * beta * variance
 	if math.IsNaN(t.logZ) || math.IsInf(t.logZ, 0) || math.IsNaN(t.heatCap) || math.IsInf(t.heatCap, 0) {
 		return fmt.Errorf("cluster: thermal sums not finite at beta %v", beta)
 	}

@@ -53,7 +53,7 @@ func TestSingleSpin(t *testing.T) {
 // Z = e^{3 beta J} + 3 e^{-beta J} and, by SU(2) symmetry,
 // <ZZ> = <H>/(3J) = (3 e^{-beta J} - 3 e^{3 beta J})/(3Z).
 func TestHeisenbergDimer(t *testing.T) {
-	for _, tc := range []struct{ j, beta float64 }{{1, 0.5}, {-0.7, 1.1}, {1, 200}, {-1, 200}} {
+	for _, tc := range []struct{ j, beta float64 }{{1, 0.5}, {-0.7, 1.1}, {1, 200}, {-1, 200}, {-1, 1e6}} {
 		h := &Hamiltonian{NumQubits: 2,
 			Ops:    []PauliString{mustPauli("XX", 0, 1), mustPauli("YY", 0, 1), mustPauli("ZZ", 0, 1)},
 			Coeffs: []float64{tc.j, tc.j, tc.j}}
@@ -65,10 +65,20 @@ func TestHeisenbergDimer(t *testing.T) {
 		if tc.j < 0 {
 			levels = []float64{tc.j, tc.j, tc.j, -3 * tc.j}
 		}
-		for k, v := range s.Values() {
+		vals := s.Values()
+		for k, v := range vals {
 			if !near(v, levels[k], 1e-14) {
 				t.Errorf("J=%v: level %d = %v, want %v", tc.j, k, v, levels[k])
 			}
+		}
+		// The triplet is exactly degenerate (snapped), so no beta can
+		// weight its members unequally.
+		tri := vals[1:]
+		if tc.j < 0 {
+			tri = vals[:3]
+		}
+		if tri[0] != tri[1] || tri[1] != tri[2] {
+			t.Errorf("J=%v: triplet %v not exactly degenerate", tc.j, tri)
 		}
 		th, err := NewThermal(s, tc.beta)
 		if err != nil {
@@ -93,8 +103,8 @@ func TestHeisenbergDimer(t *testing.T) {
 				t.Errorf("J=%v beta=%v: <%s> = %v, want E/3J = %v", tc.j, tc.beta, op, got, wantE/(3*tc.j))
 			}
 		}
-		if tc.beta == 200 && tc.j < 0 && !near(th.Entropy(), math.Log(3), 1e-12) {
-			t.Errorf("ferromagnetic dimer at beta=200: entropy %v, want log 3 (triplet ground state)", th.Entropy())
+		if tc.beta >= 200 && tc.j < 0 && (!near(th.Entropy(), math.Log(3), 1e-12) || th.HeatCapacity() > 1e-20) {
+			t.Errorf("ferromagnetic dimer at beta=%v: entropy %v, C %v, want log 3 (triplet ground state) and 0", tc.beta, th.Entropy(), th.HeatCapacity())
 		}
 	}
 }
