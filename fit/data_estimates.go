@@ -3,6 +3,7 @@ package fit
 import (
 	"fmt"
 	"math"
+	"os"
 	"slices"
 	"strings"
 
@@ -132,4 +133,54 @@ func (e *Estimates) markMissing(terms []lattice.Term, absent, allowMissing []int
 	}
 	e.Missing = absent
 	return nil
+}
+
+// DataSummary describes data read by LoadEstimates, for reports.
+type DataSummary struct {
+	Kind     string   // KindTable or KindSnapshots
+	Rows     int      // rows of an expectation table
+	Shots    int64    // shots of a snapshot file
+	Unused   []string // table rows matching no term, by term key
+	Comments []string // comment lines of a table
+}
+
+// LoadEstimates reads an expectation table or a snapshot file (told apart
+// by DetectDataKind) and returns estimates for terms on n qubits. For a
+// table the covariance is diagonal and opt only supplies AllowMissing.
+func LoadEstimates(path string, n int, terms []lattice.Term, opt CovarianceOptions) (*Estimates, *DataSummary, error) {
+	kind, err := DetectDataKind(path)
+	if err != nil {
+		return nil, nil, err
+	}
+	sum := &DataSummary{Kind: kind}
+	if kind == KindTable {
+		t, err := ReadTableFile(path)
+		if err != nil {
+			return nil, nil, err
+		}
+		est, unused, err := EstimatesFromTable(t, terms, opt.AllowMissing)
+		if err != nil {
+			return nil, nil, fmt.Errorf("%s: %w", path, err)
+		}
+		sum.Rows, sum.Unused, sum.Comments = len(t.Rows), unused, t.Comments
+		return est, sum, nil
+	}
+	e, err := NewSnapshotEstimator(n, terms, opt)
+	if err != nil {
+		return nil, nil, err
+	}
+	f, err := os.Open(path)
+	if err != nil {
+		return nil, nil, err
+	}
+	defer f.Close()
+	if err := scanSnapshotBytes(f, path, n, e.addBytes); err != nil {
+		return nil, nil, err
+	}
+	est, err := e.Result()
+	if err != nil {
+		return nil, nil, fmt.Errorf("%s: %w", path, err)
+	}
+	sum.Shots = e.Shots()
+	return est, sum, nil
 }

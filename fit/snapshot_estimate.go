@@ -44,9 +44,13 @@ import (
 // semi-definite.
 //
 // Sums are kept as exact integers, so results do not depend on the order
-// of shots. Shots of one basis are processed 64 at a time as bit words
-// (x_a x_b summed by popcount), so the cost per shot is about one byte
-// read per term site served, plus (pairs served)/64.
+// of shots. A basis met planThreshold times gets a cached plan (the terms
+// and pairs it serves); its single shots are then processed 64 at a time
+// as bit words (x_a x_b summed by popcount), so the cost per shot is
+// about one byte read per term site served, plus (pairs served)/64.
+// Bases seen rarely (random-basis schemes) are processed shot by shot
+// through a per-support index: one lookup per support and one update per
+// kept pair served.
 type SnapshotEstimator struct {
 	n     int
 	terms []lattice.Term
@@ -54,19 +58,27 @@ type SnapshotEstimator struct {
 
 	pairsOf [][]pairRef
 	npairs  int
+	index   *supportIndex
 
-	termN, termS               []int64 // shots and sum of x per term
-	pairN, pairA, pairB, pairP []int64 // shared shots, sum x_a, sum x_b, sum x_a x_b
+	termN, termS []int64   // shots and sum of x per term
+	pairs        []pairSum // per kept pair
 
 	plans      map[string]*basisPlan
 	planBytes  int
-	planBudget int // bytes of plans kept before folding them in
+	planBudget int              // bytes of plans kept before folding them in
+	seen       map[string]int32 // lines met per basis without a plan
 	total      int64
 
-	// scratch for building plans and for merged shots
-	pos []int32
-	xs  []int64
+	buf directBuffer // shots without a plan
+
+	// scratch for building plans
+	servedAt []int32 // per support: served term or -1
+	codeAt   []int32 // per support: letter code shown by the basis
 }
+
+// pairSum accumulates a kept pair a < b over the shots serving both:
+// their number and the sums of x_a, x_b and x_a x_b.
+type pairSum struct{ n, a, b, p int64 }
 
 // basisPlan is what one basis serves, with accumulators not yet added to
 // the estimator's totals.
@@ -81,18 +93,28 @@ type basisPlan struct {
 	prod   []int64 // per pair: sum of count·x_a·x_b
 	words  []uint64
 	nbatch uint
+	xs     []int64 // signs of a merged line, allocated on first use
 }
 
 // planPair is a kept pair served by a basis: positions in basisPlan.terms
-// and the pair index.
+// (a for the lower term index) and the pair index.
 type planPair struct{ a, b, pair int32 }
 
-// maxPlanBytes bounds the memory of cached basis plans; past it they are
-// folded into the totals and dropped (only speed changes).
-const maxPlanBytes = 64 << 20
+const (
+	// maxPlanBytes bounds the memory of cached basis plans; past it they
+	// are folded into the totals and dropped (only speed changes).
+	maxPlanBytes = 64 << 20
+	// planThreshold is how many lines of a basis are processed directly
+	// before it gets a plan: building, caching and folding in a plan
+	// costs about as much as ten direct shots, and pays only for bases
+	// measured many times.
+	planThreshold = 16
+	// maxSeen bounds the basis counts kept for planThreshold.
+	maxSeen = 1 << 16
+)
 
-// NewSnapshotEstimator prepares estimates of terms (canonical, on qubits
-// 0..n-1) from shots on n qubits.
+// NewSnapshotEstimator prepares estimates of terms (canonical, distinct,
+// on qubits 0..n-1) from shots on n qubits.
 func NewSnapshotEstimator(n int, terms []lattice.Term, opt CovarianceOptions) (*SnapshotEstimator, error) {
 	if n <= 0 {
 		return nil, fmt.Errorf("number of qubits %d must be positive", n)
@@ -109,15 +131,25 @@ func NewSnapshotEstimator(n int, terms []lattice.Term, opt CovarianceOptions) (*
 	if err != nil {
 		return nil, err
 	}
+	index, err := newSupportIndex(terms, pairsOf, npairs)
+	if err != nil {
+		return nil, err
+	}
+	ng := len(index.groups)
 	return &SnapshotEstimator{
 		n: n, terms: terms, opt: opt,
-		pairsOf: pairsOf, npairs: npairs,
+		pairsOf: pairsOf, npairs: npairs, index: index,
 		termN: make([]int64, len(terms)), termS: make([]int64, len(terms)),
-		pairN: make([]int64, npairs), pairA: make([]int64, npairs),
-		pairB: make([]int64, npairs), pairP: make([]int64, npairs),
+		pairs:      make([]pairSum, npairs),
 		plans:      make(map[string]*basisPlan),
 		planBudget: maxPlanBytes,
-		pos:        make([]int32, len(terms)),
+		seen:       make(map[string]int32),
+		servedAt:   make([]int32, ng),
+		codeAt:     make([]int32, ng),
+		buf: directBuffer{
+			vals:   make([]int16, ng*directBatch),
+			counts: make([]int64, directBatch),
+		},
 	}, nil
 }
 
@@ -136,21 +168,13 @@ func (e *SnapshotEstimator) Add(basis, outcome string, count int64) error {
 	if count <= 0 {
 		return fmt.Errorf("shot count %d is not positive", count)
 	}
-	p, ok := e.plans[basis]
-	if !ok {
-		p = e.newPlan(basis)
-	}
-	accumulate(e, p, outcome, count)
+	add(e, basis, outcome, count)
 	return nil
 }
 
 // addBytes is Add for input already checked by scanSnapshotBytes.
 func (e *SnapshotEstimator) addBytes(basis, outcome []byte, count int64) error {
-	p, ok := e.plans[string(basis)]
-	if !ok {
-		p = e.newPlan(string(basis))
-	}
-	accumulate(e, p, outcome, count)
+	add(e, basis, outcome, count)
 	return nil
 }
 
@@ -171,36 +195,152 @@ func EstimateSnapshots(r io.Reader, name string, n int, terms []lattice.Term, op
 	return est, nil
 }
 
-func serves(basis string, t lattice.Term) bool {
-	for i, s := range t.Sites {
-		if basis[s] != t.Pauli[i] {
-			return false
-		}
+func add[S ~string | ~[]byte](e *SnapshotEstimator, basis, outcome S, count int64) {
+	e.total += count
+	if p, ok := e.plans[string(basis)]; ok {
+		accumulate(p, outcome, count)
+		return
 	}
-	return true
+	seen, ok := e.seen[string(basis)]
+	if seen+1 >= planThreshold {
+		delete(e.seen, string(basis))
+		p := e.newPlan(string(basis))
+		accumulate(p, outcome, count)
+		return
+	}
+	if ok {
+		e.seen[string(basis)] = seen + 1
+	} else {
+		if len(e.seen) >= maxSeen {
+			clear(e.seen)
+		}
+		e.seen[string(basis)] = 1
+	}
+	direct(e, basis, outcome, count)
 }
 
+// lookup fills servedAt and codeAt for basis.
+func lookup[S ~string | ~[]byte](e *SnapshotEstimator, basis S) {
+	for g, grp := range e.index.groups {
+		code, mul := 0, 1
+		for _, s := range grp.sites {
+			code += letterCode(basis[s]) * mul
+			mul *= 3
+		}
+		e.codeAt[g] = int32(code)
+		e.servedAt[g] = grp.slots[code]
+	}
+}
+
+// directBatch is how many shots without a plan are buffered before
+// their pair sums are taken, support pair by support pair: the few
+// accumulators of one support pair then stay in cache for the whole
+// batch, instead of every shot touching one cache line per support pair.
+const directBatch = 256
+
+// directBuffer holds shots without a plan, transposed: vals[g*directBatch
+// + i] is -1 when shot i serves no term on support g, else 2·code + bit,
+// code the letters shown on g and bit 1 when the served term's x is -1.
+type directBuffer struct {
+	n      int
+	vals   []int16
+	counts []int64
+}
+
+// direct adds count shots of a basis without a plan: term sums at once,
+// pair sums when the buffer is full.
+func direct[S ~string | ~[]byte](e *SnapshotEstimator, basis, outcome S, count int64) {
+	buf := &e.buf
+	i := buf.n
+	for g, grp := range e.index.groups {
+		code, mul := 0, 1
+		for _, s := range grp.sites {
+			code += letterCode(basis[s]) * mul
+			mul *= 3
+		}
+		t := grp.slots[code]
+		if t < 0 {
+			buf.vals[g*directBatch+i] = -1
+			continue
+		}
+		var par byte
+		for _, s := range grp.sites {
+			par ^= outcome[s]
+		}
+		bit := int64(par & 1)
+		e.termN[t] += count
+		e.termS[t] += count * (1 - 2*bit)
+		buf.vals[g*directBatch+i] = int16(2*code) | int16(bit)
+	}
+	buf.counts[i] = count
+	buf.n++
+	if buf.n == directBatch {
+		e.flushDirect()
+	}
+}
+
+// flushDirect adds the pair sums of the buffered shots.
+func (e *SnapshotEstimator) flushDirect() {
+	buf := &e.buf
+	n := buf.n
+	if n == 0 {
+		return
+	}
+	table := e.index.table
+	counts := buf.counts[:n]
+	for _, sp := range e.index.pairs {
+		rs := buf.vals[int(sp.s)*directBatch:][:n]
+		rt := buf.vals[int(sp.t)*directBatch:][:n]
+		for i, c := range counts {
+			vs, vt := rs[i], rt[i]
+			if vs < 0 || vt < 0 {
+				continue
+			}
+			v := table[sp.off+int32(vs>>1)+sp.ns*int32(vt>>1)]
+			if v < 0 {
+				continue
+			}
+			xs, xt := 1-2*int64(vs&1), 1-2*int64(vt&1)
+			if v&1 != 0 {
+				xs, xt = xt, xs
+			}
+			ps := &e.pairs[v>>1]
+			ps.n += c
+			ps.a += c * xs
+			ps.b += c * xt
+			ps.p += c * xs * xt
+		}
+	}
+	buf.n = 0
+}
+
+// newPlan builds and caches the plan of basis.
 func (e *SnapshotEstimator) newPlan(basis string) *basisPlan {
+	lookup(e, basis)
 	p := &basisPlan{start: []int32{0}}
-	for k, t := range e.terms {
-		if serves(basis, t) {
+	// Served terms in increasing index order; pos maps support -> position.
+	for k, g := range e.index.termSup {
+		if e.servedAt[g] == int32(k) {
 			p.terms = append(p.terms, int32(k))
-			for _, s := range t.Sites {
-				p.sites = append(p.sites, int32(s))
-			}
+			p.sites = append(p.sites, e.index.groups[g].sites...)
 			p.start = append(p.start, int32(len(p.sites)))
-			e.pos[k] = int32(len(p.terms)) // position + 1
 		}
 	}
-	for ja, a := range p.terms {
-		for _, r := range e.pairsOf[a] {
-			if jb := e.pos[r.other]; jb > 0 {
-				p.pairs = append(p.pairs, planPair{a: int32(ja), b: jb - 1, pair: r.pair})
-			}
-		}
+	pos := make(map[int32]int32, len(p.terms))
+	for j, t := range p.terms {
+		pos[t] = int32(j)
 	}
-	for _, a := range p.terms {
-		e.pos[a] = 0
+	for _, sp := range e.index.pairs {
+		ts, tt := e.servedAt[sp.s], e.servedAt[sp.t]
+		if ts < 0 || tt < 0 {
+			continue
+		}
+		v := e.index.table[sp.off+e.codeAt[sp.s]+sp.ns*e.codeAt[sp.t]]
+		if v < 0 {
+			continue
+		}
+		lo, hi := min(ts, tt), max(ts, tt)
+		p.pairs = append(p.pairs, planPair{a: pos[lo], b: pos[hi], pair: v >> 1})
 	}
 	p.sum = make([]int64, len(p.terms))
 	p.prod = make([]int64, len(p.pairs))
@@ -219,8 +359,7 @@ func (e *SnapshotEstimator) newPlan(basis string) *basisPlan {
 
 // accumulate adds count shots with the given outcome to plan p. Single
 // shots go into the current 64-shot batch of sign bits.
-func accumulate[S ~string | ~[]byte](e *SnapshotEstimator, p *basisPlan, outcome S, count int64) {
-	e.total += count
+func accumulate[S ~string | ~[]byte](p *basisPlan, outcome S, count int64) {
 	if count == 1 {
 		bit := uint64(1) << p.nbatch
 		for j := range p.terms {
@@ -238,20 +377,19 @@ func accumulate[S ~string | ~[]byte](e *SnapshotEstimator, p *basisPlan, outcome
 		}
 		return
 	}
-	if cap(e.xs) < len(p.terms) {
-		e.xs = make([]int64, len(p.terms))
+	if p.xs == nil {
+		p.xs = make([]int64, len(p.terms))
 	}
-	xs := e.xs[:len(p.terms)]
 	for j := range p.terms {
 		var par byte
 		for _, s := range p.sites[p.start[j]:p.start[j+1]] {
 			par ^= outcome[s]
 		}
-		xs[j] = 1 - 2*int64(par&1)
-		p.sum[j] += count * xs[j]
+		p.xs[j] = 1 - 2*int64(par&1)
+		p.sum[j] += count * p.xs[j]
 	}
 	for i, pp := range p.pairs {
-		p.prod[i] += count * xs[pp.a] * xs[pp.b]
+		p.prod[i] += count * p.xs[pp.a] * p.xs[pp.b]
 	}
 	p.shots += count
 }
@@ -281,11 +419,11 @@ func (e *SnapshotEstimator) flushPlans() {
 			continue
 		}
 		for i, pp := range p.pairs {
-			k := pp.pair
-			e.pairN[k] += p.shots
-			e.pairA[k] += p.sum[pp.a]
-			e.pairB[k] += p.sum[pp.b]
-			e.pairP[k] += p.prod[i]
+			ps := &e.pairs[pp.pair]
+			ps.n += p.shots
+			ps.a += p.sum[pp.a]
+			ps.b += p.sum[pp.b]
+			ps.p += p.prod[i]
 			p.prod[i] = 0
 		}
 		for j, t := range p.terms {
@@ -318,6 +456,7 @@ func shotVariance(sum, count int64) float64 {
 // in CovarianceOptions.AllowMissing have fewer than two shots.
 func (e *SnapshotEstimator) Result() (*Estimates, error) {
 	e.flushPlans()
+	e.flushDirect()
 	est := newEstimates(len(e.terms))
 	var absent []int
 	usable := make([]bool, len(e.terms))
@@ -348,13 +487,12 @@ func (e *SnapshotEstimator) Result() (*Estimates, error) {
 	}
 	for a, refs := range e.pairsOf {
 		for _, r := range refs {
-			b, k := int(r.other), r.pair
-			nab := e.pairN[k]
-			if nab < 2 || !usable[a] || !usable[b] {
+			b, ps := int(r.other), e.pairs[r.pair]
+			if ps.n < 2 || !usable[a] || !usable[b] {
 				continue
 			}
-			fab := float64(nab)
-			c := (float64(e.pairP[k]) - float64(e.pairA[k])*float64(e.pairB[k])/fab) / (fab - 1)
+			fab := float64(ps.n)
+			c := (float64(ps.p) - float64(ps.a)*float64(ps.b)/fab) / (fab - 1)
 			est.Cov.Set(a, b, fab*c/(float64(e.termN[a])*float64(e.termN[b])))
 		}
 	}

@@ -304,6 +304,17 @@ func TestSnapshotEstimateBruteForce(t *testing.T) {
 		for range c {
 			shots = append(shots, expandedShot{b, string(o)})
 		}
+		// Long runs of single shots in one basis fill whole 64-shot
+		// batches of the plan path.
+		if i%100 == 0 {
+			for range 150 {
+				for s := range o {
+					o[s] = '0' + byte(rng.IntN(2))
+				}
+				lines = append(lines, line{b, string(o), 1})
+				shots = append(shots, expandedShot{b, string(o)})
+			}
+		}
 	}
 	mean, variance, cov := bruteEstimates(terms, shots)
 
@@ -380,6 +391,10 @@ func TestSnapshotEstimatorErrors(t *testing.T) {
 	}
 	if _, err := NewSnapshotEstimator(2, []lattice.Term{{Pauli: "XZ", Sites: []int{1, 0}}}, CovarianceOptions{}); err == nil {
 		t.Error("non-canonical term accepted")
+	}
+	if _, err := NewSnapshotEstimator(2, []lattice.Term{mustTerm(t, "ZX", 0, 1), mustTerm(t, "Z", 0), mustTerm(t, "ZX", 0, 1)}, CovarianceOptions{}); err == nil ||
+		!strings.Contains(err.Error(), "terms 0 and 2 are both ZX 0 1") {
+		t.Errorf("duplicate terms: %v", err)
 	}
 	if _, err := NewSnapshotEstimator(2, terms, CovarianceOptions{AllowMissing: []int{3}}); err == nil {
 		t.Error("bad AllowMissing accepted")
