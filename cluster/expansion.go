@@ -327,6 +327,8 @@ type clusterWork struct {
 	serial int32
 	pos    []int32 // sorted positions of the terms inside the cluster
 	ham    Hamiltonian
+	spec   Spectrum // reused: Factorize keeps its workspace
+	th     Thermal
 	vals   []float64
 	resp   []float64
 	mult   []float64
@@ -447,12 +449,11 @@ func (e *Expansion) loadCluster(w *clusterWork, sites []int, coeffs []float64) {
 // to every order from its size up to L.
 func (e *Expansion) addCluster(w *clusterWork, acc *blockAcc, c *clusterView, beta float64, L int, wantResp bool) error {
 	size := c.size
-	spec, err := Diagonalize(&w.ham)
-	if err != nil {
+	if err := w.spec.Factorize(&w.ham); err != nil {
 		return fmt.Errorf("cluster %v: %v", c.sites, err)
 	}
-	th, err := NewThermal(spec, beta)
-	if err != nil {
+	th := &w.th
+	if err := th.Set(&w.spec, beta); err != nil {
 		return fmt.Errorf("cluster %v: %v", c.sites, err)
 	}
 	logZ := th.LogZ() - float64(size)*math.Ln2

@@ -51,13 +51,12 @@ func (e *Expansion) Thermodynamics(coeffs []float64, betas []float64, opt Option
 			if len(c.pos) == 0 {
 				return nil
 			}
-			spec, err := Diagonalize(c.ham)
-			if err != nil {
+			if err := w.spec.Factorize(c.ham); err != nil {
 				return fmt.Errorf("cluster %v: %v", c.sites, err)
 			}
+			th := &w.th
 			for i, beta := range betas {
-				th, err := NewThermal(spec, beta)
-				if err != nil {
+				if err := th.Set(&w.spec, beta); err != nil {
 					return fmt.Errorf("cluster %v: %v", c.sites, err)
 				}
 				logZ := th.LogZ() - float64(c.size)*math.Ln2
