@@ -11,48 +11,65 @@ import (
 type Convergence struct {
 	Value    float64 // bare partial sum at the highest order
 	LastStep float64 // change from the previous order
-	// Error estimates the truncation error as the largest change over the
-	// last two orders: on bipartite lattices odd and even orders often
-	// come in equal pairs, so one zero step proves nothing.
+	// Error estimates the truncation error of Value; see Converge.
 	Error    float64
 	Resummed float64 // Wynn epsilon acceleration of the partial sums
 	Trusted  bool    // Error <= the tolerance asked for
 }
 
+// tailSafety multiplies the geometric tail estimate: the ratio of two
+// pair steps is itself uncertain.
+const tailSafety = 2
+
 // Converge judges the partial sums series[o] (order o+1) of a quantity
 // whose first non-trivial order is first (the size of the smallest
-// cluster that can hold it). With fewer than two orders past first there
-// is no evidence of convergence and the result is untrusted, unless the
-// series is identically zero.
+// cluster that can hold it; the sum below that order is zero).
+//
+// The error estimate works on steps over two orders, D1 = S_L - S_{L-2}
+// and D2 = S_{L-2} - S_{L-4}, because on bipartite lattices odd and even
+// orders contribute very unequally (often one of each pair adds nothing),
+// so single steps alternate between large and tiny. With r = |D1|/|D2| < 1
+// the remaining tail is estimated as geometric, |D1| r/(1-r), times a
+// safety factor of 2. (The last single step is no floor: in a pair
+// pattern it is a whole large step that the pair ratio already discounts.)
+// With r >= 1
+// the series is not converging: the error is |D1| and the value is
+// untrusted. With fewer than four orders past first there is not enough
+// evidence; the error is then the largest of the last two single steps
+// (infinite when there is only one order).
 func Converge(series []float64, first int, tol float64) Convergence {
 	L := len(series)
 	if first < 1 {
 		first = 1
 	}
-	c := Convergence{Value: series[L-1], Resummed: series[L-1]}
+	c := Convergence{Value: series[L-1], Resummed: series[L-1], Error: math.Inf(1)}
 	if L < first {
-		c.Error = math.Inf(1)
 		return c
 	}
-	s := series[first-1:]
-	switch len(s) {
-	case 1:
-		c.Error = math.Inf(1)
-		if s[0] == 0 {
-			c.Error = 0
+	// s[0] is the zero sum below the first order.
+	s := append([]float64{0}, series[first-1:]...)
+	n := len(s)
+	c.LastStep = s[n-1] - s[n-2]
+	allZero := true
+	for _, v := range s {
+		allZero = allZero && v == 0
+	}
+	switch {
+	case allZero:
+		c.Error = 0
+	case n >= 5:
+		d1 := math.Abs(s[n-1] - s[n-3])
+		d2 := math.Abs(s[n-3] - s[n-5])
+		if d1 < d2 {
+			r := d1 / d2
+			c.Error = tailSafety * d1 * r / (1 - r)
+		} else {
+			c.Error = math.Max(d1, math.Abs(c.LastStep))
 		}
-	case 2:
-		c.LastStep = s[1] - s[0]
-		c.Error = math.Inf(1)
-		if s[0] == 0 && s[1] == 0 {
-			c.Error = 0
-		}
-	default:
-		n := len(s)
-		c.LastStep = s[n-1] - s[n-2]
+	case n >= 3:
 		c.Error = math.Max(math.Abs(c.LastStep), math.Abs(s[n-2]-s[n-3]))
 	}
-	c.Resummed = Wynn(s)
+	c.Resummed = Wynn(s[1:])
 	c.Trusted = c.Error <= tol
 	return c
 }

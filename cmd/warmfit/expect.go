@@ -36,8 +36,9 @@ rho = exp(-beta H)/Z, and writes the expectation table (pauli,sites,value,stderr
 --method expansion (the default) sums the numerical linked-cluster expansion over
 connected clusters of up to --order sites; it works for any lattice size. Four extra
 columns say how far each value can be trusted: step (change from the previous
-order), trunc_error (largest change over the last two orders), resummed (Wynn
-epsilon acceleration of the partial sums) and trusted (trunc_error <= --tol).
+order), trunc_error (estimated truncation error, from the geometric decay of the
+changes over pairs of orders), resummed (Wynn epsilon acceleration of the partial
+sums) and trusted (trunc_error <= --tol).
 A summary on stderr says plainly when the temperature is too low for the order.
 
 --method exact diagonalises the whole system: densely up to 12 qubits (stderr
@@ -177,9 +178,9 @@ func expectByExpansion(env *runEnv, m *lattice.Model, beta float64, order int, t
 // expansionVerdict is the plain-language trust statement for a table.
 func expansionVerdict(untrusted, total int, worst, tol, beta float64, order int) string {
 	if untrusted == 0 {
-		return fmt.Sprintf("converged: every value changed by at most %.2g over the last two orders (tolerance %.2g)", worst, tol)
+		return fmt.Sprintf("converged: estimated truncation error at most %.2g for every value (tolerance %.2g)", worst, tol)
 	}
-	return fmt.Sprintf("WARNING: %d of %d values have NOT converged (truncation error up to %.2g > %.2g): beta = %s is too low a temperature for order %d; raise --order or do not trust the rows marked trusted=false",
+	return fmt.Sprintf("WARNING: %d of %d values have NOT converged (estimated truncation error up to %.2g > %.2g): beta = %s is too low a temperature for order %d; raise --order or do not trust the rows marked trusted=false",
 		untrusted, total, worst, tol, fmtFloat(beta), order)
 }
 

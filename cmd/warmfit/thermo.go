@@ -29,8 +29,8 @@ func init() {
 		Usage: "warmfit thermo --model M.json --beta-range A:B:N [--order L] [-o FILE]",
 		Long: `Thermo sums the linked-cluster expansion of the model for N inverse temperatures
 evenly spaced from A to B and writes, per site: log Z, energy, entropy (nats) and heat
-capacity, with the truncation error of energy and heat capacity (largest change over
-the last two orders) and whether both are within --tol. Each cluster is diagonalised
+capacity, with the estimated truncation error of energy and heat capacity and
+whether both are within --tol. Each cluster is diagonalised
 once for the whole grid. The model's own beta is ignored.
 
 Rows with trusted=false lie at temperatures too low for the order: the stderr summary
