@@ -5,7 +5,6 @@ import (
 	"bytes"
 	"fmt"
 	"io"
-	"strconv"
 )
 
 // ScanSnapshots streams a snapshot file (header basis,outcome,count; see
@@ -79,8 +78,8 @@ func scanSnapshotBytes(r io.Reader, name string, n int, visit func(basis, outcom
 		if msg := checkOutcome(outcome, n); msg != "" {
 			return dataErrorf(name, line, "outcome", "%s", msg)
 		}
-		count, err := strconv.ParseInt(string(countField), 10, 64)
-		if err != nil || count <= 0 {
+		count, ok := parseCount(countField)
+		if !ok {
 			return dataErrorf(name, line, "count", "%q is not a positive integer", truncate(string(countField), 40))
 		}
 		if err := visit(basis, outcome, count); err != nil {
@@ -94,6 +93,24 @@ func scanSnapshotBytes(r io.Reader, name string, n int, visit func(basis, outcom
 		return dataErrorf(name, 0, "", "no header line (want %q)", "basis,outcome,count")
 	}
 	return nil
+}
+
+// parseCount parses a positive decimal int64 without allocating.
+func parseCount(b []byte) (int64, bool) {
+	if len(b) == 0 || len(b) > 19 {
+		return 0, false
+	}
+	var v int64
+	for _, c := range b {
+		if c < '0' || c > '9' {
+			return 0, false
+		}
+		v = v*10 + int64(c-'0')
+		if v < 0 { // a 19-digit value beyond 2^63 - 1 wraps to a negative one
+			return 0, false
+		}
+	}
+	return v, v > 0
 }
 
 // checkBasis describes what is wrong with a basis string, or returns "".

@@ -114,7 +114,7 @@ const (
 )
 
 // NewSnapshotEstimator prepares estimates of terms (canonical, distinct,
-// on qubits 0..n-1) from shots on n qubits.
+// on qubits 0..n-1, at most 8 sites each) from shots on n qubits.
 func NewSnapshotEstimator(n int, terms []lattice.Term, opt CovarianceOptions) (*SnapshotEstimator, error) {
 	if n <= 0 {
 		return nil, fmt.Errorf("number of qubits %d must be positive", n)
@@ -168,12 +168,23 @@ func (e *SnapshotEstimator) Add(basis, outcome string, count int64) error {
 	if count <= 0 {
 		return fmt.Errorf("shot count %d is not positive", count)
 	}
+	if count > maxTotalShots-e.total {
+		return errTooManyShots
+	}
 	add(e, basis, outcome, count)
 	return nil
 }
 
+// maxTotalShots keeps every integer sum far from int64 overflow.
+const maxTotalShots = 1 << 62
+
+var errTooManyShots = fmt.Errorf("more than 2^62 shots in total")
+
 // addBytes is Add for input already checked by scanSnapshotBytes.
 func (e *SnapshotEstimator) addBytes(basis, outcome []byte, count int64) error {
+	if count > maxTotalShots-e.total {
+		return errTooManyShots
+	}
 	add(e, basis, outcome, count)
 	return nil
 }

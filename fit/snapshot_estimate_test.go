@@ -408,6 +408,9 @@ func TestSnapshotEstimatorErrors(t *testing.T) {
 			t.Errorf("Add(%q, %q, %d) accepted", c.b, c.o, c.n)
 		}
 	}
+	if err := e.Add("ZZ", "01", 1<<62+1); err == nil {
+		t.Error("more than 2^62 shots accepted")
+	}
 	e.Add("ZZ", "01", 1)
 	if _, err := e.Result(); err == nil || !strings.Contains(err.Error(), "Z 0 (only 1 shot)") {
 		t.Errorf("one shot: %v", err)

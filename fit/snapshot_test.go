@@ -10,7 +10,7 @@ import (
 )
 
 func TestScanSnapshotsVisits(t *testing.T) {
-	src := "\ufeffbasis,outcome,count\r\n# a comment\r\nZZX,010,2\r\n\r\n XXX , 111 , 1 ,extra\nZZX,010,3\n"
+	src := "\ufeffbasis,outcome,count\r\n# a comment\r\nZZX,010,2\r\n\r\n XXX , 111 , 1 ,extra\nZZX,010,9223372036854775807\n"
 	type shot struct {
 		b, o string
 		c    int64
@@ -23,7 +23,7 @@ func TestScanSnapshotsVisits(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	want := []shot{{"ZZX", "010", 2}, {"XXX", "111", 1}, {"ZZX", "010", 3}}
+	want := []shot{{"ZZX", "010", 2}, {"XXX", "111", 1}, {"ZZX", "010", 9223372036854775807}}
 	if fmt.Sprint(got) != fmt.Sprint(want) {
 		t.Fatalf("got %v, want %v", got, want)
 	}
@@ -57,6 +57,8 @@ func TestScanSnapshotsErrors(t *testing.T) {
 		{"count fraction", h + "ZZZ,010,1.5\n", `s.csv:2: field "count": "1.5" is not a positive integer`},
 		{"count missing", h + "ZZZ,010\n", `s.csv:2: want 3 comma-separated fields`},
 		{"count empty", h + "ZZZ,010,\n", `s.csv:2: field "count": "" is not a positive integer`},
+		{"count overflow", h + "ZZZ,010,9223372036854775808\n", `s.csv:2: field "count": "9223372036854775808" is not a positive integer`},
+		{"count sign", h + "ZZZ,010,+3\n", `s.csv:2: field "count": "+3" is not a positive integer`},
 	} {
 		t.Run(tc.name, func(t *testing.T) {
 			err := ScanSnapshots(strings.NewReader(tc.src), "s.csv", 3, func(string, string, int64) error { return nil })

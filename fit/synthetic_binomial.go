@@ -16,7 +16,10 @@ import (
 // binomial probabilities (by recursion near the mode, by Stirling's
 // series with its correction terms far from it), so the output follows
 // the binomial law exactly up to floating-point rounding. The normal
-// approximation is never used.
+// approximation is never used. (gonum's distuv.Binomial, v0.17, follows
+// Numerical Recipes, whose branch for n ≥ 25, n·p < 1 accepts with a
+// Padé approximation of log(1+x) and a tuned constant, so it is not
+// exact there; hence this implementation.)
 func binomial(rng *rand.Rand, n int64, p float64) int64 {
 	switch {
 	case n <= 0 || p <= 0:
