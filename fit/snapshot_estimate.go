@@ -48,9 +48,11 @@ import (
 // and pairs it serves); its single shots are then processed 64 at a time
 // as bit words (x_a x_b summed by popcount), so the cost per shot is
 // about one byte read per term site served, plus (pairs served)/64.
-// Bases seen rarely (random-basis schemes) are processed shot by shot
-// through a per-support index: one lookup per support and one update per
-// kept pair served.
+// Bases seen rarely (random-basis schemes) go through a per-support
+// index: one table lookup per support finds the served terms, and pair
+// sums are taken 256 shots at a time, support pair by support pair, to
+// stay in cache; the cost is then about one table lookup per kept
+// support pair per shot.
 type SnapshotEstimator struct {
 	n     int
 	terms []lattice.Term
