@@ -56,7 +56,7 @@ func TestTableRoundTrip(t *testing.T) {
 
 func TestReadTableCanonicalises(t *testing.T) {
 	// formats.md: "XZ" on [3,1] is "ZX" on [1,3].
-	src := "pauli,sites,value,stderr\nXZ,3 1,0.25,0.01\nxy , 9  4 ,-0.5,\n"
+	src := "pauli,sites,value,stderr\r\nXZ,3 1,0.25,0.01\r\nxy , 9  4 ,-0.5,\n"
 	tab, err := ReadTable(strings.NewReader(src), "c.csv")
 	if err != nil {
 		t.Fatal(err)
