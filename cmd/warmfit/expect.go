@@ -25,6 +25,7 @@ func init() {
 		vectors   int
 		seed      uint64
 		out       string
+		flags     *pflag.FlagSet
 	)
 	register(&command{
 		Name:  "expect",
@@ -38,7 +39,8 @@ connected clusters of up to --order sites; it works for any lattice size. Four e
 columns say how far each value can be trusted: step (change from the previous
 order), trunc_error (estimated truncation error, from the geometric decay of the
 changes over pairs of orders), resummed (Wynn epsilon acceleration of the partial
-sums) and trusted (trunc_error <= --tol).
+sums) and trusted (trunc_error <= --tol). The stderr column repeats trunc_error,
+the value's uncertainty, so the table can serve as fit data.
 A summary on stderr says plainly when the temperature is too low for the order.
 
 --method exact diagonalises the whole system: densely up to 12 qubits (stderr
@@ -48,6 +50,7 @@ stderr holds the statistical error of each value.`,
 warmfit expect --model m.json --order 6 -o e.csv
 warmfit expect --model m.json --method exact`,
 		Flags: func(fs *pflag.FlagSet) {
+			flags = fs
 			fs.StringVar(&modelPath, "model", "", "model file (JSON)")
 			fs.Float64Var(&beta, "beta", 0, "inverse temperature (overrides the model's beta)")
 			fs.StringVar(&method, "method", "expansion", "expansion or exact")
@@ -60,6 +63,9 @@ warmfit expect --model m.json --method exact`,
 		Run: func(env *runEnv, args []string) error {
 			if len(args) > 0 {
 				return usagef("unexpected argument %q", args[0])
+			}
+			if flags.Changed("order") && order < 1 {
+				return usagef("--order %d: must be at least 1", order)
 			}
 			m, b, err := loadModelBeta(modelPath, beta)
 			if err != nil {
@@ -156,8 +162,19 @@ func expectByExpansion(env *runEnv, m *lattice.Model, beta float64, order int, t
 			untrusted++
 		}
 		worst = math.Max(worst, c.Error)
+		// The truncation error is the value's uncertainty, so the table
+		// stays usable as fit data; an unknown error leaves stderr empty.
+		hasErr := !math.IsInf(c.Error, 0) && !math.IsNaN(c.Error)
+		stderr := 0.0
+		if hasErr {
+			stderr = c.Error
+		}
+		if math.Abs(c.Value) > 1+5*stderr+1e-9 {
+			return nil, fmt.Errorf("the expansion has broken down at beta = %s, order %d: <%s> = %.4g lies outside [-1, 1]; raise --order or use a higher temperature",
+				fmtFloat(beta), order, term.Key(), c.Value)
+		}
 		t.Rows = append(t.Rows, fit.Row{
-			Pauli: term.Pauli, Sites: term.Sites, Value: c.Value,
+			Pauli: term.Pauli, Sites: term.Sites, Value: c.Value, Stderr: stderr, HasStderr: hasErr,
 			Extra: []string{fmtDiag(c.LastStep), fmtDiag(c.Error), fmtDiag(c.Resummed), strconv.FormatBool(c.Trusted)},
 		})
 	}
@@ -197,6 +214,10 @@ func boundLine(b cluster.ThresholdBound, beta float64) string {
 
 func expectExact(env *runEnv, m *lattice.Model, beta float64, vectors int, seed uint64) (*fit.Table, error) {
 	n := m.Lattice.NumSites()
+	if n > validate.MaxTypicalityQubits {
+		return nil, fmt.Errorf("--method exact handles at most %d qubits (dense up to %d, thermal typicality beyond); this model has %d: use --method expansion",
+			validate.MaxTypicalityQubits, cluster.MaxDenseQubits, n)
+	}
 	ops := make([]cluster.PauliString, len(m.Terms))
 	for k, t := range m.Terms {
 		op, err := cluster.ParsePauli(t.Pauli, t.Sites)

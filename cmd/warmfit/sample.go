@@ -27,6 +27,7 @@ func init() {
 		generator string
 		order     int
 		out       string
+		flags     *pflag.FlagSet
 	)
 	register(&command{
 		Name:  "sample",
@@ -51,6 +52,7 @@ warmfit sample --model tfim.json --shots 20000 --seed 7 -o shots.csv
 warmfit model --lattice square:20x20 --preset xxz --disorder 0.1 --seed 3 --beta 0.3 -o big.json
 warmfit sample --model big.json --shots 100000 --generator binomial -o big-data.csv`,
 		Flags: func(fs *pflag.FlagSet) {
+			flags = fs
 			fs.StringVar(&modelPath, "model", "", "model file (JSON)")
 			fs.Float64Var(&beta, "beta", 0, "inverse temperature (overrides the model's beta)")
 			fs.Int64Var(&shots, "shots", 0, "shots per basis")
@@ -63,6 +65,9 @@ warmfit sample --model big.json --shots 100000 --generator binomial -o big-data.
 		Run: func(env *runEnv, args []string) error {
 			if len(args) > 0 {
 				return usagef("unexpected argument %q", args[0])
+			}
+			if flags.Changed("order") && order < 1 {
+				return usagef("--order %d: must be at least 1", order)
 			}
 			if shots <= 0 {
 				return usagef("--shots N is required and must be positive")

@@ -22,6 +22,7 @@ func init() {
 		order     int
 		tol       float64
 		out       string
+		flags     *pflag.FlagSet
 	)
 	register(&command{
 		Name:  "thermo",
@@ -38,6 +39,7 @@ gives the trusted range.`,
 		Example: `warmfit model --lattice square:12x12:periodic --preset heisenberg --set J=1 -o h.json
 warmfit thermo --model h.json --beta-range 0.05:1:20 --order 6`,
 		Flags: func(fs *pflag.FlagSet) {
+			flags = fs
 			fs.StringVar(&modelPath, "model", "", "model file (JSON)")
 			fs.StringVar(&betaRange, "beta-range", "", "grid A:B:N of inverse temperatures")
 			fs.IntVar(&order, "order", 0, "largest cluster size (default: by lattice dimension)")
@@ -50,6 +52,9 @@ warmfit thermo --model h.json --beta-range 0.05:1:20 --order 6`,
 			}
 			if modelPath == "" {
 				return usagef("--model is required")
+			}
+			if flags.Changed("order") && order < 1 {
+				return usagef("--order %d: must be at least 1", order)
 			}
 			betas, err := parseBetaRange(betaRange)
 			if err != nil {

@@ -1,0 +1,164 @@
+package main
+
+import (
+	"math"
+	"os"
+	"path/filepath"
+	"strconv"
+	"strings"
+	"testing"
+
+	"warmfit/fit"
+	"warmfit/lattice"
+)
+
+// writeTestModel writes a small XXZ model with fields on a 3x2 lattice.
+func writeTestModel(t *testing.T, dir string) string {
+	t.Helper()
+	path := filepath.Join(dir, "m.json")
+	code, _, stderr := runCmd("model", "--lattice", "square:3x2", "--preset", "xxz",
+		"--set", "Jxy=0.4,Jz=0.9,hz=0.3,hx=0.2", "--disorder", "0.1", "--seed", "5", "--beta", "0.5", "-o", path)
+	if code != 0 {
+		t.Fatalf("model: exit %d: %s", code, stderr)
+	}
+	return path
+}
+
+func readTable(t *testing.T, text string) *fit.Table {
+	t.Helper()
+	tab, err := fit.ReadTable(strings.NewReader(text), "stdout")
+	if err != nil {
+		t.Fatalf("%v\n%s", err, text)
+	}
+	return tab
+}
+
+// With the order equal to the number of sites the expansion is exact, so
+// `expect --method expansion` must agree with dense diagonalisation
+// (`--method exact`) to rounding (inclusion–exclusion identity; Rigol,
+// Bryant, Singh, arXiv 0706.3254).
+func TestExpectExpansionMatchesExact(t *testing.T) {
+	model := writeTestModel(t, t.TempDir())
+	code, exact, stderr := runCmd("expect", "--model", model, "--method", "exact")
+	if code != 0 {
+		t.Fatalf("exact: exit %d: %s", code, stderr)
+	}
+	code, expanded, stderr := runCmd("expect", "--model", model, "--order", "6")
+	if code != 0 {
+		t.Fatalf("expansion: exit %d: %s", code, stderr)
+	}
+	if !strings.Contains(stderr, "converged") {
+		t.Errorf("expansion verdict missing from stderr:\n%s", stderr)
+	}
+	a, b := readTable(t, exact), readTable(t, expanded)
+	if got := strings.Join(b.ExtraHeader, ","); got != "step,trunc_error,resummed,trusted" {
+		t.Errorf("extra columns %q", got)
+	}
+	if len(a.Rows) != len(b.Rows) || len(a.Rows) == 0 {
+		t.Fatalf("%d exact rows, %d expansion rows", len(a.Rows), len(b.Rows))
+	}
+	for i := range a.Rows {
+		if a.Rows[i].Key() != b.Rows[i].Key() || math.Abs(a.Rows[i].Value-b.Rows[i].Value) > 1e-10 {
+			t.Errorf("row %d: exact %s = %.12g, expansion %s = %.12g", i, a.Rows[i].Key(), a.Rows[i].Value, b.Rows[i].Key(), b.Rows[i].Value)
+		}
+	}
+}
+
+// At a temperature far too low for the order, the output must say so in
+// the file and on stderr, not only in the trusted column.
+func TestExpectWarnsWhenNotConverged(t *testing.T) {
+	model := writeTestModel(t, t.TempDir())
+	code, out, stderr := runCmd("expect", "--model", model, "--order", "3", "--beta", "1")
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, stderr)
+	}
+	if !strings.Contains(stderr, "WARNING") || !strings.Contains(out, "# WARNING") {
+		t.Errorf("no plain warning at beta = 1, order 3:\nstdout:\n%s\nstderr:\n%s", out, stderr)
+	}
+	if !strings.Contains(out, ",false\n") {
+		t.Errorf("no row marked untrusted:\n%s", out)
+	}
+}
+
+func TestExpectBadInput(t *testing.T) {
+	dir := t.TempDir()
+	model := writeTestModel(t, dir)
+	keep := filepath.Join(dir, "keep.csv")
+	if err := os.WriteFile(keep, []byte("precious\n"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	cases := []struct {
+		args []string
+		code int
+	}{
+		{[]string{"expect"}, 2},
+		{[]string{"expect", "--model", model, "--beta", "-1"}, 2},
+		{[]string{"expect", "--model", model, "--order", "0"}, 2},
+		{[]string{"expect", "--model", model, "--method", "guess"}, 2},
+		{[]string{"expect", "--model", filepath.Join(dir, "missing.json")}, 1},
+		{[]string{"expect", "--model", model, "--order", "13", "-o", keep}, 1},
+		{[]string{"thermo", "--model", model, "--beta-range", "1:0:3"}, 2},
+		{[]string{"thermo", "--model", model}, 2},
+		{[]string{"sample", "--model", model}, 2},
+		{[]string{"sample", "--model", model, "--shots", "10", "--bases", "random:x"}, 2},
+	}
+	for _, c := range cases {
+		code, _, stderr := runCmd(c.args...)
+		if code != c.code {
+			t.Errorf("%v: exit %d, want %d (%s)", c.args, code, c.code, stderr)
+		}
+		if stderr == "" {
+			t.Errorf("%v: no message on stderr", c.args)
+		}
+	}
+	if b, _ := os.ReadFile(keep); string(b) != "precious\n" {
+		t.Errorf("a failed run changed an existing output file: %q", b)
+	}
+}
+
+func TestThermoTable(t *testing.T) {
+	model := writeTestModel(t, t.TempDir())
+	code, out, stderr := runCmd("thermo", "--model", model, "--beta-range", "0.01:2:4", "--order", "4")
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, stderr)
+	}
+	lines := strings.Split(strings.TrimSpace(out), "\n")
+	if len(lines) != 6 || lines[1] != "beta,T,log_z,energy,entropy,heat_capacity,energy_error,heat_capacity_error,trusted" {
+		t.Fatalf("unexpected table:\n%s", out)
+	}
+	// High-temperature expansion for orthonormal traceless Paulis:
+	// tr H^2 / 2^N = sum_k c_k^2, so S/N = ln 2 - beta^2 sum_k c_k^2 / (2N)
+	// + O(beta^3) (closed form; shared/references.md, first-order inversion).
+	m, err := lattice.ReadModel(model)
+	if err != nil {
+		t.Fatal(err)
+	}
+	var sum2 float64
+	for _, term := range m.Terms {
+		sum2 += term.Coeff * term.Coeff
+	}
+	n := float64(m.Lattice.NumSites())
+	want := math.Ln2 - 0.01*0.01*sum2/(2*n)
+	got, err := strconv.ParseFloat(strings.Split(lines[2], ",")[4], 64)
+	if err != nil || math.Abs(got-want) > 1e-5 {
+		t.Errorf("entropy per site at beta = 0.01: %v, high-temperature series %.8f", got, want)
+	}
+	if !strings.Contains(stderr, "WARNING") {
+		t.Errorf("beta = 2 at order 4 should be flagged:\n%s", stderr)
+	}
+}
+
+func TestSampleExactSnapshots(t *testing.T) {
+	model := writeTestModel(t, t.TempDir())
+	code, out, stderr := runCmd("sample", "--model", model, "--shots", "500", "--seed", "3")
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, stderr)
+	}
+	if !strings.HasPrefix(out, "basis,outcome,count\n") {
+		t.Fatalf("not a snapshot file:\n%.200s", out)
+	}
+	_, again, _ := runCmd("sample", "--model", model, "--shots", "500", "--seed", "3")
+	if again != out {
+		t.Error("same seed, different snapshots")
+	}
+}
