@@ -20,8 +20,8 @@ type block [cgBlockWidth]float64
 // independent iteration per column (the recurrences of solveCG) sharing
 // the sparse matrix–block products. x[i][c] is entry i of solution c. Each
 // column stops when its residual falls to tol (its right-hand side has
-// norm 1).
-func solveCGUnitBlock(m *csr, diag []float64, first int, tol float64, maxIter int) ([]block, error) {
+// norm 1). It also returns the number of iterations.
+func solveCGUnitBlock(m *csr, diag []float64, first int, tol float64, maxIter int) ([]block, int, error) {
 	const w = cgBlockWidth
 	n := m.n
 	x := make([]block, n)
@@ -38,7 +38,7 @@ func solveCGUnitBlock(m *csr, diag []float64, first int, tol float64, maxIter in
 	}
 	var rz, pq, rr, alpha, beta block
 	var done [w]bool
-	left := 0
+	left, it := 0, 0
 	for c := 0; c < w; c++ {
 		if first+c < n {
 			r[first+c][c] = 1
@@ -54,7 +54,7 @@ func solveCGUnitBlock(m *csr, diag []float64, first int, tol float64, maxIter in
 		}
 	}
 	copy(p, z)
-	for it := 1; it <= maxIter && left > 0; it++ {
+	for it = 1; it <= maxIter && left > 0; it++ {
 		// q = M p for the whole block.
 		for i := 0; i < n; i++ {
 			var acc block
@@ -79,7 +79,7 @@ func solveCGUnitBlock(m *csr, diag []float64, first int, tol float64, maxIter in
 				continue
 			}
 			if !(pq[c] > 0) {
-				return nil, fmt.Errorf("column %d: %w", first+c, errNotPositive)
+				return nil, it, fmt.Errorf("column %d: %w", first+c, errNotPositive)
 			}
 			alpha[c] = rz[c] / pq[c]
 		}
@@ -127,7 +127,7 @@ func solveCGUnitBlock(m *csr, diag []float64, first int, tol float64, maxIter in
 		}
 	}
 	if left > 0 {
-		return nil, fmt.Errorf("conjugate gradients did not converge for %d columns in %d iterations", left, maxIter)
+		return nil, it, fmt.Errorf("conjugate gradients did not converge for %d columns in %d iterations", left, maxIter)
 	}
-	return x, nil
+	return x, it - 1, nil
 }

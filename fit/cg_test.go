@@ -106,7 +106,7 @@ func TestSolveCGUnitBlockIsInverse(t *testing.T) {
 	n := cgBlockWidth + 9
 	m := randomSPD(rng, n, 5, 0.3)
 	for first := 0; first < n; first += cgBlockWidth {
-		x, err := solveCGUnitBlock(m, m.diag(), first, 1e-12, 10*n)
+		x, _, err := solveCGUnitBlock(m, m.diag(), first, 1e-12, 10*n)
 		if err != nil {
 			t.Fatal(err)
 		}

@@ -358,53 +358,65 @@ func (f *fitter) autoOrder(theta0 []float64, start time.Time) (*Result, error) {
 	}
 	var history []*orderFit
 	var notes []string
-	var statErr float64 = -1
+	var failed *orderFit // the last order that did not converge
+	statErr := -1.0
 	theta := theta0
 	for L := first; L <= last; L++ {
 		of, err := f.fitOrder(L, theta)
 		if err != nil {
-			if len(history) == 0 {
+			if len(history) == 0 && failed == nil {
 				return nil, err
 			}
-			notes = append(notes, fmt.Sprintf("order %d could not be evaluated (%v); the result is from order %d", L, err, history[len(history)-1].order))
+			notes = append(notes, fmt.Sprintf("order %d could not be evaluated: %v", L, err))
 			break
 		}
-		if !of.out.converged {
-			if len(history) == 0 {
-				return f.finish(of, []*orderFit{of}, notes)
+		if of.out.converged {
+			history = append(history, of)
+			theta = of.out.state.theta
+			if f.exactOrder(L) {
+				break
 			}
-			notes = append(notes, fmt.Sprintf("the fit at order %d did not converge (%s); the result is from order %d", L, of.out.reason, history[len(history)-1].order))
-			break
-		}
-		history = append(history, of)
-		theta = of.out.state.theta
-		if f.exactOrder(L) {
-			break
-		}
-		if statErr < 0 {
-			statErr = f.statisticalScale(of)
-		}
-		tr := f.truncation(history, statErr)
-		f.opt.logf("order %d: truncation error %s against target %.3g", L, fmtMaybe(tr.Error, tr.Known), tr.Target)
-		if tr.Known && tr.OK {
-			break
+			if statErr < 0 {
+				statErr = f.statisticalScale(of)
+			}
+			tr := f.truncation(history, statErr)
+			f.opt.logf("order %d: truncation error %s against target %.3g", L, fmtMaybe(tr.Error, tr.Known), tr.Target)
+			if tr.Known && tr.OK {
+				break
+			}
+		} else {
+			// A truncated expansion can fail to be convex at one order
+			// and be fine at the next (on bipartite lattices even and odd
+			// orders alternate), so go on.
+			failed = of
+			notes = append(notes, fmt.Sprintf("the fit at order %d did not converge: %s", L, of.out.reason))
 		}
 		if L == last {
 			break
 		}
 		_, wNow := f.exp.EstimateWork(L)
 		_, wNext := f.exp.EstimateWork(L + 1)
-		predicted := time.Duration(float64(of.elapsed) * wNext / math.Max(wNow, 1))
+		evals := max(of.out.evaluations, 1)
+		perEval := float64(of.elapsed) / float64(evals)
+		predicted := time.Duration(perEval * float64(max(evals, 4)) * wNext / math.Max(wNow, 1))
 		if rest := f.opt.Budget - time.Since(start); predicted > rest {
 			notes = append(notes, fmt.Sprintf("stopped at order %d: order %d would take about %s, more than the %s left of the budget",
 				L, L+1, predicted.Round(time.Second), rest.Round(time.Second)))
 			break
 		}
 		if f.opt.MaxWork > 0 && wNext > f.opt.MaxWork {
+			notes = append(notes, fmt.Sprintf("stopped at order %d: order %d exceeds the work limit", L, L+1))
 			break
 		}
 	}
-	return f.finish(history[len(history)-1], history, notes)
+	if len(history) == 0 {
+		return f.finish(failed, []*orderFit{failed}, notes)
+	}
+	main := history[len(history)-1]
+	if failed != nil && failed.order > main.order {
+		notes = append(notes, fmt.Sprintf("the result is from order %d, the highest that converged", main.order))
+	}
+	return f.finish(main, history, notes)
 }
 
 func fmtMaybe(v float64, known bool) string {

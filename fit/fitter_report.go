@@ -13,6 +13,7 @@ type Report struct {
 	Converged     bool     `json:"converged"`
 	Reason        string   `json:"reason,omitempty"`
 	Iterations    int      `json:"iterations"`
+	AllIterations int      `json:"iterations_all_orders"`
 	Evaluations   int      `json:"evaluations"`
 	GradientSigma *float64 `json:"gradient_sigma,omitempty"` // max |gradient| / data noise
 	GradientAbs   *float64 `json:"gradient_abs,omitempty"`   // exact data: max mean residual
@@ -110,24 +111,25 @@ func finitePtr(v float64) *float64 {
 // kind and file label the input; tol is the stopping tolerance used.
 func NewReport(r *Result, mode, dataKind, dataFile string, tol float64) *Report {
 	rep := &Report{
-		Converged:    r.Converged,
-		Reason:       r.Reason,
-		Iterations:   r.Iterations,
-		Evaluations:  r.Evaluations,
-		Tolerance:    tol,
-		Order:        r.Order,
-		OrderMode:    mode,
-		Beta:         r.Beta,
-		BetaKnown:    r.BetaKnown,
-		CoeffMeaning: "lambda",
-		Terms:        len(r.Terms),
-		Parameters:   r.Params.NumParams(),
-		DataKind:     dataKind,
-		DataFile:     dataFile,
-		ExactData:    r.Exact,
-		ErrorMethod:  r.ErrorMethod,
-		Warnings:     append([]string{}, r.Warnings...),
-		Notes:        r.Notes,
+		Converged:     r.Converged,
+		Reason:        r.Reason,
+		Iterations:    r.Iterations,
+		AllIterations: r.TotalIterations,
+		Evaluations:   r.Evaluations,
+		Tolerance:     tol,
+		Order:         r.Order,
+		OrderMode:     mode,
+		Beta:          r.Beta,
+		BetaKnown:     r.BetaKnown,
+		CoeffMeaning:  "lambda",
+		Terms:         len(r.Terms),
+		Parameters:    r.Params.NumParams(),
+		DataKind:      dataKind,
+		DataFile:      dataFile,
+		ExactData:     r.Exact,
+		ErrorMethod:   r.ErrorMethod,
+		Warnings:      append([]string{}, r.Warnings...),
+		Notes:         r.Notes,
 	}
 	rep.ElapsedSeconds = math.Round(r.Elapsed.Seconds()*1000) / 1000
 	if !r.BetaKnown {

@@ -34,10 +34,13 @@ type Result struct {
 
 	// Converged reports that Newton met the stopping rule; when false,
 	// Reason says why and the other fields describe the best iterate.
-	Converged   bool
-	Reason      string
-	Iterations  int // Newton iterations at the answer's order
-	Evaluations int // expansion evaluations over all orders
+	Converged  bool
+	Reason     string
+	Iterations int // Newton iterations at the answer's order
+	// TotalIterations counts the Newton iterations over all orders
+	// fitted (lower-order refits and the automatic selection included).
+	TotalIterations int
+	Evaluations     int // expansion evaluations over all orders
 	// GradientSigma is max_q |A^T(e - <E>)|_q / sd((A^T e)_q) over
 	// parameters with noisy data; GradientAbs the largest mean residual
 	// |A^T(e - <E>)|_q / |q| over parameters with exact data.
@@ -97,9 +100,11 @@ func (f *fitter) finish(main *orderFit, history []*orderFit, notes []string) (*R
 	}
 	for _, h := range history {
 		r.Evaluations += h.out.evaluations
+		r.TotalIterations += h.out.iterations
 	}
 	if !containsFit(history, main) {
 		r.Evaluations += out.evaluations
+		r.TotalIterations += out.iterations
 	}
 	r.Notes = append(r.Notes, out.notes...)
 	if !r.BetaKnown {
@@ -109,7 +114,9 @@ func (f *fitter) finish(main *orderFit, history []*orderFit, notes []string) (*R
 	// Error bars (also for an unconverged iterate, where they describe the
 	// local curvature only).
 	if r.Converged && !f.exact {
+		t0 := time.Now()
 		se, method, err := f.paramStderr(out)
+		f.opt.logf("error bars of %d parameters (%s): %.2fs", f.params.NumParams(), method, time.Since(t0).Seconds())
 		if err != nil {
 			r.Warnings = append(r.Warnings, "error bars not available: "+err.Error())
 		} else {

@@ -340,7 +340,7 @@ func fitMarkTerms(doc []byte, flags []bool) ([]byte, bool) {
 		}
 		lines[start+k] = trimmed[:len(trimmed)-1] + `, "significant": ` + strconv.FormatBool(flag) + "}" + comma
 	}
-	if strings.TrimSpace(lines[start+len(flags)]) != "]" {
+	if end := strings.TrimSpace(lines[start+len(flags)]); end != "]" && end != "]," {
 		return doc, false
 	}
 	out := []byte(strings.Join(lines, "\n"))
@@ -391,8 +391,8 @@ func fitSummary(w io.Writer, res *fit.Result, rep *fit.Report, cmp *fit.TruthCom
 	if res.Exact {
 		grad = "mean residual " + fmtG3(res.GradientAbs) + " (exact data)"
 	}
-	p("%s at order %d (%s selection, orders %v) after %d Newton iterations, %s, %.1fs",
-		status, res.Order, rep.OrderMode, rep.Truncation.Orders, res.Iterations, grad, res.Elapsed.Seconds())
+	p("%s at order %d (%s selection, orders %v) after %d Newton iterations (%d at order %d), %s, %.1fs",
+		status, res.Order, rep.OrderMode, rep.Truncation.Orders, res.TotalIterations, res.Iterations, res.Order, grad, res.Elapsed.Seconds())
 	p("%d terms, %d fitted parameters", len(res.Terms), res.Params.NumParams())
 	if res.ThetaStderr != nil && !res.Exact {
 		p("error bars by the delta method (%s): median stderr %s", res.ErrorMethod, fmtG3(rep.Truncation.StatError))
