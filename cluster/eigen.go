@@ -139,6 +139,17 @@ func (s *Spectrum) solveReal() error {
 		a[0] = 1
 		return nil
 	}
+	if d <= smallReductionDim {
+		s.sub = grow(s.sub, d)
+		householderReduce(d, a, s.values, s.sub)
+		s.z = grow(s.z, d*d)
+		transpose(d, s.z, a)
+		if err := tridiagEigen(d, s.values, s.sub, s.z); err != nil {
+			return err
+		}
+		transpose(d, a, s.z)
+		return nil
+	}
 	var impl gonum.Implementation
 	s.sub = grow(s.sub, d)
 	s.tau = grow(s.tau, d)
