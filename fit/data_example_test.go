@@ -93,6 +93,7 @@ func ExampleNewSnapshotEstimator() {
 	// ZZ = (40+30-20-10)/100 = 0.4, stderr sqrt(0.84/99); X1 = (60-40)/100;
 	// the 100 ZZ shots serve both Z0 and ZZ: sum x_Z0 x_ZZ = 40-30-20+10 = 0,
 	// so c = (0 - 20*40/100)/99 and cov = 100 c/(200*100).
+
 	// Output:
 	// Z 0    +0.6000 ± 0.0567  (200 shots)
 	// ZZ 0 1 +0.4000 ± 0.0921  (100 shots)
