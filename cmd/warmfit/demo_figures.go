@@ -97,8 +97,8 @@ func (d *demoRun) figCoefficients() (*svgCanvas, error) {
 		if !finiteAll(t.Coeff, t.Stderr, tv) {
 			return nil, fmt.Errorf("term %s: non-finite value", t.Key())
 		}
-		lo = math.Min(lo, math.Min(tv, t.Coeff-t.Stderr))
-		hi = math.Max(hi, math.Max(tv, t.Coeff+t.Stderr))
+		lo = math.Min(lo, math.Min(tv, t.Coeff))
+		hi = math.Max(hi, math.Max(tv, t.Coeff))
 		e := t.Coeff - tv
 		elo = math.Min(elo, e-t.Stderr)
 		ehi = math.Max(ehi, e+t.Stderr)
@@ -107,10 +107,11 @@ func (d *demoRun) figCoefficients() (*svgCanvas, error) {
 	c.text(30, 30, fmt.Sprintf("Fitted against true coefficients: %dx%d array, %d terms, %d shots per basis",
 		d.sc.Width, d.sc.Height, len(fitted), d.sc.Shots), textOpt{Size: 16, Bold: true})
 
-	left := newPanel(c, 95, 80, 400, 390, lo, hi, lo, hi)
-	// Same range on both axes, so that y = x is the diagonal.
-	left.setX(math.Min(left.xmin, left.ymin), math.Max(left.xmax, left.ymax), false)
-	left.setY(left.xmin, left.xmax, false)
+	pad := 0.04 * (hi - lo)
+	left := newPanel(c, 95, 80, 400, 390, lo-pad, hi+pad, lo-pad, hi+pad)
+	// The same range and ticks on both axes, so that y = x is the
+	// diagonal.
+	left.ymin, left.ymax, left.yticks, left.ystep = left.xmin, left.xmax, left.xticks, left.xstep
 	left.title("fitted vs true")
 	left.frame("true coefficient", "fitted coefficient")
 	left.clip()
@@ -186,7 +187,7 @@ func (d *demoRun) figCoefficients() (*svgCanvas, error) {
 	c.endGroup()
 	cmp := d.array
 	c.text(95, 540, fmt.Sprintf("bars are 1 sigma; L2 error %s, Linf %s, median stderr %s; %.1f%% of the errors lie within 2 sigma of zero",
-		fmtG3(cmp.L2), fmtG3(cmp.Linf), fmtG3(cmp.MedStderr), 100*cmp.Within2), textOpt{Size: 12, Color: "#444"})
+		demoG3(cmp.L2), demoG3(cmp.Linf), demoG3(cmp.MedStderr), 100*cmp.Within2), textOpt{Size: 12, Color: "#444"})
 	return c, nil
 }
 

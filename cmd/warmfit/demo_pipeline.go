@@ -133,12 +133,15 @@ func (d *demoRun) invoke(step int, comment string, args ...string) error {
 	if err := fs.Parse(real[1:]); err != nil {
 		return fmt.Errorf("internal: warmfit %s flags: %v", c.Name, err)
 	}
+	if err := c.Run(d.env, fs.Args()); err != nil {
+		return err
+	}
 	for i, a := range args {
-		if name, ok := strings.CutPrefix(a, "@"); ok && (i == 0 || args[i-1] == "-o" || args[i-1] == "--output") {
+		if name, ok := strings.CutPrefix(a, "@"); ok && i > 0 && (args[i-1] == "-o" || args[i-1] == "--output") {
 			d.files = append(d.files, name)
 		}
 	}
-	return c.Run(d.env, fs.Args())
+	return nil
 }
 
 // record notes a command the demo did in-process through the library, so
@@ -274,7 +277,7 @@ func (d *demoRun) stepFitArray() error {
 	}
 	d.array = cmp
 	d.say("against the truth: L2 %s, Linf %s (%s); pulls mean %+.3f, rms %.3f, %.1f%% within 2 sigma (normal: 95.4%%)",
-		fmtG3(cmp.L2), fmtG3(cmp.Linf), cmp.Worst, cmp.PullMean, cmp.PullRMS, 100*cmp.Within2)
+		demoG3(cmp.L2), demoG3(cmp.Linf), cmp.Worst, cmp.PullMean, cmp.PullRMS, 100*cmp.Within2)
 	return nil
 }
 
@@ -298,6 +301,9 @@ func (d *demoRun) stepPatch() error {
 	if d.patchBases, err = fit.CoveringBases(n, pm.Terms); err != nil {
 		return err
 	}
+	x1, y1 := x0+sc.Patch-1, y0+sc.Patch-1
+	d.record(4, fmt.Sprintf("patch-truth.json holds the terms of truth.json on sites x = %d..%d, y = %d..%d, renumbered onto square:%dx%d (written by the demo)",
+		x0, x1, y0, y1, sc.Patch, sc.Patch))
 	if err := d.invoke(4, "exact Gibbs-state snapshots of the patch (dense diagonalisation)",
 		"sample", "--model", "@patch-truth.json", "--shots", strconv.FormatInt(sc.Shots, 10), "--bases", "covering",
 		"--generator", "exact", "--seed", strconv.FormatUint(sc.Seed, 10), "-o", "@patch-shots.csv"); err != nil {
@@ -316,7 +322,7 @@ func (d *demoRun) stepPatch() error {
 		return err
 	}
 	d.say("patch fit against the truth: Linf %s, pulls rms %.3f, %.1f%% within 2 sigma",
-		fmtG3(d.patch.Linf), d.patch.PullRMS, 100*d.patch.Within2)
+		demoG3(d.patch.Linf), d.patch.PullRMS, 100*d.patch.Within2)
 
 	// The expansion against dense exact diagonalisation on the patch.
 	order := d.arrayOrder()
@@ -330,7 +336,7 @@ func (d *demoRun) stepPatch() error {
 		"expect", "--model", "patch-truth.json", "--method", "exact", "-o", "patch-exact.csv")
 	d.record(4, "", "expect", "--model", "patch-truth.json", "--order", strconv.Itoa(order), "-o", "patch-expansion.csv")
 	d.say("expansion vs dense exact diagonalisation on the patch: max |difference| %s at order %d (the array's order), %s at order %d (all %d sites)",
-		fmtG3(check.MaxDev[min(order, len(check.MaxDev))-1]), order, fmtG3(check.MaxDev[len(check.MaxDev)-1]), len(check.MaxDev), n)
+		demoG3(check.MaxDev[min(order, len(check.MaxDev))-1]), order, demoG3(check.MaxDev[len(check.MaxDev)-1]), len(check.MaxDev), n)
 	return nil
 }
 
@@ -405,12 +411,12 @@ type demoTemperature struct {
 	Scan       *cluster.ThermoResult
 	// Trusted[i] for every grid point; Edge is the first untrusted beta
 	// (0 when the whole grid is trusted).
-	Trusted    []bool
-	EnergyErr  []float64
-	HeatErr    []float64
-	Edge       float64
-	LastGood   float64
-	OperatingT bool // the operating beta lies inside the trusted range
+	Trusted          []bool
+	EnergyErr        []float64
+	HeatErr          []float64
+	Edge             float64
+	LastGood         float64
+	OperatingTrusted bool // the operating beta lies inside the trusted range
 }
 
 // Step 5.
@@ -422,7 +428,7 @@ func (d *demoRun) stepTemperature() error {
 	d.say("provable sufficient bound (term-overlap degree %d, max|coeff| %.3g): beta < %.3g; operating beta %s is %.0fx beyond it",
 		t.Bound.Degree, t.Bound.MaxCoeff, t.Bound.Beta, fmtFloat(sc.Beta), sc.Beta/t.Bound.Beta)
 	d.say("measured convergence at the fit (order %d): %d of %d term expectations unconverged; truncation error %s vs target %s",
-		t.Order, t.Untrusted, t.Terms, fmtMaybePtr(t.Truncation.Error), fmtG3(t.Truncation.Target))
+		t.Order, t.Untrusted, t.Terms, fmtMaybePtr(t.Truncation.Error), demoG3(t.Truncation.Target))
 
 	betas, err := parseBetaRange(sc.thermoRange())
 	if err != nil {
@@ -462,7 +468,7 @@ func (d *demoRun) stepTemperature() error {
 			t.Edge = betas[i]
 		}
 	}
-	t.OperatingT = t.Edge == 0 || sc.Beta < t.Edge
+	t.OperatingTrusted = t.Edge == 0 || sc.Beta < t.Edge
 	d.record(5, "the thermodynamic scan of the fitted model",
 		"thermo", "--model", "fitted.json", "--beta-range", sc.thermoRange(), "--order", strconv.Itoa(t.Order), "-o", "thermo.csv")
 	if err := d.write("thermo.csv", func(w io.Writer) error {
@@ -518,7 +524,7 @@ func (d *demoRun) stepPlan() error {
 		d.record(6, "", "plan", "--model", "fitted.json", "--target", fmtFloat(eps))
 	}
 	d.say("the planner predicts a largest stderr of %s at the %d shots used; the fit reported %s",
-		fmtG3(d.planPredictedAtRun), sc.Shots, fmtG3(d.array.MaxStderr))
+		demoG3(d.planPredictedAtRun), sc.Shots, demoG3(d.array.MaxStderr))
 	return nil
 }
 
@@ -526,7 +532,7 @@ func fmtMaybePtr(v *float64) string {
 	if v == nil {
 		return "unknown"
 	}
-	return fmtG3(*v)
+	return demoG3(*v)
 }
 
 // demoComparison compares fitted coefficients with the truth.
