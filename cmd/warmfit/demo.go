@@ -76,7 +76,7 @@ fit); --quick runs a 4x4 array in a few seconds.`
 const demoExample = `warmfit demo
 warmfit demo --quick --out /tmp/first-look
 warmfit demo --size 8x8 --shots 100000 --seed 7 --out run-8x8
-warmfit demo --beta 0.4 --out too-cold     # see what the verdicts say when it is too cold`
+warmfit demo --beta 0.55 --out too-cold    # what the verdicts say when it is too cold`
 
 func runDemo(env *runEnv, args []string) error {
 	o := demoOptions

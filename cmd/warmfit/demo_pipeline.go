@@ -407,6 +407,7 @@ type demoTemperature struct {
 	Order      int
 	Untrusted  int // term expectations not converged at the fit (from the fit report)
 	Terms      int
+	Criterion  string // the fitter's convergence criterion for them
 	Truncation fit.ReportTruncation
 	Scan       *cluster.ThermoResult
 	// Trusted[i] for every grid point; Edge is the first untrusted beta
@@ -422,7 +423,8 @@ type demoTemperature struct {
 // Step 5.
 func (d *demoRun) stepTemperature() error {
 	sc := &d.sc
-	t := &demoTemperature{Order: d.fitReport.Order, Untrusted: d.fitReport.Series.Untrusted, Terms: d.fitReport.Series.Terms, Truncation: d.fitReport.Truncation}
+	series := d.fitReport.Series
+	t := &demoTemperature{Order: d.fitReport.Order, Untrusted: series.Untrusted, Terms: series.Terms, Criterion: series.Criterion, Truncation: d.fitReport.Truncation}
 	t.Bound = cluster.SufficientBeta(d.device.Terms, modelCoeffs(d.device))
 	d.temp = t
 	d.say("provable sufficient bound (term-overlap degree %d, max|coeff| %.3g): beta < %.3g; operating beta %s is %.0fx beyond it",

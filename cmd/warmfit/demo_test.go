@@ -176,6 +176,23 @@ func TestDemoUsageErrors(t *testing.T) {
 	}
 }
 
+// TestDemoOutIsFile: an output path that cannot be a directory is a
+// failure (exit 1) with a clear message, not a usage error.
+func TestDemoOutIsFile(t *testing.T) {
+	file := filepath.Join(t.TempDir(), "taken")
+	if err := os.WriteFile(file, []byte("x"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	var out, errb bytes.Buffer
+	env := &runEnv{Stdout: &out, Stderr: &errb}
+	if code := run(env, []string{"demo", "--quick", "--out", file}); code != exitFailure {
+		t.Errorf("exit %d, want %d; stderr:\n%s", code, exitFailure, errb.String())
+	}
+	if !strings.Contains(errb.String(), "output directory") {
+		t.Errorf("stderr does not name the output directory:\n%s", errb.String())
+	}
+}
+
 func TestNiceTicks(t *testing.T) {
 	// Expected ticks follow the 1-2-2.5-5 x 10^k rule for readable axes
 	// (common practice), worked out by hand.
