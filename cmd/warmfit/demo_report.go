@@ -28,6 +28,13 @@ func pullBands(n int) (mean, rms, within float64) {
 	return 3 / math.Sqrt(f), 3 / math.Sqrt(2*f), 3 * math.Sqrt(0.9545*0.0455/f)
 }
 
+// maxPullChance is the probability that the largest of n independent
+// standard-normal |pulls| is at least x: 1 - (1 - erfc(x/sqrt 2))^n.
+func maxPullChance(x float64, n int) float64 {
+	q := math.Erfc(x / math.Sqrt2)
+	return -math.Expm1(float64(n) * math.Log1p(-q))
+}
+
 // pullVerdicts judges whether pulls look like standard-normal draws.
 func pullVerdicts(what string, c *demoComparison) []demoVerdict {
 	if c == nil {
@@ -35,12 +42,17 @@ func pullVerdicts(what string, c *demoComparison) []demoVerdict {
 	}
 	bm, br, bw := pullBands(c.Terms)
 	ok := math.Abs(c.PullMean) <= bm && math.Abs(c.PullRMS-1) <= br && math.Abs(c.Within2-0.9545) <= bw
-	if ok {
-		return []demoVerdict{{true, fmt.Sprintf("%s: the error bars are honest: pulls have mean %+.3f (|mean| <= %.3f expected), rms %.3f (1 +- %.3f) and %.1f%% lie within 2 sigma (95.4%% +- %.1f%%).",
-			what, c.PullMean, bm, c.PullRMS, br, 100*c.Within2, 100*bw)}}
+	var extra []demoVerdict
+	if pmax := maxPullChance(c.MaxAbsPull, c.Terms); pmax < 1e-3 {
+		extra = append(extra, demoVerdict{false, fmt.Sprintf("%s: the largest |pull| %.2f is improbable for %d normal pulls (chance %.2g): one coefficient is off by more than its error bar allows.",
+			what, c.MaxAbsPull, c.Terms, pmax)})
 	}
-	return []demoVerdict{{false, fmt.Sprintf("%s: the pulls do not look standard normal: mean %+.3f (band +-%.3f), rms %.3f (band 1 +- %.3f), %.1f%% within 2 sigma (band 95.4%% +- %.1f%%); the error bars or the fit are off.",
-		what, c.PullMean, bm, c.PullRMS, br, 100*c.Within2, 100*bw)}}
+	if ok {
+		return append([]demoVerdict{{true, fmt.Sprintf("%s: the error bars are honest: pulls have mean %+.3f (|mean| <= %.3f expected), rms %.3f (1 +- %.3f) and %.1f%% lie within 2 sigma (95.4%% +- %.1f%%).",
+			what, c.PullMean, bm, c.PullRMS, br, 100*c.Within2, 100*bw)}}, extra...)
+	}
+	return append([]demoVerdict{{false, fmt.Sprintf("%s: the pulls do not look standard normal: mean %+.3f (band +-%.3f), rms %.3f (band 1 +- %.3f), %.1f%% within 2 sigma (band 95.4%% +- %.1f%%); the error bars or the fit are off.",
+		what, c.PullMean, bm, c.PullRMS, br, 100*c.Within2, 100*bw)}}, extra...)
 }
 
 // verdicts collects every conclusion of the run.
@@ -171,8 +183,8 @@ func (d *demoRun) reportBody(b *strings.Builder) {
 	p("    H = sum_<ij> (Jx_ij X_i X_j + Jy_ij Y_i Y_j + Jz_ij Z_i Z_j) + sum_i (hx_i X_i + hz_i Z_i),\n\n")
 	p("%d coefficients in all, designed as Jx = Jy = Jxy, Jz, hx and hz below. Fabrication spread\n", d.arrayTerms())
 	p("moves every coefficient (Jx and Jy of one bond independently) off its design value by a\n")
-	p("uniform random amount in [-%s, %s)\n", fmtFloat(sc.Disorder), fmtFloat(sc.Disorder))
-	p("(seed %d). The array is held at an effective temperature: its state is the Gibbs state\n", sc.Seed)
+	p("uniform random amount in [-%s, %s) (seed %d). The array is held at an effective\n", fmtFloat(sc.Disorder), fmtFloat(sc.Disorder), sc.Seed)
+	p("temperature: its state is the Gibbs state\n")
 	p("exp(-beta H)/Z with beta = %s in the units of the coefficients, assumed known from an\n", fmtFloat(sc.Beta))
 	p("independent calibration (without it, `warmfit fit` learns the products beta x coefficient).\n\n")
 	p("| parameter | design value | meaning |\n|---|---|---|\n")
@@ -358,7 +370,9 @@ func (d *demoRun) reportResults(b *strings.Builder) {
 	row("pull mean", func(c *demoComparison, _ *fitReportView) string { return fmt.Sprintf("%+.3f", c.PullMean) })
 	row("pull rms", func(c *demoComparison, _ *fitReportView) string { return fmt.Sprintf("%.3f", c.PullRMS) })
 	row("within 2 sigma", func(c *demoComparison, _ *fitReportView) string { return fmt.Sprintf("%.1f%%", 100*c.Within2) })
-	row("largest pull", func(c *demoComparison, _ *fitReportView) string { return fmt.Sprintf("%.2f", c.MaxAbsPull) })
+	row("largest |pull| (chance of one as large)", func(c *demoComparison, _ *fitReportView) string {
+		return fmt.Sprintf("%.2f (%.2g)", c.MaxAbsPull, maxPullChance(c.MaxAbsPull, c.Terms))
+	})
 	row("fit time", func(_ *demoComparison, r *fitReportView) string { return r.elapsed })
 	p("\n")
 

@@ -290,6 +290,18 @@ func TestPullBands(t *testing.T) {
 	}
 }
 
+func TestMaxPullChance(t *testing.T) {
+	// One normal pull: P(|z| >= 1.96) = 0.05 (two-sided 95% quantile, from
+	// memory). n pulls: 1 - (1 - q)^n, checked against the direct power.
+	if p := maxPullChance(1.959963984540054, 1); math.Abs(p-0.05) > 1e-9 {
+		t.Errorf("maxPullChance(1.96, 1) = %v, want 0.05", p)
+	}
+	q := math.Erfc(3 / math.Sqrt2)
+	if p, want := maxPullChance(3, 252), 1-math.Pow(1-q, 252); math.Abs(p-want) > 1e-12 {
+		t.Errorf("maxPullChance(3, 252) = %v, want %v", p, want)
+	}
+}
+
 func TestShellQuote(t *testing.T) {
 	for in, want := range map[string]string{
 		"square:6x6":   "square:6x6",
