@@ -19,7 +19,7 @@ var demoFigureList = []demoFigure{
 	{"fig-coefficients.svg", "fitted against true coefficients with 1-sigma error bars and the line fitted = true; right, the errors fitted - true", (*demoRun).figCoefficients},
 	{"fig-pulls.svg", "histograms of the pulls (fitted - true)/stderr for the array and the patch, with the standard normal curve they should follow", (*demoRun).figPulls},
 	{"fig-lattice.svg", "the array with bonds coloured and thickened by the fitted couplings and sites coloured by the fitted fields; last panel, the pulls per bond and site (the checked patch is outlined)", (*demoRun).figLattice},
-	{"fig-thermo.svg", "energy and heat capacity per site of the fitted model against beta at the fit's order and one below, the range where the series converge shaded, the operating beta marked", (*demoRun).figThermo},
+	{"fig-thermo.svg", "energy and heat capacity per site of the fitted model against beta at the fit's order and the two below, the range where the series converge shaded, the operating beta marked", (*demoRun).figThermo},
 }
 
 // writeFigures draws every figure into the output directory.
