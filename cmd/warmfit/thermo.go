@@ -159,8 +159,8 @@ func writeThermo(w io.Writer, env *runEnv, r *cluster.ThermoResult, tol float64)
 	case lastTrusted < 0:
 		fmt.Fprintf(env.Stderr, "WARNING: NOT converged at any temperature of the grid (tolerance %.2g per site): every row is untrusted; raise --order or go to higher temperature\n", tol)
 	default:
-		fmt.Fprintf(env.Stderr, "WARNING: converged only for beta < %g (T > %g); rows beyond are marked trusted=false and should not be used\n",
-			r.Betas[firstUntrusted], 1/r.Betas[firstUntrusted])
+		fmt.Fprintf(env.Stderr, "WARNING: converged only for beta < %s (T > %s); rows beyond are marked trusted=false and should not be used\n",
+			fmtFloat(r.Betas[firstUntrusted]), fmtFloat(1/r.Betas[firstUntrusted]))
 	}
 	return bw.Flush()
 }
