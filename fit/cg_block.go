@@ -16,12 +16,23 @@ type block [cgBlockWidth]float64
 
 // solveCGUnitBlock solves M x_c = u_{first+c} for the unit vectors of
 // columns first..first+cgBlockWidth-1 (columns past the matrix size get a
-// zero right-hand side) by Jacobi-preconditioned conjugate gradients, one
-// independent iteration per column (the recurrences of solveCG) sharing
-// the sparse matrix–block products. x[i][c] is entry i of solution c. Each
-// column stops when its residual falls to tol (its right-hand side has
-// norm 1). It also returns the number of iterations.
+// zero right-hand side); see solveCGUnitColumns.
 func solveCGUnitBlock(m *csr, diag []float64, first int, tol float64, maxIter int) ([]block, int, error) {
+	cols := make([]int, 0, cgBlockWidth)
+	for c := first; c < first+cgBlockWidth && c < m.n; c++ {
+		cols = append(cols, c)
+	}
+	return solveCGUnitColumns(m, diag, cols, tol, maxIter)
+}
+
+// solveCGUnitColumns solves M x_c = u_{cols[c]} for up to cgBlockWidth
+// unit vectors by Jacobi-preconditioned conjugate gradients, one
+// independent iteration per column (the recurrences of solveCG) sharing
+// the sparse matrix–block products. x[i][c] is entry i of solution c;
+// unused columns of the block are zero. Each column stops when its
+// residual falls to tol (its right-hand side has norm 1). It also returns
+// the number of iterations.
+func solveCGUnitColumns(m *csr, diag []float64, cols []int, tol float64, maxIter int) ([]block, int, error) {
 	const w = cgBlockWidth
 	n := m.n
 	x := make([]block, n)
@@ -39,9 +50,12 @@ func solveCGUnitBlock(m *csr, diag []float64, first int, tol float64, maxIter in
 	var rz, pq, rr, alpha, beta block
 	var done [w]bool
 	left, it := 0, 0
+	if len(cols) > w {
+		panic(fmt.Sprintf("fit: %d columns for a block of %d", len(cols), w))
+	}
 	for c := 0; c < w; c++ {
-		if first+c < n {
-			r[first+c][c] = 1
+		if c < len(cols) {
+			r[cols[c]][c] = 1
 			left++
 		} else {
 			done[c] = true
@@ -79,7 +93,7 @@ func solveCGUnitBlock(m *csr, diag []float64, first int, tol float64, maxIter in
 				continue
 			}
 			if !(pq[c] > 0) {
-				return nil, it, fmt.Errorf("column %d: %w", first+c, errNotPositive)
+				return nil, it, fmt.Errorf("column %d: %w", cols[c], errNotPositive)
 			}
 			alpha[c] = rz[c] / pq[c]
 		}

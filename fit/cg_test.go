@@ -124,7 +124,8 @@ func TestSolveCGUnitBlockIsInverse(t *testing.T) {
 }
 
 // Both ways of computing diag(P^-1 B P^-1) must agree with the dense
-// product formed by gonum.
+// product formed by gonum (the local solves here end with the whole
+// matrix: a random sparse graph has a small diameter).
 func TestParamVariancesDenseAndCG(t *testing.T) {
 	rng := rand.New(rand.NewPCG(9, 10))
 	n := 70
@@ -153,7 +154,7 @@ func TestParamVariancesDenseAndCG(t *testing.T) {
 		t.Fatal(err)
 	}
 	for _, workers := range []int{1, 2} {
-		cg, err := cgVariances(p, b, workers)
+		cg, err := localVariances(p, b, workers, nil)
 		if err != nil {
 			t.Fatal(err)
 		}
@@ -164,4 +165,62 @@ func TestParamVariancesDenseAndCG(t *testing.T) {
 			}
 		}
 	}
+}
+
+// On a banded matrix (a chain of couplings) the local solves stop long
+// before the whole system, and the variances must still agree with the
+// dense inverse to the promised accuracy; the radius they needed is
+// logged.
+func TestLocalVariancesBanded(t *testing.T) {
+	rng := rand.New(rand.NewPCG(13, 14))
+	const n = 600
+	dense := make([]float64, n*n)
+	for i := 0; i < n; i++ {
+		dense[i*n+i] = 2 + rng.Float64()
+		for d := 1; d <= 3 && i+d < n; d++ {
+			v := 0.3 * rng.NormFloat64()
+			dense[i*n+i+d], dense[(i+d)*n+i] = v, v
+		}
+	}
+	p := denseToCSR(n, dense)
+	bd := make([]float64, n*n)
+	for i := 0; i < n; i++ {
+		bd[i*n+i] = 0.5 + rng.Float64()
+	}
+	b := denseToCSR(n, bd)
+	want, err := denseVariances(p, b)
+	if err != nil {
+		t.Fatal(err)
+	}
+	w := newLocalWork(n)
+	vars := make([]float64, n)
+	lmin, err := smallestEigenvalue(p)
+	if err != nil {
+		t.Fatal(err)
+	}
+	h, err := w.solve(p, b, blockOf(identity(n), 0), 1, lmin/2, vars)
+	if err != nil {
+		t.Fatal(err)
+	}
+	t.Logf("radius %d hops for the first block (%d parameters), lambda_min ~ %.3g", h, n, lmin)
+	if h*3+cgBlockWidth >= n/2 {
+		t.Errorf("radius %d: the local solve was not local", h)
+	}
+	got, err := localVariances(p, b, 2, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for q := range got {
+		if math.Abs(got[q]-want[q]) > 1e-4*want[q] {
+			t.Fatalf("var[%d]: local %v, dense %v", q, got[q], want[q])
+		}
+	}
+}
+
+func identity(n int) []int {
+	out := make([]int, n)
+	for i := range out {
+		out[i] = i
+	}
+	return out
 }

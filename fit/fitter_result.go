@@ -1,6 +1,7 @@
 package fit
 
 import (
+	"errors"
 	"fmt"
 	"math"
 	"time"
@@ -116,6 +117,14 @@ func (f *fitter) finish(main *orderFit, history []*orderFit, notes []string) (*R
 	if r.Converged && !f.exact {
 		t0 := time.Now()
 		se, method, err := f.paramStderr(out)
+		if errors.Is(err, errCovarianceNotPSD) {
+			if _, diagonal := f.cov.(diagMatrix); !diagonal {
+				// An estimated covariance with dropped pairs need not be
+				// positive semidefinite; the variances alone always are.
+				r.Warnings = append(r.Warnings, "the estimated data covariance is not positive semidefinite here; error bars use the variances only (correlations between estimates ignored)")
+				se, method, err = f.paramStderrWith(out, diagMatrix(f.varDiag))
+			}
+		}
 		f.opt.logf("error bars of %d parameters (%s): %.2fs", f.params.NumParams(), method, time.Since(t0).Seconds())
 		if err != nil {
 			r.Warnings = append(r.Warnings, "error bars not available: "+err.Error())

@@ -136,8 +136,13 @@ func median(v []float64) float64 {
 
 // paramStderr returns the parameters' standard errors at a solution.
 func (f *fitter) paramStderr(out *newtonOutcome) ([]float64, string, error) {
-	b := f.params.project(f.cov, 1)
-	vars, method, err := paramVariances(out.hessian, b, f.opt.DenseLimit, f.opt.Workers)
+	return f.paramStderrWith(out, f.cov)
+}
+
+// paramStderrWith is paramStderr for a given data covariance.
+func (f *fitter) paramStderrWith(out *newtonOutcome, cov termMatrix) ([]float64, string, error) {
+	b := f.params.project(cov, 1)
+	vars, method, err := paramVariances(out.hessian, b, f.opt.DenseLimit, f.opt.Workers, f.params.spatialOrder(f.prob.Terms))
 	if err != nil {
 		return nil, method, err
 	}

@@ -155,3 +155,20 @@ func (p *Params) project(m termMatrix, s float64) *csr {
 	}
 	return out
 }
+
+// spatialOrder lists the parameters by the smallest site of their terms
+// (ties by number), so that consecutive parameters act close together on
+// lattices numbered row by row.
+func (p *Params) spatialOrder(terms []lattice.Term) []int {
+	anchor := make([]int, p.NumParams())
+	order := make([]int, p.NumParams())
+	for q, m := range p.Members {
+		order[q] = q
+		anchor[q] = terms[m[0]].Sites[0]
+		for _, k := range m {
+			anchor[q] = min(anchor[q], terms[k].Sites[0])
+		}
+	}
+	sort.SliceStable(order, func(a, b int) bool { return anchor[order[a]] < anchor[order[b]] })
+	return order
+}

@@ -35,7 +35,7 @@ type PlanOptions struct {
 	// largest term support.
 	Order   int
 	Workers int
-	// DenseLimit as in Options; default 2500.
+	// DenseLimit as in Options; default 1500.
 	DenseLimit int
 }
 
@@ -105,7 +105,7 @@ func PlanShots(lat *lattice.Lattice, terms []lattice.Term, beta float64, opt Pla
 		return nil, fmt.Errorf("plan: confidence %v must lie in (0, 1)", opt.Confidence)
 	}
 	if opt.DenseLimit <= 0 {
-		opt.DenseLimit = 2500
+		opt.DenseLimit = 1500
 	}
 	n := lat.NumSites()
 	minL := 0
@@ -171,7 +171,7 @@ func PlanShots(lat *lattice.Lattice, terms []lattice.Term, beta float64, opt Pla
 		d[k] = (1 - e*e) / float64(p.Coverage[k])
 	}
 	hess := params.project(responseMatrix{res.Response}, -1)
-	vars, _, err := paramVariances(hess, params.project(diagMatrix(d), 1), opt.DenseLimit, opt.Workers)
+	vars, _, err := paramVariances(hess, params.project(diagMatrix(d), 1), opt.DenseLimit, opt.Workers, params.spatialOrder(terms))
 	if err != nil {
 		return nil, fmt.Errorf("plan: %v", err)
 	}
