@@ -77,7 +77,12 @@ type ReportSeries struct {
 	Terms     int    `json:"terms"`
 	Untrusted int    `json:"untrusted"`
 	Criterion string `json:"criterion"`
+	// UntrustedTerms names the first maxListed untrusted terms.
+	UntrustedTerms []string `json:"untrusted_terms,omitempty"`
 }
+
+// maxListed bounds the terms named in a report list.
+const maxListed = 20
 
 // ReportSignificance summarises structure learning.
 type ReportSignificance struct {
@@ -98,6 +103,9 @@ type ReportTruth struct {
 	RMSZ        *float64 `json:"rms_z,omitempty"`
 	Missing     int      `json:"missing_terms"`
 	MissingLinf float64  `json:"missing_linf,omitempty"`
+	// Z holds the per-term z-scores (fit - truth)/stderr in the order of
+	// the terms; null where the stderr is zero.
+	Z []*float64 `json:"z_scores,omitempty"`
 }
 
 func finitePtr(v float64) *float64 {
@@ -168,6 +176,9 @@ func NewReport(r *Result, mode, dataKind, dataFile string, tol float64) *Report 
 	}
 	rep.Threshold = ReportThreshold{Degree: r.Bound.Degree, MaxCoeff: r.Bound.MaxCoeff, Beta: finitePtr(r.Bound.Beta), Satisfied: r.Beta < r.Bound.Beta}
 	rep.Series = ReportSeries{Terms: len(r.Terms), Untrusted: len(r.Untrusted), Criterion: "change of <E_k> over the last two orders at most 0.1 x its stderr"}
+	for _, k := range r.Untrusted[:min(len(r.Untrusted), maxListed)] {
+		rep.Series.UntrustedTerms = append(rep.Series.UntrustedTerms, r.Terms[k].Key())
+	}
 	if r.Exact {
 		rep.Series.Criterion = "change of <E_k> over the last two orders at most 1e-6 (exact data)"
 	}
@@ -192,6 +203,10 @@ func (rep *Report) SetTruth(c *TruthComparison, r *Result, file string) {
 	if c.RMSZ > 0 {
 		t.MaxAbsZ = finitePtr(c.MaxAbsZ)
 		t.RMSZ = finitePtr(c.RMSZ)
+		t.Z = make([]*float64, len(c.Z))
+		for k, z := range c.Z {
+			t.Z[k] = finitePtr(z)
+		}
 	}
 	rep.Truth = t
 }

@@ -112,8 +112,7 @@ func (f *fitter) finish(main *orderFit, history []*orderFit, notes []string) (*R
 		r.Notes = append(r.Notes, "beta not given: the coefficients are the products beta*lambda, reported with beta = 1")
 	}
 
-	// Error bars (also for an unconverged iterate, where they describe the
-	// local curvature only).
+	// Error bars, only at a solution: the delta method linearises there.
 	if r.Converged && !f.exact {
 		t0 := time.Now()
 		se, method, err := f.paramStderr(out)
