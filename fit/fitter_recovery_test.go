@@ -94,10 +94,11 @@ func maxError(res *fit.Result, truth []lattice.Term) float64 {
 // return the true coefficients to the Newton tolerance; below, the error
 // must not exceed the truncation error the fit itself reports.
 //
-// Measured (this machine, seeds as below): 2x3 square at order 6 and
-// chain of 8 at order 8 recover to ~1e-12; 3x3 square at order 6, beta
-// max|lambda| = 0.3: max error 1.1e-3 (XXZ+fields) and 1.2e-3 (with Y
-// fields), reported truncation errors 7.3e-3 and 7.6e-3.
+// Measured (seeds as below): 2x3 square at order 6 recovers to 4.8e-10
+// (real and complex H), chain of 8 at order 8 to 1.7e-11; 3x3 square at
+// order 6, beta max|lambda| = 0.3: max error 8.9e-4 (XXZ+fields) and
+// 1.1e-3 (with Y fields), against reported truncation errors 2.2e-2 and
+// 2.8e-2 (the larger of the changes 4->5 and 5->6: conservative).
 func TestFitRecoversExactData(t *testing.T) {
 	xxz := map[string]float64{"Jxy": 1, "Jz": 0.7, "hz": 0.5, "hx": 0.3}
 	tests := []struct {

@@ -87,10 +87,12 @@ that does not converge exits with status 1, says why, leaves -o untouched and
 writes its last iterate to OUT.unconverged.json.
 
 Error bars: delta method, Cov(theta) = M Cov(e) M^T with M = (A^T R A)^{-1} A^T,
-R = d<E>/d lambda at the solution. With --order auto (the default), the order rises
-until the change of the coefficients between orders is at most 0.1 x their median
-statistical error, or --budget runs out; the report says plainly when the
-truncation error is larger. The report also gives the sufficient-temperature bound,
+R = d<E>/d lambda at the solution; the lower orders L-1 and L-2 are refitted from
+the solution to measure the truncation error (the larger of the last two changes
+of any coefficient: partial sums can stall for one order). With --order auto (the
+default), the order rises until that error is at most 0.1 x the median statistical
+error, or --budget runs out (the next order's cost is predicted before it is
+started); the report says plainly when the truncation error is larger. The report also gives the sufficient-temperature bound,
 the number of term expectations whose expansion has not converged, chi^2/dof for
 tied groups, and, with --truth, z-scores and L2/Linf errors.
 
@@ -108,7 +110,7 @@ WARNING lines whenever the result could mislead.`
 
 const fitExample = `# simulate, then learn back a disordered XXZ model on a 4x4 lattice
 warmfit model --lattice square:4x4 --preset xxz --set Jxy=0.4,Jz=0.3,hz=0.2 --disorder 0.1 --beta 0.5 -o truth.json
-warmfit model --lattice square:4x4 --preset xxz --beta 0.5 -o template.json
+warmfit model --lattice square:4x4 --preset xxz --set Jxy=1,Jz=1,hz=1 --beta 0.5 -o template.json
 warmfit expect --model truth.json --order 8 -o e.csv
 warmfit fit --model template.json --data e.csv --truth truth.json -o fitted.json
 
