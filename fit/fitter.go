@@ -44,7 +44,8 @@ type Options struct {
 	MaxOrder int
 	// Budget is the wall time the automatic selection may spend; default
 	// 60 s. The cost of the next order is predicted from the measured
-	// time of the last one and cluster.Expansion.EstimateWork.
+	// time of the last one and cluster.Expansion.EstimateWork, and an
+	// order past the first is abandoned when the budget runs out.
 	Budget time.Duration
 	// Tol stops Newton when every gradient component is below Tol times
 	// its data noise: max_q |A^T(e - <E>)|_q / sd((A^T e)_q) <= Tol.
@@ -295,6 +296,12 @@ type orderFit struct {
 }
 
 func (f *fitter) fitOrder(L int, theta0 []float64) (*orderFit, error) {
+	return f.fitOrderUntil(L, theta0, time.Time{})
+}
+
+// fitOrderUntil is fitOrder that gives up once deadline (if not zero) has
+// passed.
+func (f *fitter) fitOrderUntil(L int, theta0 []float64, deadline time.Time) (*orderFit, error) {
 	if L < f.minL {
 		return nil, fmt.Errorf("order %d cannot hold terms on %d sites: the order must be at least %d", L, f.minL, f.minL)
 	}
@@ -305,7 +312,7 @@ func (f *fitter) fitOrder(L int, theta0 []float64) (*orderFit, error) {
 	np := &newtonProblem{
 		params: f.params, beta: f.beta, values: f.values, sigma: f.sigma,
 		tol: f.opt.Tol, absTol: f.opt.AbsTol, maxIter: f.opt.MaxIter, maxStep: f.opt.MaxStep,
-		eval: f.evaluator(L),
+		eval: f.evaluator(L), deadline: deadline,
 	}
 	if f.opt.Log != nil {
 		np.logf = func(format string, args ...any) { f.opt.logf("order %d, "+format, append([]any{L}, args...)...) }
@@ -367,7 +374,13 @@ func (f *fitter) autoOrder(theta0 []float64, start time.Time) (*Result, error) {
 	statErr := -1.0
 	theta := theta0
 	for L := first; L <= last; L++ {
-		of, err := f.fitOrder(L, theta)
+		// The first order always gets to finish: without it there is no
+		// answer at all.
+		var deadline time.Time
+		if len(history) > 0 {
+			deadline = start.Add(f.opt.Budget)
+		}
+		of, err := f.fitOrderUntil(L, theta, deadline)
 		if err != nil {
 			if len(history) == 0 && failed == nil {
 				return nil, err

@@ -4,6 +4,7 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"time"
 
 	"warmfit/cluster"
 )
@@ -36,6 +37,8 @@ type newtonProblem struct {
 	maxStep float64 // largest beta |Delta lambda| per Newton step
 	eval    evaluator
 	logf    func(format string, args ...any)
+	// deadline, when not zero, stops the minimisation once passed.
+	deadline time.Time
 }
 
 // newtonState is an iterate with its evaluation.
@@ -66,6 +69,10 @@ type newtonOutcome struct {
 // it, so the iteration is diverging (typically because the data lie
 // outside the expectations any Gibbs state of the template can produce).
 const maxCoefficient = 30
+
+// maxBacktracks bounds the halvings of one line search (a step of
+// 2^-20 of the Newton step makes no progress worth an evaluation).
+const maxBacktracks = 20
 
 // maxNonConvex is how many iterates with a Hessian that is not positive
 // definite a minimisation tolerates before giving up.
@@ -165,6 +172,10 @@ func (np *newtonProblem) minimize(theta0 []float64) (*newtonOutcome, error) {
 			out.converged = true
 			return out, nil
 		}
+		if !np.deadline.IsZero() && time.Now().After(np.deadline) {
+			out.reason = fmt.Sprintf("time budget exhausted after %d Newton iterations (gradient %s)", out.iterations, np.gradientText(out))
+			return out, nil
+		}
 		if out.iterations >= np.maxIter {
 			out.reason = fmt.Sprintf("no convergence in %d Newton iterations (gradient %s)", np.maxIter, np.gradientText(out))
 			return out, nil
@@ -240,7 +251,7 @@ func (np *newtonProblem) lineSearch(cur *newtonState, d []float64, scale, slope 
 	theta := make([]float64, len(cur.theta))
 	t := scale
 	var lastErr error
-	for try := 0; try < 40; try++ {
+	for try := 0; try < maxBacktracks; try++ {
 		for i := range theta {
 			theta[i] = cur.theta[i] + t*d[i]
 		}

@@ -53,7 +53,7 @@ func init() {
 			fs.Float64Var(&o.beta, "beta", 0, "inverse temperature (overrides the template's; without either, beta*lambda is fitted)")
 			fs.StringVar(&o.order, "order", "auto", "expansion order L (largest cluster), or auto")
 			fs.IntVar(&o.maxOrder, "max-order", 0, "highest order --order auto may use (default: sites, at most 12)")
-			fs.DurationVar(&o.budget, "budget", 60*time.Second, "wall time --order auto may spend")
+			fs.DurationVar(&o.budget, "budget", 60*time.Second, "wall time --order auto may spend (a higher order is not started, or is abandoned, past it)")
 			fs.StringVar(&o.truth, "truth", "", "true model `FILE`: report z-scores and L2/Linf errors against it")
 			fs.StringVar(&o.format, "format", "json", "output format: json (fitted model with report) or csv")
 			fs.StringVarP(&o.out, "output", "o", "", "write the fit to `FILE` instead of stdout")
