@@ -77,6 +77,10 @@ func writeTerm(b *bytes.Buffer, t Term) {
 		b.WriteString(`, "stderr": `)
 		b.Write(appendNumber(num[:0], t.Stderr))
 	}
+	if t.Significant != nil {
+		b.WriteString(`, "significant": `)
+		b.WriteString(strconv.FormatBool(*t.Significant))
+	}
 	b.WriteByte('}')
 }
 

@@ -19,6 +19,10 @@ type Term struct {
 	// (or HasStderr false) when it is not known.
 	Stderr    float64
 	HasStderr bool
+	// Significant, when not nil, records whether a fitted coefficient is
+	// significantly non-zero (structure learning); written as the optional
+	// term field "significant".
+	Significant *bool
 }
 
 // NewTerm returns the canonical term with the given letters on the given

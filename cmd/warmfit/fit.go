@@ -1,7 +1,6 @@
 package main
 
 import (
-	"bytes"
 	"encoding/csv"
 	"fmt"
 	"io"
@@ -298,58 +297,15 @@ func fitWriteModel(w io.Writer, tmpl *lattice.Model, res *fit.Result, rep *fit.R
 	if err != nil {
 		return fmt.Errorf("fit report: %v", err)
 	}
-	m := &lattice.Model{Lattice: tmpl.Lattice, Beta: res.Beta, Terms: res.Terms, Units: tmpl.Units, Fit: raw}
-	var buf bytes.Buffer
-	if err := lattice.WriteModel(&buf, m); err != nil {
-		return err
-	}
-	out := buf.Bytes()
+	terms := append([]lattice.Term(nil), res.Terms...)
 	if res.Significance != nil {
-		flags := make([]bool, len(res.Terms))
-		for k := range flags {
-			flags[k] = res.Significance.Significant[res.Params.Of[k]]
-		}
-		if marked, ok := fitMarkTerms(out, flags); ok {
-			out = marked
+		for k := range terms {
+			flag := res.Significance.Significant[res.Params.Of[k]]
+			terms[k].Significant = &flag
 		}
 	}
-	_, err = w.Write(out)
-	return err
-}
-
-// fitMarkTerms adds "significant": true/false to every term object of a
-// model written by lattice.WriteModel (one term per line between
-// `"terms": [` and `]`). It reports false, leaving the document alone,
-// if the layout is not the one expected or the result does not read back.
-func fitMarkTerms(doc []byte, flags []bool) ([]byte, bool) {
-	lines := strings.Split(string(doc), "\n")
-	start := -1
-	for i, l := range lines {
-		if strings.TrimSpace(l) == `"terms": [` {
-			start = i + 1
-			break
-		}
-	}
-	if start < 0 || start+len(flags) > len(lines) {
-		return doc, false
-	}
-	for k, flag := range flags {
-		l := lines[start+k]
-		trimmed := strings.TrimSuffix(l, ",")
-		comma := l[len(trimmed):]
-		if !strings.HasSuffix(trimmed, "}") || !strings.Contains(trimmed, `"pauli"`) {
-			return doc, false
-		}
-		lines[start+k] = trimmed[:len(trimmed)-1] + `, "significant": ` + strconv.FormatBool(flag) + "}" + comma
-	}
-	if end := strings.TrimSpace(lines[start+len(flags)]); end != "]" && end != "]," {
-		return doc, false
-	}
-	out := []byte(strings.Join(lines, "\n"))
-	if _, err := lattice.ParseModel(bytes.NewReader(out), "fit output"); err != nil {
-		return doc, false
-	}
-	return out, true
+	m := &lattice.Model{Lattice: tmpl.Lattice, Beta: res.Beta, Terms: terms, Units: tmpl.Units, Fit: raw}
+	return lattice.WriteModel(w, m)
 }
 
 // fitWriteCSV writes pauli,sites,coeff,stderr,significant with the
