@@ -34,7 +34,9 @@ const tailSafety = 2
 // pattern it is a whole large step that the pair ratio already discounts.)
 // With r >= 1
 // the series is not converging: the error is |D1| and the value is
-// untrusted. With fewer than four orders past first there is not enough
+// untrusted. When the two single steps inside the last pair largely
+// cancel (|D1| below half the larger of them) the series oscillates and
+// the error is that larger single step. With fewer than four orders past first there is not enough
 // evidence; the error is then the largest of the last two single steps
 // (infinite when there is only one order).
 func Converge(series []float64, first int, tol float64) Convergence {
@@ -60,10 +62,16 @@ func Converge(series []float64, first int, tol float64) Convergence {
 	case n >= 5:
 		d1 := math.Abs(s[n-1] - s[n-3])
 		d2 := math.Abs(s[n-3] - s[n-5])
-		if d1 < d2 {
+		last2 := math.Max(math.Abs(c.LastStep), math.Abs(s[n-2]-s[n-3]))
+		switch {
+		case d1 < last2/2:
+			// The two steps of the last pair largely cancel: the series
+			// oscillates, and a small pair step is luck, not convergence.
+			c.Error = last2
+		case d1 < d2:
 			r := d1 / d2
 			c.Error = tailSafety * d1 * r / (1 - r)
-		} else {
+		default:
 			c.Error = math.Max(d1, math.Abs(c.LastStep))
 		}
 	case n >= 3:

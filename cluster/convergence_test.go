@@ -44,6 +44,18 @@ func TestConvergeDiverging(t *testing.T) {
 	if c := cluster.Converge(series, 1, 0.5); c.Trusted {
 		t.Errorf("oscillating series trusted: %+v", c)
 	}
+	// Steps +.3 -.2 +.1 -.09 +.08 -.079: the last pair nearly cancels,
+	// but the single steps are still 0.08 (common practice: an
+	// alternating series is no better known than its last step).
+	var osc []float64
+	sum := 0.0
+	for _, d := range []float64{0.3, -0.2, 0.1, -0.09, 0.08, -0.079} {
+		sum += d
+		osc = append(osc, sum)
+	}
+	if c := cluster.Converge(osc, 1, 1e-3); c.Trusted || c.Error < 0.05 {
+		t.Errorf("irregular alternating series: error %.3g, trusted %v", c.Error, c.Trusted)
+	}
 	if c := cluster.Converge([]float64{0.5}, 1, 1); c.Trusted {
 		t.Errorf("a single order proves nothing, got %+v", c)
 	}

@@ -5,6 +5,7 @@ import (
 	"io"
 	"math"
 	"strconv"
+	"strings"
 	"time"
 
 	"github.com/spf13/pflag"
@@ -18,7 +19,7 @@ import (
 func init() {
 	var (
 		modelPath string
-		beta      float64
+		beta      betaFlag
 		method    string
 		order     int
 		tol       float64
@@ -52,7 +53,7 @@ warmfit expect --model m.json --method exact`,
 		Flags: func(fs *pflag.FlagSet) {
 			flags = fs
 			fs.StringVar(&modelPath, "model", "", "model file (JSON)")
-			fs.Float64Var(&beta, "beta", 0, "inverse temperature (overrides the model's beta)")
+			addBetaFlag(fs, &beta)
 			fs.StringVar(&method, "method", "expansion", "expansion or exact")
 			fs.IntVar(&order, "order", 0, "largest cluster size for the expansion (default: by lattice dimension)")
 			fs.Float64Var(&tol, "tol", 1e-3, "truncation error at which an expansion value counts as trusted")
@@ -64,8 +65,11 @@ warmfit expect --model m.json --method exact`,
 			if len(args) > 0 {
 				return usagef("unexpected argument %q", args[0])
 			}
-			if flags.Changed("order") && order < 1 {
-				return usagef("--order %d: must be at least 1", order)
+			if err := checkOrderFlag(flags, order); err != nil {
+				return err
+			}
+			if !(tol > 0) || math.IsInf(tol, 0) {
+				return usagef("--tol %v: must be a positive number", tol)
 			}
 			m, b, err := loadModelBeta(modelPath, beta)
 			if err != nil {
@@ -90,25 +94,31 @@ warmfit expect --model m.json --method exact`,
 
 // loadModelBeta reads a model and settles the inverse temperature: the
 // flag wins over the file; one of them must give a positive value.
-func loadModelBeta(path string, betaFlag float64) (*lattice.Model, float64, error) {
+func loadModelBeta(path string, beta betaFlag) (*lattice.Model, float64, error) {
 	if path == "" {
 		return nil, 0, usagef("--model is required")
-	}
-	if betaFlag < 0 || math.IsNaN(betaFlag) || math.IsInf(betaFlag, 0) {
-		return nil, 0, usagef("--beta %v: must be a positive finite number", betaFlag)
 	}
 	m, err := lattice.ReadModel(path)
 	if err != nil {
 		return nil, 0, err
 	}
 	b := m.Beta
-	if betaFlag > 0 {
-		b = betaFlag
+	if beta.set {
+		b = beta.value
 	}
 	if b <= 0 {
 		return nil, 0, usagef("%s gives no beta: add --beta B", path)
 	}
 	return m, b, nil
+}
+
+// checkOrderFlag refuses an explicit --order outside 1..MaxDenseQubits
+// (clusters are diagonalised densely).
+func checkOrderFlag(fs *pflag.FlagSet, order int) error {
+	if fs.Changed("order") && (order < 1 || order > cluster.MaxDenseQubits) {
+		return usagef("--order %d: must be from 1 to %d (clusters are diagonalised exactly)", order, cluster.MaxDenseQubits)
+	}
+	return nil
 }
 
 // defaultOrder is the expansion order used when none is asked for: the
@@ -155,34 +165,37 @@ func expectByExpansion(env *runEnv, m *lattice.Model, beta float64, order int, t
 	}
 	conv := res.TermConvergence(m.Terms, tol)
 	t := &fit.Table{ExtraHeader: []string{"step", "trunc_error", "resummed", "trusted"}}
-	untrusted, worst := 0, 0.0
+	untrusted, unknown, worst := 0, 0, 0.0
 	for k, term := range m.Terms {
 		c := conv[k]
 		if !c.Trusted {
 			untrusted++
 		}
-		worst = math.Max(worst, c.Error)
 		// The truncation error is the value's uncertainty, so the table
-		// stays usable as fit data; an unknown error leaves stderr empty.
-		hasErr := !math.IsInf(c.Error, 0) && !math.IsNaN(c.Error)
-		stderr := 0.0
-		if hasErr {
-			stderr = c.Error
+		// stays usable as fit data. An empty stderr would claim an exact
+		// value; where too few orders leave the error unknown, stderr is
+		// 1, the size of the whole range a Pauli expectation can take.
+		stderr := c.Error
+		if math.IsInf(c.Error, 0) || math.IsNaN(c.Error) {
+			unknown++
+			stderr = unknownTruncation
+		} else {
+			worst = math.Max(worst, c.Error)
 		}
 		if math.Abs(c.Value) > 1+5*stderr+1e-9 {
 			return nil, fmt.Errorf("the expansion has broken down at beta = %s, order %d: <%s> = %.4g lies outside [-1, 1]; raise --order or use a higher temperature",
 				fmtFloat(beta), order, term.Key(), c.Value)
 		}
 		t.Rows = append(t.Rows, fit.Row{
-			Pauli: term.Pauli, Sites: term.Sites, Value: c.Value, Stderr: stderr, HasStderr: hasErr,
+			Pauli: term.Pauli, Sites: term.Sites, Value: c.Value, Stderr: stderr, HasStderr: true,
 			Extra: []string{fmtDiag(c.LastStep), fmtDiag(c.Error), fmtDiag(c.Resummed), strconv.FormatBool(c.Trusted)},
 		})
 	}
 	bound := cluster.SufficientBeta(m.Terms, coeffs)
-	verdict := expansionVerdict(untrusted, len(m.Terms), worst, tol, beta, order)
+	verdict := expansionVerdict(untrusted-unknown, unknown, len(m.Terms), worst, tol, beta, order)
 	t.Comments = []string{
 		fmt.Sprintf("warmfit expect: linked-cluster expansion, order %d, beta %s, %d clusters", order, fmtFloat(beta), sum64(res.Clusters)),
-		verdict,
+		verdict, // WriteTable splits multi-line comments
 		boundLine(bound, beta),
 	}
 	fmt.Fprintf(env.Stderr, "expansion: %s, %d sites, %d terms, order %d, %d clusters, %.2fs\n",
@@ -192,13 +205,27 @@ func expectByExpansion(env *runEnv, m *lattice.Model, beta float64, order int, t
 	return t, nil
 }
 
-// expansionVerdict is the plain-language trust statement for a table.
-func expansionVerdict(untrusted, total int, worst, tol, beta float64, order int) string {
-	if untrusted == 0 {
+// unknownTruncation is the stderr written for a value whose truncation
+// error cannot be estimated (too few orders past its smallest cluster).
+const unknownTruncation = 1
+
+// expansionVerdict is the plain-language trust statement for a table:
+// unconverged values (the temperature is too low for the order) and
+// values the order is too low to judge at all are told apart.
+func expansionVerdict(unconverged, unknown, total int, worst, tol, beta float64, order int) string {
+	var parts []string
+	if unconverged > 0 {
+		parts = append(parts, fmt.Sprintf("WARNING: %d of %d values have NOT converged (estimated truncation error up to %.2g > %.2g): beta = %s is too low a temperature for order %d; raise --order or do not trust the rows marked trusted=false",
+			unconverged, total, worst, tol, fmtFloat(beta), order))
+	}
+	if unknown > 0 {
+		parts = append(parts, fmt.Sprintf("WARNING: %d of %d values cannot be judged: order %d leaves fewer than two orders past their smallest cluster; their stderr is set to %d (unknown); raise --order",
+			unknown, total, order, unknownTruncation))
+	}
+	if len(parts) == 0 {
 		return fmt.Sprintf("converged: estimated truncation error at most %.2g for every value (tolerance %.2g)", worst, tol)
 	}
-	return fmt.Sprintf("WARNING: %d of %d values have NOT converged (estimated truncation error up to %.2g > %.2g): beta = %s is too low a temperature for order %d; raise --order or do not trust the rows marked trusted=false",
-		untrusted, total, worst, tol, fmtFloat(beta), order)
+	return strings.Join(parts, "\n")
 }
 
 func boundLine(b cluster.ThresholdBound, beta float64) string {

@@ -96,7 +96,8 @@ func TestExpectBadInput(t *testing.T) {
 		{[]string{"expect", "--model", model, "--order", "0"}, 2},
 		{[]string{"expect", "--model", model, "--method", "guess"}, 2},
 		{[]string{"expect", "--model", filepath.Join(dir, "missing.json")}, 1},
-		{[]string{"expect", "--model", model, "--order", "13", "-o", keep}, 1},
+		{[]string{"expect", "--model", model, "--order", "13", "-o", keep}, 2},
+		{[]string{"expect", "--model", model, "--beta", "0", "-o", keep}, 2},
 		{[]string{"thermo", "--model", model, "--beta-range", "1:0:3"}, 2},
 		{[]string{"thermo", "--model", model}, 2},
 		{[]string{"sample", "--model", model}, 2},
@@ -116,6 +117,24 @@ func TestExpectBadInput(t *testing.T) {
 	}
 }
 
+// With too few orders to judge a value, the table must not claim it exact
+// (an empty stderr means exact in formats.md).
+func TestExpectUnknownTruncationIsNotExact(t *testing.T) {
+	model := writeTestModel(t, t.TempDir())
+	code, out, stderr := runCmd("expect", "--model", model, "--order", "2")
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, stderr)
+	}
+	if !strings.Contains(stderr, "cannot be judged") {
+		t.Errorf("no warning about unjudged values:\n%s", stderr)
+	}
+	for _, r := range readTable(t, out).Rows {
+		if !r.HasStderr {
+			t.Errorf("%s written as exact", r.Key())
+		}
+	}
+}
+
 func TestThermoTable(t *testing.T) {
 	model := writeTestModel(t, t.TempDir())
 	code, out, stderr := runCmd("thermo", "--model", model, "--beta-range", "0.01:2:4", "--order", "4")
@@ -128,7 +147,7 @@ func TestThermoTable(t *testing.T) {
 	}
 	// High-temperature expansion for orthonormal traceless Paulis:
 	// tr H^2 / 2^N = sum_k c_k^2, so S/N = ln 2 - beta^2 sum_k c_k^2 / (2N)
-	// + O(beta^3) (closed form; shared/references.md, first-order inversion).
+	// + O(beta^3) (derived closed form: second cumulant of H at beta = 0).
 	m, err := lattice.ReadModel(model)
 	if err != nil {
 		t.Fatal(err)

@@ -22,7 +22,7 @@ import (
 var fitOptions struct {
 	model    string
 	data     string
-	beta     float64
+	beta     betaFlag
 	order    string
 	budget   time.Duration
 	truth    string
@@ -49,7 +49,7 @@ func init() {
 			o := &fitOptions
 			fs.StringVar(&o.model, "model", "", "template model `FILE`: lattice, terms, groups (coefficients are ignored unless --start template)")
 			fs.StringVar(&o.data, "data", "", "expectation table or snapshot `FILE` (told apart by the header)")
-			fs.Float64Var(&o.beta, "beta", 0, "inverse temperature (overrides the template's; without either, beta*lambda is fitted)")
+			fs.Var(&o.beta, "beta", "inverse temperature (overrides the template's; without either, beta*lambda is fitted)")
 			fs.StringVar(&o.order, "order", "auto", "expansion order L (largest cluster), or auto")
 			fs.IntVar(&o.maxOrder, "max-order", 0, "highest order --order auto may use (default: sites, at most 12)")
 			fs.DurationVar(&o.budget, "budget", 60*time.Second, "wall time --order auto may spend (a higher order is not started, or is abandoned, past it)")
@@ -130,9 +130,6 @@ func runFit(env *runEnv, args []string) error {
 	if o.format != "json" && o.format != "csv" {
 		return usagef("--format %q: want json or csv", o.format)
 	}
-	if o.beta < 0 || math.IsNaN(o.beta) || math.IsInf(o.beta, 0) {
-		return usagef("--beta %v: must be a positive finite number", o.beta)
-	}
 	order := 0
 	if o.order != "auto" {
 		n, err := strconv.Atoi(o.order)
@@ -157,8 +154,8 @@ func runFit(env *runEnv, args []string) error {
 	}
 	beta := tmpl.Beta
 	betaSource := "from " + o.model
-	if o.beta > 0 {
-		beta, betaSource = o.beta, "from --beta"
+	if o.beta.set {
+		beta, betaSource = o.beta.value, "from --beta"
 	}
 	est, kind, err := fitLoadData(o.data, o.model, tmpl, o.covDist)
 	if err != nil {

@@ -19,7 +19,7 @@ import (
 // every invocation.
 var planOptions struct {
 	model      string
-	beta       float64
+	beta       betaFlag
 	target     float64
 	norm       string
 	bases      string
@@ -35,13 +35,13 @@ func init() {
 	register(&command{
 		Name:    "plan",
 		Short:   "how many shots learn a model's coefficients to a target precision",
-		Usage:   "warmfit plan --model M.json --beta B --target EPS [--norm linf|l2] [--bases covering|random:N] [--format text|csv|json] [-o FILE]",
+		Usage:   "warmfit plan --model M.json [--beta B] --target EPS [--norm linf|l2] [--bases covering|random:N] [--format text|csv|json] [-o FILE]",
 		Long:    planLong,
 		Example: planExample,
 		Flags: func(fs *pflag.FlagSet) {
 			o := &planOptions
 			fs.StringVar(&o.model, "model", "", "model `FILE` whose coefficients are to be learned (a best guess)")
-			fs.Float64Var(&o.beta, "beta", 0, "inverse temperature (overrides the model's)")
+			addBetaFlag(fs, &o.beta)
 			fs.Float64Var(&o.target, "target", 0, "target error eps of the coefficients")
 			fs.StringVar(&o.norm, "norm", fit.NormLinf, "linf: every coefficient within eps at 95% (Bonferroni); l2: expected squared L2 error <= eps^2")
 			fs.StringVar(&o.bases, "bases", "covering", "measurement scheme: covering (few bases serving every term) or random:N")

@@ -4,6 +4,7 @@ import (
 	"bufio"
 	"fmt"
 	"io"
+	"math"
 	"math/rand/v2"
 	"strconv"
 	"strings"
@@ -20,7 +21,7 @@ import (
 func init() {
 	var (
 		modelPath string
-		beta      float64
+		beta      betaFlag
 		shots     int64
 		bases     string
 		seed      uint64
@@ -32,7 +33,7 @@ func init() {
 	register(&command{
 		Name:  "sample",
 		Short: "synthetic measurement data from a model's Gibbs state",
-		Usage: "warmfit sample --model M.json [--beta B] --shots N [--bases covering|random:K] [--seed S] [-o FILE]",
+		Usage: "warmfit sample --model M.json [--beta B] --shots N [--bases covering|random:K] [--generator exact|binomial|auto] [--order L] [--seed S] [-o FILE]",
 		Long: `Sample simulates measuring the Gibbs state of a model in product bases, N shots per
 basis, for testing a fit or planning an experiment.
 
@@ -54,7 +55,7 @@ warmfit sample --model big.json --shots 100000 --generator binomial -o big-data.
 		Flags: func(fs *pflag.FlagSet) {
 			flags = fs
 			fs.StringVar(&modelPath, "model", "", "model file (JSON)")
-			fs.Float64Var(&beta, "beta", 0, "inverse temperature (overrides the model's beta)")
+			addBetaFlag(fs, &beta)
 			fs.Int64Var(&shots, "shots", 0, "shots per basis")
 			fs.StringVar(&bases, "bases", "covering", "bases scheme: covering or random:K")
 			fs.Uint64Var(&seed, "seed", 1, "random seed")
@@ -66,8 +67,8 @@ warmfit sample --model big.json --shots 100000 --generator binomial -o big-data.
 			if len(args) > 0 {
 				return usagef("unexpected argument %q", args[0])
 			}
-			if flags.Changed("order") && order < 1 {
-				return usagef("--order %d: must be at least 1", order)
+			if err := checkOrderFlag(flags, order); err != nil {
+				return err
 			}
 			if shots <= 0 {
 				return usagef("--shots N is required and must be positive")
@@ -175,7 +176,16 @@ func sampleBinomial(env *runEnv, m *lattice.Model, beta float64, bases []string,
 		if !conv[k].Trusted {
 			untrusted++
 		}
-		// Truncation can push an expectation a hair past +-1.
+		// Truncation can push an expectation past +-1 by about its error;
+		// only that much is clipped, anything more is a broken expansion.
+		slack := 1e-9
+		if e := conv[k].Error; !math.IsInf(e, 0) && !math.IsNaN(e) {
+			slack += 5 * e
+		}
+		if math.Abs(expect[k]) > 1+slack {
+			return fmt.Errorf("the expansion has broken down at beta = %s, order %d: <%s> = %.4g lies outside [-1, 1]; no data generated. Use a higher temperature or --order",
+				fmtFloat(beta), order, m.Terms[k].Key(), expect[k])
+		}
 		expect[k] = max(-1, min(1, expect[k]))
 	}
 	t, err := fit.SyntheticTable(m.Terms, expect, bases, shots, seed)

@@ -53,8 +53,11 @@ warmfit thermo --model h.json --beta-range 0.05:1:20 --order 6`,
 			if modelPath == "" {
 				return usagef("--model is required")
 			}
-			if flags.Changed("order") && order < 1 {
-				return usagef("--order %d: must be at least 1", order)
+			if err := checkOrderFlag(flags, order); err != nil {
+				return err
+			}
+			if !(tol > 0) || math.IsInf(tol, 0) {
+				return usagef("--tol %v: must be a positive number", tol)
 			}
 			betas, err := parseBetaRange(betaRange)
 			if err != nil {
