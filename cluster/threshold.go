@@ -15,8 +15,8 @@ type ThresholdBound struct {
 	Degree int
 	// MaxCoeff is max_k |lambda_k|.
 	MaxCoeff float64
-	// Beta is the bound: the expansion provably converges for
-	// beta < Beta.
+	// Beta is the bound: the criterion guarantees convergence for
+	// beta < Beta, with the caveat on its constant given at SufficientBeta.
 	Beta float64
 }
 

@@ -1,6 +1,8 @@
 package fit_test
 
 import (
+	"time"
+
 	"math"
 	"math/rand/v2"
 	"slices"
@@ -224,7 +226,7 @@ func TestFitAutoOrder(t *testing.T) {
 	lat, terms := randomModel(t, "square:3x3", "xxz", map[string]float64{"Jxy": 1, "Jz": 0.7, "hz": 0.5, "hx": 0.4}, 0, 12)
 	beta := scaleToBeta(terms, 0.15)
 	_, vals := exactData(t, lat.NumSites(), terms, beta)
-	res, err := fit.Fit(&fit.Problem{Lattice: lat, Terms: template(terms), Data: gaussianData(vals, 1e-3, 6), Beta: beta}, fit.Options{})
+	res, err := fit.Fit(&fit.Problem{Lattice: lat, Terms: template(terms), Data: gaussianData(vals, 1e-3, 6), Beta: beta}, fit.Options{Budget: time.Hour})
 	if err != nil || !res.Converged {
 		t.Fatalf("%v %+v", err, res)
 	}

@@ -204,6 +204,16 @@ func PlanShots(lat *lattice.Lattice, terms []lattice.Term, beta float64, opt Pla
 	p.Notes = append(p.Notes,
 		"diagonal approximation: covariances between estimates that share shots are ignored",
 		fmt.Sprintf("response and expectations from the order-%d expansion at the model", L))
+	// A plan resting on an unconverged series is a guess; say so.
+	untrusted := 0
+	for _, c := range res.TermConvergence(terms, 1e-3) {
+		if !c.Trusted {
+			untrusted++
+		}
+	}
+	if untrusted > 0 {
+		p.Notes = append(p.Notes, fmt.Sprintf("WARNING: the order-%d expansion has not converged for %d of %d term expectations at this beta: the plan is only indicative; raise the order or check the temperature", L, untrusted, len(terms)))
+	}
 	if opt.Norm == NormLinf {
 		p.Notes = append(p.Notes, fmt.Sprintf("linf: Bonferroni union bound over %d parameters at %g confidence, z = %.4g", p.Params, opt.Confidence, p.Z))
 	} else {

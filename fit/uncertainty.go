@@ -23,7 +23,7 @@ import (
 // positive semidefinite B (both in parameter space), and a word saying how
 // it was computed. Up to denseLimit parameters it factorises P densely
 // (Cholesky); beyond, it solves P x = u_q by conjugate gradients for every
-// unit vector u_q on a neighbourhood of q large enough for a proven
+// unit vector u_q on a neighbourhood of q large enough for an estimated
 // relative accuracy of 1e-5 (localVariances), blocks of parameters in
 // parallel, each task writing its own slots.
 //

@@ -57,8 +57,9 @@ func localVariances(p, b *csr, workers int, order []int) ([]float64, error) {
 	if err != nil {
 		return nil, err
 	}
-	// Lanczos approaches lambda_min from above; halve it for a safe
-	// lower bound.
+	// Lanczos approaches lambda_min from above; halving it is a heuristic
+	// margin, not a proof, so the accuracy of the local solves is an
+	// estimate (stated as such in the report's method word).
 	lbound := lmin / 2
 	vars := make([]float64, n)
 

@@ -60,7 +60,7 @@ The steps (each printed to stderr with its timing):
      L2 and Linf errors, pulls (fit - truth)/stderr;
   4. a 3x3 patch of the same device where exact methods apply: exact Gibbs-state
      snapshots, a fit, and the expansion against dense exact diagonalisation;
-  5. the temperature verdict: the provable sufficient bound, the measured
+  5. the temperature verdict: the sufficient-condition bound, the measured
      convergence of the series, and a scan of energy and heat capacity of the
      fitted model over beta showing where the expansion stops being trusted;
   6. the shots per basis needed for Linf errors 0.05, 0.02 and 0.01.

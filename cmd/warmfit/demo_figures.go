@@ -562,7 +562,7 @@ func (d *demoRun) figThermo() (*svgCanvas, error) {
 		}
 		c.endGroup()
 		if b := t.Bound.Beta; b > p.xmin && b < p.xmax {
-			c.text(p.X(b)+4, p.y+p.h-8, "provable bound", textOpt{Size: 10.5, Color: "#666", Rotate: -90})
+			c.text(p.X(b)+4, p.y+p.h-8, "sufficient bound", textOpt{Size: 10.5, Color: "#666", Rotate: -90})
 		}
 		c.text(xo+5, p.y+16, fmt.Sprintf("operating beta = %s", fmtFloat(d.sc.Beta)), textOpt{Size: 12, Color: "#c0392b"})
 		if qi == 0 {
@@ -576,10 +576,10 @@ func (d *demoRun) figThermo() (*svgCanvas, error) {
 			p.legendAvoiding(allX, allY, entries)
 		}
 	}
-	note := fmt.Sprintf("energy and heat capacity converge up to beta = %s (first failure at %s); the provable sufficient bound is beta < %.2g",
+	note := fmt.Sprintf("energy and heat capacity converge up to beta = %s (first failure at %s); the sufficient-condition bound is beta < %.2g",
 		fmtFloat(t.LastGood), fmtFloat(t.Edge), t.Bound.Beta)
 	if t.Edge == 0 {
-		note = fmt.Sprintf("energy and heat capacity converge over the whole scan; the provable sufficient bound is beta < %.2g", t.Bound.Beta)
+		note = fmt.Sprintf("energy and heat capacity converge over the whole scan; the sufficient-condition bound is beta < %.2g", t.Bound.Beta)
 	}
 	c.text(100, 700, note, textOpt{Size: 12, Color: "#444"})
 	return c, nil

@@ -427,7 +427,7 @@ func (d *demoRun) stepTemperature() error {
 	t := &demoTemperature{Order: d.fitReport.Order, Untrusted: series.Untrusted, Terms: series.Terms, Criterion: series.Criterion, Truncation: d.fitReport.Truncation}
 	t.Bound = cluster.SufficientBeta(d.device.Terms, modelCoeffs(d.device))
 	d.temp = t
-	d.say("provable sufficient bound (term-overlap degree %d, max|coeff| %.3g): beta < %.3g; operating beta %s is %.0fx beyond it",
+	d.say("sufficient-condition bound (term-overlap degree %d, max|coeff| %.3g): beta < %.3g; operating beta %s is %.0fx beyond it",
 		t.Bound.Degree, t.Bound.MaxCoeff, t.Bound.Beta, fmtFloat(sc.Beta), sc.Beta/t.Bound.Beta)
 	d.say("measured convergence at the fit (order %d): %d of %d term expectations unconverged; truncation error %s vs target %s",
 		t.Order, t.Untrusted, t.Terms, fmtMaybePtr(t.Truncation.Error), demoG3(t.Truncation.Target))

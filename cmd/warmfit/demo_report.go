@@ -107,7 +107,7 @@ func (d *demoRun) verdicts() []demoVerdict {
 			v = append(v, demoVerdict{false, fmt.Sprintf("Temperature: the thermodynamic series stop converging at beta %s, below the operating beta %s: the device is too cold for order %d.",
 				fmtFloat(t.Edge), fmtFloat(d.sc.Beta), t.Order)})
 		}
-		v = append(v, demoVerdict{true, fmt.Sprintf("Temperature: the provable sufficient condition beta < %.3g is not met (%.0fx beyond); it is a worst-case bound, so trust rests on the measured convergence above.",
+		v = append(v, demoVerdict{true, fmt.Sprintf("Temperature: the sufficient condition beta < %.3g is not met (%.0fx beyond); it is a worst-case bound, so trust rests on the measured convergence above.",
 			t.Bound.Beta, d.sc.Beta/t.Bound.Beta)})
 	}
 	return v
@@ -410,7 +410,7 @@ func (d *demoRun) reportResults(b *strings.Builder) {
 	if t := d.temp; t != nil {
 		p("### Temperature\n\n")
 		p("| check | value |\n|---|---|\n")
-		p("| provable sufficient bound (term-overlap degree %d) | beta < %.3g |\n", t.Bound.Degree, t.Bound.Beta)
+		p("| sufficient-condition bound (term-overlap degree %d) | beta < %.3g |\n", t.Bound.Degree, t.Bound.Beta)
 		p("| operating beta | %s (%.0fx the bound) |\n", fmtFloat(sc.Beta), sc.Beta/t.Bound.Beta)
 		p("| unconverged term expectations at the fit (order %d) | %d of %d |\n", t.Order, t.Untrusted, t.Terms)
 		p("| truncation error of the coefficients (orders %s) | %s (target %s) |\n", intsJoin(t.Truncation.Orders), fmtMaybePtr(t.Truncation.Error), demoG3(t.Truncation.Target))
@@ -508,7 +508,7 @@ func (d *demoRun) printSummary(w io.Writer) {
 		if t.Edge > 0 {
 			edge = "series trusted up to beta " + fmtFloat(t.LastGood)
 		}
-		p("  temperature  %d of %d expectations unconverged at order %d; %s; provable bound beta < %.2g",
+		p("  temperature  %d of %d expectations unconverged at order %d; %s; sufficient bound beta < %.2g",
 			t.Untrusted, t.Terms, t.Order, edge, t.Bound.Beta)
 	}
 	if len(d.plans) > 0 {

@@ -13,6 +13,7 @@ import (
 
 	"github.com/spf13/pflag"
 
+	"warmfit/cluster"
 	"warmfit/fit"
 	"warmfit/lattice"
 )
@@ -133,8 +134,8 @@ func runFit(env *runEnv, args []string) error {
 	order := 0
 	if o.order != "auto" {
 		n, err := strconv.Atoi(o.order)
-		if err != nil || n < 1 {
-			return usagef("--order %q: want a positive integer or auto", o.order)
+		if err != nil || n < 1 || n > cluster.MaxDenseQubits {
+			return usagef("--order %q: want auto or an integer from 1 to %d (clusters are diagonalised exactly)", o.order, cluster.MaxDenseQubits)
 		}
 		order = n
 	}
@@ -277,14 +278,24 @@ func fitLoadData(path, tmplPath string, tmpl *lattice.Model, covDist int) (*fit.
 }
 
 // fitUnconvergedPath names the file for the last iterate of a fit that
-// did not converge: beside -o, never over it.
+// did not converge: beside -o (or in the current directory when the
+// output is stdout or a device), never over -o and never over an existing
+// file: a numbered name is taken when the plain one exists.
 func fitUnconvergedPath(out string) string {
-	if out == "" || out == "-" {
-		return "warmfit-fit.unconverged.json"
+	dir, base := "", "warmfit-fit"
+	if out != "" && out != "-" {
+		if fi, err := os.Stat(out); err != nil || fi.Mode().IsRegular() {
+			dir, base = filepath.Split(out)
+			base = strings.TrimSuffix(base, filepath.Ext(base))
+		}
 	}
-	dir, base := filepath.Split(out)
-	base = strings.TrimSuffix(base, filepath.Ext(base))
-	return filepath.Join(dir, base+".unconverged.json")
+	path := filepath.Join(dir, base+".unconverged.json")
+	for i := 2; ; i++ {
+		if _, err := os.Lstat(path); os.IsNotExist(err) {
+			return path
+		}
+		path = filepath.Join(dir, fmt.Sprintf("%s.unconverged-%d.json", base, i))
+	}
 }
 
 // fitWriteModel writes the fitted model with per-term stderr and the fit

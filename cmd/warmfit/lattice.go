@@ -111,6 +111,14 @@ func runLattice(env *runEnv, args []string) error {
 		fmt.Fprintf(env.Stderr, "warmfit lattice: warning: %s has %d disconnected components; no cluster joins two of them\n",
 			o.lattice, len(comps))
 	}
+	// Refusals come before any file is written.
+	if o.clusters > 0 && o.maxClusters > 0 {
+		// Counting runs at some 10^7-10^8 clusters per second per core.
+		if est, _ := l.EstimateClusters(o.clusters); est > o.maxClusters {
+			return fmt.Errorf("%s has about %.3g connected clusters of up to %d sites, more than --max-clusters %d; lower --clusters or raise --max-clusters",
+				l.Spec, float64(est), o.clusters, o.maxClusters)
+		}
+	}
 	if o.svg != "" {
 		if err := writeFileAtomic(o.svg, l.WriteSVG); err != nil {
 			return err
@@ -118,13 +126,6 @@ func runLattice(env *runEnv, args []string) error {
 	}
 	switch {
 	case o.clusters > 0:
-		if o.maxClusters > 0 {
-			// Counting runs at some 10^7-10^8 clusters per second per core.
-			if est, _ := l.EstimateClusters(o.clusters); est > o.maxClusters {
-				return fmt.Errorf("%s has about %.3g connected clusters of up to %d sites, more than --max-clusters %d; lower --clusters or raise --max-clusters",
-					l.Spec, float64(est), o.clusters, o.maxClusters)
-			}
-		}
 		counts := l.CountClusters(o.clusters)
 		return writeOutput(env, o.out, func(w io.Writer) error { return writeClusterCSV(w, counts) })
 	case o.format == "json":

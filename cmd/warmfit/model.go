@@ -391,10 +391,3 @@ func (f *modelIntFlag) Set(s string) error {
 }
 
 func (f *modelIntFlag) Type() string { return "int" }
-
-func modelPlural(n int) string {
-	if n == 1 {
-		return ""
-	}
-	return "s"
-}
