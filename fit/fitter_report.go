@@ -175,12 +175,12 @@ func NewReport(r *Result, mode, dataKind, dataFile string, tol float64) *Report 
 		}
 	}
 	rep.Threshold = ReportThreshold{Degree: r.Bound.Degree, MaxCoeff: r.Bound.MaxCoeff, Beta: finitePtr(r.Bound.Beta), Satisfied: r.Beta < r.Bound.Beta}
-	rep.Series = ReportSeries{Terms: len(r.Terms), Untrusted: len(r.Untrusted), Criterion: "change of <E_k> over the last two orders at most 0.1 x its stderr"}
+	rep.Series = ReportSeries{Terms: len(r.Terms), Untrusted: len(r.Untrusted), Criterion: "estimated truncation error of <E_k> (cluster.Converge) at most 0.1 x its stderr"}
 	for _, k := range r.Untrusted[:min(len(r.Untrusted), maxListed)] {
 		rep.Series.UntrustedTerms = append(rep.Series.UntrustedTerms, r.Terms[k].Key())
 	}
 	if r.Exact {
-		rep.Series.Criterion = "change of <E_k> over the last two orders at most 1e-6 (exact data)"
+		rep.Series.Criterion = "estimated truncation error of <E_k> (cluster.Converge) at most 1e-6 (exact data)"
 	}
 	if s := r.Significance; s != nil {
 		rep.Significance = &ReportSignificance{

@@ -230,7 +230,7 @@ func (f *fitter) addWarnings(r *Result) {
 		if f.exact {
 			crit = fmt.Sprintf("%g, the tolerance for exact data", exactSeriesTol)
 		}
-		r.Warnings = append(r.Warnings, fmt.Sprintf("%d of %d term expectations have not converged in the expansion at order %d (change over the last two orders above %s)", n, len(r.Terms), r.Order, crit))
+		r.Warnings = append(r.Warnings, fmt.Sprintf("%d of %d term expectations have not converged in the expansion at order %d (estimated truncation error above %s)", n, len(r.Terms), r.Order, crit))
 		if r.Beta > r.Bound.Beta {
 			r.Warnings = append(r.Warnings, fmt.Sprintf("beta %.4g is above the sufficient convergence bound %.4g and the series did not converge: the fitted coefficients may be unreliable", r.Beta, r.Bound.Beta))
 		}
