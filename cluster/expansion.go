@@ -424,16 +424,7 @@ func (e *Expansion) loadCluster(w *clusterWork, sites []int, coeffs []float64) {
 					inside = false
 					break
 				}
-				bit := uint64(1) << uint(q)
-				switch t.Pauli[i] {
-				case 'X':
-					op.X |= bit
-				case 'Y':
-					op.X |= bit
-					op.Z |= bit
-				case 'Z':
-					op.Z |= bit
-				}
+				op.setLetter(uint64(1)<<uint(q), t.Pauli[i]) // letters checked in NewExpansion
 			}
 			if !inside {
 				continue

@@ -35,19 +35,28 @@ func ParsePauli(letters string, qubits []int) (PauliString, error) {
 		if (p.X|p.Z)&bit != 0 {
 			return PauliString{}, fmt.Errorf("qubit %d repeated in pauli %q", q, letters)
 		}
-		switch letters[i] {
-		case 'X':
-			p.X |= bit
-		case 'Y':
-			p.X |= bit
-			p.Z |= bit
-		case 'Z':
-			p.Z |= bit
-		default:
+		if !p.setLetter(bit, letters[i]) {
 			return PauliString{}, fmt.Errorf("unknown Pauli letter %q in %q (want X, Y or Z)", letters[i], letters)
 		}
 	}
 	return p, nil
+}
+
+// setLetter puts letter c (X, Y or Z) on the qubit with mask bit and
+// reports whether c was a Pauli letter.
+func (p *PauliString) setLetter(bit uint64, c byte) bool {
+	switch c {
+	case 'X':
+		p.X |= bit
+	case 'Y':
+		p.X |= bit
+		p.Z |= bit
+	case 'Z':
+		p.Z |= bit
+	default:
+		return false
+	}
+	return true
 }
 
 // Support returns the mask of qubits on which p acts non-trivially.
