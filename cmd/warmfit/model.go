@@ -22,7 +22,7 @@ var modelOptions struct {
 	set      []string
 	disorder float64
 	seed     uint64
-	beta     modelFloatFlag
+	beta     betaFlag
 	shells   modelIntFlag
 	tie      bool
 	units    string
@@ -40,7 +40,7 @@ func init() {
 		Example: modelExample,
 		Flags: func(fs *pflag.FlagSet) {
 			o := &modelOptions
-			o.beta, o.shells = modelFloatFlag{}, modelIntFlag{}
+			o.beta, o.shells = betaFlag{}, modelIntFlag{}
 			fs.StringVar(&o.lattice, "lattice", "", "lattice specification (square:4x4, chain:12:periodic, ...) or JSON file")
 			fs.StringVar(&o.preset, "preset", "", "model family: "+strings.Join(lattice.PresetNames(), ", "))
 			fs.StringSliceVar(&o.set, "set", nil, "coefficients, NAME=VALUE[,NAME=VALUE...] (repeatable)")
@@ -129,9 +129,6 @@ func runModel(env *runEnv, args []string) error {
 	if o.disorder > 0 && o.tie {
 		return usagef("--tie and --disorder do not go together: disordered coefficients are not uniform")
 	}
-	if o.beta.set && (!(o.beta.v > 0) || math.IsInf(o.beta.v, 0)) {
-		return usagef("--beta %v: want a finite number > 0", o.beta.v)
-	}
 	if o.shells.set && o.shells.v != 1 && o.shells.v != 2 {
 		return usagef("--shells %d: want 1 or 2", o.shells.v)
 	}
@@ -151,7 +148,7 @@ func runModel(env *runEnv, args []string) error {
 	}
 	m := &lattice.Model{Lattice: l, Terms: terms, Units: o.units}
 	if o.beta.set {
-		m.Beta = o.beta.v
+		m.Beta = o.beta.value
 	}
 	return writeOutput(env, o.out, func(w io.Writer) error { return lattice.WriteModel(w, m) })
 }
@@ -232,15 +229,12 @@ func checkModel(env *runEnv) error {
 	if o.lattice != "" || o.preset != "" || len(o.set) > 0 || o.disorder != 0 || o.tie || o.shells.set || o.out != "" || o.units != "" {
 		return usagef("--check takes only --beta; it does not combine with --lattice, --preset, --set, --disorder, --tie, --shells, --units or -o")
 	}
-	if o.beta.set && (!(o.beta.v > 0) || math.IsInf(o.beta.v, 0)) {
-		return usagef("--beta %v: want a finite number > 0", o.beta.v)
-	}
 	m, err := lattice.ReadModel(o.check)
 	if err != nil {
 		return err
 	}
 	if o.beta.set {
-		m.Beta = o.beta.v
+		m.Beta = o.beta.value
 	}
 	fmt.Fprintln(env.Stdout, modelWrapText(modelSummary(o.check, m), 78))
 	return nil
@@ -343,30 +337,6 @@ func modelWrapText(s string, width int) string {
 func modelIndentAfterFirst(s, prefix string) string {
 	return strings.ReplaceAll(s, "\n", "\n"+prefix)
 }
-
-// modelFloatFlag is a float flag that records whether it was given.
-type modelFloatFlag struct {
-	v   float64
-	set bool
-}
-
-func (f *modelFloatFlag) String() string {
-	if !f.set {
-		return ""
-	}
-	return strconv.FormatFloat(f.v, 'g', -1, 64)
-}
-
-func (f *modelFloatFlag) Set(s string) error {
-	v, err := strconv.ParseFloat(s, 64)
-	if err != nil {
-		return fmt.Errorf("%q is not a number", s)
-	}
-	f.v, f.set = v, true
-	return nil
-}
-
-func (f *modelFloatFlag) Type() string { return "float" }
 
 // modelIntFlag is an int flag that records whether it was given.
 type modelIntFlag struct {

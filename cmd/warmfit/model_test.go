@@ -143,7 +143,7 @@ func TestModelCommandUsageErrors(t *testing.T) {
 		{[]string{"--lattice", "chain:4", "--preset", "tfim", "--disorder", "-1"}, "--disorder"},
 		{[]string{"--lattice", "chain:4", "--preset", "tfim", "--disorder", "0.1", "--tie"}, "do not go together"},
 		{[]string{"--lattice", "chain:4", "--preset", "tfim", "--beta", "0"}, "--beta"},
-		{[]string{"--lattice", "chain:4", "--preset", "tfim", "--beta", "x"}, "not a number"},
+		{[]string{"--lattice", "chain:4", "--preset", "tfim", "--beta", "x"}, "not a positive finite number"},
 		{[]string{"--lattice", "chain:4", "--preset", "tfim", "--shells", "3"}, "--shells"},
 		{[]string{"--lattice", "chain:4", "--preset", "tfim", "--set", "J=0,hx=0"}, "zero"},
 		{[]string{"--lattice", "hexagon:4", "--preset", "tfim"}, "--lattice"},
