@@ -253,13 +253,41 @@ func describeParam(p *Params, terms []lattice.Term, q int) string {
 // startingPoint returns theta from Options.Start or from the first-order
 // inversion <E_k> = -beta lambda_k + O(beta^2), valid for traceless Paulis
 // with tr(E_a E_b) = 2^n delta_ab (references.md, "first-order
-// inversion"), averaged over each group.
+// inversion"), averaged over each group. Two refinements keep the start
+// sensible when fields are strong: a one-site term uses the isolated-spin
+// inversion lambda = -atanh(e)/beta (<P> = -tanh(beta lambda) for a lone
+// spin), and a multi-site term subtracts the product of its letters'
+// one-site expectations, where the data have them, so that the
+// uncorrelated part <P_i><Q_j> ~ beta^2 h_i h_j is not taken for a
+// coupling.
 func (f *fitter) startingPoint() []float64 {
 	lambda := make([]float64, len(f.values))
 	if f.opt.Start != nil {
 		copy(lambda, f.opt.Start)
 	} else {
+		terms := f.prob.Terms
+		single := make(map[string]float64)
+		for k, t := range terms {
+			if len(t.Sites) == 1 {
+				single[t.Key()] = f.values[k]
+			}
+		}
 		for k, e := range f.values {
+			t := terms[k]
+			if len(t.Sites) == 1 {
+				const edge = 1 - 1e-6
+				lambda[k] = -math.Atanh(math.Max(-edge, math.Min(edge, e))) / f.beta
+				continue
+			}
+			prod, all := 1.0, true
+			for i, site := range t.Sites {
+				m, ok := single[lattice.TermKey(t.Pauli[i:i+1], []int{site})]
+				all = all && ok
+				prod *= m
+			}
+			if all {
+				e -= prod
+			}
 			lambda[k] = -e / f.beta
 		}
 	}
