@@ -43,6 +43,10 @@ changes over pairs of orders), resummed (Wynn epsilon acceleration of the partia
 sums) and trusted (trunc_error <= --tol). The stderr column repeats trunc_error,
 the value's uncertainty, so the table can serve as fit data.
 A summary on stderr says plainly when the temperature is too low for the order.
+Without --order the order is chosen automatically: it starts low (4 in two
+dimensions) and rises while some value is untrusted, up to a ceiling by lattice
+dimension (9 on a chain, 6 in two dimensions), and stops rising once one order took
+more than 3 seconds; stderr says which order was used and why.
 
 --method exact diagonalises the whole system: densely up to 12 qubits (stderr
 empty), and by thermal typicality with random vectors up to 26 qubits, in which case
@@ -55,7 +59,7 @@ warmfit expect --model m.json --method exact`,
 			fs.StringVar(&modelPath, "model", "", "model file (JSON)")
 			addBetaFlag(fs, &beta)
 			fs.StringVar(&method, "method", "expansion", "expansion or exact")
-			fs.IntVar(&order, "order", 0, "largest cluster size for the expansion (default: by lattice dimension)")
+			fs.IntVar(&order, "order", 0, "largest cluster size for the expansion (default: chosen automatically, see above)")
 			fs.Float64Var(&tol, "tol", 1e-3, "truncation error at which an expansion value counts as trusted")
 			fs.IntVar(&vectors, "vectors", 0, "random vectors for thermal typicality (exact method past dense size)")
 			fs.Uint64Var(&seed, "seed", 1, "seed of the random vectors")
@@ -121,14 +125,76 @@ func checkOrderFlag(fs *pflag.FlagSet, order int) error {
 	return nil
 }
 
-// defaultOrder is the expansion order used when none is asked for: the
-// largest whose cost stays in seconds for a few hundred sites.
+// autoOrderStepLimit stops the automatic order from rising once one
+// evaluation took this long: the next order costs several times more.
+const autoOrderStepLimit = 3 * time.Second
+
+// autoOrder raises the expansion order from a low start while some value
+// is untrusted, up to a ceiling by lattice dimension, and stops rising
+// once one evaluation took autoOrderStepLimit. It returns the last
+// evaluation and its order.
+func autoOrder(env *runEnv, m *lattice.Model, evaluate func(L int) (*cluster.Result, error), tol float64) (*cluster.Result, int, error) {
+	L, ceiling := autoOrderRange(m.Lattice)
+	var prev *cluster.Result
+	for {
+		t0 := time.Now()
+		res, err := evaluate(L)
+		if err != nil {
+			if prev == nil {
+				return nil, 0, err
+			}
+			fmt.Fprintf(env.Stderr, "expansion: order %d refused (%v); keeping order %d\n", L, err, L-1)
+			return prev, L - 1, nil
+		}
+		prev = res
+		untrusted := 0
+		for _, c := range res.TermConvergence(m.Terms, tol) {
+			if !c.Trusted {
+				untrusted++
+			}
+		}
+		took := time.Since(t0)
+		why := ""
+		switch {
+		case untrusted == 0:
+			why = "every value trusted"
+		case L >= ceiling:
+			why = fmt.Sprintf("ceiling %d for this lattice reached (set --order to go further)", ceiling)
+		case took > autoOrderStepLimit:
+			why = fmt.Sprintf("order %d took %.1fs; the next would take several times longer (set --order to go further)", L, took.Seconds())
+		}
+		if why != "" {
+			fmt.Fprintf(env.Stderr, "expansion: order %d chosen automatically: %s\n", L, why)
+			return res, L, nil
+		}
+		fmt.Fprintf(env.Stderr, "expansion: order %d: %d values untrusted, raising the order\n", L, untrusted)
+		L++
+	}
+}
+
+// autoOrderRange is where the automatic order starts and its ceiling.
+func autoOrderRange(l *lattice.Lattice) (start, ceiling int) {
+	switch {
+	case l.Spec.Kind == "chain":
+		return 6, 9
+	case l.Spec.Kind == "ladder":
+		return 5, 7
+	case l.Dim() >= 3 && l.Spec.Kind != "graph":
+		return 3, 5
+	default:
+		return 4, 6
+	}
+}
+
+// defaultOrder is the expansion order used when none is asked for by
+// commands without an automatic choice: the largest whose cost stays in
+// seconds for a few hundred sites.
 func defaultOrder(l *lattice.Lattice) int {
 	switch {
 	case l.Spec.Kind == "chain":
-		return 9
-	case l.Spec.Kind == "ladder":
 		return 7
+	case l.Spec.Kind == "ladder":
+		return 6
 	case l.Dim() >= 3 && l.Spec.Kind != "graph":
 		return 4
 	default:
@@ -145,23 +211,26 @@ func modelCoeffs(m *lattice.Model) []float64 {
 }
 
 func expectByExpansion(env *runEnv, m *lattice.Model, beta float64, order int, tol float64) (*fit.Table, error) {
-	if order == 0 {
-		order = defaultOrder(m.Lattice)
-	}
-	if order < 1 {
-		return nil, usagef("--order %d: must be at least 1", order)
-	}
 	exp, err := cluster.NewExpansion(m.Lattice, m.Terms)
 	if err != nil {
 		return nil, err
 	}
-	bar := newProgressBar(env, "expanding")
-	start := time.Now()
 	coeffs := modelCoeffs(m)
-	res, err := exp.Evaluate(coeffs, beta, cluster.Options{Order: order, Progress: bar.Update})
-	bar.Done()
-	if err != nil {
-		return nil, err
+	start := time.Now()
+	evaluate := func(L int) (*cluster.Result, error) {
+		bar := newProgressBar(env, fmt.Sprintf("expanding, order %d", L))
+		defer bar.Done()
+		return exp.Evaluate(coeffs, beta, cluster.Options{Order: L, Progress: bar.Update})
+	}
+	var res *cluster.Result
+	if order > 0 {
+		if res, err = evaluate(order); err != nil {
+			return nil, err
+		}
+	} else {
+		if res, order, err = autoOrder(env, m, evaluate, tol); err != nil {
+			return nil, err
+		}
 	}
 	conv := res.TermConvergence(m.Terms, tol)
 	t := &fit.Table{ExtraHeader: []string{"step", "trunc_error", "resummed", "trusted"}}
