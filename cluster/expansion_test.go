@@ -483,3 +483,41 @@ func TestTruncationEstimateAgainstDenseED(t *testing.T) {
 		}
 	}
 }
+
+// At any order the expansion's response must be the derivative of its own
+// expectations (each cluster's Kubo–Mori response is the derivative of
+// its expectations and the multipliers are constants), which is what
+// makes Newton steps on the truncated dual exact. Reference: central
+// finite differences (common practice).
+func TestExpansionResponseIsDerivative(t *testing.T) {
+	l := mustLattice(t, "square:4x4")
+	rng := rand.New(rand.NewPCG(31, 32))
+	terms := randomTerms(l, 0.5, true, rng)
+	exp, err := cluster.NewExpansion(l, terms)
+	if err != nil {
+		t.Fatal(err)
+	}
+	const beta, L, h = 0.4, 4, 1e-5
+	coeffs := coeffsOf(terms)
+	res, err := exp.Evaluate(coeffs, beta, cluster.Options{Order: L, Response: true})
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, j := range []int{0, 7, len(terms) / 2, len(terms) - 1} {
+		plus := append([]float64(nil), coeffs...)
+		minus := append([]float64(nil), coeffs...)
+		plus[j] += h
+		minus[j] -= h
+		rp, err1 := exp.Evaluate(plus, beta, cluster.Options{Order: L})
+		rm, err2 := exp.Evaluate(minus, beta, cluster.Options{Order: L})
+		if err1 != nil || err2 != nil {
+			t.Fatal(err1, err2)
+		}
+		for k := range terms {
+			fd := (rp.Expect[L-1][k] - rm.Expect[L-1][k]) / (2 * h)
+			if got := res.Response.At(k, j); math.Abs(got-fd) > 1e-6 {
+				t.Errorf("d<%s>/d lambda(%s) = %.9g, finite difference %.9g", terms[k].Key(), terms[j].Key(), got, fd)
+			}
+		}
+	}
+}
