@@ -20,7 +20,10 @@ type Problem struct {
 	Terms []lattice.Term
 	// Data holds one estimate per template term, aligned with Terms
 	// (Values, Stderr and Cov; see EstimatesFromTable and
-	// EstimateSnapshots). A zero Stderr marks an exact value.
+	// EstimateSnapshots). A zero Stderr marks an exact value. Terms in
+	// Data.Missing are fitted through their group by moment matching on
+	// its measured members (moments.go); a missing term whose parameter
+	// has no measured member is an error.
 	Data *Estimates
 	// Beta is the inverse temperature; 0 when unknown, in which case the
 	// fit determines the products beta*lambda (reported with beta = 1).
@@ -144,6 +147,10 @@ type fitter struct {
 	exact   bool       // every stderr is zero
 	minL    int        // smallest order holding every term
 	sites   int
+	// measured[k] is false for a term without data (Data.Missing); nil
+	// when every term has data. With unmeasured terms the fit matches
+	// moments on the measured members (moments.go).
+	measured []bool
 }
 
 // Fit learns the template's coefficients from the data. It returns an
@@ -182,9 +189,6 @@ func newFitter(p *Problem, opt Options) (*fitter, error) {
 	if p.Data == nil || len(p.Data.Values) != K || len(p.Data.Stderr) != K {
 		return nil, fmt.Errorf("data do not match the template's %d terms", K)
 	}
-	if len(p.Data.Missing) > 0 {
-		return nil, fmt.Errorf("%d template terms have no data (first: %s); every term, grouped or not, needs a measured value", len(p.Data.Missing), p.Terms[p.Data.Missing[0]].Key())
-	}
 	if math.IsNaN(p.Beta) || math.IsInf(p.Beta, 0) || p.Beta < 0 {
 		return nil, fmt.Errorf("beta = %v: must be a finite positive number, or 0 when unknown", p.Beta)
 	}
@@ -196,6 +200,11 @@ func newFitter(p *Problem, opt Options) (*fitter, error) {
 		return nil, fmt.Errorf("template: %v", err)
 	}
 	f := &fitter{prob: p, opt: opt, exp: exp, params: NewParams(p.Terms), beta: p.Beta, values: p.Data.Values, sites: p.Lattice.NumSites()}
+	if len(p.Data.Missing) > 0 {
+		if err := f.markUnmeasured(p.Data.Missing); err != nil {
+			return nil, err
+		}
+	}
 	if f.beta == 0 {
 		f.beta = 1
 	}
@@ -203,7 +212,10 @@ func newFitter(p *Problem, opt Options) (*fitter, error) {
 		f.minL = max(f.minL, len(t.Sites))
 	}
 	f.exact = true
-	for k, e := range p.Data.Values {
+	for k, e := range f.values {
+		if !f.isMeasured(k) {
+			continue
+		}
 		s := p.Data.Stderr[k]
 		if math.IsNaN(e) || math.IsInf(e, 0) || math.IsNaN(s) || math.IsInf(s, 0) || s < 0 {
 			return nil, fmt.Errorf("term %s: value %v with stderr %v: not usable", p.Terms[k].Key(), e, s)
@@ -214,7 +226,9 @@ func newFitter(p *Problem, opt Options) (*fitter, error) {
 	}
 	f.varDiag = make([]float64, K)
 	for k, s := range p.Data.Stderr {
-		f.varDiag[k] = s * s
+		if f.isMeasured(k) {
+			f.varDiag[k] = s * s
+		}
 	}
 	f.cov = diagMatrix(f.varDiag)
 	if p.Data.Cov != nil {
@@ -231,7 +245,7 @@ func newFitter(p *Problem, opt Options) (*fitter, error) {
 	// A Pauli expectation in a full-rank state lies strictly inside
 	// (-1, 1): a parameter whose data reach the edge cannot be matched.
 	mean := make([]float64, f.params.NumParams())
-	f.params.Average(mean, f.values)
+	f.average(mean, f.values)
 	for q, m := range mean {
 		if math.Abs(m) >= 1 {
 			return nil, fmt.Errorf("%s: measured value %v is not inside (-1, 1); no Gibbs state at finite temperature has it, so the fit cannot converge (drop the term or fix the data)",
@@ -268,11 +282,14 @@ func (f *fitter) startingPoint() []float64 {
 		terms := f.prob.Terms
 		single := make(map[string]float64)
 		for k, t := range terms {
-			if len(t.Sites) == 1 {
+			if len(t.Sites) == 1 && f.isMeasured(k) {
 				single[t.Key()] = f.values[k]
 			}
 		}
 		for k, e := range f.values {
+			if !f.isMeasured(k) {
+				continue
+			}
 			t := terms[k]
 			if len(t.Sites) == 1 {
 				const edge = 1 - 1e-6
@@ -292,7 +309,11 @@ func (f *fitter) startingPoint() []float64 {
 		}
 	}
 	theta := make([]float64, f.params.NumParams())
-	f.params.Average(theta, lambda)
+	if f.opt.Start != nil {
+		f.params.Average(theta, lambda)
+	} else {
+		f.average(theta, lambda)
+	}
 	return theta
 }
 
@@ -340,12 +361,16 @@ func (f *fitter) fitOrderUntil(L int, theta0 []float64, deadline time.Time) (*or
 	np := &newtonProblem{
 		params: f.params, beta: f.beta, values: f.values, sigma: f.sigma,
 		tol: f.opt.Tol, absTol: f.opt.AbsTol, maxIter: f.opt.MaxIter, maxStep: f.opt.MaxStep,
-		eval: f.evaluator(L), deadline: deadline,
+		eval: f.evaluator(L), deadline: deadline, measured: f.measured,
 	}
 	if f.opt.Log != nil {
 		np.logf = func(format string, args ...any) { f.opt.logf("order %d, "+format, append([]any{L}, args...)...) }
 	}
-	out, err := np.minimize(theta0)
+	minimize := np.minimize
+	if f.measured != nil {
+		minimize = np.matchMoments
+	}
+	out, err := minimize(theta0)
 	if err != nil {
 		return nil, fmt.Errorf("order %d: %v", L, err)
 	}

@@ -28,7 +28,9 @@ type Report struct {
 	DataKind      string   `json:"data,omitempty"`
 	DataFile      string   `json:"data_file,omitempty"`
 	ExactData     bool     `json:"exact_data"`
-	ErrorMethod   string   `json:"error_bars,omitempty"`
+	// Unmeasured counts terms without data fitted through their group.
+	Unmeasured  int    `json:"unmeasured_terms,omitempty"`
+	ErrorMethod string `json:"error_bars,omitempty"`
 
 	Truncation   ReportTruncation    `json:"truncation"`
 	Chi2         *ReportChi2         `json:"chi2,omitempty"`
@@ -135,6 +137,7 @@ func NewReport(r *Result, mode, dataKind, dataFile string, tol float64) *Report 
 		DataKind:      dataKind,
 		DataFile:      dataFile,
 		ExactData:     r.Exact,
+		Unmeasured:    len(r.Unmeasured),
 		ErrorMethod:   r.ErrorMethod,
 		Warnings:      append([]string{}, r.Warnings...),
 		Notes:         r.Notes,

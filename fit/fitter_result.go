@@ -66,6 +66,10 @@ type Result struct {
 	Untrusted []int
 	SeriesTol []float64
 
+	// Unmeasured lists the terms that had no data and were fitted
+	// through their group by moment matching on its measured members.
+	Unmeasured []int
+
 	Significance *Significance // nil without error bars
 
 	Warnings []string // things that could make the result mislead
@@ -108,6 +112,15 @@ func (f *fitter) finish(main *orderFit, history []*orderFit, notes []string) (*R
 		r.TotalIterations += out.iterations
 	}
 	r.Notes = append(r.Notes, out.notes...)
+	if note := f.unmeasuredNote(); note != "" {
+		r.Notes = append(r.Notes, note)
+		for k, ok := range f.measured {
+			if !ok {
+				r.Unmeasured = append(r.Unmeasured, k)
+			}
+		}
+	}
+	dataStderr, seriesStderr := f.termStderr()
 	if !r.BetaKnown {
 		r.Notes = append(r.Notes, "beta not given: the coefficients are the products beta*lambda, reported with beta = 1")
 	}
@@ -167,7 +180,7 @@ func (f *fitter) finish(main *orderFit, history []*orderFit, notes []string) (*R
 			for o := range series {
 				series[o] = raw.Expect[o][k]
 			}
-			tol := 0.1 * f.prob.Data.Stderr[k]
+			tol := 0.1 * seriesStderr[k]
 			if tol == 0 {
 				tol = exactSeriesTol
 			}
@@ -185,7 +198,7 @@ func (f *fitter) finish(main *orderFit, history []*orderFit, notes []string) (*R
 	r.Bound = cluster.SufficientBeta(r.Terms, st.lambda)
 
 	if f.params.Tied() && r.Converged {
-		if c, ok := residualChiSquare(f.params, f.values, f.prob.Data.Stderr, st.ev.expect); ok {
+		if c, ok := residualChiSquare(f.params, f.values, dataStderr, st.ev.expect); ok {
 			r.Chi2, r.Dof = c.Value, c.Dof
 			r.Chi2P = distuv.ChiSquared{K: float64(c.Dof)}.Survival(c.Value)
 		}

@@ -6,6 +6,8 @@ import (
 	"math"
 	"time"
 
+	"gonum.org/v1/gonum/mat"
+
 	"warmfit/cluster"
 )
 
@@ -39,6 +41,10 @@ type newtonProblem struct {
 	logf    func(format string, args ...any)
 	// deadline, when not zero, stops the minimisation once passed.
 	deadline time.Time
+	// measured, when not nil, marks the terms with data: the residual
+	// then runs over measured terms only, r = A_m^T (e_m - <E>_m), and
+	// G is not a valid objective (see matchMoments).
+	measured []bool
 }
 
 // newtonState is an iterate with its evaluation.
@@ -61,7 +67,10 @@ type newtonOutcome struct {
 	gradSigma   float64 // max |r_q| / sigma_q over noisy parameters
 	gradAbs     float64 // max |r_q| / |q| over exact parameters
 	hessian     *csr    // P = -A^T R A at state (positive semidefinite)
-	notes       []string
+	// jacobian is J = dr/dtheta = -A_m^T R A of moment matching (set
+	// instead of hessian when some terms have no data).
+	jacobian *mat.Dense
+	notes    []string
 }
 
 // maxCoefficient bounds beta |lambda| during a fit: beyond it the Gibbs
@@ -99,6 +108,9 @@ func (np *newtonProblem) state(theta []float64, response bool) (*newtonState, er
 		x := ev.expect[k]
 		if math.IsNaN(x) || math.IsInf(x, 0) {
 			return nil, fmt.Errorf("expectation of term %d is %v", k, x)
+		}
+		if np.measured != nil && !np.measured[k] {
+			continue
 		}
 		diff[k] = e - x
 		dual += s.lambda[k] * e

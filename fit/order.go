@@ -142,7 +142,15 @@ func (f *fitter) paramStderr(out *newtonOutcome) ([]float64, string, error) {
 // paramStderrWith is paramStderr for a given data covariance.
 func (f *fitter) paramStderrWith(out *newtonOutcome, cov termMatrix) ([]float64, string, error) {
 	b := f.params.project(cov, 1)
-	vars, method, err := paramVariances(out.hessian, b, f.opt.DenseLimit, f.opt.Workers, f.params.spatialOrder(f.prob.Terms))
+	var vars []float64
+	var method string
+	var err error
+	if out.jacobian != nil {
+		vars, err = momentVariances(out.jacobian, b)
+		method = "dense LU, moment matching"
+	} else {
+		vars, method, err = paramVariances(out.hessian, b, f.opt.DenseLimit, f.opt.Workers, f.params.spatialOrder(f.prob.Terms))
+	}
 	if err != nil {
 		return nil, method, err
 	}

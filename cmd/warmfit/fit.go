@@ -79,7 +79,11 @@ The template (--model) gives the lattice and the terms; terms sharing a "group" 
 one coefficient. The data (--data) are an expectation table (pauli,sites,value,stderr;
 an empty stderr marks an exact value) or a snapshot file (basis,outcome,count), from
 which expectations and their covariance are estimated. Every template term needs
-data; data terms missing from the template are an error.
+data unless it shares its group with a measured term: such terms are fitted through
+their group by moment matching on the measured members (A_m^T <E>_m = A_m^T e_m,
+one equation per parameter, solved by damped Newton with a dense LU; error bars
+J^{-1} A_m^T Cov(e_m) A_m J^{-T}), and the report says how many. Other terms without
+data, and data terms missing from the template, are an error that lists them.
 
 Convergence: the fit stops when every component of the gradient is below --tol
 times its data noise (for exact data, when the mean residual is below 1e-10). A fit
@@ -247,7 +251,11 @@ func fitLoadData(path, tmplPath string, tmpl *lattice.Model, covDist int) (*fit.
 		if err != nil {
 			return nil, "", err
 		}
-		est, unused, err := fit.EstimatesFromTable(t, tmpl.Terms, nil)
+		index := t.Index()
+		est, unused, err := fit.EstimatesFromTable(t, tmpl.Terms, groupedAllowMissing(tmpl.Terms, func(k int) bool {
+			_, ok := index[tmpl.Terms[k].Key()]
+			return ok
+		}))
 		if err != nil {
 			return nil, "", fmt.Errorf("%s: %w", path, err)
 		}
@@ -267,7 +275,10 @@ func fitLoadData(path, tmplPath string, tmpl *lattice.Model, covDist int) (*fit.
 			return nil, "", err
 		}
 		defer f.Close()
-		copt := fit.CovarianceOptions{Distance: covDist, Neighbors: tmpl.Lattice.Neighbors}
+		// Which terms get data is known only after counting; the fit
+		// refuses any whose group ends up without a measured member.
+		copt := fit.CovarianceOptions{Distance: covDist, Neighbors: tmpl.Lattice.Neighbors,
+			AllowMissing: groupedAllowMissing(tmpl.Terms, func(int) bool { return true })}
 		est, err := fit.EstimateSnapshots(f, path, tmpl.Lattice.NumSites(), tmpl.Terms, copt)
 		if err != nil {
 			return nil, "", err
@@ -275,6 +286,29 @@ func fitLoadData(path, tmplPath string, tmpl *lattice.Model, covDist int) (*fit.
 		return est, kind, nil
 	}
 	return nil, "", fmt.Errorf("%s: unknown data kind %q", path, kind)
+}
+
+// groupedAllowMissing lists the terms that may lack data: members of a
+// group with at least two terms, at least one of which has data
+// (hasData). The fit determines them through that group.
+func groupedAllowMissing(terms []lattice.Term, hasData func(k int) bool) []int {
+	size := map[string]int{}
+	measured := map[string]bool{}
+	for k, t := range terms {
+		if t.Group != "" {
+			size[t.Group]++
+			if hasData(k) {
+				measured[t.Group] = true
+			}
+		}
+	}
+	var allow []int
+	for k, t := range terms {
+		if t.Group != "" && size[t.Group] > 1 && measured[t.Group] {
+			allow = append(allow, k)
+		}
+	}
+	return allow
 }
 
 // fitUnconvergedPath names the file for the last iterate of a fit that
@@ -360,6 +394,9 @@ func fitSummary(w io.Writer, res *fit.Result, rep *fit.Report, cmp *fit.TruthCom
 	p("%s at order %d (%s selection, orders %v) after %d Newton iterations (%d at order %d), %s, %.1fs",
 		status, res.Order, rep.OrderMode, rep.Truncation.Orders, res.TotalIterations, res.Iterations, res.Order, grad, res.Elapsed.Seconds())
 	p("%d terms, %d fitted parameters", len(res.Terms), res.Params.NumParams())
+	if n := len(res.Unmeasured); n > 0 {
+		p("%d terms had no data and were fitted through their group (moment matching on measured members)", n)
+	}
 	if res.ThetaStderr != nil && !res.Exact {
 		p("error bars by the delta method (%s): median stderr %s", res.ErrorMethod, fmtG3(rep.Truncation.StatError))
 	}
