@@ -345,12 +345,15 @@ type orderFit struct {
 }
 
 func (f *fitter) fitOrder(L int, theta0 []float64) (*orderFit, error) {
-	return f.fitOrderUntil(L, theta0, time.Time{})
+	return f.fitOrderUntil(L, theta0, time.Time{}, false)
 }
 
 // fitOrderUntil is fitOrder that gives up once deadline (if not zero) has
-// passed.
-func (f *fitter) fitOrderUntil(L int, theta0 []float64, deadline time.Time) (*orderFit, error) {
+// passed. fromOtherOrder marks theta0 as another order's solution: at
+// least one Newton step is then taken, so that the change between orders
+// (the truncation error) is measured rather than read as zero when the
+// start already meets the tolerance.
+func (f *fitter) fitOrderUntil(L int, theta0 []float64, deadline time.Time, fromOtherOrder bool) (*orderFit, error) {
 	if L < f.minL {
 		return nil, fmt.Errorf("order %d cannot hold terms on %d sites: the order must be at least %d", L, f.minL, f.minL)
 	}
@@ -362,6 +365,9 @@ func (f *fitter) fitOrderUntil(L int, theta0 []float64, deadline time.Time) (*or
 		params: f.params, beta: f.beta, values: f.values, sigma: f.sigma,
 		tol: f.opt.Tol, absTol: f.opt.AbsTol, maxIter: f.opt.MaxIter, maxStep: f.opt.MaxStep,
 		eval: f.evaluator(L), deadline: deadline, measured: f.measured,
+	}
+	if fromOtherOrder {
+		np.minIter = 1
 	}
 	if f.opt.Log != nil {
 		np.logf = func(format string, args ...any) { f.opt.logf("order %d, "+format, append([]any{L}, args...)...) }
@@ -397,7 +403,7 @@ func (f *fitter) fixedOrder(L int, theta0 []float64) (*Result, error) {
 	history := []*orderFit{main}
 	if main.out.converged && !f.exactOrder(L) && !f.opt.SkipTruncation {
 		for low := L - 1; low >= max(f.minL, L-2); low-- {
-			lf, err := f.fitOrder(low, main.out.state.theta)
+			lf, err := f.fitOrderUntil(low, main.out.state.theta, time.Time{}, true)
 			if err != nil {
 				return nil, err
 			}
@@ -433,7 +439,7 @@ func (f *fitter) autoOrder(theta0 []float64, start time.Time) (*Result, error) {
 		if len(history) > 0 {
 			deadline = start.Add(f.opt.Budget)
 		}
-		of, err := f.fitOrderUntil(L, theta, deadline)
+		of, err := f.fitOrderUntil(L, theta, deadline, len(history) > 0)
 		if err != nil {
 			if len(history) == 0 && failed == nil {
 				return nil, err

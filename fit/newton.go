@@ -41,6 +41,11 @@ type newtonProblem struct {
 	logf    func(format string, args ...any)
 	// deadline, when not zero, stops the minimisation once passed.
 	deadline time.Time
+	// minIter forces that many Newton steps even when the start already
+	// meets the tolerance: a refit at another order from a solution must
+	// move by the change the order makes, or the truncation error would
+	// read zero.
+	minIter int
 	// measured, when not nil, marks the terms with data: the residual
 	// then runs over measured terms only, r = A_m^T (e_m - <E>_m), and
 	// G is not a valid objective (see matchMoments).
@@ -180,7 +185,10 @@ func (np *newtonProblem) minimize(theta0 []float64) (*newtonOutcome, error) {
 			return out, nil
 		}
 		out.hessian = np.hessian(cur)
-		if np.done(cur.resid) {
+		// polishing: a step forced by minIter from an already converged
+		// point; if it cannot be taken, the point stands.
+		polishing := np.done(cur.resid)
+		if polishing && (out.iterations >= np.minIter || maxAbs(cur.resid) == 0) {
 			out.converged = true
 			return out, nil
 		}
@@ -218,6 +226,9 @@ func (np *newtonProblem) minimize(theta0 []float64) (*newtonOutcome, error) {
 					d[i] = -r / diag[i]
 				}
 			}
+		case err != nil && polishing:
+			out.converged = true
+			return out, nil
 		case err != nil:
 			if res.Residual > 1e-3 || math.IsNaN(res.Residual) {
 				out.reason = fmt.Sprintf("iteration %d: Newton system not solved (%v, relative residual %.2g): the Hessian is singular or badly conditioned; some parameters may not be determined by the data", out.iterations, err, res.Residual)
@@ -226,6 +237,10 @@ func (np *newtonProblem) minimize(theta0 []float64) (*newtonOutcome, error) {
 		}
 		// Directional derivative of G along d: beta r . d (< 0 for a descent direction).
 		slope := np.beta * dot(cur.resid, d)
+		if polishing && !(slope < 0) {
+			out.converged = true
+			return out, nil
+		}
 		if !(slope < 0) {
 			out.reason = fmt.Sprintf("iteration %d: no descent direction (slope %v)", out.iterations, slope)
 			return out, nil
@@ -235,6 +250,10 @@ func (np *newtonProblem) minimize(theta0 []float64) (*newtonOutcome, error) {
 			scale = np.maxStep / big
 		}
 		next, t, err := np.lineSearch(cur, d, scale, slope, out)
+		if err != nil && polishing {
+			out.converged = true
+			return out, nil
+		}
 		if err != nil {
 			out.reason = fmt.Sprintf("iteration %d: %v", out.iterations, err)
 			return out, nil
