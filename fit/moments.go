@@ -258,35 +258,9 @@ func (np *newtonProblem) matchMoments(theta0 []float64) (*newtonOutcome, error) 
 func (np *newtonProblem) momentLineSearch(cur *newtonState, d []float64, scale float64, w []float64, slack float64, out *newtonOutcome) (*newtonState, float64, error) {
 	const c1 = 1e-4
 	phi0 := weightedNorm2(w, cur.resid)
-	theta := make([]float64, len(cur.theta))
-	t := scale
-	var lastErr error
-	for try := 0; try < maxBacktracks; try++ {
-		for i := range theta {
-			theta[i] = cur.theta[i] + t*d[i]
-		}
-		withResponse := try == 0
-		next, err := np.state(theta, withResponse)
-		out.evaluations++
-		if err == nil && weightedNorm2(w, next.resid) <= (1-2*c1*t)*phi0+slack {
-			if !withResponse {
-				next, err = np.state(theta, true)
-				out.evaluations++
-				if err != nil {
-					return nil, t, err
-				}
-			}
-			return next, t, nil
-		}
-		if err != nil {
-			lastErr = err
-		}
-		t /= 2
-	}
-	if lastErr != nil {
-		return nil, t, fmt.Errorf("line search failed: %v", lastErr)
-	}
-	return nil, t, errors.New("line search found no decrease of the residual: it is below the floating-point resolution of the expansion, or the expansion is not valid at this order and temperature")
+	return np.backtrack(cur, d, scale, out,
+		func(next *newtonState, t float64) bool { return weightedNorm2(w, next.resid) <= (1-2*c1*t)*phi0+slack },
+		"no decrease of the residual: it is below the floating-point resolution of the expansion, or the expansion is not valid at this order and temperature")
 }
 
 // momentVariances returns diag(J^{-1} B J^{-T}) for the moment-matching

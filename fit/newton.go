@@ -279,6 +279,16 @@ func (np *newtonProblem) minimize(theta0 []float64) (*newtonOutcome, error) {
 func (np *newtonProblem) lineSearch(cur *newtonState, d []float64, scale, slope float64, out *newtonOutcome) (*newtonState, float64, error) {
 	const c1 = 1e-4
 	slack := np.roundoff(cur)
+	return np.backtrack(cur, d, scale, out,
+		func(next *newtonState, t float64) bool { return next.g <= cur.g+c1*t*slope+slack },
+		"no decrease of the dual: the gradient is below the floating-point resolution of log Z, or the expansion is not a valid log Z at this order and temperature")
+}
+
+// backtrack tries the steps t*d for t = scale, scale/2, ... until accept
+// holds, evaluating the response only at the accepted point (a full step
+// is accepted most of the time, so the first try evaluates it at once).
+// failure says why no step was found when every try was evaluated.
+func (np *newtonProblem) backtrack(cur *newtonState, d []float64, scale float64, out *newtonOutcome, accept func(next *newtonState, t float64) bool, failure string) (*newtonState, float64, error) {
 	theta := make([]float64, len(cur.theta))
 	t := scale
 	var lastErr error
@@ -286,10 +296,10 @@ func (np *newtonProblem) lineSearch(cur *newtonState, d []float64, scale, slope 
 		for i := range theta {
 			theta[i] = cur.theta[i] + t*d[i]
 		}
-		withResponse := try == 0 // a full step is accepted most of the time
+		withResponse := try == 0
 		next, err := np.state(theta, withResponse)
 		out.evaluations++
-		if err == nil && next.g <= cur.g+c1*t*slope+slack {
+		if err == nil && accept(next, t) {
 			if !withResponse {
 				next, err = np.state(theta, true)
 				out.evaluations++
@@ -307,7 +317,7 @@ func (np *newtonProblem) lineSearch(cur *newtonState, d []float64, scale, slope 
 	if lastErr != nil {
 		return nil, t, fmt.Errorf("line search failed: %v", lastErr)
 	}
-	return nil, t, errors.New("line search found no decrease of the dual: the gradient is below the floating-point resolution of log Z, or the expansion is not a valid log Z at this order and temperature")
+	return nil, t, errors.New("line search found " + failure)
 }
 
 func (np *newtonProblem) hasNoise() bool {
