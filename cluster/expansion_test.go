@@ -52,6 +52,24 @@ func randomTerms(l *lattice.Lattice, scale float64, withY bool, rng *rand.Rand) 
 	return terms
 }
 
+// transverseIsingTerms is H = -sum_<ij> Z_i Z_j - h sum_i X_i on the
+// lattice's interaction bonds (no X terms when h = 0: the classical Ising
+// model).
+func transverseIsingTerms(l *lattice.Lattice, h float64) []lattice.Term {
+	var terms []lattice.Term
+	for _, b := range l.InteractionBonds() {
+		tm, _ := lattice.NewTerm("ZZ", []int{b.I, b.J}, -1)
+		terms = append(terms, tm)
+	}
+	if h != 0 {
+		for s := 0; s < l.NumSites(); s++ {
+			tm, _ := lattice.NewTerm("X", []int{s}, -h)
+			terms = append(terms, tm)
+		}
+	}
+	return terms
+}
+
 func coeffsOf(terms []lattice.Term) []float64 {
 	c := make([]float64, len(terms))
 	for k, t := range terms {
@@ -220,11 +238,7 @@ func TestOnsagerReferenceFormula(t *testing.T) {
 // which sets the tolerances here.
 func TestExpansionIsingSquareOnsager(t *testing.T) {
 	l := mustLattice(t, "square:14x14:periodic")
-	var terms []lattice.Term
-	for _, b := range l.InteractionBonds() {
-		tm, _ := lattice.NewTerm("ZZ", []int{b.I, b.J}, -1)
-		terms = append(terms, tm)
-	}
+	terms := transverseIsingTerms(l, 0)
 	exp, err := cluster.NewExpansion(l, terms)
 	if err != nil {
 		t.Fatal(err)
@@ -270,11 +284,7 @@ func TestExpansionIsingSquareOnsager(t *testing.T) {
 // [0.5, 3] leaves room without letting a blind estimate pass.
 func TestTruncationEstimateAgainstOnsager(t *testing.T) {
 	l := mustLattice(t, "square:14x14:periodic")
-	var terms []lattice.Term
-	for _, b := range l.InteractionBonds() {
-		tm, _ := lattice.NewTerm("ZZ", []int{b.I, b.J}, -1)
-		terms = append(terms, tm)
-	}
+	terms := transverseIsingTerms(l, 0)
 	exp, err := cluster.NewExpansion(l, terms)
 	if err != nil {
 		t.Fatal(err)
@@ -320,15 +330,7 @@ func TestExpansionTransverseIsingChainPfeuty(t *testing.T) {
 		t.Fatalf("Pfeuty ln Z/N(0.5) = %.14f, references.md 0.91740898065185", got)
 	}
 	l := mustLattice(t, "chain:20:periodic")
-	var terms []lattice.Term
-	for _, b := range l.InteractionBonds() {
-		tm, _ := lattice.NewTerm("ZZ", []int{b.I, b.J}, -1)
-		terms = append(terms, tm)
-	}
-	for s := 0; s < l.NumSites(); s++ {
-		tm, _ := lattice.NewTerm("X", []int{s}, -1)
-		terms = append(terms, tm)
-	}
+	terms := transverseIsingTerms(l, 1)
 	exp, err := cluster.NewExpansion(l, terms)
 	if err != nil {
 		t.Fatal(err)
