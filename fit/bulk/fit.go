@@ -493,21 +493,40 @@ func (f *fitState) trustError() error {
 	return e
 }
 
-// covarianceOf returns (J^T J)^-1 of the weighted Jacobian.
+// covarianceOf returns (J^T J)^-1 of the weighted Jacobian. The normal
+// matrix is formed from the columns scaled to unit norm, so that its
+// condition number measures how well the data determine the parameters,
+// not how different their units are; the scaling is undone afterwards.
 func covarianceOf(jac *mat.Dense) (*mat.SymDense, error) {
-	_, k := jac.Dims()
+	n, k := jac.Dims()
+	scale := make([]float64, k)
+	scaled := mat.NewDense(n, k, nil)
+	for j := range k {
+		scale[j] = mat.Norm(jac.ColView(j), 2)
+		if scale[j] == 0 {
+			return nil, fmt.Errorf("a parameter does not change the model")
+		}
+		for i := range n {
+			scaled.Set(i, j, jac.At(i, j)/scale[j])
+		}
+	}
 	var ata mat.SymDense
-	ata.SymOuterK(1, jac.T())
+	ata.SymOuterK(1, scaled.T())
 	var chol mat.Cholesky
 	if !chol.Factorize(&ata) {
 		return nil, fmt.Errorf("the normal matrix is singular")
 	}
-	if cond := chol.Cond(); cond > 1e14 {
-		return nil, fmt.Errorf("the normal matrix has condition number %.2g", cond)
+	if cond := chol.Cond(); cond > 1e12 {
+		return nil, fmt.Errorf("the scaled normal matrix has condition number %.2g", cond)
 	}
 	cov := mat.NewSymDense(k, nil)
 	if err := chol.InverseTo(cov); err != nil {
 		return nil, err
+	}
+	for i := range k {
+		for j := i; j < k; j++ {
+			cov.SetSym(i, j, cov.At(i, j)/(scale[i]*scale[j]))
+		}
 	}
 	return cov, nil
 }

@@ -3,7 +3,7 @@ package bulk
 import "math"
 
 // levelThermo computes the per-site curves of a finite spectrum: level n
-// has energy x_n = scale*energy[n] - field*sz[n] in kelvin, and along the
+// (mult[n] eigenstates) has energy x_n = scale*energy[n] - field*sz[n] in kelvin, and along the
 // k-th tangent its energy moves by o[k][n] (Hellmann–Feynman). With
 // d = delta, central moments <dx dy> = <(x - <x>)(y - <y>)> and N sites:
 //
@@ -45,7 +45,7 @@ func levelThermo(lv *spinLevels, scale, field float64, o [][]float64, sites int,
 		beta := 1 / t
 		var z, mx, ms float64
 		for n := range x {
-			w[n] = math.Exp(-beta * (x[n] - xmin))
+			w[n] = lv.mult[n] * math.Exp(-beta*(x[n]-xmin))
 			z += w[n]
 			mx += w[n] * x[n]
 			ms += w[n] * lv.sz[n]

@@ -45,7 +45,10 @@ const (
 // square), with D_j the largest column norm of J seen so far, which makes
 // the method invariant to the units of the parameters. lambda is divided by
 // 10 after a step that lowers chi^2 and multiplied by 10 after one that
-// does not (Marquardt's rule). Steps are clipped to the bounds. The fit has
+// does not (Marquardt's rule). Steps are clipped to the bounds, and a
+// parameter on a bound that chi^2 pushes outwards is held there for the
+// step (an active set), so that the others take full Gauss–Newton steps
+// instead of zigzagging against the bound. The fit has
 // converged when the scaled step |D_j dx_j| falls below 1e-7 for every
 // parameter, which is far below the parameter's own standard error.
 func levenbergMarquardt(prob lsqProblem, x0 []float64) (lsqResult, error) {
@@ -80,6 +83,11 @@ func levenbergMarquardt(prob lsqProblem, x0 []float64) (lsqResult, error) {
 		aug.Slice(0, n, 0, k).(*mat.Dense).Copy(jac)
 		for j := range k {
 			aug.Set(n+j, j, math.Sqrt(lambda)*d[j])
+			if pinnedAtBound(x[j], prob.lower[j], prob.upper[j], jac.ColView(j), r) {
+				for i := range n {
+					aug.Set(i, j, 0)
+				}
+			}
 		}
 		for i := range n {
 			rhs.SetVec(i, -r[i])
@@ -135,6 +143,17 @@ func levenbergMarquardt(prob lsqProblem, x0 []float64) (lsqResult, error) {
 }
 
 func clamp(v, lo, hi float64) float64 { return min(max(v, lo), hi) }
+
+// pinnedAtBound reports whether a parameter at a bound would leave it
+// along the steepest descent of chi^2: the gradient component 2 J_j . r is
+// positive at a lower bound or negative at an upper one.
+func pinnedAtBound(x, lo, hi float64, col mat.Vector, r []float64) bool {
+	if x != lo && x != hi {
+		return false
+	}
+	g := mat.Dot(col, mat.NewVecDense(len(r), r))
+	return (x == lo && g > 0) || (x == hi && g < 0)
+}
 
 func sumSq(r []float64) float64 {
 	var s float64

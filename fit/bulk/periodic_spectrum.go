@@ -1,9 +1,11 @@
 package bulk
 
 import (
+	"cmp"
 	"errors"
 	"math"
 	"math/bits"
+	"slices"
 
 	"gonum.org/v1/gonum/mat"
 )
@@ -18,8 +20,10 @@ const maxPeriodicSites = 14
 type spinLevels struct {
 	energy []float64 // eigenvalues of H(c), kelvin
 	sz     []float64 // total S^z of each eigenstate
-	// diag[k][n] = <n|O_k|n>, the Hellmann–Feynman derivative dE_n/dc_k;
-	// nil when only eigenvalues were computed.
+	mult   []float64 // number of eigenstates merged into the level
+	// diag[k][n] = <n|O_k|n>, the Hellmann–Feynman derivative dE_n/dc_k,
+	// averaged over the merged eigenstates; nil when only eigenvalues were
+	// computed.
 	diag [][]float64
 }
 
@@ -145,13 +149,58 @@ func diagonalizeCluster(pc *periodicCluster, ops []bondOperator, c []float64, wi
 				}
 				lv.energy = append(lv.energy, e)
 				lv.sz = append(lv.sz, sz*float64(1-2*r))
+				lv.mult = append(lv.mult, 1)
 				for k := range diag {
 					lv.diag[k] = append(lv.diag[k], diag[k][i])
 				}
 			}
 		}
 	}
-	return lv, nil
+	return mergeDegenerate(lv), nil
+}
+
+// mergeDegenerate merges eigenstates of equal S^z whose energies agree to
+// rounding (1e-10 of the spectral range) into one level with a
+// multiplicity; their Hellmann–Feynman diagonals are averaged, which
+// leaves every thermal trace unchanged (only the trace of O over a
+// degenerate space enters). The SU(2) multiplets and lattice symmetries
+// make the merged spectrum several times shorter.
+func mergeDegenerate(lv *spinLevels) *spinLevels {
+	idx := make([]int, len(lv.energy))
+	span := 0.0
+	for i := range idx {
+		idx[i] = i
+		span = max(span, math.Abs(lv.energy[i]))
+	}
+	slices.SortFunc(idx, func(a, b int) int {
+		if c := cmp.Compare(lv.sz[a], lv.sz[b]); c != 0 {
+			return c
+		}
+		return cmp.Compare(lv.energy[a], lv.energy[b])
+	})
+	tol := 1e-10 * max(span, 1e-300)
+	out := &spinLevels{}
+	if lv.diag != nil {
+		out.diag = make([][]float64, len(lv.diag))
+	}
+	for _, i := range idx {
+		last := len(out.energy) - 1
+		if last >= 0 && out.sz[last] == lv.sz[i] && lv.energy[i]-out.energy[last] <= tol {
+			m := out.mult[last]
+			for k := range out.diag {
+				out.diag[k][last] = (out.diag[k][last]*m + lv.diag[k][i]) / (m + 1)
+			}
+			out.mult[last] = m + 1
+			continue
+		}
+		out.energy = append(out.energy, lv.energy[i])
+		out.sz = append(out.sz, lv.sz[i])
+		out.mult = append(out.mult, 1)
+		for k := range out.diag {
+			out.diag[k] = append(out.diag[k], lv.diag[k][i])
+		}
+	}
+	return out
 }
 
 // blockDiagonals returns <n|O_k|n> for the eigenvectors of one block.
