@@ -155,3 +155,7 @@ func parallel(n int, task func(i int) error) error {
 	}
 	return g.Wait()
 }
+
+// Fitted returns the candidate of the fit with its parameters at the
+// fitted values, for evaluating the fitted curves elsewhere (Predict).
+func (r *FitResult) Fitted() *Candidate { return withStart(r.Candidate, r) }

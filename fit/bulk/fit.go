@@ -164,6 +164,9 @@ type fitState struct {
 	data   []*Series
 	p      []float64 // all parameters
 	free   []int     // indices of the free parameters
+	// active are the free parameters that move the model on the points
+	// of the current round; the others are held (see fitOn).
+	active []int
 	sigma  []float64 // per series: common error when unknown, else NaN
 	res    *FitResult
 	lsq    lsqResult
@@ -177,7 +180,6 @@ func newFitState(c *Candidate, data []*Series) *fitState {
 		f.p = append(f.p, par.Value)
 		if !par.Fixed {
 			f.free = append(f.free, i)
-			f.res.Free = append(f.res.Free, par.Name)
 		}
 	}
 	f.sigma = make([]float64, len(data))
@@ -256,8 +258,11 @@ func (f *fitState) stderr(s, k int) float64 {
 func (f *fitState) fitOn(used [][]bool) error {
 	f.usedOf = used
 	f.nUsed = countTrue(used)
-	if f.nUsed <= len(f.free) {
-		return fmt.Errorf("candidate %s: %d trusted points for %d free parameters", f.c.Name, f.nUsed, len(f.free))
+	if err := f.chooseActive(); err != nil {
+		return err
+	}
+	if f.nUsed <= len(f.active) {
+		return fmt.Errorf("candidate %s: %d trusted points for %d free parameters", f.c.Name, f.nUsed, len(f.active))
 	}
 	for pass := 0; pass < 5; pass++ {
 		if err := f.runLM(); err != nil {
@@ -270,10 +275,36 @@ func (f *fitState) fitOn(used [][]bool) error {
 	return nil
 }
 
+// chooseActive holds free parameters that no fitted point depends on
+// (the phonon term when no C point is trusted, say): they cannot be
+// determined, and would make the normal matrix singular.
+func (f *fitState) chooseActive() error {
+	pr, err := f.c.predict(f.data, f.p)
+	if err != nil {
+		return err
+	}
+	f.active = f.active[:0]
+	for _, i := range f.free {
+		moves := false
+		for s := range f.data {
+			for k := range f.data[s].Points {
+				moves = moves || (f.usedOf[s][k] && pr.jac[s][k][i] != 0)
+			}
+		}
+		if moves {
+			f.active = append(f.active, i)
+		}
+	}
+	if len(f.active) == 0 {
+		return fmt.Errorf("candidate %s: no free parameter changes the model at the fitted points", f.c.Name)
+	}
+	return nil
+}
+
 func (f *fitState) runLM() error {
-	prob := lsqProblem{nRes: f.nUsed, nPar: len(f.free)}
-	x0 := make([]float64, len(f.free))
-	for j, i := range f.free {
+	prob := lsqProblem{nRes: f.nUsed, nPar: len(f.active)}
+	x0 := make([]float64, len(f.active))
+	for j, i := range f.active {
 		x0[j] = f.p[i]
 		info, _ := LookupParam(f.c.Params[i].Name)
 		prob.lower = append(prob.lower, info.Lower)
@@ -281,7 +312,7 @@ func (f *fitState) runLM() error {
 	}
 	full := slices.Clone(f.p)
 	prob.eval = func(x, r []float64, jac *mat.Dense) error {
-		for j, i := range f.free {
+		for j, i := range f.active {
 			full[i] = x[j]
 		}
 		pr, err := f.c.predict(f.data, full)
@@ -297,7 +328,7 @@ func (f *fitState) runLM() error {
 				sd := f.stderr(s, k)
 				r[row] = (pr.value[s][k] - pt.Value) / sd
 				if jac != nil {
-					for j, i := range f.free {
+					for j, i := range f.active {
 						jac.Set(row, j, pr.jac[s][k][i]/sd)
 					}
 				}
@@ -310,7 +341,7 @@ func (f *fitState) runLM() error {
 	if err != nil {
 		return fmt.Errorf("candidate %s: %w", f.c.Name, err)
 	}
-	for j, i := range f.free {
+	for j, i := range f.active {
 		f.p[i] = res.x[j]
 	}
 	f.lsq = res
@@ -326,7 +357,7 @@ func (f *fitState) updateSigmas() bool {
 		return false
 	}
 	changed := false
-	k, n := float64(len(f.free)), float64(f.nUsed)
+	k, n := float64(len(f.active)), float64(f.nUsed)
 	for s, ser := range f.data {
 		if !ser.StderrUnknown {
 			continue
@@ -366,11 +397,15 @@ func (f *fitState) finish(pr *prediction, used [][]bool) error {
 		f.warnf("the parameters %s are not all determined by these data (%v): their error bars are unknown", strings.Join(r.Free, ", "), err)
 	}
 	r.Covariance = cov
-	r.Correlation = correlationOf(cov, len(f.free))
+	r.Correlation = correlationOf(cov, len(f.active))
+	r.Free = nil
+	for _, i := range f.active {
+		r.Free = append(r.Free, f.c.Params[i].Name)
+	}
 	for i, par := range f.c.Params {
 		info, _ := LookupParam(par.Name)
 		est := ParamEstimate{Name: par.Name, Unit: info.Unit, Value: f.p[i], Fixed: par.Fixed}
-		if j := slices.Index(f.free, i); j >= 0 {
+		if j := slices.Index(f.active, i); j >= 0 {
 			est.Stderr = math.NaN()
 			if cov != nil {
 				est.Stderr = math.Sqrt(cov.At(j, j))
@@ -379,13 +414,16 @@ func (f *fitState) finish(pr *prediction, used [][]bool) error {
 			if est.AtBound {
 				f.warnf("%s ended on its bound %g: its error bar is one-sided; consider fixing it", par.Name, f.p[i])
 			}
+		} else if !par.Fixed {
+			est.Stderr = math.NaN()
+			f.warnf("%s does not change the model at any fitted point: held at its start value %g, undetermined", par.Name, f.p[i])
 		}
 		r.Params = append(r.Params, est)
 	}
 	f.fillSeries(pr, used)
 	f.noteCutMoves()
 	r.Points = f.nUsed
-	r.DOF = f.nUsed - len(f.free)
+	r.DOF = f.nUsed - len(f.active)
 	r.PValue = math.NaN()
 	if !r.ErrorsEstimated {
 		r.PValue = distuv.ChiSquared{K: float64(r.DOF)}.Survival(r.Chi2)
@@ -442,7 +480,7 @@ func (f *fitState) noteCutMoves() {
 // informationCriteria fills AIC and BIC.
 func (f *fitState) informationCriteria() {
 	r := f.res
-	k := float64(len(f.free))
+	k := float64(len(f.active))
 	n := float64(r.Points)
 	m2lnL := 0.0
 	for _, sf := range r.Series {

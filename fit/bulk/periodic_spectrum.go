@@ -21,6 +21,10 @@ type spinLevels struct {
 	energy []float64 // eigenvalues of H(c), kelvin
 	sz     []float64 // total S^z of each eigenstate
 	mult   []float64 // number of eigenstates merged into the level
+	// byEnergy orders the levels by energy (for merging across S^z at zero
+	// field) and span is the largest |energy|.
+	byEnergy []int
+	span     float64
 	// diag[k][n] = <n|O_k|n>, the Hellmann–Feynman derivative dE_n/dc_k,
 	// averaged over the merged eigenstates; nil when only eigenvalues were
 	// computed.
@@ -200,6 +204,12 @@ func mergeDegenerate(lv *spinLevels) *spinLevels {
 			out.diag[k] = append(out.diag[k], lv.diag[k][i])
 		}
 	}
+	out.span = span
+	out.byEnergy = make([]int, len(out.energy))
+	for i := range out.byEnergy {
+		out.byEnergy[i] = i
+	}
+	slices.SortFunc(out.byEnergy, func(a, b int) int { return cmp.Compare(out.energy[a], out.energy[b]) })
 	return out
 }
 
