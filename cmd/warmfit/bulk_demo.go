@@ -42,7 +42,7 @@ func orvaniteCurves() []orvaniteCurve {
 		{file: "orvanite_heat.csv", header: "T [K],C [J/(mol K)],C_err [J/(mol K)]", q: bulk.HeatCapacity,
 			about: "relaxation calorimetry in zero field, 4-45 K", xs: logSpaced(4, 45, 40), rel: 1e-2, floor: 2e-3},
 		{file: "orvanite_MH.csv", header: "T [K],H [T],M [mu_B/f.u.],M_err [mu_B/f.u.]", q: bulk.Magnetization,
-			about: "magnetisation sweeps 0.25-7 T at 2 K and 20 K", xs: linSpaced(0.25, 7, 28), temps: []float64{2, 20}, rel: 5e-3, floor: 2e-4},
+			about: "magnetisation sweeps 0.5-7 T at 2 K and 20 K", xs: linSpaced(0.5, 7, 14), temps: []float64{2, 20}, rel: 5e-3, floor: 2e-4},
 	}
 }
 

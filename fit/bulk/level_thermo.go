@@ -108,7 +108,13 @@ type energyGroups struct {
 }
 
 func groupLevels(lv *spinLevels, scale, field float64, o [][]float64) *energyGroups {
-	g := &energyGroups{o0: make([][]float64, len(o)), o1: make([][]float64, len(o)), o2: make([][]float64, len(o)), xmin: math.Inf(1)}
+	n := len(lv.energy)
+	alloc := func() []float64 { return make([]float64, 0, n) }
+	g := &energyGroups{x: alloc(), w0: alloc(), w1: alloc(), w2: alloc(), xmin: math.Inf(1),
+		o0: make([][]float64, len(o)), o1: make([][]float64, len(o)), o2: make([][]float64, len(o))}
+	for k := range o {
+		g.o0[k], g.o1[k], g.o2[k] = alloc(), alloc(), alloc()
+	}
 	order := lv.byEnergy
 	tol := 1e-10 * scale * lv.span
 	if field != 0 {

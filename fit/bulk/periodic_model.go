@@ -136,8 +136,8 @@ func (m *PeriodicClusterModel) Curves(req Request) (*Curves, error) {
 		scale = 1
 	}
 	alphas, parallel := tangentsAlong(dir, req.Tangents)
-	var out *Curves
-	var refCurves *Curves
+	ladder := trustLadder(req.Temps, scale)
+	var out, refCurves, outLadder, refLadder *Curves
 	for _, pc := range []*periodicCluster{m.main, m.ref} {
 		lv, err := m.levels(pc, dir, !parallel)
 		if err != nil {
@@ -145,14 +145,37 @@ func (m *PeriodicClusterModel) Curves(req Request) (*Curves, error) {
 		}
 		o := tangentShifts(lv, alphas, parallel, req.Tangents)
 		c := levelThermo(lv, scale, req.Field, o, pc.sites, req.Temps)
+		var l *Curves
+		if len(ladder) > 0 {
+			l = levelThermo(lv, scale, req.Field, nil, pc.sites, ladder)
+		}
 		if pc == m.main {
-			out = c
+			out, outLadder = c, l
 		} else {
-			refCurves = c
+			refCurves, refLadder = c, l
 		}
 	}
-	markFiniteSizeTrust(out, refCurves, m.tol)
+	markFiniteSizeTrust(out, refCurves, outLadder, refLadder, m.tol)
 	return out, nil
+}
+
+// trustLadder returns temperatures above the request, geometrically
+// spaced up to 50 times the coupling scale, at which the two clusters
+// must agree as well: two finite clusters can agree at low temperature
+// for the wrong reason (both frozen in their gapped ground states), and
+// trust must hold on the whole way down from high temperature.
+func trustLadder(temps []float64, scale float64) []float64 {
+	top := 50 * scale
+	t := temps[len(temps)-1]
+	if t >= top {
+		return nil
+	}
+	const n = 8
+	out := make([]float64, n)
+	for i := range out {
+		out[i] = t * math.Pow(top/t, float64(i+1)/n)
+	}
+	return out
 }
 
 // checkRequest refuses malformed requests (programmer or input mistakes
@@ -258,21 +281,30 @@ func (m *PeriodicClusterModel) levels(pc *periodicCluster, dir []float64, withDi
 
 // markFiniteSizeTrust sets TrustedFrom of every curve of c: the lowest
 // grid temperature from which upwards c agrees with ref to tol relative
-// (with an absolute floor for curves that vanish, such as m at h = 0).
-func markFiniteSizeTrust(c, ref *Curves, tol float64) {
-	pairs := [][2]*Curve{
-		{&c.LogZ, &ref.LogZ}, {&c.Energy, &ref.Energy}, {&c.Entropy, &ref.Entropy},
-		{&c.HeatCapacity, &ref.HeatCapacity}, {&c.Magnetization, &ref.Magnetization},
-		{&c.Susceptibility, &ref.Susceptibility},
+// (with an absolute floor for curves that vanish, such as m at h = 0),
+// at the grid points and at every ladder point above them.
+func markFiniteSizeTrust(c, ref, ladder, refLadder *Curves, tol float64) {
+	curves := func(x *Curves) []*Curve {
+		if x == nil {
+			return make([]*Curve, 6)
+		}
+		return []*Curve{&x.LogZ, &x.Energy, &x.Entropy, &x.HeatCapacity, &x.Magnetization, &x.Susceptibility}
 	}
-	for _, p := range pairs {
-		a, b := p[0].Value, p[1].Value
-		p[0].TrustedFrom = noTrust
-		for i := len(a) - 1; i >= 0; i-- {
-			if math.Abs(a[i]-b[i]) > tol*max(math.Abs(a[i]), math.Abs(b[i]))+1e-14 {
-				break
+	agree := func(a, b float64) bool { return math.Abs(a-b) <= tol*max(math.Abs(a), math.Abs(b))+1e-14 }
+	cs, rs, ls, lr := curves(c), curves(ref), curves(ladder), curves(refLadder)
+curves:
+	for q := range cs {
+		cs[q].TrustedFrom = noTrust
+		if ls[q] != nil {
+			for i := range ls[q].Value {
+				if !agree(ls[q].Value[i], lr[q].Value[i]) {
+					continue curves
+				}
 			}
-			p[0].TrustedFrom = c.Temps[i]
+		}
+		a, b := cs[q].Value, rs[q].Value
+		for i := len(a) - 1; i >= 0 && agree(a[i], b[i]); i-- {
+			cs[q].TrustedFrom = c.Temps[i]
 		}
 	}
 }
