@@ -160,10 +160,10 @@ func FitCandidate(c *Candidate, data []*Series, opt FitOptions) (*FitResult, err
 
 // fitState carries one candidate's fit.
 type fitState struct {
-	c      *Candidate
-	data   []*Series
-	p      []float64 // all parameters
-	free   []int     // indices of the free parameters
+	c    *Candidate
+	data []*Series
+	p    []float64 // all parameters
+	free []int     // indices of the free parameters
 	// active are the free parameters that move the model on the points
 	// of the current round; the others are held (see fitOn).
 	active []int
