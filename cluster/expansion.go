@@ -55,26 +55,8 @@ func NewExpansion(lat *lattice.Lattice, terms []lattice.Term) (*Expansion, error
 	if n > math.MaxInt32 {
 		return nil, fmt.Errorf("lattice has %d sites, more than the expansion supports", n)
 	}
-	for k, t := range terms {
-		if len(t.Sites) == 0 || len(t.Sites) != len(t.Pauli) {
-			return nil, fmt.Errorf("term %d (%s): %d letters on %d sites", k, t.Pauli, len(t.Pauli), len(t.Sites))
-		}
-		for i, s := range t.Sites {
-			if s < 0 || s >= n {
-				return nil, fmt.Errorf("term %d (%s): site %d out of range [0,%d)", k, t.Key(), s, n)
-			}
-			if i > 0 && s <= t.Sites[i-1] {
-				return nil, fmt.Errorf("term %d (%s): sites not strictly increasing", k, t.Key())
-			}
-		}
-		for i := 0; i < len(t.Pauli); i++ {
-			if c := t.Pauli[i]; c != 'X' && c != 'Y' && c != 'Z' {
-				return nil, fmt.Errorf("term %d (%s): letter %q is not X, Y or Z", k, t.Key(), c)
-			}
-		}
-		if !lat.Connected(t.Sites) {
-			return nil, fmt.Errorf("term %d (%s): support is not connected on the lattice's interaction graph", k, t.Key())
-		}
+	if err := lat.CheckTerms(terms); err != nil {
+		return nil, err
 	}
 	e := &Expansion{lat: lat, terms: terms}
 	e.sorted = make([]int32, len(terms))

@@ -47,7 +47,7 @@ func CoveringBases(n int, terms []lattice.Term) ([]string, error) {
 	if n <= 0 {
 		return nil, fmt.Errorf("number of qubits %d must be positive", n)
 	}
-	if err := checkTerms(n, terms); err != nil {
+	if err := lattice.CheckTerms(n, terms); err != nil {
 		return nil, err
 	}
 	if len(terms) == 0 {

@@ -3,6 +3,7 @@ package fit
 import (
 	"bufio"
 	"encoding/csv"
+	"errors"
 	"fmt"
 	"io"
 	"math"
@@ -186,14 +187,6 @@ func splitRecord(s string) ([]string, error) {
 func parseTableRow(fields []string) (Row, string, error) {
 	var row Row
 	pauli := strings.ToUpper(fields[0])
-	if pauli == "" {
-		return row, "pauli", fmt.Errorf("empty")
-	}
-	for i := 0; i < len(pauli); i++ {
-		if c := pauli[i]; c != 'X' && c != 'Y' && c != 'Z' {
-			return row, "pauli", fmt.Errorf("%q: letter %q is not X, Y or Z", fields[0], c)
-		}
-	}
 	parts := strings.Fields(fields[1])
 	if len(parts) == 0 {
 		return row, "sites", fmt.Errorf("empty")
@@ -202,16 +195,21 @@ func parseTableRow(fields []string) (Row, string, error) {
 	for i, p := range parts {
 		s, err := strconv.Atoi(p)
 		if err != nil || s < 0 {
+			if strings.ContainsAny(p, ",;") {
+				return row, "sites", fmt.Errorf("%q: separate sites by spaces, as in \"0 1\"", fields[1])
+			}
 			return row, "sites", fmt.Errorf("%q is not a site index (a non-negative integer)", p)
 		}
 		sites[i] = s
 	}
-	if len(sites) != len(pauli) {
-		return row, "sites", fmt.Errorf("%d sites for the %d letters of %q", len(sites), len(pauli), pauli)
-	}
 	cp, cs, err := lattice.Canonical(pauli, sites)
 	if err != nil {
-		return row, "sites", err
+		field := "sites"
+		var te *lattice.TermError
+		if errors.As(err, &te) {
+			field = te.Field
+		}
+		return row, field, err
 	}
 	row.Pauli, row.Sites = cp, cs
 

@@ -120,7 +120,7 @@ func TestReadTableErrors(t *testing.T) {
 		{"bad site", h + "ZZ,0 x,0.5,\n", `e.csv:2: field "sites": "x" is not a site index`},
 		{"negative site", h + "Z,-1,0.5,\n", `e.csv:2: field "sites": "-1" is not a site index`},
 		{"site count", h + "ZZ,0,0.5,\n", `e.csv:2: field "sites": 1 sites for the 2 letters of "ZZ"`},
-		{"repeated site", h + "ZZ,3 3,0.5,\n", `e.csv:2: field "sites": pauli "ZZ": site 3 repeated`},
+		{"repeated site", h + "ZZ,3 3,0.5,\n", `e.csv:2: field "sites": "ZZ": site 3 repeated`},
 		{"bad quoting", h + "Z,0,0.5,,\"x\n", `e.csv:2: malformed CSV`},
 	} {
 		t.Run(tc.name, func(t *testing.T) {
@@ -146,7 +146,7 @@ func TestWriteTableRefuses(t *testing.T) {
 		{"NaN stderr", Table{Rows: []Row{z(0.1, math.NaN(), true)}}, "table row 1 (Z 0): stderr is NaN"},
 		{"out of range", Table{Rows: []Row{z(1.5, 0.01, true)}}, "table row 1 (Z 0): value 1.5 lies outside"},
 		{"duplicate", Table{Rows: []Row{{Pauli: "XZ", Sites: []int{2, 1}}, {Pauli: "ZX", Sites: []int{1, 2}}}}, "table row 2 (ZX 1 2): term repeats row 1"},
-		{"bad term", Table{Rows: []Row{{Pauli: "Q", Sites: []int{0}}}}, "table row 1: pauli \"Q\""},
+		{"bad term", Table{Rows: []Row{{Pauli: "Q", Sites: []int{0}}}}, "table row 1: \"Q\": letter 'Q' is not X, Y or Z"},
 		{"extra count", Table{ExtraHeader: []string{"a"}, Rows: []Row{{Pauli: "Z", Sites: []int{0}, Extra: []string{"1", "2"}}}}, "2 extra fields, the table has 1"},
 	} {
 		t.Run(tc.name, func(t *testing.T) {

@@ -17,6 +17,7 @@ import (
 	"warmfit/cluster"
 	"warmfit/fit"
 	"warmfit/lattice"
+	"warmfit/lattice/model"
 	"warmfit/validate"
 )
 
@@ -32,13 +33,13 @@ type demoRun struct {
 	commands []demoCommand
 	files    []string // written, relative to out
 
-	device, template   *lattice.Model
+	device, template   *model.Model
 	bases              []string
-	fitted             *lattice.Model
+	fitted             *model.Model
 	fitReport          *fit.Report
 	array              *demoComparison
-	patchTruth         *lattice.Model
-	patchFitted        *lattice.Model
+	patchTruth         *model.Model
+	patchFitted        *model.Model
 	patchReport        *fit.Report
 	patch              *demoComparison
 	patchBases         []string
@@ -103,8 +104,8 @@ func (d *demoRun) write(name string, fn func(w io.Writer) error) error {
 	return nil
 }
 
-func (d *demoRun) writeModel(name string, m *lattice.Model) error {
-	return d.write(name, func(w io.Writer) error { return lattice.WriteModel(w, m) })
+func (d *demoRun) writeModel(name string, m *model.Model) error {
+	return d.write(name, func(w io.Writer) error { return model.Write(w, m) })
 }
 
 // invoke runs a warmfit subcommand in-process, exactly as the command
@@ -245,8 +246,8 @@ func (d *demoRun) fitArgs(template, data, truth, out string, order int) []string
 }
 
 // readFitted reads a fitted model and its report back from disk.
-func readFitted(path string) (*lattice.Model, *fit.Report, error) {
-	m, err := lattice.ReadModel(path)
+func readFitted(path string) (*model.Model, *fit.Report, error) {
+	m, err := model.ReadFile(path)
 	if err != nil {
 		return nil, nil, err
 	}
@@ -361,7 +362,7 @@ type demoEDCheck struct {
 	Elapsed    time.Duration
 }
 
-func expansionVersusExact(env *runEnv, m *lattice.Model, beta float64) (*demoEDCheck, error) {
+func expansionVersusExact(env *runEnv, m *model.Model, beta float64) (*demoEDCheck, error) {
 	t0 := time.Now()
 	n := m.Lattice.NumSites()
 	th, err := validate.ExactThermal(n, m.Terms, beta)

@@ -13,6 +13,7 @@ import (
 	"warmfit/cluster"
 	"warmfit/fit"
 	"warmfit/lattice"
+	"warmfit/lattice/model"
 	"warmfit/validate"
 )
 
@@ -98,11 +99,11 @@ warmfit expect --model m.json --method exact`,
 
 // loadModelBeta reads a model and settles the inverse temperature: the
 // flag wins over the file; one of them must give a positive value.
-func loadModelBeta(path string, beta betaFlag) (*lattice.Model, float64, error) {
+func loadModelBeta(path string, beta betaFlag) (*model.Model, float64, error) {
 	if path == "" {
 		return nil, 0, usagef("--model is required")
 	}
-	m, err := lattice.ReadModel(path)
+	m, err := model.ReadFile(path)
 	if err != nil {
 		return nil, 0, err
 	}
@@ -133,7 +134,7 @@ const autoOrderStepLimit = 3 * time.Second
 // is untrusted, up to a ceiling by lattice dimension, and stops rising
 // once one evaluation took autoOrderStepLimit. It returns the last
 // evaluation and its order.
-func autoOrder(env *runEnv, m *lattice.Model, evaluate func(L int) (*cluster.Result, error), tol float64) (*cluster.Result, int, error) {
+func autoOrder(env *runEnv, m *model.Model, evaluate func(L int) (*cluster.Result, error), tol float64) (*cluster.Result, int, error) {
 	L, ceiling := autoOrderRange(m.Lattice)
 	var prev *cluster.Result
 	for {
@@ -202,7 +203,7 @@ func defaultOrder(l *lattice.Lattice) int {
 	}
 }
 
-func modelCoeffs(m *lattice.Model) []float64 {
+func modelCoeffs(m *model.Model) []float64 {
 	c := make([]float64, len(m.Terms))
 	for k, t := range m.Terms {
 		c[k] = t.Coeff
@@ -210,7 +211,7 @@ func modelCoeffs(m *lattice.Model) []float64 {
 	return c
 }
 
-func expectByExpansion(env *runEnv, m *lattice.Model, beta float64, order int, tol float64) (*fit.Table, error) {
+func expectByExpansion(env *runEnv, m *model.Model, beta float64, order int, tol float64) (*fit.Table, error) {
 	exp, err := cluster.NewExpansion(m.Lattice, m.Terms)
 	if err != nil {
 		return nil, err
@@ -308,7 +309,7 @@ func boundLine(b cluster.ThresholdBound, beta float64) string {
 	return fmt.Sprintf("sufficient-temperature bound (cluster-expansion criterion, term-overlap degree %d): beta < %.3g; this beta is %s it, so trust rests on the measured convergence", b.Degree, b.Beta, rel)
 }
 
-func expectExact(env *runEnv, m *lattice.Model, beta float64, vectors int, seed uint64) (*fit.Table, error) {
+func expectExact(env *runEnv, m *model.Model, beta float64, vectors int, seed uint64) (*fit.Table, error) {
 	n := m.Lattice.NumSites()
 	if n > validate.MaxTypicalityQubits {
 		return nil, fmt.Errorf("--method exact handles at most %d qubits (dense up to %d, thermal typicality beyond); this model has %d: use --method expansion",

@@ -16,6 +16,7 @@ import (
 	"warmfit/cluster"
 	"warmfit/fit"
 	"warmfit/lattice"
+	"warmfit/lattice/model"
 )
 
 // fitOptions holds the flags of "warmfit fit"; Flags resets them on every
@@ -153,7 +154,7 @@ func runFit(env *runEnv, args []string) error {
 		return usagef("--start %q: want first-order or template", o.start)
 	}
 
-	tmpl, err := lattice.ReadModel(o.model)
+	tmpl, err := model.ReadFile(o.model)
 	if err != nil {
 		return err
 	}
@@ -166,9 +167,9 @@ func runFit(env *runEnv, args []string) error {
 	if err != nil {
 		return err
 	}
-	var truth *lattice.Model
+	var truth *model.Model
 	if o.truth != "" {
-		if truth, err = lattice.ReadModel(o.truth); err != nil {
+		if truth, err = model.ReadFile(o.truth); err != nil {
 			return err
 		}
 	}
@@ -240,7 +241,7 @@ func runFit(env *runEnv, args []string) error {
 
 // fitLoadData reads a table or snapshot file into estimates aligned with
 // the template's terms.
-func fitLoadData(path, tmplPath string, tmpl *lattice.Model, covDist int) (*fit.Estimates, string, error) {
+func fitLoadData(path, tmplPath string, tmpl *model.Model, covDist int) (*fit.Estimates, string, error) {
 	kind, err := fit.DetectDataKind(path)
 	if err != nil {
 		return nil, "", err
@@ -334,7 +335,7 @@ func fitUnconvergedPath(out string) string {
 
 // fitWriteModel writes the fitted model with per-term stderr and the fit
 // report; terms get "significant" when it was computed.
-func fitWriteModel(w io.Writer, tmpl *lattice.Model, res *fit.Result, rep *fit.Report) error {
+func fitWriteModel(w io.Writer, tmpl *model.Model, res *fit.Result, rep *fit.Report) error {
 	raw, err := rep.JSON()
 	if err != nil {
 		return fmt.Errorf("fit report: %v", err)
@@ -346,8 +347,8 @@ func fitWriteModel(w io.Writer, tmpl *lattice.Model, res *fit.Result, rep *fit.R
 			terms[k].Significant = &flag
 		}
 	}
-	m := &lattice.Model{Lattice: tmpl.Lattice, Beta: res.Beta, Terms: terms, Units: tmpl.Units, Fit: raw}
-	return lattice.WriteModel(w, m)
+	m := &model.Model{Lattice: tmpl.Lattice, Beta: res.Beta, Terms: terms, Units: tmpl.Units, Fit: raw}
+	return model.Write(w, m)
 }
 
 // fitWriteCSV writes pauli,sites,coeff,stderr,significant with the

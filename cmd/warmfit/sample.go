@@ -15,6 +15,7 @@ import (
 	"warmfit/cluster"
 	"warmfit/fit"
 	"warmfit/lattice"
+	"warmfit/lattice/model"
 	"warmfit/validate"
 )
 
@@ -120,7 +121,7 @@ func chooseBases(scheme string, n int, terms []lattice.Term, seed uint64) ([]str
 	}
 }
 
-func sampleExact(env *runEnv, m *lattice.Model, beta float64, bases []string, shots int64, seed uint64, out string) error {
+func sampleExact(env *runEnv, m *model.Model, beta float64, bases []string, shots int64, seed uint64, out string) error {
 	start := time.Now()
 	s, err := validate.NewSampler(m.Lattice.NumSites(), m.Terms, beta)
 	if err != nil {
@@ -155,7 +156,7 @@ func sampleExact(env *runEnv, m *lattice.Model, beta float64, bases []string, sh
 	})
 }
 
-func sampleBinomial(env *runEnv, m *lattice.Model, beta float64, bases []string, shots int64, seed uint64, order int, out string) error {
+func sampleBinomial(env *runEnv, m *model.Model, beta float64, bases []string, shots int64, seed uint64, order int, out string) error {
 	if order == 0 {
 		order = defaultOrder(m.Lattice)
 	}

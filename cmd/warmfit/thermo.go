@@ -12,7 +12,7 @@ import (
 	"github.com/spf13/pflag"
 
 	"warmfit/cluster"
-	"warmfit/lattice"
+	"warmfit/lattice/model"
 )
 
 func init() {
@@ -63,7 +63,7 @@ warmfit thermo --model h.json --beta-range 0.05:1:20 --order 6`,
 			if err != nil {
 				return err
 			}
-			m, err := lattice.ReadModel(modelPath)
+			m, err := model.ReadFile(modelPath)
 			if err != nil {
 				return err
 			}
