@@ -107,15 +107,6 @@ type Options struct {
 	Progress func(done, total int)
 }
 
-// DefaultMaxWork is about an hour of work on a current 2-core machine:
-// measured about 1.2 ns per unit (20x20 square lattice at order 6,
-// 1.8e10 units, 21 s with two workers).
-const DefaultMaxWork = 3e12
-
-// secondsPerWorkUnit is the measured wall time per unit of work with two
-// workers, for the estimates quoted in refusals.
-const secondsPerWorkUnit = 1.2e-9
-
 // Result holds the partial sums of the expansion at every order 1..Order.
 // Extensive quantities are totals over the lattice; divide by NumSites for
 // per-site values.
@@ -148,46 +139,6 @@ func (r *Result) Entropy(o int) float64 {
 	return r.LogZ[o-1] + float64(r.NumSites)*math.Ln2 + r.Beta*r.Energy[o-1]
 }
 
-// EstimateWork returns the expected number of clusters and the work
-// (sum over clusters of 8^size, the cost D^3 of diagonalising each) of an
-// evaluation at the given order, from an enumeration around a sample of
-// anchor sites rather than all of them.
-func (e *Expansion) EstimateWork(order int) (clusters int64, work float64) {
-	counts := estimateClusterCounts(e.lat, order)
-	for s, c := range counts {
-		clusters += int64(c)
-		work += c * math.Pow(8, float64(s+1))
-	}
-	return clusters, work
-}
-
-// estimateClusterCounts estimates the number of clusters of each size
-// 1..order by enumerating from a few anchors spread over the lattice and
-// scaling by the number of sites. Anchors far from the lattice's edges
-// dominate on large lattices; on small ones every anchor is sampled and the
-// count is exact.
-func estimateClusterCounts(lat *lattice.Lattice, order int) []float64 {
-	n := lat.NumSites()
-	const sample = 24
-	step := 1
-	if n > sample {
-		step = n / sample
-	}
-	counts := make([]float64, order)
-	used := 0
-	for a := 0; a < n; a += step {
-		used++
-		lat.EachClusterFrom(a, order, func(sites []int) bool {
-			counts[len(sites)-1]++
-			return true
-		})
-	}
-	for i := range counts {
-		counts[i] *= float64(n) / float64(used)
-	}
-	return counts
-}
-
 // Evaluate sums the expansion for the coefficients coeffs (one per term,
 // in the order of Terms) at inverse temperature beta.
 func (e *Expansion) Evaluate(coeffs []float64, beta float64, opt Options) (*Result, error) {
@@ -201,8 +152,7 @@ func (e *Expansion) Evaluate(coeffs []float64, beta float64, opt Options) (*Resu
 	if err != nil {
 		return nil, err
 	}
-	n := e.lat.NumSites()
-	blocks := anchorBlocks(n)
+	blocks := e.lat.AnchorBlocks()
 	accs := make([]*blockAcc, len(blocks))
 	err = e.runBlocks(blocks, workers, opt.Progress, func(w *clusterWork, b int) error {
 		acc, err := e.evaluateBlock(w, blocks[b], coeffs, beta, L, opt.Response)
@@ -230,18 +180,12 @@ func (e *Expansion) checkRun(coeffs []float64, opt Options) (L, workers int, err
 	if L > MaxDenseQubits {
 		return 0, 0, fmt.Errorf("expansion order %d: clusters above %d sites are beyond dense diagonalisation", L, MaxDenseQubits)
 	}
-	maxWork := opt.MaxWork
-	if maxWork <= 0 {
-		maxWork = DefaultMaxWork
-	}
-	if nc, work := e.EstimateWork(L); work > maxWork {
-		hours := work * secondsPerWorkUnit / 3600
-		return 0, 0, fmt.Errorf("expansion order %d on %d sites: about %d clusters, roughly %.3g hours on a 2-core machine (%.3g units of work, over the limit %.3g); lower the order",
-			L, e.lat.NumSites(), nc, hours, work, maxWork)
-	}
 	workers = opt.Workers
 	if workers <= 0 {
 		workers = runtime.GOMAXPROCS(0)
+	}
+	if err := e.checkWork(L, opt.MaxWork); err != nil {
+		return 0, 0, err
 	}
 	return L, workers, nil
 }
@@ -272,22 +216,6 @@ func (e *Expansion) runBlocks(blocks [][2]int, workers int, progress func(done, 
 		})
 	}
 	return g.Wait()
-}
-
-// anchorBlocks cuts the anchor sites into contiguous blocks whose number
-// depends only on n, so the summation order, and hence every bit of the
-// result, is the same for any worker count.
-func anchorBlocks(n int) [][2]int {
-	const target = 256
-	size := (n + target - 1) / target
-	if size < 1 {
-		size = 1
-	}
-	var out [][2]int
-	for a := 0; a < n; a += size {
-		out = append(out, [2]int{a, min(a+size, n)})
-	}
-	return out
 }
 
 // blockAcc accumulates the contributions of the clusters anchored in one

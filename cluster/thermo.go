@@ -41,7 +41,7 @@ func (e *Expansion) Thermodynamics(coeffs []float64, betas []float64, opt Option
 		return nil, err
 	}
 	nb := len(betas)
-	blocks := anchorBlocks(e.lat.NumSites())
+	blocks := e.lat.AnchorBlocks()
 	// One flat slot per block: [quantity][beta][order].
 	slots := make([][]float64, len(blocks))
 	err = e.runBlocks(blocks, workers, opt.Progress, func(w *clusterWork, b int) error {

@@ -10,6 +10,15 @@ import (
 	"warmfit/lattice"
 )
 
+func mustLattice(t testing.TB, spec string) *lattice.Lattice {
+	t.Helper()
+	l, err := lattice.Open(spec)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return l
+}
+
 func mustTerm(t testing.TB, pauli string, sites ...int) lattice.Term {
 	t.Helper()
 	term, err := lattice.NewTerm(pauli, sites, 0)

@@ -4,6 +4,7 @@ import (
 	"math"
 	"os"
 	"path/filepath"
+	"slices"
 	"strconv"
 	"strings"
 	"testing"
@@ -117,9 +118,9 @@ func TestExpectBadInput(t *testing.T) {
 	}
 }
 
-// With too few orders to judge a value, the table must not claim it exact
-// (an empty stderr means exact in formats.md).
-func TestExpectUnknownTruncationIsNotExact(t *testing.T) {
+// With too few orders to judge a value, the table says so: its
+// truncation error is n/a and it is not trusted.
+func TestExpectUnknownTruncationIsNotTrusted(t *testing.T) {
 	modelPath := writeTestModel(t, t.TempDir())
 	code, out, stderr := runCmd("expect", "--model", modelPath, "--order", "2")
 	if code != 0 {
@@ -128,9 +129,42 @@ func TestExpectUnknownTruncationIsNotExact(t *testing.T) {
 	if !strings.Contains(stderr, "cannot be judged") {
 		t.Errorf("no warning about unjudged values:\n%s", stderr)
 	}
-	for _, r := range readTable(t, out).Rows {
-		if !r.HasStderr {
-			t.Errorf("%s written as exact", r.Key())
+	tab := readTable(t, out)
+	errCol := slices.Index(tab.ExtraHeader, "trunc_error")
+	trustCol := slices.Index(tab.ExtraHeader, "trusted")
+	for _, r := range tab.Rows {
+		if r.Extra[errCol] == "n/a" && r.Extra[trustCol] != "false" {
+			t.Errorf("%s: unjudged value marked trusted", r.Key())
+		}
+	}
+}
+
+// A prediction fits back to the model that made it (the round trip a
+// user expects; common practice): the table's values are exact
+// predictions, so the fit reaches its exact-data tolerance.
+func TestExpectFitRoundTrip(t *testing.T) {
+	dir := t.TempDir()
+	modelPath := writeTestModel(t, dir)
+	table := filepath.Join(dir, "e.csv")
+	if code, _, stderr := runCmd("expect", "--model", modelPath, "--order", "6", "-o", table); code != 0 {
+		t.Fatalf("expect: exit %d: %s", code, stderr)
+	}
+	fitted := filepath.Join(dir, "fitted.json")
+	code, _, stderr := runCmd("fit", "--model", modelPath, "--data", table, "--order", "6", "-o", fitted)
+	if code != 0 {
+		t.Fatalf("fit: exit %d: %s", code, stderr)
+	}
+	want, err := model.ReadFile(modelPath)
+	if err != nil {
+		t.Fatal(err)
+	}
+	got, err := model.ReadFile(fitted)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for k := range want.Terms {
+		if d := math.Abs(got.Terms[k].Coeff - want.Terms[k].Coeff); d > 1e-8 {
+			t.Errorf("%s: fitted %v, model %v", want.Terms[k].Key(), got.Terms[k].Coeff, want.Terms[k].Coeff)
 		}
 	}
 }

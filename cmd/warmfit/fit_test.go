@@ -208,7 +208,7 @@ func TestFitCommandBadInput(t *testing.T) {
 		args []string
 		want string
 	}{
-		{"term not in template", []string{"--data", "../../testdata/fit/extra_term.csv"}, "not in the template"},
+		{"term not in template", []string{"--data", "../../testdata/fit/extra_term.csv"}, "line 10: Z 2 is not a term of the template"},
 		{"value beyond 5 sigma", []string{"--data", "../../testdata/fit/out_of_range.csv"}, `out_of_range.csv:7: field "value"`},
 		{"basis length", []string{"--data", "../../testdata/fit/bad_basis.csv"}, "bad_basis.csv:4"},
 		{"no such data", []string{"--data", filepath.Join(dir, "missing.csv")}, "missing.csv"},

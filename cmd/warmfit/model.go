@@ -41,13 +41,13 @@ func init() {
 		Example: modelExample,
 		Flags: func(fs *pflag.FlagSet) {
 			o := &modelOptions
-			o.beta, o.shells = betaFlag{}, modelIntFlag{}
+			o.shells = modelIntFlag{}
 			fs.StringVar(&o.lattice, "lattice", "", "lattice specification (square:4x4, chain:12:periodic, ...) or JSON file")
 			fs.StringVar(&o.preset, "preset", "", "model family: "+strings.Join(model.PresetNames(), ", "))
 			fs.StringSliceVar(&o.set, "set", nil, "coefficients, NAME=VALUE[,NAME=VALUE...] (repeatable)")
 			fs.Float64Var(&o.disorder, "disorder", 0, "add an independent uniform shift in [-W, W) to every coefficient")
 			fs.Uint64Var(&o.seed, "seed", 1, "seed of the disorder")
-			fs.Var(&o.beta, "beta", "inverse temperature to record in the model (> 0)")
+			addBetaFlag(fs, &o.beta, "inverse temperature to record in the model (> 0)")
 			fs.Var(&o.shells, "shells", "neighbour shells of the interaction graph, 1 or 2 (overrides the lattice)")
 			fs.BoolVar(&o.tie, "tie", false, "give terms of one preset parameter a common group (uniform fit)")
 			fs.StringVar(&o.units, "units", "", "energy unit of the coefficients, recorded in the model")
@@ -275,7 +275,7 @@ func modelSummary(name string, m *model.Model) string {
 	if m.Units != "" {
 		unit = " " + m.Units
 	}
-	fmt.Fprintf(&b, ". Coefficients from %s to %s%s (max |coeff| %s)", modelG4(lo), modelG4(hi), unit, modelG4(maxAbs))
+	fmt.Fprintf(&b, ". Coefficients from %s to %s%s (max |coeff| %s)", formatG(lo, 4), formatG(hi, 4), unit, formatG(maxAbs, 4))
 	if withErr > 0 {
 		fmt.Fprintf(&b, ", %d with standard errors", withErr)
 	}
@@ -283,7 +283,7 @@ func modelSummary(name string, m *model.Model) string {
 		b.WriteString("; the file carries a fit report")
 	}
 	if m.Beta > 0 {
-		fmt.Fprintf(&b, ". beta = %s, beta*max|coeff| = %s (the expansion converges best when this is small)", modelG4(m.Beta), modelG4(m.Beta*maxAbs))
+		fmt.Fprintf(&b, ". beta = %s, beta*max|coeff| = %s (the expansion converges best when this is small)", formatG(m.Beta, 4), formatG(m.Beta*maxAbs, 4))
 	} else {
 		b.WriteString(". No beta: give --beta to commands that need one")
 	}
@@ -313,8 +313,6 @@ func modelCountLetters(terms []lattice.Term) string {
 	}
 	return strings.Join(parts, ", ")
 }
-
-func modelG4(v float64) string { return strconv.FormatFloat(v, 'g', 4, 64) }
 
 // modelWrapText breaks a paragraph into lines of at most width characters.
 func modelWrapText(s string, width int) string {
