@@ -153,15 +153,7 @@ func (d *Document) open(name string) elem {
 	return elem{d: d, b: &d.body, name: name}
 }
 
-func (e elem) num(attr string, v float64) elem {
-	s, ok := formatNumber(v)
-	if !ok {
-		e.d.failf("%s attribute %s: non-finite value %v", e.name, attr, v)
-		s = "0"
-	}
-	e.b.WriteString(" " + attr + `="` + s + `"`)
-	return e
-}
+func (e elem) num(attr string, v float64) elem { return e.nums(attr, []float64{v}, "") }
 
 // nums writes a list of numbers separated by sep (points, dash arrays).
 func (e elem) nums(attr string, vs []float64, sep string) elem {

@@ -42,9 +42,21 @@ func linearTicks(lo, hi, step float64) []float64 {
 	first := math.Ceil(lo/step - 1e-9)
 	var ticks []float64
 	for k := first; k*step <= hi+step*1e-9 && len(ticks) < maxTicks; k++ {
-		ticks = append(ticks, k*step)
+		ticks = append(ticks, multiple(k, step))
 	}
 	return ticks
+}
+
+// multiple returns k times step, dividing by 1/step when that is a
+// whole number so that 28 x 0.2 comes out as 5.6 and not
+// 5.6000000000000005.
+func multiple(k, step float64) float64 {
+	if step < 1 {
+		if inv := math.Round(1 / step); math.Abs(inv*step-1) < 1e-12 {
+			return k / inv
+		}
+	}
+	return k * step
 }
 
 // widen returns [lo, hi] widened outward to multiples of a nice step for
@@ -59,7 +71,7 @@ func widen(lo, hi float64, target int, integer bool) (float64, float64) {
 		lo, hi = lo-d, hi+d
 	}
 	step := niceStep(hi-lo, target, integer)
-	return math.Floor(lo/step+1e-9) * step, math.Ceil(hi/step-1e-9) * step
+	return multiple(math.Floor(lo/step+1e-9), step), multiple(math.Ceil(hi/step-1e-9), step)
 }
 
 // logTicks returns the decades 10^k inside [lo, hi] (lo > 0) as major
