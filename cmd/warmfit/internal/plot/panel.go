@@ -206,7 +206,7 @@ func (p *Panel) drawFrame() {
 	p.drawXTicks(spine)
 	p.drawYTicks(spine)
 	if p.title != "" {
-		d.Text(a.X, a.Y-titleGap-2, p.title, TextStyle{Size: sizePanelTitle, Bold: true})
+		d.Subheading(a.X, a.Y-titleGap-2, p.title)
 	}
 	p.clipArea = d.clipPath(a)
 	p.clipMarks = d.clipPath(a.Inset(-(markerRadius + 2)))

@@ -88,3 +88,16 @@ func TestAxisFitting(t *testing.T) {
 		t.Error("a step giving a billion ticks should be refused")
 	}
 }
+
+func TestRectGrid(t *testing.T) {
+	cells := Rect{10, 20, 210, 100}.Grid(2, 2, 10, 20)
+	want := []Rect{{10, 20, 100, 40}, {120, 20, 100, 40}, {10, 80, 100, 40}, {120, 80, 100, 40}}
+	if len(cells) != len(want) {
+		t.Fatalf("%d cells", len(cells))
+	}
+	for i := range want {
+		if cells[i] != want[i] {
+			t.Errorf("cell %d: %+v, want %+v", i, cells[i], want[i])
+		}
+	}
+}

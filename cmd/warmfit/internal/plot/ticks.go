@@ -12,6 +12,12 @@ var (
 	integerSteps = []float64{1, 2, 5, 10}
 )
 
+// NiceStep returns the smallest step of 1, 2, 2.5 or 5 times a power of
+// ten that divides span into at most intervals parts: for a histogram's
+// bin width, or a tick step two axes should share (Axis.Step). A span
+// that is not positive and finite gets 1.
+func NiceStep(span float64, intervals int) float64 { return niceStep(span, intervals, false) }
+
 // niceStep returns the smallest nice step at least span/target; integer
 // axes get steps of at least 1.
 func niceStep(span float64, target int, integer bool) float64 {

@@ -29,6 +29,15 @@ func TestNiceStep(t *testing.T) {
 	}
 }
 
+func TestExportedNiceStep(t *testing.T) {
+	if got := NiceStep(8, 16); got != 0.5 {
+		t.Errorf("NiceStep(8, 16) = %v, want 0.5", got)
+	}
+	if got := NiceStep(1.7, 6); got != 0.5 {
+		t.Errorf("NiceStep(1.7, 6) = %v, want 0.5", got)
+	}
+}
+
 func TestLinearTicksAndWiden(t *testing.T) {
 	if got := linearTicks(-0.3, 0.61, 0.2); !slices.Equal(got, []float64{-0.2, 0, 0.2, 0.4, 0.6}) {
 		t.Errorf("ticks %v", got)
