@@ -15,14 +15,7 @@ var xyzToLMS = [3][3]float64{
 	{0.0482003018, 0.2643662691, 0.6338517070},
 }
 
-func xyzToOKLab(xyz [3]float64) oklab {
-	lms := mul3(xyzToLMS, xyz)
-	for i := range lms {
-		lms[i] = math.Cbrt(lms[i])
-	}
-	lab := mul3(lmsToLab, lms)
-	return oklab{lab[0], lab[1], lab[2]}
-}
+func xyzToOKLab(xyz [3]float64) oklab { return lmsToOKLab(mul3(xyzToLMS, xyz)) }
 
 func TestOKLabPublishedTable(t *testing.T) {
 	for _, tt := range []struct {
