@@ -1,0 +1,62 @@
+package plot
+
+// The house style: one set of fonts, sizes, weights and inks for every
+// figure, so that a reader knows a warmfit figure at a glance. The
+// package documentation describes it; change it here and nowhere else.
+
+// fontFamily prefers humanist sans faces that are common on scientific
+// desktops, then the condensed DejaVu face that most Linux systems ship.
+// Text widths are estimated for the widest of them (see textWidth), so
+// layouts hold with any of the fallbacks.
+const fontFamily = "Fira Sans, Noto Sans, DejaVu Sans Condensed, Arial, sans-serif"
+
+// Font sizes in pixels.
+const (
+	sizeFigureTitle = 15
+	sizePanelTitle  = 12.5
+	sizeAxisLabel   = 12
+	sizeTick        = 10.5
+	sizeLegend      = 10.5
+	sizeNote        = 11
+	sizeSiteNumber  = 12
+)
+
+// Line weights in pixels.
+const (
+	weightData  = 1.7 // curves
+	weightThin  = 1.0 // error bars, reference lines
+	weightAxis  = 0.9 // spines and ticks
+	weightGrid  = 0.6
+	weightFrame = 0.8 // legend box, colour bar edge
+)
+
+// Inks and grounds.
+var (
+	inkColor   = hexColor("#27231f") // text, spines: a warm near-black
+	mutedColor = hexColor("#6d665d") // notes, secondary text
+	gridColor  = hexColor("#dcd6cb")
+	frameColor = hexColor("#8f887d")
+	paperColor = hexColor("#fbf9f4") // figure background, a warm off-white
+	plotColor  = hexColor("#ffffff") // inside a panel
+	// refColor draws reference curves and lines (y = x, a normal
+	// density, zero lines): a dark neutral that no data colour uses.
+	refColor = hexColor("#4a4640")
+)
+
+// gridDash is the dash pattern of grid lines: short dots that stay light.
+var gridDash = []float64{1.2, 2.8}
+
+// Layout measures in pixels.
+const (
+	tickLength    = 4
+	tickGap       = 3   // between a tick mark and its label
+	labelGap      = 6   // between tick labels and the axis label
+	titleGap      = 7   // between a panel title's baseline and the plot area
+	markerRadius  = 3.4 // default marker size
+	markerOutline = 0.7
+	outlineShade  = -0.24 // OKLab lightness change from a fill to its outline
+	legendPad     = 6
+	legendInset   = 6 // between a legend and the plot area's edge
+	legendSample  = 24
+	lineHeight    = 1.35 // in font sizes
+)
