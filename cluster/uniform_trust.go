@@ -29,6 +29,10 @@ type TrustOptions struct {
 	// model on the square lattice has S_9 within 4e-4 of S_8 at T = 3
 	// while both miss Onsager's energy by 1.3e-2.
 	BareOrders int
+	// Order judges the partial sums up to this order instead of the
+	// result's highest (0 means the highest), so that one evaluation
+	// gives the curves of every order.
+	Order int
 }
 
 // Trust says which estimate of a curve point holds.
@@ -103,6 +107,9 @@ type Curve struct {
 // untrusted one is left out of the reach but keeps its own mark.
 func (r *UniformResult) Curve(q Quantity, f int, opt TrustOptions) Curve {
 	L := r.Order
+	if opt.Order > 0 {
+		L = min(opt.Order, r.Order)
+	}
 	c := Curve{Quantity: q, Field: r.Fields[f], Temperatures: r.Temperatures, Order: L,
 		Tolerance: opt.Tolerance, EulerStart: opt.EulerStart, WynnCycles: opt.WynnCycles, BareOrders: opt.BareOrders}
 	if c.BareOrders <= 0 {
@@ -118,7 +125,7 @@ func (r *UniformResult) Curve(q Quantity, f int, opt TrustOptions) Curve {
 	if c.WynnCycles <= 0 {
 		c.WynnCycles = max(1, (L-1)/4)
 	}
-	sums := r.PartialSums(q, f)
+	sums := r.PartialSums(q, f)[:L]
 	var derivs [][][]float64
 	for p := range r.Couplings {
 		d, err := r.Derivative(q, f, p)
@@ -126,7 +133,7 @@ func (r *UniformResult) Curve(q Quantity, f int, opt TrustOptions) Curve {
 			derivs = nil
 			break
 		}
-		derivs = append(derivs, d)
+		derivs = append(derivs, d[:L])
 	}
 	nT := len(r.Temperatures)
 	grid := func() []float64 { return make([]float64, nT) }
