@@ -10,9 +10,9 @@ import (
 type sectorKind uint8
 
 const (
-	oneSector   sectorKind = iota // the whole space
-	byPopcount                    // number of qubits in state 1 (TotalZ)
-	byParity                      // its parity (ParityZ, ParityX, ParityY)
+	oneSector  sectorKind = iota // the whole space
+	byPopcount                   // number of qubits in state 1 (TotalZ)
+	byParity                     // its parity (ParityZ, ParityX, ParityY)
 )
 
 func (s Symmetry) sectorKind() sectorKind {
