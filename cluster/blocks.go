@@ -166,9 +166,14 @@ type blocks struct {
 	nq    int
 	sym   Symmetry
 	real  bool
-	basis blockBasis
+	// bases keeps the sector basis of every number of qubits, since the
+	// expansion alternates between cluster sizes; bases[nq] is current.
+	bases [MaxDenseQubits + 1]blockBasis
 	frame Hamiltonian // scratch for the relabelled operators
 }
+
+// basis returns the sector basis of the current problem.
+func (bk *blocks) basis() *blockBasis { return &bk.bases[bk.nq] }
 
 // setup checks h and the symmetry and returns h in the symmetry's frame.
 // It refuses more than MaxDenseQubits qubits before allocating anything.
@@ -189,7 +194,7 @@ func (bk *blocks) setup(h *Hamiltonian, sym Symmetry) (*Hamiltonian, error) {
 	hf := sym.inFrame(h, &bk.frame)
 	bk.nq, bk.sym = h.NumQubits, sym
 	bk.real = hf.realMatrix()
-	bk.basis.build(h.NumQubits, sym.sectorKind())
+	bk.bases[h.NumQubits].build(h.NumQubits, sym.sectorKind())
 	return hf, nil
 }
 

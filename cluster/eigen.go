@@ -95,7 +95,7 @@ func (s *Spectrum) FactorizeWith(h *Hamiltonian, sym Symmetry) error {
 	if err != nil {
 		return err
 	}
-	bb := &s.basis
+	bb := s.basis()
 	s.dim = h.Dim()
 	s.values = grow(s.values, s.dim)
 	parts := 1
@@ -144,7 +144,7 @@ func (s *Spectrum) rankLevels() {
 	for k := range s.rank {
 		s.rank[k] = int32(k)
 	}
-	if s.basis.numSectors() > 1 {
+	if s.basis().numSectors() > 1 {
 		vals := s.values
 		slices.SortStableFunc(s.rank, func(a, b int32) int { return cmp.Compare(vals[a], vals[b]) })
 	}
@@ -267,7 +267,7 @@ func (s *Spectrum) Vector(k int, dst []complex128) []complex128 {
 	if k < 0 || k >= s.dim {
 		panic(fmt.Sprintf("cluster: eigenvector %d out of range [0,%d)", k, s.dim))
 	}
-	bb := &s.basis
+	bb := s.basis()
 	i := int(s.rank[k])
 	sec := int(bb.sector[bb.states[i]]) // values and states share the grouping
 	d, j := bb.dim(sec), i-bb.start[sec]

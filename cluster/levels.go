@@ -54,7 +54,7 @@ func (l *Levels) FactorizeWith(h *Hamiltonian, sym Symmetry) error {
 	if err != nil {
 		return err
 	}
-	bb := &l.basis
+	bb := l.basis()
 	l.values = grow(l.values, h.Dim())
 	for sec := 0; sec < bb.numSectors(); sec++ {
 		d := bb.dim(sec)
@@ -97,7 +97,7 @@ func (l *Levels) Value(i int) float64 { return l.values[i] }
 // (in the symmetry's frame: for ParityX, the eigenvalue of prod_i X_i is
 // +1 for label 0 and -1 for label 1), 0 without a symmetry.
 func (l *Levels) Sector(i int) int {
-	bb := &l.basis
+	bb := l.basis()
 	return bb.label[bb.sector[bb.states[i]]]
 }
 
@@ -127,7 +127,7 @@ func (l *Levels) Gibbs(beta float64) (LevelSums, error) {
 	out := LevelSums{LogZ: g.logZ, Energy: g.energy, Entropy: g.entropy, HeatCapacity: g.heatCap}
 	if l.sym == TotalZ {
 		// Every level of sector k has total Z n - 2k.
-		bb := &l.basis
+		bb := l.basis()
 		out.ZKnown = true
 		l.sectorW = grow(l.sectorW, bb.numSectors())
 		for sec := range l.sectorW {

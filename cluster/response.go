@@ -81,7 +81,7 @@ func (t *Thermal) Response(ops []PauliString, dst []float64) {
 		return
 	}
 	r := &t.resp
-	bb := &s.basis
+	bb := s.basis()
 	ns := bb.numSectors()
 	mean := r.grow(&r.mean, n)
 	if cap(r.odd) < n {
@@ -146,7 +146,7 @@ func (t *Thermal) Response(ops []PauliString, dst []float64) {
 // fillVDiff stores Re V - Im V of every sector.
 func (t *Thermal) fillVDiff() {
 	s, r := t.spec, &t.resp
-	bb := &s.basis
+	bb := s.basis()
 	r.vdOff = r.vdOff[:0]
 	total := 0
 	for sec := 0; sec < bb.numSectors(); sec++ {
@@ -171,7 +171,7 @@ func (t *Thermal) fillVDiff() {
 // so that the weighted matrix elements fit the budget.
 func (t *Thermal) addPairs(rs, cs, colLo int, same bool) {
 	r := &t.resp
-	bb := &t.spec.basis
+	bb := t.spec.basis()
 	nrows, dc := t.active[rs], bb.dim(cs)
 	if nrows == 0 || colLo >= dc {
 		return
@@ -231,7 +231,7 @@ func (t *Thermal) addPairs(rs, cs, colLo int, same bool) {
 // the diagonal.
 func (t *Thermal) fillPairWeights(rs, n0, rows, cs, m0, cols int, same bool) {
 	r := &t.resp
-	bb := &t.spec.basis
+	bb := t.spec.basis()
 	sk := r.grow(&r.sk, rows*cols)
 	e, w := t.spec.values, t.weights
 	rOff, cOff := bb.start[rs]+n0, bb.start[cs]+m0
@@ -273,7 +273,7 @@ func kuboMoriFactor(x float64) float64 {
 func (t *Thermal) matrixElements(p PauliString, rs, n0, rows, cs, m0, cols int) {
 	s := t.spec
 	r := &t.resp
-	bb := &s.basis
+	bb := s.basis()
 	dr, dc := bb.dim(rs), bb.dim(cs)
 	vr, vc := s.vecs[s.vecOff[rs]:], s.vecs[s.vecOff[cs]:]
 	states := bb.states[bb.start[rs]:bb.start[rs+1]]

@@ -136,7 +136,7 @@ func (t *Thermal) Set(s *Spectrum, beta float64) error {
 		return err
 	}
 	t.gibbsSums = g
-	bb := &s.basis
+	bb := s.basis()
 	cut := weightCut / float64(s.dim)
 	t.active = t.active[:0]
 	for sec := 0; sec < bb.numSectors(); sec++ {
@@ -164,7 +164,7 @@ func (t *Thermal) width(sec int) int {
 // sector and the diagonal of rho.
 func (t *Thermal) fillAmplitudes() {
 	s := t.spec
-	bb := &s.basis
+	bb := s.basis()
 	t.uOff = t.uOff[:0]
 	total := 0
 	for sec := 0; sec < bb.numSectors(); sec++ {
@@ -198,7 +198,7 @@ func (t *Thermal) fillAmplitudes() {
 
 // row returns the row of u of basis state b.
 func (t *Thermal) row(b uint64) []float64 {
-	bb := &t.spec.basis
+	bb := t.spec.basis()
 	sec := int(bb.sector[b])
 	w := t.width(sec)
 	o := t.uOff[sec] + int(bb.local[b])*w
@@ -271,7 +271,7 @@ func (t *Thermal) Expect(p PauliString) float64 {
 		// P changes the popcount parity, so it leaves every sector.
 		return 0
 	}
-	sector := s.basis.sector
+	sector := s.basis().sector
 	hb := uint64(1) << uint(63-bits.LeadingZeros64(p.X))
 	var sum float64
 	// Pairs {c, c^X} inside one sector (rho vanishes between sectors).
