@@ -163,9 +163,9 @@ func (bb *blockBasis) reach(p PauliString, s int) uint64 {
 // blocks is the part of a diagonalisation that Spectrum and Levels share:
 // the symmetry, the Hamiltonian in its frame and the sector basis.
 type blocks struct {
-	nq    int
-	sym   Symmetry
-	real  bool
+	nq   int
+	sym  Symmetry
+	real bool
 	// bases keeps the sector basis of every number of qubits, since the
 	// expansion alternates between cluster sizes; bases[nq] is current.
 	bases [MaxDenseQubits + 1]blockBasis
