@@ -343,6 +343,7 @@ type uniformWork struct {
 	general generalWork
 	levels  levelSet
 	weights []float64
+	energy  []float64
 }
 
 // sumClasses evaluates the classes in chunks, in parallel within a chunk,
@@ -413,7 +414,8 @@ func (u *UniformExpansion) evaluateClass(w *uniformWork, c int, values, fields, 
 		return fmt.Errorf("cluster class of %d sites: %v", cl.Size, err)
 	}
 	w.weights = grow(w.weights, len(w.levels.e0))
-	u1Thermo(&w.levels, cl.Size, temps, fields, g, slot, w.weights)
+	w.energy = grow(w.energy, len(w.levels.e0))
+	u1Thermo(&w.levels, cl.Size, temps, fields, g, slot, w.weights, w.energy)
 	return nil
 }
 

@@ -49,7 +49,9 @@ func (w *generalWork) generalThermo(n int, h0 []weightedOp, ops [][]weightedOp, 
 				w.ham.Coeffs = append(w.ham.Coeffs, -h/2)
 			}
 		}
-		if err := w.spec.Factorize(&w.ham); err != nil {
+		// One dense block: the Kubo–Mori sums below need every pair of
+		// levels, which a parity would split across sectors.
+		if err := w.spec.FactorizeWith(&w.ham, NoSymmetry); err != nil {
 			return err
 		}
 		w.magnetizationMatrix(n)
@@ -143,17 +145,8 @@ func (w *generalWork) couplingMatrices(ops [][]weightedOp) {
 
 // phaseAxpy adds i^k c (xr + i xi) to (yr + i yi); xi may be nil (zero).
 func phaseAxpy(k int, c float64, xr, xi, yr, yi []float64) {
-	re, im := 0.0, 0.0
-	switch k {
-	case 0:
-		re = c
-	case 1:
-		im = c
-	case 2:
-		re = -c
-	case 3:
-		im = -c
-	}
+	z := iPow(k)
+	re, im := c*real(z), c*imag(z)
 	for j := range xr {
 		yr[j] += re * xr[j]
 		yi[j] += im * xr[j]
@@ -211,24 +204,9 @@ func (w *generalWork) gridPoint(n int, beta float64, g gridShape, f, i int, with
 		return
 	}
 	for p := 0; p < g.derivs; p++ {
-		dp := w.diag[p]
-		var dMean float64
-		for k := range e {
-			dMean += w.w[k] * dp[k]
-		}
-		var cED, kEED float64
-		for k := range e {
-			de := e[k] - eMean
-			x := w.w[k] * (dp[k] - dMean)
-			cED += x * de
-			kEED += x * de * de
-		}
-		r := 1 + p
-		slot[g.at(r, classLogZ, f, i)] = -beta * dMean
-		slot[g.at(r, classEnergy, f, i)] = dMean - beta*cED
-		slot[g.at(r, classHeat, f, i)] = beta * beta * (2*cED - beta*kEED)
-		slot[g.at(r, classMagnetization, f, i)] = -beta * (w.kuboMoriSum(beta, w.cross[p]) - mMean*dMean)
-		slot[g.at(r, classSusceptibility, f, i)] = 0
+		dMean := energyDerivatives(beta, w.w, e, w.diag[p], eMean, g, f, i, 1+p, slot)
+		slot[g.at(1+p, classMagnetization, f, i)] = -beta * (w.kuboMoriSum(beta, w.cross[p]) - mMean*dMean)
+		slot[g.at(1+p, classSusceptibility, f, i)] = 0
 	}
 }
 

@@ -5,9 +5,6 @@ import (
 	"fmt"
 	"math"
 	"math/bits"
-
-	"gonum.org/v1/gonum/blas"
-	"gonum.org/v1/gonum/lapack/gonum"
 )
 
 // Block diagonalisation of one cluster of a model that conserves the total
@@ -46,14 +43,17 @@ func (ls *levelSet) reset(couplings int, withD bool) {
 
 // sectorWork is one worker's scratch space for block diagonalisation.
 type sectorWork struct {
-	idx    []int32  // basis state -> position in the current block
-	states []uint64 // block basis (representatives when split by F)
-	spec   Spectrum // dense eigensolver workspace
-	lwork  []float64
-	sub    []float64
-	tau    []float64
-	dk     []float64   // Hellmann–Feynman elements of the current block
-	dks    [][]float64 // the same, kept per coupling
+	idx    []int32        // basis state -> position in the current block
+	states []uint64       // block basis (representatives when split by F)
+	spec   Spectrum       // workspace of the solvers with eigenvectors
+	eig    eigenvalueWork // workspace of the eigenvalue-only solvers
+	real   bool           // the current block's matrix is real
+	values []float64      // its eigenvalues
+	// vecs holds the block's matrix, then its eigenvectors as columns
+	// (row-major d×d, imaginary parts in a second d×d when complex).
+	vecs []float64
+	dk   []float64   // Hellmann–Feynman elements of the current block
+	dks  [][]float64 // the same, kept per coupling
 }
 
 // u1Block is one block: states with a fixed number of set bits, split by
@@ -145,17 +145,9 @@ func (w *sectorWork) eachElement(b u1Block, ops []weightedOp, f func(i, j int, r
 					sign = float64(b.parity)
 				}
 			}
+			z := iPow(o.op.phaseExp(s))
 			v := sign * o.c
-			switch o.op.phaseExp(s) {
-			case 0:
-				f(int(w.idx[t]), j, v, 0)
-			case 1:
-				f(int(w.idx[t]), j, 0, v)
-			case 2:
-				f(int(w.idx[t]), j, -v, 0)
-			case 3:
-				f(int(w.idx[t]), j, 0, -v)
-			}
+			f(int(w.idx[t]), j, v*real(z), v*imag(z))
 		}
 	}
 }
@@ -220,92 +212,61 @@ func (w *sectorWork) u1Levels(ls *levelSet, n int, h0 []weightedOp, ops [][]weig
 
 // blockSpectrum returns the eigenvalues of H0 on the current block (in
 // ascending order unless diagonal, in basis order then), leaving the
-// eigenvectors in w.spec when vectors is set.
+// eigenvectors in w.vecs when vectors is set. The dense solvers are the
+// package's: Spectrum's for eigenvectors, eigenvalueWork's for
+// eigenvalues alone.
 func (w *sectorWork) blockSpectrum(b u1Block, d int, h0 []weightedOp, real, diagonal, vectors bool) ([]float64, error) {
-	s := &w.spec
-	s.dim, s.real, s.nq = d, real, b.n
-	s.values = grow(s.values, d)
+	w.real = real
+	w.values = grow(w.values, d)
 	if diagonal {
-		clear(s.values)
+		clear(w.values)
 		w.eachElement(b, h0, func(i, j int, re, _ float64) {
 			if i == j {
-				s.values[i] += re
+				w.values[i] += re
 			}
 		})
-		return s.values, nil
+		return w.values, nil
 	}
 	size := d * d
 	if !real {
 		size *= 2
 	}
-	s.vecs = grow(s.vecs, size)
-	clear(s.vecs)
+	w.vecs = grow(w.vecs, size)
+	clear(w.vecs)
 	if real {
-		w.eachElement(b, h0, func(i, j int, re, _ float64) { s.vecs[i*d+j] += re })
+		w.eachElement(b, h0, func(i, j int, re, _ float64) { w.vecs[i*d+j] += re })
 	} else {
 		w.eachElement(b, h0, func(i, j int, re, im float64) {
-			s.vecs[i*d+j] += re
-			s.vecs[d*d+i*d+j] += im
+			w.vecs[i*d+j] += re
+			w.vecs[d*d+i*d+j] += im
 		})
 	}
 	var err error
 	switch {
 	case vectors && real:
-		err = s.solveReal()
+		err = w.spec.solveReal(d, w.vecs, w.values)
 	case vectors:
-		err = s.solveHermitian()
+		err = w.spec.solveHermitian(d, w.vecs, w.values)
+	case real:
+		err = w.eig.realValues(d, w.vecs, w.values)
 	default:
-		err = w.eigenvaluesOnly(d, real)
+		err = w.eig.hermitianValues(d, w.vecs[:d*d], w.vecs[d*d:], w.values)
 	}
 	if err != nil {
 		return nil, err
 	}
-	for _, v := range s.values {
+	for _, v := range w.values {
 		if math.IsNaN(v) || math.IsInf(v, 0) {
 			return nil, errors.New("eigenvalue is not finite")
 		}
 	}
-	return s.values, nil
-}
-
-// eigenvaluesOnly computes the eigenvalues of the dense matrix in
-// w.spec.vecs without eigenvectors: Householder reduction to a real
-// tridiagonal matrix (LAPACK Dsytrd for real matrices, the complex
-// reduction of eigen_hermitian.go otherwise) and the root-free QL of
-// LAPACK Dsterf (gonum), about a third of the work of a full
-// diagonalisation.
-func (w *sectorWork) eigenvaluesOnly(d int, real bool) error {
-	s := &w.spec
-	if d == 1 {
-		s.values[0] = s.vecs[0]
-		return nil
-	}
-	w.sub = grow(w.sub, d)
-	w.tau = grow(w.tau, d)
-	var impl gonum.Implementation
-	if real {
-		w.lwork = grow(w.lwork, 1)
-		impl.Dsytrd(blas.Upper, d, s.vecs, d, s.values, w.sub, w.tau, w.lwork, -1)
-		w.lwork = grow(w.lwork, max(int(w.lwork[0]), d))
-		impl.Dsytrd(blas.Upper, d, s.vecs, d, s.values, w.sub, w.tau, w.lwork, len(w.lwork))
-	} else {
-		s.tmp = grow(s.tmp, 6*d)
-		er, ei := s.tmp[4*d:5*d], s.tmp[5*d:]
-		tridiagonalize(d, s.vecs[:d*d], s.vecs[d*d:], s.values, er, ei, w.tau, s.tmp[:4*d])
-		for k := 0; k < d-1; k++ {
-			w.sub[k] = math.Hypot(er[k], ei[k])
-		}
-	}
-	if !impl.Dsterf(d, s.values, w.sub[:d-1]) {
-		return errors.New("tridiagonal QL iteration did not converge")
-	}
-	return nil
+	return w.values, nil
 }
 
 // blockElements returns <k|H_p|k> for the eigenvectors k of the current
 // block: E_k / value_p when scaled, the diagonal of H_p when H0 is
 // diagonal (the basis states are eigenvectors), and otherwise
-// sum_{ij} conj(V_ik) (H_p)_ij V_jk from the eigenvectors in w.spec.
+// sum_{ij} conj(V_ik) (H_p)_ij V_jk from the eigenvectors in w.vecs.
 // An F-odd coupling has zero elements in an F-split block.
 func (w *sectorWork) blockElements(b u1Block, d int, ops []weightedOp, vals, values []float64, p int, scaled bool, sym *uniformSymmetry) []float64 {
 	w.dk = grow(w.dk, d)
@@ -323,8 +284,8 @@ func (w *sectorWork) blockElements(b u1Block, d int, ops []weightedOp, vals, val
 				dk[i] += re
 			}
 		})
-	case w.spec.real:
-		v := w.spec.vecs
+	case w.real:
+		v := w.vecs
 		w.eachElement(b, ops, func(i, j int, re, _ float64) {
 			if re == 0 {
 				return
@@ -335,7 +296,7 @@ func (w *sectorWork) blockElements(b u1Block, d int, ops []weightedOp, vals, val
 			}
 		})
 	default:
-		v := w.spec.vecs
+		v := w.vecs
 		w.eachElement(b, ops, func(i, j int, re, im float64) {
 			ir, ii := v[i*d:i*d+d], v[d*d+i*d:d*d+i*d+d]
 			jr, ji := v[j*d:j*d+d], v[d*d+j*d:d*d+j*d+d]

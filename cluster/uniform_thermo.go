@@ -38,30 +38,29 @@ func (g gridShape) at(r, q, f, i int) int { return ((r*classQuantities+q)*g.nF+f
 //	dC    = beta^2 (2 cov(E, D) - beta <(E-<E>)^2 (D-<D>)>)
 //	dM    = -beta cov(m, D)
 //	dchi  = -beta^2 <(m-<m>)^2 (D-<D>)>
-func u1Thermo(ls *levelSet, n int, temps, fields []float64, g gridShape, slot, w []float64) {
-	levels := len(ls.e0)
+func u1Thermo(ls *levelSet, n int, temps, fields []float64, g gridShape, slot, w, energy []float64) {
 	for f, h := range fields {
+		emin := math.Inf(1)
+		for k, e := range ls.e0 {
+			energy[k] = e - h*ls.m[k]
+			emin = math.Min(emin, energy[k])
+		}
 		for i, temp := range temps {
 			beta := 1 / temp
-			emin := math.Inf(1)
-			for k, e := range ls.e0 {
-				emin = math.Min(emin, e-h*ls.m[k])
-			}
 			var z float64
-			for k, e := range ls.e0 {
-				w[k] = math.Exp(-beta * (e - h*ls.m[k] - emin))
+			for k, e := range energy {
+				w[k] = math.Exp(-beta * (e - emin))
 				z += w[k]
 			}
 			var eMean, mMean float64
-			for k := 0; k < levels; k++ {
+			for k, e := range energy {
 				w[k] /= z
-				eMean += w[k] * (ls.e0[k] - h*ls.m[k])
+				eMean += w[k] * e
 				mMean += w[k] * ls.m[k]
 			}
 			var eVar, mVar float64
-			for k := 0; k < levels; k++ {
-				de := ls.e0[k] - h*ls.m[k] - eMean
-				dm := ls.m[k] - mMean
+			for k, e := range energy {
+				de, dm := e-eMean, ls.m[k]-mMean
 				eVar += w[k] * de * de
 				mVar += w[k] * dm * dm
 			}
@@ -71,27 +70,38 @@ func u1Thermo(ls *levelSet, n int, temps, fields []float64, g gridShape, slot, w
 			slot[g.at(0, classMagnetization, f, i)] = mMean
 			slot[g.at(0, classSusceptibility, f, i)] = beta * mVar
 			for p, d := range ls.d {
-				var dMean float64
-				for k := 0; k < levels; k++ {
-					dMean += w[k] * d[k]
+				dMean := energyDerivatives(beta, w, energy, d, eMean, g, f, i, 1+p, slot)
+				var cMD, kMMD float64
+				for k, m := range ls.m {
+					dm := m - mMean
+					x := w[k] * (d[k] - dMean) * dm
+					cMD += x
+					kMMD += x * dm
 				}
-				var cED, kEED, cMD, kMMD float64
-				for k := 0; k < levels; k++ {
-					de := ls.e0[k] - h*ls.m[k] - eMean
-					dm := ls.m[k] - mMean
-					x := w[k] * (d[k] - dMean)
-					cED += x * de
-					kEED += x * de * de
-					cMD += x * dm
-					kMMD += x * dm * dm
-				}
-				r := 1 + p
-				slot[g.at(r, classLogZ, f, i)] = -beta * dMean
-				slot[g.at(r, classEnergy, f, i)] = dMean - beta*cED
-				slot[g.at(r, classHeat, f, i)] = beta * beta * (2*cED - beta*kEED)
-				slot[g.at(r, classMagnetization, f, i)] = -beta * cMD
-				slot[g.at(r, classSusceptibility, f, i)] = -beta * beta * kMMD
+				slot[g.at(1+p, classMagnetization, f, i)] = -beta * cMD
+				slot[g.at(1+p, classSusceptibility, f, i)] = -beta * beta * kMMD
 			}
 		}
 	}
+}
+
+// energyDerivatives stores the derivatives of ln Z, E and C along the
+// Hellmann–Feynman elements d of levels with energies e and normalised
+// weights w (<E> = eMean) in slot at derivative index r, and returns <d>.
+func energyDerivatives(beta float64, w, e, d []float64, eMean float64, g gridShape, f, i, r int, slot []float64) float64 {
+	var dMean float64
+	for k := range e {
+		dMean += w[k] * d[k]
+	}
+	var cED, kEED float64
+	for k := range e {
+		de := e[k] - eMean
+		x := w[k] * (d[k] - dMean) * de
+		cED += x
+		kEED += x * de
+	}
+	slot[g.at(r, classLogZ, f, i)] = -beta * dMean
+	slot[g.at(r, classEnergy, f, i)] = dMean - beta*cED
+	slot[g.at(r, classHeat, f, i)] = beta * beta * (2*cED - beta*kEED)
+	return dMean
 }

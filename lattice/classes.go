@@ -291,27 +291,19 @@ func (r *classRegion) build(size []int, opt *ClassOptions) {
 		label uint8
 	}
 	adj := make([][]end, n)
-	for c := 0; c < ncell; c++ {
-		x := cellPosition(c, size)
-		for t, bt := range r.types {
-			var y [3]int
-			for a := range size {
-				y[a] = x[a] + bt.Offset[a]
-			}
-			tc, ok := cellIndex(y, size, false)
-			if !ok {
-				continue
-			}
-			i, j := bt.From+nb*c, bt.To+nb*tc
-			k := opt.BondKind[t]
-			li, lj := uint8(3*k), uint8(3*k)
-			if opt.Directed[k] {
-				li, lj = li+1, lj+2
-			}
-			adj[i] = append(adj[i], end{int32(j), li})
-			adj[j] = append(adj[j], end{int32(i), lj})
-		}
+	table := make([]offset, len(r.types))
+	for t, bt := range r.types {
+		table[t] = offset{From: bt.From, To: bt.To, D: bt.Offset}
 	}
+	eachCellBond(nb, size, false, table, func(t, i, j int) {
+		k := opt.BondKind[t]
+		li, lj := uint8(3*k), uint8(3*k)
+		if opt.Directed[k] {
+			li, lj = li+1, lj+2
+		}
+		adj[i] = append(adj[i], end{int32(j), li})
+		adj[j] = append(adj[j], end{int32(i), lj})
+	})
 	r.start = make([]int32, n+1)
 	r.sKind = make([]uint8, n)
 	for i, a := range adj {
