@@ -26,8 +26,10 @@ import (
 // because it needs no embedding counts of subclusters in clusters (the
 // counts per perimeter fall out of the enumeration) and no weights kept
 // per class and temperature; its price is cancellation between large
-// multiplied terms, measured at about 1e-12 per site against the
-// site-resolved sum at order 8 on the square lattice.
+// multiplied terms: against the site-resolved sum of the Heisenberg model
+// on a periodic 10x10 square lattice the per-site ln Z and energy agree
+// within 6e-12 at order 8 (T = 0.3, 1, 3 J), both sums carrying
+// cancellations of their own.
 type UniformExpansion struct {
 	model   UniformModel
 	order   int
