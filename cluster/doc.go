@@ -117,8 +117,8 @@
 // S/N in nats, C/N, M = <S^z>/N and chi = dM/dh, for every order 1..L at
 // every (field, temperature) of the grid.
 //
-// Blocks are read off the templates at the given values (uniform_
-// symmetry.go). When H0 conserves the total S^z the clusters are
+// Blocks are read off the templates at the given values
+// (uniform_symmetry.go). When H0 conserves the total S^z the clusters are
 // diagonalised sector by sector, once for all fields (the field only
 // shifts a level by -h m); with the spin flip also a symmetry, only the
 // sectors m >= 0 are diagonalised and m = 0 is split by flip parity.
