@@ -8,7 +8,8 @@ import (
 
 // The cost model of the expansion, in machine-independent units: one
 // unit is the work D^3 = 8^|c| of diagonalising a cluster of |c| sites
-// densely. Every refusal, every automatic order choice and every time
+// densely; a cluster diagonalised in the blocks of a Symmetry costs the
+// sum of the cubes of its sector dimensions (blockWork). Every refusal, every automatic order choice and every time
 // prediction of the project goes through this file, so that they agree
 // with each other and can be calibrated in one place.
 
@@ -23,16 +24,26 @@ const DefaultMaxWork = 3e12
 // reproducible use work units, never wall time.
 const SecondsPerWorkUnit = 1.2e-9
 
-// workOfCluster is the work, in units, of one cluster of the given size.
-func workOfCluster(size int) float64 { return math.Pow(8, float64(size)) }
-
 // EstimateWork returns the expected number of clusters and the work of an
-// evaluation at the given order, from lattice.EstimateClusterSizes.
+// evaluation at the given order, from lattice.EstimateClusterSizes, with
+// the blocks of the Symmetry the model has with the coefficients its terms
+// carry (Evaluate and Thermodynamics refuse by the symmetry of the
+// coefficients they are given).
 func (e *Expansion) EstimateWork(order int) (clusters int64, work float64) {
+	coeffs := make([]float64, len(e.terms))
+	for k, t := range e.terms {
+		coeffs[k] = t.Coeff
+	}
+	return e.estimateWork(order, e.Symmetry(coeffs))
+}
+
+// estimateWork is EstimateWork for clusters diagonalised in the blocks of
+// sym: blockWork units per cluster.
+func (e *Expansion) estimateWork(order int, sym Symmetry) (clusters int64, work float64) {
 	var total float64
 	for s, c := range e.lat.EstimateClusterSizes(order) {
 		total += c
-		work += c * workOfCluster(s+1)
+		work += c * blockWork(s+1, sym)
 	}
 	return int64(math.Round(total)), work
 }
@@ -43,13 +54,14 @@ func PredictDuration(work float64) time.Duration {
 	return time.Duration(work * SecondsPerWorkUnit * float64(time.Second))
 }
 
-// checkWork refuses an evaluation at order L whose estimated work
-// exceeds maxWork (<= 0: DefaultMaxWork), quoting the expected time.
-func (e *Expansion) checkWork(L int, maxWork float64) error {
+// checkWork refuses an evaluation at order L in the blocks of sym whose
+// estimated work exceeds maxWork (<= 0: DefaultMaxWork), quoting the
+// expected time.
+func (e *Expansion) checkWork(L int, maxWork float64, sym Symmetry) error {
 	if maxWork <= 0 {
 		maxWork = DefaultMaxWork
 	}
-	nc, work := e.EstimateWork(L)
+	nc, work := e.estimateWork(L, sym)
 	if work <= maxWork {
 		return nil
 	}

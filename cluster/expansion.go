@@ -98,9 +98,14 @@ type Options struct {
 	// not depend on it.
 	Workers int
 	// MaxWork refuses evaluations whose estimated cost exceeds it, in
-	// units of the dense diagonalisation cost D^3 = 8^|c| summed over
-	// clusters; <= 0 means DefaultMaxWork.
+	// units of the diagonalisation cost summed over clusters: D^3 = 8^|c|
+	// for a dense cluster, the sum of the cubed sector dimensions when the
+	// model has a Symmetry; <= 0 means DefaultMaxWork.
 	MaxWork float64
+	// IgnoreSymmetry diagonalises every cluster densely even when the
+	// model has a Symmetry: slower, with the same results to rounding;
+	// for cross-checks and timing.
+	IgnoreSymmetry bool
 	// Progress, when set, is called after each block of anchor sites with
 	// the number of blocks done and the total. It may be called from
 	// several goroutines, one call at a time.
@@ -114,6 +119,9 @@ type Result struct {
 	Order    int
 	NumSites int
 	Beta     float64
+	// Symmetry is the conserved quantity whose blocks every cluster was
+	// diagonalised in (NoSymmetry: dense).
+	Symmetry Symmetry
 	// Clusters[s-1] is the number of connected clusters with s sites.
 	Clusters []int64
 
@@ -148,46 +156,51 @@ func (e *Expansion) Evaluate(coeffs []float64, beta float64, opt Options) (*Resu
 	if !(beta >= 0) || math.IsInf(beta, 0) {
 		return nil, fmt.Errorf("beta = %v: must be finite and >= 0", beta)
 	}
-	L, workers, err := e.checkRun(coeffs, opt)
+	L, workers, sym, err := e.checkRun(coeffs, opt)
 	if err != nil {
 		return nil, err
 	}
 	blocks := e.lat.AnchorBlocks()
 	accs := make([]*blockAcc, len(blocks))
 	err = e.runBlocks(blocks, workers, opt.Progress, func(w *clusterWork, b int) error {
-		acc, err := e.evaluateBlock(w, blocks[b], coeffs, beta, L, opt.Response)
+		acc, err := e.evaluateBlock(w, blocks[b], coeffs, beta, L, opt.Response, sym)
 		accs[b] = acc
 		return err
 	})
 	if err != nil {
 		return nil, err
 	}
-	return e.merge(accs, L, beta, opt.Response), nil
+	r := e.merge(accs, L, beta, opt.Response)
+	r.Symmetry = sym
+	return r, nil
 }
 
-// checkRun validates coefficients and options and returns the order and
-// the worker count.
-func (e *Expansion) checkRun(coeffs []float64, opt Options) (L, workers int, err error) {
+// checkRun validates coefficients and options and returns the order, the
+// worker count and the symmetry every cluster is diagonalised with.
+func (e *Expansion) checkRun(coeffs []float64, opt Options) (L, workers int, sym Symmetry, err error) {
 	for k, c := range coeffs {
 		if math.IsNaN(c) || math.IsInf(c, 0) {
-			return 0, 0, fmt.Errorf("term %d (%s): coefficient %v is not finite", k, e.terms[k].Key(), c)
+			return 0, 0, 0, fmt.Errorf("term %d (%s): coefficient %v is not finite", k, e.terms[k].Key(), c)
 		}
 	}
 	L = opt.Order
 	if L < 1 {
-		return 0, 0, fmt.Errorf("expansion order %d: must be at least 1", L)
+		return 0, 0, 0, fmt.Errorf("expansion order %d: must be at least 1", L)
 	}
 	if L > MaxDenseQubits {
-		return 0, 0, fmt.Errorf("expansion order %d: clusters above %d sites are beyond dense diagonalisation", L, MaxDenseQubits)
+		return 0, 0, 0, fmt.Errorf("expansion order %d: clusters above %d sites are beyond dense diagonalisation", L, MaxDenseQubits)
+	}
+	if !opt.IgnoreSymmetry {
+		sym = e.Symmetry(coeffs)
 	}
 	workers = opt.Workers
 	if workers <= 0 {
 		workers = runtime.GOMAXPROCS(0)
 	}
-	if err := e.checkWork(L, opt.MaxWork); err != nil {
-		return 0, 0, err
+	if err := e.checkWork(L, opt.MaxWork, sym); err != nil {
+		return 0, 0, 0, err
 	}
-	return L, workers, nil
+	return L, workers, sym, nil
 }
 
 // runBlocks runs task for every block on at most workers goroutines, each
@@ -247,6 +260,7 @@ type clusterWork struct {
 	pos    []int32 // sorted positions of the terms inside the cluster
 	ham    Hamiltonian
 	spec   Spectrum // reused: Factorize keeps its workspace
+	levels Levels   // the same for eigenvalue-only work
 	th     Thermal
 	vals   []float64
 	resp   []float64
@@ -261,7 +275,7 @@ func newClusterWork(n int) *clusterWork {
 	return w
 }
 
-func (e *Expansion) evaluateBlock(w *clusterWork, block [2]int, coeffs []float64, beta float64, L int, wantResp bool) (*blockAcc, error) {
+func (e *Expansion) evaluateBlock(w *clusterWork, block [2]int, coeffs []float64, beta float64, L int, wantResp bool, sym Symmetry) (*blockAcc, error) {
 	acc := &blockAcc{
 		lo:       int(e.bySite[block[0]]),
 		expect:   make([][]float64, L),
@@ -278,7 +292,7 @@ func (e *Expansion) evaluateBlock(w *clusterWork, block [2]int, coeffs []float64
 		if len(c.pos) == 0 {
 			return nil
 		}
-		return e.addCluster(w, acc, c, beta, L, wantResp)
+		return e.addCluster(w, acc, c, beta, L, wantResp, sym)
 	})
 	return acc, err
 }
@@ -355,11 +369,11 @@ func (e *Expansion) loadCluster(w *clusterWork, sites []int, coeffs []float64) {
 	}
 }
 
-// addCluster diagonalises one cluster and adds its multiplied properties
-// to every order from its size up to L.
-func (e *Expansion) addCluster(w *clusterWork, acc *blockAcc, c *clusterView, beta float64, L int, wantResp bool) error {
+// addCluster diagonalises one cluster in the blocks of sym and adds its
+// multiplied properties to every order from its size up to L.
+func (e *Expansion) addCluster(w *clusterWork, acc *blockAcc, c *clusterView, beta float64, L int, wantResp bool, sym Symmetry) error {
 	size := c.size
-	if err := w.spec.Factorize(&w.ham); err != nil {
+	if err := w.spec.FactorizeWith(&w.ham, sym); err != nil {
 		return fmt.Errorf("cluster %v: %v", c.sites, err)
 	}
 	th := &w.th
