@@ -1,9 +1,12 @@
 package cluster
 
 import (
+	"cmp"
 	"errors"
 	"fmt"
 	"math"
+	"math/cmplx"
+	"slices"
 
 	"gonum.org/v1/gonum/blas"
 	"gonum.org/v1/gonum/lapack/gonum"
@@ -16,37 +19,51 @@ import (
 const MaxDenseQubits = 12
 
 // Spectrum is the complete eigendecomposition H = V diag(E) V^† of a
-// Hamiltonian: eigenvalues in ascending order and orthonormal eigenvectors.
+// Hamiltonian: eigenvalues and orthonormal eigenvectors.
 //
-// Eigenvectors are stored as columns of a row-major Dim×Dim matrix, real
-// when the Hamiltonian matrix is real and as separate real and imaginary
-// parts otherwise, so that all later products run through real BLAS.
+// When H has a Symmetry, the decomposition is block-sparse: H is written
+// in the symmetry's frame, the basis states are grouped into sectors, and
+// each sector is diagonalised on its own, so that V is block diagonal in
+// the frame's basis and every eigenvector lies in one sector. Within a
+// sector, eigenvectors are stored as the columns of a row-major d×d
+// matrix, real when the Hamiltonian matrix (in the frame) is real and as
+// separate real and imaginary parts otherwise, so that all later products
+// run through real BLAS. Without a symmetry there is one sector holding
+// every basis state in order.
 //
 // A Spectrum keeps its workspace: Factorize on the same value reuses the
 // memory, which matters when millions of small clusters are diagonalised.
 // A Spectrum is not safe for concurrent modification.
 type Spectrum struct {
-	nq, dim int
-	real    bool
-	values  []float64
-	// vecs holds V row-major: vecs[b*dim+k] is component b of eigenvector k.
-	// In the complex case vecs[dim*dim:] holds the imaginary parts.
-	vecs []float64
+	blocks
+	dim int
+	// values holds the eigenvalues sector by sector, ascending within
+	// each sector; level j of sector s is values[basis.start[s]+j].
+	values []float64
+	// vecs holds the eigenvectors of sector s from vecOff[s]: row-major
+	// d×d, vecs[vecOff[s]+i*d+j] is component i (the sector's i-th basis
+	// state) of its level j, followed in the complex case by the d×d
+	// imaginary parts.
+	vecs   []float64
+	vecOff []int
+	// rank[k] is the position in values of the k-th lowest level.
+	rank []int32
 
 	work    []float64 // LAPACK workspace
-	scratch []float64 // Hermitian path: the second 2·dim² buffer
+	scratch []float64 // Hermitian path: the second 2·d² buffer
 	z       []float64 // Hermitian path: tridiagonal eigenvectors
-	diag    []float64 // Hermitian path: tridiagonal, reflector scales, phases
 	sub     []float64
 	tau     []float64
 	phase   []float64
 	tmp     []float64
+	sorted  []float64 // levels in ascending order, for snapDegenerate
 }
 
-// Diagonalize returns the spectrum of h. Terms with an odd number of Y
-// letters and a nonzero coefficient make the matrix complex; otherwise
-// the real symmetric solver is used. It refuses more than MaxDenseQubits
-// qubits before allocating anything.
+// Diagonalize returns the spectrum of h, in the blocks of the symmetry
+// DetectSymmetry finds. Terms with an odd number of Y letters (in the
+// symmetry's frame) and a nonzero coefficient make the matrix complex;
+// otherwise the real symmetric solver is used. It refuses more than
+// MaxDenseQubits qubits before allocating anything.
 func Diagonalize(h *Hamiltonian) (*Spectrum, error) {
 	var s Spectrum
 	if err := s.Factorize(h); err != nil {
@@ -55,8 +72,9 @@ func Diagonalize(h *Hamiltonian) (*Spectrum, error) {
 	return &s, nil
 }
 
-// Factorize computes the spectrum of h into s, reusing the memory of s.
-// Any Thermal built on s becomes invalid.
+// Factorize computes the spectrum of h into s, reusing the memory of s,
+// in the blocks of the symmetry DetectSymmetry finds. Any Thermal built
+// on s becomes invalid.
 //
 // Real matrices are reduced to tridiagonal form by LAPACK Dsytrd (gonum).
 // Complex Hermitian matrices are reduced to a real symmetric tridiagonal
@@ -64,38 +82,80 @@ func Diagonalize(h *Hamiltonian) (*Spectrum, error) {
 // see eigen_hermitian.go for why this was chosen over the real 2D×2D
 // embedding. Both then use the implicit QL solver of eigen_tridiag.go.
 func (s *Spectrum) Factorize(h *Hamiltonian) error {
-	if h.NumQubits > MaxDenseQubits {
-		return fmt.Errorf("cluster: %d qubits exceed the dense diagonalisation limit of %d (MaxDenseQubits); use the matrix-free thermal typicality of package validate for larger systems",
-			h.NumQubits, MaxDenseQubits)
-	}
 	if err := h.check(); err != nil {
 		return err
 	}
-	s.nq = h.NumQubits
-	s.dim = h.Dim()
-	s.real = h.realMatrix()
-	d := s.dim
-	s.values = grow(s.values, d)
-	var err error
-	if s.real {
-		s.vecs = grow(s.vecs, d*d)
-		h.fillReal(s.vecs)
-		err = s.solveReal()
-	} else {
-		s.vecs = grow(s.vecs, 2*d*d)
-		h.fillComplex(s.vecs[:d*d], s.vecs[d*d:])
-		err = s.solveHermitian()
-	}
+	return s.FactorizeWith(h, DetectSymmetry(h))
+}
+
+// FactorizeWith is Factorize in the blocks of sym; NoSymmetry gives the
+// dense decomposition. It returns an error when h does not have sym.
+func (s *Spectrum) FactorizeWith(h *Hamiltonian, sym Symmetry) error {
+	hf, err := s.setup(h, sym)
 	if err != nil {
 		return err
+	}
+	bb := s.basis()
+	s.dim = h.Dim()
+	s.values = grow(s.values, s.dim)
+	parts := 1
+	if !s.real {
+		parts = 2
+	}
+	s.vecOff = s.vecOff[:0]
+	total := 0
+	for sec := 0; sec < bb.numSectors(); sec++ {
+		s.vecOff = append(s.vecOff, total)
+		total += parts * bb.dim(sec) * bb.dim(sec)
+	}
+	s.vecs = grow(s.vecs, total)
+	for sec := 0; sec < bb.numSectors(); sec++ {
+		d := bb.dim(sec)
+		vals := s.values[bb.start[sec] : bb.start[sec]+d]
+		v := s.vecs[s.vecOff[sec] : s.vecOff[sec]+parts*d*d]
+		if s.real {
+			bb.fillReal(hf, sec, v)
+			err = s.solveReal(d, v, vals)
+		} else {
+			bb.fillComplex(hf, sec, v[:d*d], v[d*d:])
+			err = s.solveHermitian(d, v, vals)
+		}
+		if err != nil {
+			return err
+		}
 	}
 	for _, v := range s.values {
 		if math.IsNaN(v) || math.IsInf(v, 0) {
 			return errors.New("cluster: eigenvalue is not finite")
 		}
 	}
-	snapDegenerate(s.values)
+	s.rankLevels()
 	return nil
+}
+
+// rankLevels orders the levels of all sectors and snaps degenerate runs
+// across sectors as snapDegenerate does within one.
+func (s *Spectrum) rankLevels() {
+	d := s.dim
+	if cap(s.rank) < d {
+		s.rank = make([]int32, d)
+	}
+	s.rank = s.rank[:d]
+	for k := range s.rank {
+		s.rank[k] = int32(k)
+	}
+	if s.basis().numSectors() > 1 {
+		vals := s.values
+		slices.SortStableFunc(s.rank, func(a, b int32) int { return cmp.Compare(vals[a], vals[b]) })
+	}
+	s.sorted = grow(s.sorted, d)
+	for k, i := range s.rank {
+		s.sorted[k] = s.values[i]
+	}
+	snapDegenerate(s.sorted)
+	for k, i := range s.rank {
+		s.values[i] = s.sorted[k]
+	}
 }
 
 // snapDegenerate replaces each run of eigenvalues closer than the solver's
@@ -127,43 +187,35 @@ func snapDegenerate(vals []float64) {
 	}
 }
 
-// solveReal diagonalises the real symmetric matrix in s.vecs: LAPACK
-// Dsytrd and Dorgtr (gonum) reduce it to tridiagonal form, and the
-// tridiagonal problem is solved by implicit QL on the rows of Q^T (see
-// tridiagEigen for why not Dsteqr).
-func (s *Spectrum) solveReal() error {
-	d := s.dim
-	a := s.vecs
+// solveReal diagonalises the real symmetric d×d matrix a in place: on
+// return values holds its eigenvalues in ascending order and a its
+// eigenvectors as columns. LAPACK Dsytrd and Dorgtr (gonum) reduce it to
+// tridiagonal form, and the tridiagonal problem is solved by implicit QL
+// on the rows of Q^T (see tridiagEigen for why not Dsteqr).
+func (s *Spectrum) solveReal(d int, a, values []float64) error {
 	if d == 1 {
-		s.values[0] = a[0]
+		values[0] = a[0]
 		a[0] = 1
 		return nil
 	}
-	if d <= smallReductionDim {
-		s.sub = grow(s.sub, d)
-		householderReduce(d, a, s.values, s.sub)
-		s.z = grow(s.z, d*d)
-		transpose(d, s.z, a)
-		if err := tridiagEigen(d, s.values, s.sub, s.z); err != nil {
-			return err
-		}
-		transpose(d, a, s.z)
-		return nil
-	}
-	var impl gonum.Implementation
 	s.sub = grow(s.sub, d)
-	s.tau = grow(s.tau, d)
-	s.work = grow(s.work, 1)
-	impl.Dsytrd(blas.Upper, d, a, d, s.values, s.sub, s.tau, s.work, -1)
-	lwork := int(s.work[0])
-	impl.Dorgtr(blas.Upper, d, a, d, s.tau, s.work, -1)
-	lwork = max(lwork, int(s.work[0]), d)
-	s.work = grow(s.work, lwork)
-	impl.Dsytrd(blas.Upper, d, a, d, s.values, s.sub, s.tau, s.work, lwork)
-	impl.Dorgtr(blas.Upper, d, a, d, s.tau, s.work, lwork)
 	s.z = grow(s.z, d*d)
+	if d <= smallReductionDim {
+		householderReduce(d, a, values, s.sub)
+	} else {
+		var impl gonum.Implementation
+		s.tau = grow(s.tau, d)
+		s.work = grow(s.work, 1)
+		impl.Dsytrd(blas.Upper, d, a, d, values, s.sub, s.tau, s.work, -1)
+		lwork := int(s.work[0])
+		impl.Dorgtr(blas.Upper, d, a, d, s.tau, s.work, -1)
+		lwork = max(lwork, int(s.work[0]), d)
+		s.work = grow(s.work, lwork)
+		impl.Dsytrd(blas.Upper, d, a, d, values, s.sub, s.tau, s.work, lwork)
+		impl.Dorgtr(blas.Upper, d, a, d, s.tau, s.work, lwork)
+	}
 	transpose(d, s.z, a)
-	if err := tridiagEigen(d, s.values, s.sub, s.z); err != nil {
+	if err := tridiagEigen(d, values, s.sub, s.z); err != nil {
 		return err
 	}
 	transpose(d, a, s.z)
@@ -190,35 +242,69 @@ func (s *Spectrum) NumQubits() int { return s.nq }
 // Dim returns the Hilbert space dimension.
 func (s *Spectrum) Dim() int { return s.dim }
 
-// IsReal reports whether the eigenvectors are real.
+// IsReal reports whether the eigenvectors are real (in the frame of the
+// symmetry; see Vector).
 func (s *Spectrum) IsReal() bool { return s.real }
+
+// Symmetry returns the symmetry whose blocks the spectrum was computed in.
+func (s *Spectrum) Symmetry() Symmetry { return s.sym }
 
 // Values returns a copy of the eigenvalues in ascending order.
 func (s *Spectrum) Values() []float64 {
-	return append([]float64(nil), s.values...)
+	out := make([]float64, s.dim)
+	for k, i := range s.rank {
+		out[k] = s.values[i]
+	}
+	return out
 }
 
 // Vector stores eigenvector k (the eigenvector of Values()[k]) in dst,
 // which is allocated when it is too short, and returns it. Component b is
-// the amplitude of the computational basis state whose bit q is qubit q.
+// the amplitude of the computational basis state whose bit q is qubit q;
+// eigenvectors computed in a rotated frame (ParityX, ParityY) are rotated
+// back, at a cost of O(NumQubits · Dim).
 func (s *Spectrum) Vector(k int, dst []complex128) []complex128 {
 	if k < 0 || k >= s.dim {
 		panic(fmt.Sprintf("cluster: eigenvector %d out of range [0,%d)", k, s.dim))
 	}
-	d := s.dim
-	if cap(dst) < d {
-		dst = make([]complex128, d)
+	bb := s.basis()
+	i := int(s.rank[k])
+	sec := int(bb.sector[bb.states[i]]) // values and states share the grouping
+	d, j := bb.dim(sec), i-bb.start[sec]
+	if cap(dst) < s.dim {
+		dst = make([]complex128, s.dim)
 	}
-	dst = dst[:d]
-	for b := range dst {
-		re := s.vecs[b*d+k]
+	dst = dst[:s.dim]
+	clear(dst)
+	v := s.vecs[s.vecOff[sec]:]
+	for r, b := range bb.states[bb.start[sec]:bb.start[sec+1]] {
 		im := 0.0
 		if !s.real {
-			im = s.vecs[d*d+b*d+k]
+			im = v[d*d+r*d+j]
 		}
-		dst[b] = complex(re, im)
+		dst[b] = complex(v[r*d+j], im)
+	}
+	if u, ok := s.sym.frameUnitary(); ok {
+		rotateBack(s.nq, u, dst)
 	}
 	return dst
+}
+
+// rotateBack applies (U^†)^{⊗n} to the state vector v, undoing the frame
+// change H -> U^{⊗n} H U^{†⊗n}.
+func rotateBack(n int, u [2][2]complex128, v []complex128) {
+	a, b := cmplx.Conj(u[0][0]), cmplx.Conj(u[1][0])
+	c, d := cmplx.Conj(u[0][1]), cmplx.Conj(u[1][1])
+	for q := 0; q < n; q++ {
+		bit := 1 << uint(q)
+		for i := range v {
+			if i&bit != 0 {
+				continue
+			}
+			x0, x1 := v[i], v[i|bit]
+			v[i], v[i|bit] = a*x0+b*x1, c*x0+d*x1
+		}
+	}
 }
 
 // grow returns buf resliced to length n, reallocating when it is too short.

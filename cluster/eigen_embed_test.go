@@ -15,8 +15,7 @@ import (
 // eigenvectors [a; b].
 func embeddingSolve(h *Hamiltonian) (vals []float64, vecs [][]complex128, ok bool) {
 	d := h.Dim()
-	re, im := make([]float64, d*d), make([]float64, d*d)
-	h.fillComplex(re, im)
+	re, im := denseMatrix(h)
 	n := 2 * d
 	a := make([]float64, n*n)
 	for r := 0; r < d; r++ {
@@ -29,11 +28,11 @@ func embeddingSolve(h *Hamiltonian) (vals []float64, vecs [][]complex128, ok boo
 	}
 	// The same real symmetric solver as the real path, for a fair
 	// comparison.
-	emb := &Spectrum{dim: n, real: true, values: make([]float64, n), vecs: a}
-	if emb.solveReal() != nil {
+	var emb Spectrum
+	w := make([]float64, n)
+	if emb.solveReal(n, a, w) != nil {
 		return nil, nil, false
 	}
-	w := emb.values
 	scale := math.Max(math.Abs(w[0]), math.Abs(w[n-1]))
 	tol := 1e-9 * math.Max(scale, 1)
 	for g0 := 0; g0 < n; {

@@ -7,8 +7,10 @@ import (
 	"gonum.org/v1/gonum/blas/blas64"
 )
 
-// solveHermitian diagonalises the complex Hermitian matrix whose real and
-// imaginary parts are in s.vecs.
+// solveHermitian diagonalises the complex Hermitian d×d matrix whose real
+// and imaginary parts are v[:d*d] and v[d*d:2*d*d], in place: on return
+// values holds the eigenvalues in ascending order and v the eigenvectors
+// as columns (real parts over imaginary parts).
 //
 // gonum has no complex Hermitian eigensolver. Of the two ways to build one
 // from real LAPACK, this uses a Householder reduction of the complex
@@ -25,11 +27,10 @@ import (
 // against 5.3 ms at 6 qubits and 88 ms against 296 ms at 8 qubits, so the
 // reduction is about 3.5 times faster, uses half the memory and
 // needs no degeneracy heuristics. It costs about twice the real path.
-func (s *Spectrum) solveHermitian() error {
-	d := s.dim
-	ar, ai := s.vecs[:d*d], s.vecs[d*d:]
+func (s *Spectrum) solveHermitian(d int, v, values []float64) error {
+	ar, ai := v[:d*d], v[d*d:2*d*d]
 	if d == 1 {
-		s.values[0] = ar[0]
+		values[0] = ar[0]
 		ar[0], ai[0] = 1, 0
 		return nil
 	}
@@ -38,7 +39,7 @@ func (s *Spectrum) solveHermitian() error {
 	s.phase = grow(s.phase, 2*d)
 	s.tmp = grow(s.tmp, 6*d)
 	er, ei := s.tmp[4*d:5*d], s.tmp[5*d:]
-	tridiagonalize(d, ar, ai, s.values, er, ei, s.tau, s.tmp[:4*d])
+	tridiagonalize(d, ar, ai, values, er, ei, s.tau, s.tmp[:4*d])
 
 	// T = Φ T_r Φ^† with T_r real: T_r[k+1,k] = |e_k| and
 	// φ_{k+1} = φ_k e_k/|e_k|, φ_0 = 1.
@@ -64,12 +65,12 @@ func (s *Spectrum) solveHermitian() error {
 	for i := 0; i < d; i++ {
 		s.z[i*d+i] = 1
 	}
-	if err := tridiagEigen(d, s.values, s.sub, s.z); err != nil {
+	if err := tridiagEigen(d, values, s.sub, s.z); err != nil {
 		return err
 	}
 	// V = (QΦ) Z for both parts at once, with s.z holding Z^T; the
-	// reflectors in s.vecs are no longer needed.
-	blas64.Implementation().Dgemm(blas.NoTrans, blas.Trans, 2*d, d, d, 1, s.scratch, d, s.z, d, 0, s.vecs, d)
+	// reflectors in v are no longer needed.
+	blas64.Implementation().Dgemm(blas.NoTrans, blas.Trans, 2*d, d, d, 1, s.scratch, d, s.z, d, 0, v, d)
 	return nil
 }
 

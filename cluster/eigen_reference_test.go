@@ -171,6 +171,17 @@ func randomHamiltonian(n int, complex bool, rng *rand.Rand) *Hamiltonian {
 	return h
 }
 
+// denseMatrix returns the real and imaginary parts of the matrix of h,
+// row-major, as the one-sector basis fills them.
+func denseMatrix(h *Hamiltonian) (re, im []float64) {
+	var bb blockBasis
+	bb.build(h.NumQubits, oneSector)
+	d := h.Dim()
+	re, im = make([]float64, d*d), make([]float64, d*d)
+	bb.fillComplex(h, 0, re, im)
+	return re, im
+}
+
 // mustPauli parses a Pauli string or panics.
 func mustPauli(letters string, qubits ...int) PauliString {
 	p, err := ParsePauli(letters, qubits)

@@ -80,12 +80,21 @@ func TestTracePowers(t *testing.T) {
 
 // solveHermitianOnly runs the Hermitian path on any Hamiltonian.
 func solveHermitianOnly(h *Hamiltonian) (*Spectrum, error) {
-	s := &Spectrum{nq: h.NumQubits, dim: h.Dim()}
+	s := &Spectrum{dim: h.Dim()}
+	if _, err := s.setup(h, NoSymmetry); err != nil {
+		return nil, err
+	}
+	s.real = false
 	d := s.dim
 	s.values = make([]float64, d)
-	s.vecs = make([]float64, 2*d*d)
-	h.fillComplex(s.vecs[:d*d], s.vecs[d*d:])
-	return s, s.solveHermitian()
+	re, im := denseMatrix(h)
+	s.vecs = append(re, im...)
+	s.vecOff = []int{0}
+	s.rank = make([]int32, d)
+	for k := range s.rank {
+		s.rank[k] = int32(k)
+	}
+	return s, s.solveHermitian(d, s.vecs, s.values)
 }
 
 // TestHermitianMatchesReal runs the Hermitian path on real Hamiltonians and

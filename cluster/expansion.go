@@ -55,26 +55,8 @@ func NewExpansion(lat *lattice.Lattice, terms []lattice.Term) (*Expansion, error
 	if n > math.MaxInt32 {
 		return nil, fmt.Errorf("lattice has %d sites, more than the expansion supports", n)
 	}
-	for k, t := range terms {
-		if len(t.Sites) == 0 || len(t.Sites) != len(t.Pauli) {
-			return nil, fmt.Errorf("term %d (%s): %d letters on %d sites", k, t.Pauli, len(t.Pauli), len(t.Sites))
-		}
-		for i, s := range t.Sites {
-			if s < 0 || s >= n {
-				return nil, fmt.Errorf("term %d (%s): site %d out of range [0,%d)", k, t.Key(), s, n)
-			}
-			if i > 0 && s <= t.Sites[i-1] {
-				return nil, fmt.Errorf("term %d (%s): sites not strictly increasing", k, t.Key())
-			}
-		}
-		for i := 0; i < len(t.Pauli); i++ {
-			if c := t.Pauli[i]; c != 'X' && c != 'Y' && c != 'Z' {
-				return nil, fmt.Errorf("term %d (%s): letter %q is not X, Y or Z", k, t.Key(), c)
-			}
-		}
-		if !lat.Connected(t.Sites) {
-			return nil, fmt.Errorf("term %d (%s): support is not connected on the lattice's interaction graph", k, t.Key())
-		}
+	if err := lat.CheckTerms(terms); err != nil {
+		return nil, err
 	}
 	e := &Expansion{lat: lat, terms: terms}
 	e.sorted = make([]int32, len(terms))
@@ -116,23 +98,19 @@ type Options struct {
 	// not depend on it.
 	Workers int
 	// MaxWork refuses evaluations whose estimated cost exceeds it, in
-	// units of the dense diagonalisation cost D^3 = 8^|c| summed over
-	// clusters; <= 0 means DefaultMaxWork.
+	// units of the diagonalisation cost summed over clusters: D^3 = 8^|c|
+	// for a dense cluster, the sum of the cubed sector dimensions when the
+	// model has a Symmetry; <= 0 means DefaultMaxWork.
 	MaxWork float64
+	// IgnoreSymmetry diagonalises every cluster densely even when the
+	// model has a Symmetry: slower, with the same results to rounding;
+	// for cross-checks and timing.
+	IgnoreSymmetry bool
 	// Progress, when set, is called after each block of anchor sites with
 	// the number of blocks done and the total. It may be called from
 	// several goroutines, one call at a time.
 	Progress func(done, total int)
 }
-
-// DefaultMaxWork is about an hour of work on a current 2-core machine:
-// measured about 1.2 ns per unit (20x20 square lattice at order 6,
-// 1.8e10 units, 21 s with two workers).
-const DefaultMaxWork = 3e12
-
-// secondsPerWorkUnit is the measured wall time per unit of work with two
-// workers, for the estimates quoted in refusals.
-const secondsPerWorkUnit = 1.2e-9
 
 // Result holds the partial sums of the expansion at every order 1..Order.
 // Extensive quantities are totals over the lattice; divide by NumSites for
@@ -141,6 +119,9 @@ type Result struct {
 	Order    int
 	NumSites int
 	Beta     float64
+	// Symmetry is the conserved quantity whose blocks every cluster was
+	// diagonalised in (NoSymmetry: dense).
+	Symmetry Symmetry
 	// Clusters[s-1] is the number of connected clusters with s sites.
 	Clusters []int64
 
@@ -166,46 +147,6 @@ func (r *Result) Entropy(o int) float64 {
 	return r.LogZ[o-1] + float64(r.NumSites)*math.Ln2 + r.Beta*r.Energy[o-1]
 }
 
-// EstimateWork returns the expected number of clusters and the work
-// (sum over clusters of 8^size, the cost D^3 of diagonalising each) of an
-// evaluation at the given order, from an enumeration around a sample of
-// anchor sites rather than all of them.
-func (e *Expansion) EstimateWork(order int) (clusters int64, work float64) {
-	counts := estimateClusterCounts(e.lat, order)
-	for s, c := range counts {
-		clusters += int64(c)
-		work += c * math.Pow(8, float64(s+1))
-	}
-	return clusters, work
-}
-
-// estimateClusterCounts estimates the number of clusters of each size
-// 1..order by enumerating from a few anchors spread over the lattice and
-// scaling by the number of sites. Anchors far from the lattice's edges
-// dominate on large lattices; on small ones every anchor is sampled and the
-// count is exact.
-func estimateClusterCounts(lat *lattice.Lattice, order int) []float64 {
-	n := lat.NumSites()
-	const sample = 24
-	step := 1
-	if n > sample {
-		step = n / sample
-	}
-	counts := make([]float64, order)
-	used := 0
-	for a := 0; a < n; a += step {
-		used++
-		lat.EachClusterFrom(a, order, func(sites []int) bool {
-			counts[len(sites)-1]++
-			return true
-		})
-	}
-	for i := range counts {
-		counts[i] *= float64(n) / float64(used)
-	}
-	return counts
-}
-
 // Evaluate sums the expansion for the coefficients coeffs (one per term,
 // in the order of Terms) at inverse temperature beta.
 func (e *Expansion) Evaluate(coeffs []float64, beta float64, opt Options) (*Result, error) {
@@ -215,53 +156,51 @@ func (e *Expansion) Evaluate(coeffs []float64, beta float64, opt Options) (*Resu
 	if !(beta >= 0) || math.IsInf(beta, 0) {
 		return nil, fmt.Errorf("beta = %v: must be finite and >= 0", beta)
 	}
-	L, workers, err := e.checkRun(coeffs, opt)
+	L, workers, sym, err := e.checkRun(coeffs, opt)
 	if err != nil {
 		return nil, err
 	}
-	n := e.lat.NumSites()
-	blocks := anchorBlocks(n)
+	blocks := e.lat.AnchorBlocks()
 	accs := make([]*blockAcc, len(blocks))
 	err = e.runBlocks(blocks, workers, opt.Progress, func(w *clusterWork, b int) error {
-		acc, err := e.evaluateBlock(w, blocks[b], coeffs, beta, L, opt.Response)
+		acc, err := e.evaluateBlock(w, blocks[b], coeffs, beta, L, opt.Response, sym)
 		accs[b] = acc
 		return err
 	})
 	if err != nil {
 		return nil, err
 	}
-	return e.merge(accs, L, beta, opt.Response), nil
+	r := e.merge(accs, L, beta, opt.Response)
+	r.Symmetry = sym
+	return r, nil
 }
 
-// checkRun validates coefficients and options and returns the order and
-// the worker count.
-func (e *Expansion) checkRun(coeffs []float64, opt Options) (L, workers int, err error) {
+// checkRun validates coefficients and options and returns the order, the
+// worker count and the symmetry every cluster is diagonalised with.
+func (e *Expansion) checkRun(coeffs []float64, opt Options) (L, workers int, sym Symmetry, err error) {
 	for k, c := range coeffs {
 		if math.IsNaN(c) || math.IsInf(c, 0) {
-			return 0, 0, fmt.Errorf("term %d (%s): coefficient %v is not finite", k, e.terms[k].Key(), c)
+			return 0, 0, 0, fmt.Errorf("term %d (%s): coefficient %v is not finite", k, e.terms[k].Key(), c)
 		}
 	}
 	L = opt.Order
 	if L < 1 {
-		return 0, 0, fmt.Errorf("expansion order %d: must be at least 1", L)
+		return 0, 0, 0, fmt.Errorf("expansion order %d: must be at least 1", L)
 	}
 	if L > MaxDenseQubits {
-		return 0, 0, fmt.Errorf("expansion order %d: clusters above %d sites are beyond dense diagonalisation", L, MaxDenseQubits)
+		return 0, 0, 0, fmt.Errorf("expansion order %d: clusters above %d sites are beyond dense diagonalisation", L, MaxDenseQubits)
 	}
-	maxWork := opt.MaxWork
-	if maxWork <= 0 {
-		maxWork = DefaultMaxWork
-	}
-	if nc, work := e.EstimateWork(L); work > maxWork {
-		hours := work * secondsPerWorkUnit / 3600
-		return 0, 0, fmt.Errorf("expansion order %d on %d sites: about %d clusters, roughly %.3g hours on a 2-core machine (%.3g units of work, over the limit %.3g); lower the order",
-			L, e.lat.NumSites(), nc, hours, work, maxWork)
+	if !opt.IgnoreSymmetry {
+		sym = e.Symmetry(coeffs)
 	}
 	workers = opt.Workers
 	if workers <= 0 {
 		workers = runtime.GOMAXPROCS(0)
 	}
-	return L, workers, nil
+	if err := e.checkWork(L, opt.MaxWork, sym); err != nil {
+		return 0, 0, 0, err
+	}
+	return L, workers, sym, nil
 }
 
 // runBlocks runs task for every block on at most workers goroutines, each
@@ -290,22 +229,6 @@ func (e *Expansion) runBlocks(blocks [][2]int, workers int, progress func(done, 
 		})
 	}
 	return g.Wait()
-}
-
-// anchorBlocks cuts the anchor sites into contiguous blocks whose number
-// depends only on n, so the summation order, and hence every bit of the
-// result, is the same for any worker count.
-func anchorBlocks(n int) [][2]int {
-	const target = 256
-	size := (n + target - 1) / target
-	if size < 1 {
-		size = 1
-	}
-	var out [][2]int
-	for a := 0; a < n; a += size {
-		out = append(out, [2]int{a, min(a+size, n)})
-	}
-	return out
 }
 
 // blockAcc accumulates the contributions of the clusters anchored in one
@@ -337,6 +260,7 @@ type clusterWork struct {
 	pos    []int32 // sorted positions of the terms inside the cluster
 	ham    Hamiltonian
 	spec   Spectrum // reused: Factorize keeps its workspace
+	levels Levels   // the same for eigenvalue-only work
 	th     Thermal
 	vals   []float64
 	resp   []float64
@@ -351,7 +275,7 @@ func newClusterWork(n int) *clusterWork {
 	return w
 }
 
-func (e *Expansion) evaluateBlock(w *clusterWork, block [2]int, coeffs []float64, beta float64, L int, wantResp bool) (*blockAcc, error) {
+func (e *Expansion) evaluateBlock(w *clusterWork, block [2]int, coeffs []float64, beta float64, L int, wantResp bool, sym Symmetry) (*blockAcc, error) {
 	acc := &blockAcc{
 		lo:       int(e.bySite[block[0]]),
 		expect:   make([][]float64, L),
@@ -368,7 +292,7 @@ func (e *Expansion) evaluateBlock(w *clusterWork, block [2]int, coeffs []float64
 		if len(c.pos) == 0 {
 			return nil
 		}
-		return e.addCluster(w, acc, c, beta, L, wantResp)
+		return e.addCluster(w, acc, c, beta, L, wantResp, sym)
 	})
 	return acc, err
 }
@@ -445,11 +369,11 @@ func (e *Expansion) loadCluster(w *clusterWork, sites []int, coeffs []float64) {
 	}
 }
 
-// addCluster diagonalises one cluster and adds its multiplied properties
-// to every order from its size up to L.
-func (e *Expansion) addCluster(w *clusterWork, acc *blockAcc, c *clusterView, beta float64, L int, wantResp bool) error {
+// addCluster diagonalises one cluster in the blocks of sym and adds its
+// multiplied properties to every order from its size up to L.
+func (e *Expansion) addCluster(w *clusterWork, acc *blockAcc, c *clusterView, beta float64, L int, wantResp bool, sym Symmetry) error {
 	size := c.size
-	if err := w.spec.Factorize(&w.ham); err != nil {
+	if err := w.spec.FactorizeWith(&w.ham, sym); err != nil {
 		return fmt.Errorf("cluster %v: %v", c.sites, err)
 	}
 	th := &w.th

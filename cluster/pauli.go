@@ -3,6 +3,8 @@ package cluster
 import (
 	"fmt"
 	"math/bits"
+
+	"warmfit/lattice"
 )
 
 // MaxQubits is the largest number of qubits a PauliString can address.
@@ -19,27 +21,40 @@ type PauliString struct {
 }
 
 // ParsePauli builds the Pauli string whose letter i (X, Y or Z) acts on
-// qubit qubits[i]. It returns an error for an unknown letter, a length
-// mismatch, an out-of-range or a repeated qubit.
+// qubit qubits[i]. Letters and qubits are checked by lattice.Canonical
+// (the one check of a term's form), and qubits must be below MaxQubits.
 func ParsePauli(letters string, qubits []int) (PauliString, error) {
-	if len(letters) != len(qubits) {
-		return PauliString{}, fmt.Errorf("pauli %q has %d letters but %d sites", letters, len(letters), len(qubits))
+	if _, _, err := lattice.CanonicalWithin(MaxQubits, letters, qubits); err != nil {
+		return PauliString{}, err
 	}
 	var p PauliString
 	for i := 0; i < len(letters); i++ {
-		q := qubits[i]
-		if q < 0 || q >= MaxQubits {
-			return PauliString{}, fmt.Errorf("qubit %d out of range [0,%d)", q, MaxQubits)
-		}
-		bit := uint64(1) << uint(q)
-		if (p.X|p.Z)&bit != 0 {
-			return PauliString{}, fmt.Errorf("qubit %d repeated in pauli %q", q, letters)
-		}
-		if !p.setLetter(bit, letters[i]) {
-			return PauliString{}, fmt.Errorf("unknown Pauli letter %q in %q (want X, Y or Z)", letters[i], letters)
-		}
+		p.setLetter(uint64(1)<<uint(qubits[i]), letters[i])
 	}
 	return p, nil
+}
+
+// TermPauli is the Pauli string of a term: the one conversion from
+// lattice.Term to PauliString.
+func TermPauli(t lattice.Term) (PauliString, error) {
+	p, err := ParsePauli(t.Pauli, t.Sites)
+	if err != nil {
+		return PauliString{}, fmt.Errorf("term %s: %w", t.Key(), err)
+	}
+	return p, nil
+}
+
+// TermPaulis converts every term, naming the first that fails.
+func TermPaulis(terms []lattice.Term) ([]PauliString, error) {
+	ops := make([]PauliString, len(terms))
+	for k, t := range terms {
+		p, err := TermPauli(t)
+		if err != nil {
+			return nil, err
+		}
+		ops[k] = p
+	}
+	return ops, nil
 }
 
 // setLetter puts letter c (X, Y or Z) on the qubit with mask bit and

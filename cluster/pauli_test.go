@@ -96,11 +96,11 @@ func TestParsePauli(t *testing.T) {
 		{"X", []int{0}, PauliString{X: 1}, ""},
 		{"YZ", []int{2, 0}, PauliString{X: 4, Z: 5}, ""},
 		{"ZZ", []int{63, 1}, PauliString{Z: 1<<63 | 2}, ""},
-		{"XA", []int{0, 1}, PauliString{}, "unknown Pauli letter"},
-		{"XX", []int{0}, PauliString{}, "letters but"},
+		{"XA", []int{0, 1}, PauliString{}, "is not X, Y or Z"},
+		{"XX", []int{0}, PauliString{}, "1 sites for the 2 letters"},
 		{"XX", []int{1, 1}, PauliString{}, "repeated"},
 		{"X", []int{64}, PauliString{}, "out of range"},
-		{"X", []int{-1}, PauliString{}, "out of range"},
+		{"X", []int{-1}, PauliString{}, "negative site"},
 	} {
 		got, err := ParsePauli(tc.letters, tc.qubits)
 		if tc.err != "" {

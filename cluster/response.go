@@ -19,12 +19,17 @@ type responseWork struct {
 	sk    []float64 // sqrt(f_nm k_nm) on the current block of eigenstate pairs
 	w     []float64 // P V on the block's columns; stacked real over imaginary
 	w2    []float64 // complex case: Re + Im of P V on the block's columns
-	vdiff []float64 // complex case: Re V - Im V
+	vdiff []float64 // complex case: Re V - Im V of every sector, from vdOff
+	vdOff []int
 	m     []float64 // <n|P|m> on the block, real part then imaginary part
-	y     []float64 // weighted matrix elements of every operator, one row each
-	cov   []float64
+	y     []float64 // weighted matrix elements of the selected operators
+	cov   []float64 // all operators
+	part  []float64 // the selected operators of one sector pair
 	mean  []float64
 	odd   []bool
+	ops   []PauliString // the operators in the symmetry's frame
+	reach []uint64      // reach[a*sectors+s]: the sectors ops[a] maps sector s to
+	sel   []int         // operators connecting the current pair of sectors
 }
 
 func (r *responseWork) grow(p *[]float64, n int) []float64 {
@@ -48,10 +53,16 @@ func (r *responseWork) grow(p *[]float64, n int) []float64 {
 // its diagonal is non-positive. dst must have at least len(ops)^2
 // elements; every operator must act within the qubits of the Hamiltonian.
 //
-// Cost: O(len(ops) · Dim² · active) for the matrix elements (BLAS Dgemm,
-// only pairs n <= m with n among the thermally active states; three times
-// that for complex eigenvectors) plus O(len(ops)² · Dim · active) for the
-// covariances.
+// The added operators need not have the symmetry of H: the sum runs over
+// the pairs of sectors (s, s') that an operator connects, with only the
+// operators connecting them, so the response between an operator that
+// stays within the sectors and one that leaves them all is exactly zero.
+//
+// Cost without a symmetry: O(len(ops) · Dim² · active) for the matrix
+// elements (BLAS Dgemm, only pairs n <= m with n among the thermally
+// active states; three times that for complex eigenvectors) plus
+// O(len(ops)² · Dim · active) for the covariances; with blocks, the same
+// sums over connected pairs of sectors.
 func (t *Thermal) Response(ops []PauliString, dst []float64) {
 	n := len(ops)
 	if len(dst) < n*n {
@@ -70,58 +81,55 @@ func (t *Thermal) Response(ops []PauliString, dst []float64) {
 		return
 	}
 	r := &t.resp
-	d, na := s.dim, t.active
-	parts := 1
-	if !s.real {
-		parts = 2
-	}
+	bb := s.basis()
+	ns := bb.numSectors()
 	mean := r.grow(&r.mean, n)
 	if cap(r.odd) < n {
 		r.odd = make([]bool, n)
 	}
 	odd := r.odd[:n]
+	if cap(r.reach) < n*ns {
+		r.reach = make([]uint64, n*ns)
+	}
+	reach := r.reach[:n*ns]
+	r.ops = r.ops[:0]
 	for a, p := range ops {
 		mean[a] = t.Expect(p)
-		odd[a] = s.real && p.NumY()&1 == 1
-	}
-
-	if !s.real {
-		vd := r.grow(&r.vdiff, d*d)
-		for i := range vd {
-			vd[i] = s.vecs[i] - s.vecs[d*d+i]
+		fp := s.sym.frameOp(p)
+		r.ops = append(r.ops, fp)
+		odd[a] = s.real && fp.NumY()&1 == 1
+		for sec := 0; sec < ns; sec++ {
+			reach[a*ns+sec] = bb.reach(fp, sec)
 		}
 	}
-	// Eigenstate rows are processed in blocks of c so that the weighted
-	// matrix elements of all operators fit the budget.
-	c := min(na, max(1, responseBudget/(n*d*parts)))
+	if !s.real {
+		t.fillVDiff()
+	}
 	cov := r.grow(&r.cov, n*n)
 	clear(cov)
-	bl := blas64.Implementation()
-	for n0 := 0; n0 < na; n0 += c {
-		rows := min(c, na-n0)
-		cols := d - n0 // pairs (n, m) with m >= n0
-		t.fillPairWeights(n0, rows, cols)
-		rowLen := parts * rows * cols
-		y := r.grow(&r.y, n*rowLen)
-		for a, p := range ops {
-			t.matrixElements(p, n0, rows, cols)
-			ya := y[a*rowLen : (a+1)*rowLen]
-			m := r.m
-			// Centre the diagonal so that no <A><B> is subtracted later.
-			for j := 0; j < rows; j++ {
-				m[j*cols+j] -= mean[a]
-			}
-			for i, sk := range r.sk[:rows*cols] {
-				ya[i] = sk * m[i]
-			}
-			if parts == 2 {
-				mi := m[rows*cols:]
-				for i, sk := range r.sk[:rows*cols] {
-					ya[rows*cols+i] = sk * mi[i]
+	for s1 := 0; s1 < ns; s1++ {
+		for s2 := s1; s2 < ns; s2++ {
+			// Within a sector the diagonal is centred, which involves
+			// every operator with a non-zero mean.
+			r.sel = r.sel[:0]
+			for a := 0; a < n; a++ {
+				if reach[a*ns+s1]>>uint(s2)&1 == 1 || (s1 == s2 && mean[a] != 0) {
+					r.sel = append(r.sel, a)
 				}
 			}
+			if len(r.sel) == 0 {
+				continue
+			}
+			if s1 == s2 {
+				t.addPairs(s1, s1, 0, true)
+				continue
+			}
+			// Pairs with an active level in s1, then pairs of an active
+			// level in s2 with the inactive levels of s1; pairs of two
+			// inactive levels weigh less than the cut.
+			t.addPairs(s1, s2, 0, false)
+			t.addPairs(s2, s1, t.active[s1], false)
 		}
-		bl.Dsyrk(blas.Upper, blas.NoTrans, n, rowLen, 1, y, rowLen, 1, cov, n)
 	}
 	for a := 0; a < n; a++ {
 		for b := a; b < n; b++ {
@@ -135,22 +143,116 @@ func (t *Thermal) Response(ops []PauliString, dst []float64) {
 	}
 }
 
-// fillPairWeights sets r.sk[j*cols+i] = sqrt(f k_nm) for n = n0+j and
-// m = n0+i, with f = 2 for m > n (the pair (m, n) is folded in), 1 on the
-// diagonal and 0 below it.
-func (t *Thermal) fillPairWeights(n0, rows, cols int) {
+// fillVDiff stores Re V - Im V of every sector.
+func (t *Thermal) fillVDiff() {
+	s, r := t.spec, &t.resp
+	bb := s.basis()
+	r.vdOff = r.vdOff[:0]
+	total := 0
+	for sec := 0; sec < bb.numSectors(); sec++ {
+		r.vdOff = append(r.vdOff, total)
+		total += bb.dim(sec) * bb.dim(sec)
+	}
+	vd := r.grow(&r.vdiff, total)
+	for sec := 0; sec < bb.numSectors(); sec++ {
+		d := bb.dim(sec)
+		v := s.vecs[s.vecOff[sec] : s.vecOff[sec]+2*d*d]
+		out := vd[r.vdOff[sec] : r.vdOff[sec]+d*d]
+		for i := range out {
+			out[i] = v[i] - v[d*d+i]
+		}
+	}
+}
+
+// addPairs adds to the covariance of the selected operators (r.sel) the
+// pairs of the active levels n of sector rs with the levels m of sector
+// cs from colLo on; with same (rs == cs) only the pairs m >= n, the
+// pair (m, n) folded into (n, m). Levels are processed in blocks of rows
+// so that the weighted matrix elements fit the budget.
+func (t *Thermal) addPairs(rs, cs, colLo int, same bool) {
 	r := &t.resp
+	bb := t.spec.basis()
+	nrows, dc := t.active[rs], bb.dim(cs)
+	if nrows == 0 || colLo >= dc {
+		return
+	}
+	parts := 1
+	if !t.spec.real {
+		parts = 2
+	}
+	np, n := len(r.sel), len(r.mean)
+	c := min(nrows, max(1, responseBudget/(np*(dc-colLo)*parts)))
+	bl := blas64.Implementation()
+	for n0 := 0; n0 < nrows; n0 += c {
+		rows := min(c, nrows-n0)
+		m0 := colLo
+		if same {
+			m0 = n0
+		}
+		cols := dc - m0
+		t.fillPairWeights(rs, n0, rows, cs, m0, cols, same)
+		size := rows * cols
+		rowLen := parts * size
+		y := r.grow(&r.y, np*rowLen)
+		for i, a := range r.sel {
+			t.matrixElements(r.ops[a], rs, n0, rows, cs, m0, cols)
+			ya := y[i*rowLen : (i+1)*rowLen]
+			m := r.m
+			if same {
+				// Centre the diagonal so that no <A><B> is subtracted later.
+				for j := 0; j < rows; j++ {
+					m[j*cols+j] -= r.mean[a]
+				}
+			}
+			for k, sk := range r.sk[:size] {
+				ya[k] = sk * m[k]
+			}
+			if parts == 2 {
+				mi := m[size:]
+				for k, sk := range r.sk[:size] {
+					ya[size+k] = sk * mi[k]
+				}
+			}
+		}
+		part := r.grow(&r.part, np*np)
+		bl.Dsyrk(blas.Upper, blas.NoTrans, np, rowLen, 1, y, rowLen, 0, part, np)
+		for i, a := range r.sel {
+			for j := i; j < np; j++ {
+				r.cov[a*n+r.sel[j]] += part[i*np+j]
+			}
+		}
+	}
+}
+
+// fillPairWeights sets r.sk[j*cols+i] = sqrt(f k_nm) for level n = n0+j
+// of sector rs and level m = m0+i of sector cs, with f = 2 for pairs
+// that stand for (n, m) and (m, n) and f = 1 on the diagonal. With same,
+// the block is the upper triangle of one sector (m0 = n0): zero below
+// the diagonal.
+func (t *Thermal) fillPairWeights(rs, n0, rows, cs, m0, cols int, same bool) {
+	r := &t.resp
+	bb := t.spec.basis()
 	sk := r.grow(&r.sk, rows*cols)
-	e := t.spec.values
+	e, w := t.spec.values, t.weights
+	rOff, cOff := bb.start[rs]+n0, bb.start[cs]+m0
 	for j := 0; j < rows; j++ {
-		nn := n0 + j
+		nn := rOff + j
 		row := sk[j*cols : (j+1)*cols]
-		clear(row[:j])
-		wn := t.weights[nn]
-		row[j] = math.Sqrt(wn)
-		for i := j + 1; i < cols; i++ {
-			x := t.beta * (e[n0+i] - e[nn])
-			row[i] = math.Sqrt(2 * wn * kuboMoriFactor(x))
+		if same {
+			clear(row[:j])
+			row[j] = math.Sqrt(w[nn])
+			for i := j + 1; i < cols; i++ {
+				x := t.beta * (e[cOff+i] - e[nn])
+				row[i] = math.Sqrt(2 * w[nn] * kuboMoriFactor(x))
+			}
+			continue
+		}
+		for i := range row {
+			lo, gap := nn, e[cOff+i]-e[nn]
+			if gap < 0 {
+				lo, gap = cOff+i, -gap
+			}
+			row[i] = math.Sqrt(2 * w[lo] * kuboMoriFactor(t.beta*gap))
 		}
 	}
 }
@@ -163,77 +265,95 @@ func kuboMoriFactor(x float64) float64 {
 	return -math.Expm1(-x) / x
 }
 
-// matrixElements sets r.m to <n|P|m> for n = n0..n0+rows-1 and
-// m = n0..n0+cols-1 (row-major, rows×cols), followed in the complex case
-// by the imaginary parts. In the real case an operator with an odd number
-// of Y letters is represented by the real matrix of P/i.
-func (t *Thermal) matrixElements(p PauliString, n0, rows, cols int) {
+// matrixElements sets r.m to <n|P|m> for the levels n = n0..n0+rows-1 of
+// sector rs and m = m0..m0+cols-1 of sector cs (row-major, rows×cols),
+// followed in the complex case by the imaginary parts. P is in the
+// symmetry's frame. In the real case an operator with an odd number of Y
+// letters is represented by the real matrix of P/i.
+func (t *Thermal) matrixElements(p PauliString, rs, n0, rows, cs, m0, cols int) {
 	s := t.spec
 	r := &t.resp
-	d := s.dim
+	bb := s.basis()
+	dr, dc := bb.dim(rs), bb.dim(cs)
+	vr, vc := s.vecs[s.vecOff[rs]:], s.vecs[s.vecOff[cs]:]
+	states := bb.states[bb.start[rs]:bb.start[rs+1]]
 	bl := blas64.Implementation()
 	if s.real {
-		w := r.grow(&r.w, d*rows)
+		// W = P V_rs[:, n0:n0+rows] on the basis of sector cs; the states
+		// P maps to other sectors stay zero.
+		w := r.grow(&r.w, dc*rows)
+		clear(w)
 		nyHalf := p.NumY() >> 1
-		for b := 0; b < d; b++ {
-			src := s.vecs[b*d+n0 : b*d+n0+rows]
-			out := w[int(uint64(b)^p.X)*rows : int(uint64(b)^p.X)*rows+rows]
+		for i, b := range states {
+			e := uint64(b) ^ p.X
+			if int(bb.sector[e]) != cs {
+				continue
+			}
+			src := vr[i*dr+n0 : i*dr+n0+rows]
+			le := int(bb.local[e])
+			out := w[le*rows : le*rows+rows]
 			if (nyHalf+bits.OnesCount64(uint64(b)&p.Z))&1 == 0 {
 				copy(out, src)
 			} else {
-				for i, v := range src {
-					out[i] = -v
+				for k, v := range src {
+					out[k] = -v
 				}
 			}
 		}
 		m := r.grow(&r.m, rows*cols)
 		// <n|P|m> = (P v_n)^T v_m.
-		bl.Dgemm(blas.Trans, blas.NoTrans, rows, cols, d, 1, w, rows, s.vecs[n0:], d, 0, m, cols)
+		bl.Dgemm(blas.Trans, blas.NoTrans, rows, cols, dc, 1, w, rows, vc[m0:], dc, 0, m, cols)
 		return
 	}
 	// Complex: with W = P V_blk = Wr + i Wi and V = Vr + i Vi,
 	// <n|P|m> = (W^† V)_nm has real part T1 + T2 and imaginary part
 	// T1 - T2 - T3, where T1 = Wr^T Vr, T2 = Wi^T Vi and
 	// T3 = (Wr + Wi)^T (Vr - Vi): three real products instead of four.
-	w := r.grow(&r.w, 2*d*rows)
-	wsum := r.grow(&r.w2, d*rows)
-	vi := s.vecs[d*d:]
-	for b := 0; b < d; b++ {
-		srcR := s.vecs[b*d+n0 : b*d+n0+rows]
-		srcI := vi[b*d+n0 : b*d+n0+rows]
-		e := int(uint64(b) ^ p.X)
-		outR := w[e*rows : e*rows+rows]
-		outI := w[(d+e)*rows : (d+e)*rows+rows]
+	w := r.grow(&r.w, 2*dc*rows)
+	wsum := r.grow(&r.w2, dc*rows)
+	clear(w)
+	clear(wsum)
+	vri := vr[dr*dr:]
+	for i, b := range states {
+		e := uint64(b) ^ p.X
+		if int(bb.sector[e]) != cs {
+			continue
+		}
+		srcR := vr[i*dr+n0 : i*dr+n0+rows]
+		srcI := vri[i*dr+n0 : i*dr+n0+rows]
+		le := int(bb.local[e])
+		outR := w[le*rows : le*rows+rows]
+		outI := w[(dc+le)*rows : (dc+le)*rows+rows]
 		// Multiply by i^k: (x + iy) i = -y + ix.
 		switch p.phaseExp(uint64(b)) {
 		case 0:
 			copy(outR, srcR)
 			copy(outI, srcI)
 		case 1:
-			for i := range outR {
-				outR[i], outI[i] = -srcI[i], srcR[i]
+			for k := range outR {
+				outR[k], outI[k] = -srcI[k], srcR[k]
 			}
 		case 2:
-			for i := range outR {
-				outR[i], outI[i] = -srcR[i], -srcI[i]
+			for k := range outR {
+				outR[k], outI[k] = -srcR[k], -srcI[k]
 			}
 		case 3:
-			for i := range outR {
-				outR[i], outI[i] = srcI[i], -srcR[i]
+			for k := range outR {
+				outR[k], outI[k] = srcI[k], -srcR[k]
 			}
 		}
-		sum := wsum[e*rows : e*rows+rows]
-		for i := range sum {
-			sum[i] = outR[i] + outI[i]
+		sum := wsum[le*rows : le*rows+rows]
+		for k := range sum {
+			sum[k] = outR[k] + outI[k]
 		}
 	}
 	m := r.grow(&r.m, 2*rows*cols)
 	mr, mi := m[:rows*cols], m[rows*cols:]
-	bl.Dgemm(blas.Trans, blas.NoTrans, rows, cols, d, 1, w[:d*rows], rows, s.vecs[n0:], d, 0, mr, cols)
-	bl.Dgemm(blas.Trans, blas.NoTrans, rows, cols, d, 1, w[d*rows:], rows, vi[n0:], d, 0, mi, cols)
+	bl.Dgemm(blas.Trans, blas.NoTrans, rows, cols, dc, 1, w[:dc*rows], rows, vc[m0:], dc, 0, mr, cols)
+	bl.Dgemm(blas.Trans, blas.NoTrans, rows, cols, dc, 1, w[dc*rows:], rows, vc[dc*dc+m0:], dc, 0, mi, cols)
 	for i, t1 := range mr {
 		t2 := mi[i]
 		mr[i], mi[i] = t1+t2, t1-t2
 	}
-	bl.Dgemm(blas.Trans, blas.NoTrans, rows, cols, d, -1, wsum, rows, r.vdiff[n0:], d, 1, mi, cols)
+	bl.Dgemm(blas.Trans, blas.NoTrans, rows, cols, dc, -1, wsum, rows, r.vdiff[r.vdOff[cs]+m0:], dc, 1, mi, cols)
 }

@@ -12,6 +12,9 @@ type ThermoResult struct {
 	Order    int
 	NumSites int
 	Betas    []float64
+	// Symmetry is the conserved quantity whose blocks every cluster's
+	// levels were computed in (NoSymmetry: dense).
+	Symmetry Symmetry
 	// LogZ is log(Z / 2^N).
 	LogZ         [][]float64
 	Energy       [][]float64
@@ -25,8 +28,9 @@ func (r *ThermoResult) Entropy(i, o int) float64 {
 }
 
 // Thermodynamics sums log Z, energy and heat capacity over the expansion
-// for every beta of the grid at once: each cluster is diagonalised once and
-// its spectrum reused for all temperatures.
+// for every beta of the grid at once: only the eigenvalues of each
+// cluster are computed (Levels, in the blocks of the model's Symmetry),
+// once, and reused for all temperatures.
 func (e *Expansion) Thermodynamics(coeffs []float64, betas []float64, opt Options) (*ThermoResult, error) {
 	if len(coeffs) != len(e.terms) {
 		panic(fmt.Sprintf("cluster: %d coefficients for %d terms", len(coeffs), len(e.terms)))
@@ -36,12 +40,12 @@ func (e *Expansion) Thermodynamics(coeffs []float64, betas []float64, opt Option
 			return nil, fmt.Errorf("beta = %v: must be finite and >= 0", b)
 		}
 	}
-	L, workers, err := e.checkRun(coeffs, opt)
+	L, workers, sym, err := e.checkRun(coeffs, opt)
 	if err != nil {
 		return nil, err
 	}
 	nb := len(betas)
-	blocks := anchorBlocks(e.lat.NumSites())
+	blocks := e.lat.AnchorBlocks()
 	// One flat slot per block: [quantity][beta][order].
 	slots := make([][]float64, len(blocks))
 	err = e.runBlocks(blocks, workers, opt.Progress, func(w *clusterWork, b int) error {
@@ -51,16 +55,16 @@ func (e *Expansion) Thermodynamics(coeffs []float64, betas []float64, opt Option
 			if len(c.pos) == 0 {
 				return nil
 			}
-			if err := w.spec.Factorize(c.ham); err != nil {
+			if err := w.levels.FactorizeWith(c.ham, sym); err != nil {
 				return fmt.Errorf("cluster %v: %v", c.sites, err)
 			}
-			th := &w.th
 			for i, beta := range betas {
-				if err := th.Set(&w.spec, beta); err != nil {
+				g, err := w.levels.Gibbs(beta)
+				if err != nil {
 					return fmt.Errorf("cluster %v: %v", c.sites, err)
 				}
-				logZ := th.LogZ() - float64(c.size)*math.Ln2
-				energy, heat := th.Energy(), th.HeatCapacity()
+				logZ := g.LogZ - float64(c.size)*math.Ln2
+				energy, heat := g.Energy, g.HeatCapacity
 				for o := c.size; o <= L; o++ {
 					m := c.mult[o-c.size]
 					acc[(0*nb+i)*L+o-1] += m * logZ
@@ -74,7 +78,7 @@ func (e *Expansion) Thermodynamics(coeffs []float64, betas []float64, opt Option
 	if err != nil {
 		return nil, err
 	}
-	r := &ThermoResult{Order: L, NumSites: e.lat.NumSites(), Betas: append([]float64(nil), betas...)}
+	r := &ThermoResult{Order: L, NumSites: e.lat.NumSites(), Betas: append([]float64(nil), betas...), Symmetry: sym}
 	grid := func() [][]float64 {
 		g := make([][]float64, nb)
 		for i := range g {

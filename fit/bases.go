@@ -5,6 +5,7 @@ import (
 	"math/rand/v2"
 	"slices"
 	"sort"
+	"strconv"
 	"strings"
 
 	"warmfit/lattice"
@@ -47,7 +48,7 @@ func CoveringBases(n int, terms []lattice.Term) ([]string, error) {
 	if n <= 0 {
 		return nil, fmt.Errorf("number of qubits %d must be positive", n)
 	}
-	if err := checkTerms(n, terms); err != nil {
+	if err := lattice.CheckTerms(n, terms); err != nil {
 		return nil, err
 	}
 	if len(terms) == 0 {
@@ -422,3 +423,31 @@ func ShotsPerTerm(bases []string, shotsPerBasis int64, terms []lattice.Term) []i
 	}
 	return out
 }
+
+// SchemeBases turns a measurement-scheme name into product bases for
+// terms on n qubits: "covering" (CoveringBases) or "random:K" (K random
+// bases, RandomBases with seed). It also returns a description of the
+// scheme for reports.
+func SchemeBases(scheme string, n int, terms []lattice.Term, seed uint64) ([]string, string, error) {
+	switch {
+	case scheme == "covering":
+		b, err := CoveringBases(n, terms)
+		return b, scheme, err
+	case strings.HasPrefix(scheme, "random:"):
+		k, err := strconv.Atoi(strings.TrimPrefix(scheme, "random:"))
+		if err != nil || k < 1 {
+			return nil, "", fmt.Errorf("bases %q: want random:K with K a positive integer", scheme)
+		}
+		if int64(k)*int64(n) > MaxBasisLetters {
+			return nil, "", fmt.Errorf("bases %q: %d bases of %d letters would take %d MB; at most %d letters in all (%d bases on this system)",
+				scheme, k, n, int64(k)*int64(n)>>20, int64(MaxBasisLetters), MaxBasisLetters/int64(max(n, 1)))
+		}
+		return RandomBases(n, k, seed), fmt.Sprintf("%s (seed %d)", scheme, seed), nil
+	}
+	return nil, "", fmt.Errorf("bases %q: want covering or random:K", scheme)
+}
+
+// MaxBasisLetters bounds random:K before anything is allocated: K bases
+// of n letters hold K n bytes, and 2^28 (256 MB) is more than any
+// experiment measures.
+const MaxBasisLetters int64 = 1 << 28

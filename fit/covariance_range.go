@@ -73,23 +73,6 @@ func lettersAgree(a, b lattice.Term) bool {
 	return true
 }
 
-// checkTerms verifies letters and sites of terms on n qubits.
-func checkTerms(n int, terms []lattice.Term) error {
-	for k, t := range terms {
-		p, s, err := lattice.Canonical(t.Pauli, t.Sites)
-		if err != nil {
-			return fmt.Errorf("term %d: %v", k, err)
-		}
-		if p != t.Pauli || !slices.Equal(s, t.Sites) {
-			return fmt.Errorf("term %d (%s): not in canonical form (sites increasing)", k, t.Key())
-		}
-		if s[len(s)-1] >= n {
-			return fmt.Errorf("term %d (%s): site %d outside 0..%d", k, t.Key(), s[len(s)-1], n-1)
-		}
-	}
-	return nil
-}
-
 // termAdjacency joins sites that appear together in a term.
 func termAdjacency(n int, terms []lattice.Term) [][]int {
 	adj := make([][]int, n)

@@ -1,6 +1,7 @@
 package fit
 
 import (
+	"errors"
 	"fmt"
 	"math"
 	"os"
@@ -49,7 +50,7 @@ func (e *Estimates) Table(terms []lattice.Term) *Table {
 		if missing[k] {
 			continue
 		}
-		r := Row{Pauli: term.Pauli, Sites: slices.Clone(term.Sites), Value: e.Values[k], Stderr: e.Stderr[k], HasStderr: true}
+		r := Row{Pauli: term.Pauli, Sites: slices.Clone(term.Sites), Value: e.Values[k], Stderr: e.Stderr[k], HasStderr: e.Stderr[k] > 0}
 		if withShots {
 			r.Extra = []string{fmt.Sprint(e.Shots[k])}
 		}
@@ -59,11 +60,12 @@ func (e *Estimates) Table(terms []lattice.Term) *Table {
 }
 
 // EstimatesFromTable looks up every term in an expectation table. Exact
-// rows (empty stderr) get standard error zero. The covariance is
+// rows (stderr "exact") get standard error zero. The covariance is
 // diagonal: a table carries no correlations. Terms absent from the table
 // are an error (listing them) unless allowMissing holds their index;
-// unused table rows are returned by key so callers can report them.
-func EstimatesFromTable(t *Table, terms []lattice.Term, allowMissing []int) (est *Estimates, unused []string, err error) {
+// the indices of unused table rows are returned so callers can report
+// them.
+func EstimatesFromTable(t *Table, terms []lattice.Term, allowMissing []int) (est *Estimates, unused []int, err error) {
 	index := t.Index()
 	used := make([]bool, len(t.Rows))
 	est = newEstimates(len(terms))
@@ -87,7 +89,7 @@ func EstimatesFromTable(t *Table, terms []lattice.Term, allowMissing []int) (est
 	}
 	for i, u := range used {
 		if !u {
-			unused = append(unused, t.Rows[i].Key())
+			unused = append(unused, i)
 		}
 	}
 	return est, unused, nil
@@ -126,7 +128,7 @@ func (e *Estimates) markMissing(terms []lattice.Term, absent, allowMissing []int
 		if len(bad) > show {
 			msg += fmt.Sprintf("; and %d more", len(bad)-show)
 		}
-		return fmt.Errorf("%d of %d terms have no usable data: %s", len(bad), len(terms), msg)
+		return fmt.Errorf("%d of %d terms have no usable data: %s; measure them, drop them from the template, or give each a group shared with measured terms so the fit determines them through it", len(bad), len(terms), msg)
 	}
 	for _, k := range absent {
 		e.Values[k], e.Stderr[k], e.Shots[k] = math.NaN(), math.NaN(), 0
@@ -140,17 +142,26 @@ type DataSummary struct {
 	Kind     string   // KindTable or KindSnapshots
 	Rows     int      // rows of an expectation table
 	Shots    int64    // shots of a snapshot file
-	Unused   []string // table rows matching no term, by term key
 	Comments []string // comment lines of a table
 }
 
 // LoadEstimates reads an expectation table or a snapshot file (told apart
-// by DetectDataKind) and returns estimates for terms on n qubits. For a
-// table the covariance is diagonal and opt only supplies AllowMissing.
-func LoadEstimates(path string, n int, terms []lattice.Term, opt CovarianceOptions) (*Estimates, *DataSummary, error) {
+// by DetectDataKind) and returns estimates aligned with terms, a template
+// on lat. For a table the covariance is diagonal. opt.Neighbors defaults
+// to lat's neighbours.
+//
+// A term may lack data when opt.AllowMissing lists it, or when it shares
+// its group with a measured term (GroupedMissing): the fit then
+// determines it through the group. Table rows that match no term are an
+// error naming their line: either a site beyond the lattice or a term
+// the template does not have.
+func LoadEstimates(path string, lat *lattice.Lattice, terms []lattice.Term, opt CovarianceOptions) (*Estimates, *DataSummary, error) {
 	kind, err := DetectDataKind(path)
 	if err != nil {
 		return nil, nil, err
+	}
+	if opt.Neighbors == nil {
+		opt.Neighbors = lat.Neighbors
 	}
 	sum := &DataSummary{Kind: kind}
 	if kind == KindTable {
@@ -158,14 +169,25 @@ func LoadEstimates(path string, n int, terms []lattice.Term, opt CovarianceOptio
 		if err != nil {
 			return nil, nil, err
 		}
-		est, unused, err := EstimatesFromTable(t, terms, opt.AllowMissing)
+		index := t.Index()
+		allow := append(GroupedMissing(terms, func(k int) bool {
+			_, ok := index[terms[k].Key()]
+			return ok
+		}), opt.AllowMissing...)
+		est, unused, err := EstimatesFromTable(t, terms, allow)
 		if err != nil {
-			return nil, nil, fmt.Errorf("%s: %w", path, err)
+			return nil, nil, fmt.Errorf("%s: %w", displayName(path), err)
 		}
-		sum.Rows, sum.Unused, sum.Comments = len(t.Rows), unused, t.Comments
+		if len(unused) > 0 {
+			return nil, nil, unusedRowsError(path, lat, t, unused)
+		}
+		sum.Rows, sum.Comments = len(t.Rows), t.Comments
 		return est, sum, nil
 	}
-	e, err := NewSnapshotEstimator(n, terms, opt)
+	// Which terms get data is known only after counting; the fit refuses
+	// any whose group ends up without a measured member.
+	opt.AllowMissing = append(GroupedMissing(terms, func(int) bool { return true }), opt.AllowMissing...)
+	e, err := NewSnapshotEstimator(lat.NumSites(), terms, opt)
 	if err != nil {
 		return nil, nil, err
 	}
@@ -174,13 +196,64 @@ func LoadEstimates(path string, n int, terms []lattice.Term, opt CovarianceOptio
 		return nil, nil, err
 	}
 	defer f.Close()
-	if err := scanSnapshotBytes(f, path, n, e.addBytes); err != nil {
+	if err := scanSnapshotBytes(f, path, lat.NumSites(), e.addBytes); err != nil {
 		return nil, nil, err
 	}
 	est, err := e.Result()
 	if err != nil {
-		return nil, nil, fmt.Errorf("%s: %w", path, err)
+		return nil, nil, fmt.Errorf("%s: %w", displayName(path), err)
 	}
 	sum.Shots = e.Shots()
 	return est, sum, nil
+}
+
+// GroupedMissing lists the terms that may go without data: members of a
+// group of at least two terms, at least one of which has data (hasData).
+// The fit determines them through that group.
+func GroupedMissing(terms []lattice.Term, hasData func(k int) bool) []int {
+	size := map[string]int{}
+	measured := map[string]bool{}
+	for k, t := range terms {
+		if t.Group != "" {
+			size[t.Group]++
+			if hasData(k) {
+				measured[t.Group] = true
+			}
+		}
+	}
+	var allow []int
+	for k, t := range terms {
+		if t.Group != "" && size[t.Group] > 1 && measured[t.Group] {
+			allow = append(allow, k)
+		}
+	}
+	return allow
+}
+
+// unusedRowsError names, with their lines, the first table rows that
+// match no template term, saying for each whether it lies beyond the
+// lattice or is missing from the template.
+func unusedRowsError(path string, lat *lattice.Lattice, t *Table, unused []int) error {
+	const show = 10
+	n := lat.NumSites()
+	var b strings.Builder
+	fmt.Fprintf(&b, "%s: %d data row(s) match no term of the template:", displayName(path), len(unused))
+	beyond := false
+	for _, i := range unused[:min(show, len(unused))] {
+		r := t.Rows[i]
+		if last := r.Sites[len(r.Sites)-1]; last >= n {
+			fmt.Fprintf(&b, "\n  line %d: %s: site %d is beyond the lattice %s, which has %d sites (0..%d)", r.Line, r.Key(), last, lat.Spec, n, n-1)
+			beyond = true
+		} else {
+			fmt.Fprintf(&b, "\n  line %d: %s is not a term of the template", r.Line, r.Key())
+		}
+	}
+	if len(unused) > show {
+		fmt.Fprintf(&b, "\n  and %d more", len(unused)-show)
+	}
+	b.WriteString("\nadd the missing terms to the template (coefficient 0 is fine) or drop those rows from the data")
+	if beyond {
+		b.WriteString("; a site beyond the lattice usually means the data belong to a larger lattice than the template's")
+	}
+	return errors.New(b.String())
 }

@@ -15,7 +15,7 @@ func ExampleReadTable() {
 pauli,sites,value,stderr
 Z,0,0.25,0.01
 XZ,2 1,0.0625,0.02
-X,2,-0.125,
+X,2,-0.125,exact
 `
 	tab, err := fit.ReadTable(strings.NewReader(src), "chain.csv")
 	if err != nil {
@@ -49,7 +49,7 @@ func ExampleWriteTable() {
 	// # two terms
 	// pauli,sites,value,stderr
 	// ZZ,0 1,0.3333333333333333,0.01
-	// X,4,-0.5,
+	// X,4,-0.5,exact
 }
 
 func ExampleNewSnapshotEstimator() {

@@ -85,6 +85,10 @@ type Options struct {
 	Workers int
 	// MaxWork is passed to the expansion (cluster.Options.MaxWork).
 	MaxWork float64
+	// Policy bounds the automatic order (its Ceiling and MaxWork); the
+	// zero value means cluster.NewOrderPolicy for the problem. MaxOrder,
+	// when set, replaces its ceiling and work limit.
+	Policy cluster.OrderPolicy
 	// DenseLimit is the largest number of parameters whose error bars come
 	// from a dense Cholesky factorisation; above it they come from one
 	// conjugate-gradient solve per parameter on a neighbourhood of it
@@ -419,10 +423,14 @@ func (f *fitter) fixedOrder(L int, theta0 []float64) (*Result, error) {
 // autoOrder raises the order until the truncation error is small against
 // the statistical error or the budget is spent.
 func (f *fitter) autoOrder(theta0 []float64, start time.Time) (*Result, error) {
+	policy := f.opt.Policy
+	if policy.Ceiling == 0 {
+		policy = cluster.NewOrderPolicy(f.prob.Lattice, f.prob.Terms)
+	}
 	first := max(f.minL, f.opt.StartOrder)
-	last := min(f.sites, cluster.MaxDenseQubits)
+	last := min(f.sites, policy.Ceiling)
 	if f.opt.MaxOrder > 0 {
-		last = min(last, f.opt.MaxOrder)
+		last = min(f.sites, cluster.MaxDenseQubits, f.opt.MaxOrder)
 	}
 	if first > last {
 		first = last
@@ -471,18 +479,23 @@ func (f *fitter) autoOrder(theta0 []float64, start time.Time) (*Result, error) {
 		if L == last {
 			break
 		}
+		if f.opt.MaxOrder == 0 {
+			if ok, why := policy.Allows(f.exp, L+1); !ok {
+				notes = append(notes, fmt.Sprintf("stopped at order %d: %s", L, why))
+				break
+			}
+		}
+		// The budget guards the wall time; the prediction scales the
+		// measured time of this order by the work ratio, so it depends on
+		// the machine, and the note says so.
 		_, wNow := f.exp.EstimateWork(L)
 		_, wNext := f.exp.EstimateWork(L + 1)
 		evals := max(of.out.evaluations, 1)
 		perEval := float64(of.elapsed) / float64(evals)
 		predicted := time.Duration(perEval * float64(max(evals, 4)) * wNext / math.Max(wNow, 1))
 		if rest := f.opt.Budget - time.Since(start); predicted > rest {
-			notes = append(notes, fmt.Sprintf("stopped at order %d: order %d would take about %s, more than the %s left of the budget",
+			notes = append(notes, fmt.Sprintf("stopped at order %d by the time budget: order %d would take about %s, more than the %s left of --budget (this stop depends on the machine's speed)",
 				L, L+1, predicted.Round(time.Second), rest.Round(time.Second)))
-			break
-		}
-		if f.opt.MaxWork > 0 && wNext > f.opt.MaxWork {
-			notes = append(notes, fmt.Sprintf("stopped at order %d: order %d exceeds the work limit", L, L+1))
 			break
 		}
 	}

@@ -7,6 +7,7 @@ import (
 	"warmfit/cluster"
 	"warmfit/fit"
 	"warmfit/lattice"
+	"warmfit/lattice/model"
 )
 
 // Learn a transverse-field Ising chain back from its exact expectation
@@ -17,7 +18,7 @@ func ExampleFit() {
 	if err != nil {
 		log.Fatal(err)
 	}
-	truth, err := lattice.Preset(lat, "tfim", map[string]float64{"J": 1, "hx": 0.6})
+	truth, err := model.Preset(lat, "tfim", map[string]float64{"J": 1, "hx": 0.6})
 	if err != nil {
 		log.Fatal(err)
 	}

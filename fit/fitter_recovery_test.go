@@ -8,6 +8,7 @@ import (
 	"warmfit/cluster"
 	"warmfit/fit"
 	"warmfit/lattice"
+	"warmfit/lattice/model"
 	"warmfit/validate"
 )
 
@@ -20,7 +21,7 @@ func randomModel(t testing.TB, spec, preset string, values map[string]float64, y
 	if err != nil {
 		t.Fatal(err)
 	}
-	terms, err := lattice.Preset(lat, preset, values)
+	terms, err := model.Preset(lat, preset, values)
 	if err != nil {
 		t.Fatal(err)
 	}

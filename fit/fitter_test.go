@@ -14,6 +14,7 @@ import (
 	"warmfit/cluster"
 	"warmfit/fit"
 	"warmfit/lattice"
+	"warmfit/lattice/model"
 )
 
 // expansionData returns the order-L expansion expectations of the model:
@@ -54,12 +55,12 @@ func tiedXXZ(t testing.TB, spec string, disorder float64) (*lattice.Lattice, []l
 	if err != nil {
 		t.Fatal(err)
 	}
-	terms, params, err := lattice.PresetTerms(lat, "xxz", map[string]float64{"Jxy": 0.5, "Jz": 0.35, "hz": 0.25, "hx": 0.15})
+	terms, params, err := model.PresetTerms(lat, "xxz", map[string]float64{"Jxy": 0.5, "Jz": 0.35, "hz": 0.25, "hx": 0.15})
 	if err != nil {
 		t.Fatal(err)
 	}
-	lattice.AddDisorder(terms, disorder, 3)
-	lattice.TieUniform(terms, params)
+	model.AddDisorder(terms, disorder, 3)
+	model.TieUniform(terms, params)
 	return lat, terms
 }
 
@@ -101,7 +102,7 @@ func TestFitTiedChiSquare(t *testing.T) {
 func TestFitStructureLearning(t *testing.T) {
 	lat, truth := randomModel(t, "square:2x3", "xxz", map[string]float64{"Jxy": 1, "Jz": 0.7, "hz": 0.5, "hx": 0.4}, 0, 41)
 	beta := scaleToBeta(truth, 0.3)
-	all, err := lattice.Preset(lat, "all2local", nil)
+	all, err := model.Preset(lat, "all2local", nil)
 	if err != nil {
 		t.Fatal(err)
 	}

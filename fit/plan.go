@@ -30,9 +30,9 @@ type PlanOptions struct {
 	// Bases is the measurement scheme (one letter per qubit each); nil
 	// means CoveringBases.
 	Bases []string
-	// Order is the expansion order used to predict the response;
-	// default: 4, or the number of sites when smaller, and at least the
-	// largest term support.
+	// Order is the expansion order used to predict the response; 0
+	// chooses it as every command does (cluster.OrderPolicy: raised while
+	// some expectation is untrusted at 1e-3, within the work limit).
 	Order   int
 	Workers int
 	// DenseLimit as in Options; default 1500.
@@ -59,6 +59,8 @@ type Plan struct {
 	// parameters.
 	Z     float64
 	Order int
+	// OrderReason says how Order was chosen.
+	OrderReason string
 	// Params is the number of fitted parameters (groups count once).
 	Params int
 	// Expect holds <E_k> at the model (the order-Order expansion).
@@ -112,9 +114,22 @@ func PlanShots(lat *lattice.Lattice, terms []lattice.Term, beta float64, opt Pla
 	for _, t := range terms {
 		minL = max(minL, len(t.Sites))
 	}
+	exp, err := cluster.NewExpansion(lat, terms)
+	if err != nil {
+		return nil, err
+	}
+	coeffs := make([]float64, len(terms))
+	for k, t := range terms {
+		coeffs[k] = t.Coeff
+	}
 	L := opt.Order
+	orderReason := fmt.Sprintf("order %d as asked", L)
 	if L <= 0 {
-		L = max(min(4, n), minL)
+		_, choice, err := exp.ChooseOrder(coeffs, beta, 1e-3, cluster.NewOrderPolicy(lat, terms), cluster.Options{Workers: opt.Workers})
+		if err != nil {
+			return nil, err
+		}
+		L, orderReason = choice.Order, "order chosen automatically: "+choice.Reason
 	}
 	if L < minL {
 		return nil, fmt.Errorf("plan: order %d cannot hold terms on %d sites", L, minL)
@@ -131,7 +146,7 @@ func PlanShots(lat *lattice.Lattice, terms []lattice.Term, beta float64, opt Pla
 			return nil, fmt.Errorf("plan: basis %d has %d letters for %d qubits", i, len(b), n)
 		}
 	}
-	p := &Plan{Bases: bases, Norm: opt.Norm, Target: opt.Target, Confidence: opt.Confidence, Order: L}
+	p := &Plan{Bases: bases, Norm: opt.Norm, Target: opt.Target, Confidence: opt.Confidence, Order: L, OrderReason: orderReason}
 	p.Coverage = make([]int, len(terms))
 	var uncovered []string
 	for k, t := range terms {
@@ -148,14 +163,6 @@ func PlanShots(lat *lattice.Lattice, terms []lattice.Term, beta float64, opt Pla
 		return nil, fmt.Errorf("plan: no basis measures term(s) %v: the scheme cannot learn them", uncovered)
 	}
 
-	exp, err := cluster.NewExpansion(lat, terms)
-	if err != nil {
-		return nil, err
-	}
-	coeffs := make([]float64, len(terms))
-	for k, t := range terms {
-		coeffs[k] = t.Coeff
-	}
 	res, err := exp.Evaluate(coeffs, beta, cluster.Options{Order: L, Response: true, Workers: opt.Workers})
 	if err != nil {
 		return nil, err

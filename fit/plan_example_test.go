@@ -6,6 +6,7 @@ import (
 
 	"warmfit/fit"
 	"warmfit/lattice"
+	"warmfit/lattice/model"
 )
 
 // How many shots learn a transverse-field Ising chain to 0.02 in every
@@ -15,7 +16,7 @@ func ExamplePlanShots() {
 	if err != nil {
 		log.Fatal(err)
 	}
-	model, err := lattice.Preset(lat, "tfim", map[string]float64{"J": 1, "hx": 0.6})
+	model, err := model.Preset(lat, "tfim", map[string]float64{"J": 1, "hx": 0.6})
 	if err != nil {
 		log.Fatal(err)
 	}

@@ -121,7 +121,7 @@ func NewSnapshotEstimator(n int, terms []lattice.Term, opt CovarianceOptions) (*
 	if n <= 0 {
 		return nil, fmt.Errorf("number of qubits %d must be positive", n)
 	}
-	if err := checkTerms(n, terms); err != nil {
+	if err := lattice.CheckTerms(n, terms); err != nil {
 		return nil, err
 	}
 	for _, k := range opt.AllowMissing {

@@ -10,6 +10,15 @@ import (
 	"warmfit/lattice"
 )
 
+func mustLattice(t testing.TB, spec string) *lattice.Lattice {
+	t.Helper()
+	l, err := lattice.Open(spec)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return l
+}
+
 func mustTerm(t testing.TB, pauli string, sites ...int) lattice.Term {
 	t.Helper()
 	term, err := lattice.NewTerm(pauli, sites, 0)
@@ -386,7 +395,7 @@ func TestSnapshotEstimateBruteForce(t *testing.T) {
 func TestSnapshotEstimatorErrors(t *testing.T) {
 	terms := []lattice.Term{mustTerm(t, "Z", 0)}
 	if _, err := NewSnapshotEstimator(2, []lattice.Term{mustTerm(t, "Z", 2)}, CovarianceOptions{}); err == nil ||
-		!strings.Contains(err.Error(), "site 2 outside 0..1") {
+		!strings.Contains(err.Error(), "site 2 is out of range: the system has 2 sites") {
 		t.Errorf("site out of range: %v", err)
 	}
 	if _, err := NewSnapshotEstimator(2, []lattice.Term{{Pauli: "XZ", Sites: []int{1, 0}}}, CovarianceOptions{}); err == nil {

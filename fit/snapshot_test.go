@@ -1,6 +1,7 @@
 package fit
 
 import (
+	"bytes"
 	"errors"
 	"fmt"
 	"os"
@@ -97,5 +98,43 @@ func TestDetectDataKind(t *testing.T) {
 	}
 	if _, err := DetectDataKind(filepath.Join(dir, "absent.csv")); err == nil {
 		t.Error("absent file: no error")
+	}
+}
+
+// What SnapshotWriter writes reads back line for line (round trip:
+// common practice for file formats), and it refuses what the reader would.
+func TestSnapshotWriterRoundTrip(t *testing.T) {
+	var buf bytes.Buffer
+	w := NewSnapshotWriter(&buf, 3)
+	in := []struct {
+		basis, outcome string
+		count          int64
+	}{{"ZZZ", "010", 5}, {"XYZ", "111", 1}, {"ZZZ", "000", 1 << 40}}
+	for _, s := range in {
+		if err := w.Write(s.basis, s.outcome, s.count); err != nil {
+			t.Fatal(err)
+		}
+	}
+	for _, bad := range []struct {
+		basis, outcome string
+		count          int64
+	}{{"ZZ", "010", 1}, {"ZZQ", "010", 1}, {"ZZZ", "012", 1}, {"ZZZ", "01", 1}, {"ZZZ", "010", 0}} {
+		if err := w.Write(bad.basis, bad.outcome, bad.count); err == nil {
+			t.Errorf("%+v accepted", bad)
+		}
+	}
+	if err := w.Flush(); err != nil {
+		t.Fatal(err)
+	}
+	i := 0
+	err := ScanSnapshots(&buf, "w.csv", 3, func(basis, outcome string, count int64) error {
+		if basis != in[i].basis || outcome != in[i].outcome || count != in[i].count {
+			t.Errorf("line %d: %s %s %d, want %+v", i, basis, outcome, count, in[i])
+		}
+		i++
+		return nil
+	})
+	if err != nil || i != len(in) {
+		t.Fatalf("read back %d lines: %v", i, err)
 	}
 }

@@ -28,7 +28,7 @@ func SyntheticTable(terms []lattice.Term, expect []float64, bases []string, shot
 			return nil, fmt.Errorf("basis %d: %s", i, msg)
 		}
 	}
-	if err := checkTerms(len(bases[0]), terms); err != nil {
+	if err := lattice.CheckTerms(len(bases[0]), terms); err != nil {
 		return nil, err
 	}
 	t, err := SyntheticTableFromShots(terms, expect, ShotsPerTerm(bases, shotsPerBasis, terms), seed)

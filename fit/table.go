@@ -3,6 +3,7 @@ package fit
 import (
 	"bufio"
 	"encoding/csv"
+	"errors"
 	"fmt"
 	"io"
 	"math"
@@ -25,6 +26,8 @@ type Row struct {
 	Stderr    float64
 	HasStderr bool
 	Extra     []string
+	// Line is the row's line in the file it was read from; 0 otherwise.
+	Line int
 }
 
 // Key identifies the row's term; it equals lattice.Term.Key of the same
@@ -50,6 +53,11 @@ func (t *Table) Index() map[string]int {
 	return m
 }
 
+// ExactStderr is what the stderr column holds for a value known exactly
+// (a model prediction, noiseless synthetic data). Exactness must be said:
+// a blank or zero stderr is an error, not a silent claim of exact data.
+const ExactStderr = "exact"
+
 // Limits of physical expectation values. A Pauli expectation lies in
 // [-1, 1]; a measured estimate may stray by statistical error, so a value
 // is refused only when it lies outside by more than rangeSigmas standard
@@ -72,7 +80,7 @@ func rangeProblem(value, stderr float64, hasStderr bool) string {
 	if hasStderr {
 		return fmt.Sprintf("%v lies outside [-1, 1] by more than %d standard errors (stderr %v)", value, rangeSigmas, stderr)
 	}
-	return fmt.Sprintf("%v lies outside [-1, 1] (exact value, empty stderr)", value)
+	return fmt.Sprintf("%v lies outside [-1, 1] (an exact value)", value)
 }
 
 // ReadTableFile reads the expectation table in the named file.
@@ -138,6 +146,7 @@ func ReadTable(r io.Reader, name string) (*Table, error) {
 			return nil, dataErrorf(name, line, "", "term %q repeats the term of line %d", key, prev)
 		}
 		seen[key] = line
+		row.Line = line
 		t.Rows = append(t.Rows, row)
 	}
 	if err := sc.Err(); err != nil {
@@ -186,14 +195,6 @@ func splitRecord(s string) ([]string, error) {
 func parseTableRow(fields []string) (Row, string, error) {
 	var row Row
 	pauli := strings.ToUpper(fields[0])
-	if pauli == "" {
-		return row, "pauli", fmt.Errorf("empty")
-	}
-	for i := 0; i < len(pauli); i++ {
-		if c := pauli[i]; c != 'X' && c != 'Y' && c != 'Z' {
-			return row, "pauli", fmt.Errorf("%q: letter %q is not X, Y or Z", fields[0], c)
-		}
-	}
 	parts := strings.Fields(fields[1])
 	if len(parts) == 0 {
 		return row, "sites", fmt.Errorf("empty")
@@ -202,16 +203,21 @@ func parseTableRow(fields []string) (Row, string, error) {
 	for i, p := range parts {
 		s, err := strconv.Atoi(p)
 		if err != nil || s < 0 {
+			if strings.ContainsAny(p, ",;") {
+				return row, "sites", fmt.Errorf("%q: separate sites by spaces, as in \"0 1\"", fields[1])
+			}
 			return row, "sites", fmt.Errorf("%q is not a site index (a non-negative integer)", p)
 		}
 		sites[i] = s
 	}
-	if len(sites) != len(pauli) {
-		return row, "sites", fmt.Errorf("%d sites for the %d letters of %q", len(sites), len(pauli), pauli)
-	}
 	cp, cs, err := lattice.Canonical(pauli, sites)
 	if err != nil {
-		return row, "sites", err
+		field := "sites"
+		var te *lattice.TermError
+		if errors.As(err, &te) {
+			field = te.Field
+		}
+		return row, field, err
 	}
 	row.Pauli, row.Sites = cp, cs
 
@@ -220,13 +226,21 @@ func parseTableRow(fields []string) (Row, string, error) {
 		return row, "value", err
 	}
 	row.Value = v
-	if fields[3] != "" {
-		s, err := parseFinite(fields[3])
+	switch sd := strings.TrimSpace(fields[3]); {
+	case strings.EqualFold(sd, ExactStderr):
+		// An exact value: HasStderr stays false.
+	case sd == "":
+		return row, "stderr", fmt.Errorf("empty: a blank stderr is not read as an exact value; give the standard error, or write %q for a value known exactly", ExactStderr)
+	default:
+		s, err := parseFinite(sd)
 		if err != nil {
 			return row, "stderr", err
 		}
 		if s < 0 {
 			return row, "stderr", fmt.Errorf("%q is negative", fields[3])
+		}
+		if s == 0 {
+			return row, "stderr", fmt.Errorf("%q: a zero stderr is not read as an exact value; write %q for a value known exactly", fields[3], ExactStderr)
 		}
 		row.Stderr, row.HasStderr = s, true
 	}
@@ -282,7 +296,7 @@ func WriteTable(w io.Writer, t *Table) error {
 		rec[0] = p
 		rec[1] = lattice.SitesString(s)
 		rec[2] = strconv.FormatFloat(r.Value, 'g', -1, 64)
-		rec[3] = ""
+		rec[3] = ExactStderr
 		if r.HasStderr {
 			rec[3] = strconv.FormatFloat(r.Stderr, 'g', -1, 64)
 		}
@@ -317,8 +331,8 @@ func checkWriteRow(i int, r Row, nextra int, seen map[string]int) error {
 	if math.IsNaN(r.Value) || math.IsInf(r.Value, 0) {
 		return fmt.Errorf("%s: value is %v, not a finite number", label, r.Value)
 	}
-	if r.HasStderr && (math.IsNaN(r.Stderr) || math.IsInf(r.Stderr, 0) || r.Stderr < 0) {
-		return fmt.Errorf("%s: stderr is %v, not a finite non-negative number", label, r.Stderr)
+	if r.HasStderr && (math.IsNaN(r.Stderr) || math.IsInf(r.Stderr, 0) || r.Stderr <= 0) {
+		return fmt.Errorf("%s: stderr is %v, not a finite positive number (an exact value has no stderr: HasStderr false)", label, r.Stderr)
 	}
 	if msg := rangeProblem(r.Value, r.Stderr, r.HasStderr); msg != "" {
 		return fmt.Errorf("%s: value %s", label, msg)

@@ -19,7 +19,7 @@ func TestTableRoundTrip(t *testing.T) {
 			{Pauli: "ZZ", Sites: []int{0, 1}, Value: 1.0 / 3, Stderr: 0.1, HasStderr: true, Extra: []string{"plain", "100"}},
 			{Pauli: "X", Sites: []int{7}, Value: -math.Sqrt2 / 2, Extra: []string{`has "quotes", and a comma`, ""}},
 			{Pauli: "XY", Sites: []int{2, 3}, Value: 5e-324, Stderr: 2.5e-17, HasStderr: true, Extra: []string{"", "3"}},
-			{Pauli: "Y", Sites: []int{12}, Value: math.Copysign(0, -1), Stderr: 0, HasStderr: true, Extra: []string{"zero", "1"}},
+			{Pauli: "Y", Sites: []int{12}, Value: math.Copysign(0, -1), Stderr: 5e-324, HasStderr: true, Extra: []string{"zero", "1"}},
 			{Pauli: "ZX", Sites: []int{4, 5}, Value: 1 - 0x1p-53, Stderr: 1e-300, HasStderr: true, Extra: []string{"x", "9"}},
 		},
 	}
@@ -56,14 +56,14 @@ func TestTableRoundTrip(t *testing.T) {
 
 func TestReadTableCanonicalises(t *testing.T) {
 	// formats.md: "XZ" on [3,1] is "ZX" on [1,3].
-	src := "pauli,sites,value,stderr\r\nXZ,3 1,0.25,0.01\r\nxy , 9  4 ,-0.5,\n"
+	src := "pauli,sites,value,stderr\r\nXZ,3 1,0.25,0.01\r\nxy , 9  4 ,-0.5,exact\n"
 	tab, err := ReadTable(strings.NewReader(src), "c.csv")
 	if err != nil {
 		t.Fatal(err)
 	}
 	want := []Row{
-		{Pauli: "ZX", Sites: []int{1, 3}, Value: 0.25, Stderr: 0.01, HasStderr: true},
-		{Pauli: "YX", Sites: []int{4, 9}, Value: -0.5},
+		{Pauli: "ZX", Sites: []int{1, 3}, Value: 0.25, Stderr: 0.01, HasStderr: true, Line: 2},
+		{Pauli: "YX", Sites: []int{4, 9}, Value: -0.5, Line: 3},
 	}
 	if !reflect.DeepEqual(tab.Rows, want) {
 		t.Fatalf("got %+v, want %+v", tab.Rows, want)
@@ -84,9 +84,9 @@ func TestReadTableRange(t *testing.T) {
 		{"Z,0,-1.049,0.01", true},
 		{"Z,0,1.06,0.01", false},
 		{"Z,0,-1.06,0.01", false},
-		{"Z,0,1,", true},
-		{"Z,0,1.0000000001,", true},
-		{"Z,0,1.00001,", false},
+		{"Z,0,1,exact", true},
+		{"Z,0,1.0000000001,exact", true},
+		{"Z,0,1.00001,exact", false},
 		{"Z,0,1.00001,0", false},
 	} {
 		_, err := ReadTable(strings.NewReader("pauli,sites,value,stderr\n"+tc.line+"\n"), "r.csv")
@@ -110,17 +110,21 @@ func TestReadTableErrors(t *testing.T) {
 		{"Inf stderr", h + "Z,0,0.5,+Inf\n", `e.csv:2: field "stderr": "+Inf" is not a finite number`},
 		{"negative stderr", h + "Z,0,0.5,-0.1\n", `e.csv:2: field "stderr": "-0.1" is negative`},
 		{"bad stderr", h + "Z,0,0.5,x\n", `e.csv:2: field "stderr": "x" is not a number`},
-		{"duplicate", h + "ZZ,0 1,0.5,0.1\nX,2,0.1,\nZZ,1 0,0.4,0.1\n", `e.csv:4: term "ZZ 0 1" repeats the term of line 2`},
+		{"duplicate", h + "ZZ,0 1,0.5,0.1\nX,2,0.1,exact\nZZ,1 0,0.4,0.1\n", `e.csv:4: term "ZZ 0 1" repeats the term of line 2`},
 		{"duplicate after canonical form", h + "XZ,3 1,0.5,0.1\nZX,1 3,0.4,0.1\n", `e.csv:3: term "ZX 1 3" repeats the term of line 2`},
 		{"out of range 5 sigma", h + "ZZ,0 1,1.2,0.01\n", `e.csv:2: field "value": 1.2 lies outside [-1, 1] by more than 5 standard errors`},
-		{"out of range exact", h + "ZZ,0 1,-1.5,\n", `e.csv:2: field "value": -1.5 lies outside [-1, 1] (exact value`},
+		{"out of range exact", h + "ZZ,0 1,-1.5,exact\n", `e.csv:2: field "value": -1.5 lies outside [-1, 1] (an exact value`},
 		{"field count", h + "Z,0,0.5\n", `e.csv:2: row has 3 fields, the header has 4`},
 		{"bad letter", h + "ZA,0 1,0.5,\n", `e.csv:2: field "pauli": "ZA": letter 'A' is not X, Y or Z`},
-		{"empty pauli", h + ",0,0.5,\n", `e.csv:2: field "pauli": empty`},
+		{"empty pauli", h + ",0,0.5,0.1\n", `e.csv:2: field "pauli": empty Pauli string`},
+		{"blank stderr", h + "Z,0,0.5,\n", `e.csv:2: field "stderr": empty: a blank stderr is not read as an exact value`},
+		{"zero stderr", h + "Z,0,0.5,0\n", `e.csv:2: field "stderr": "0": a zero stderr is not read as an exact value; write "exact"`},
+		{"comma sites", h + "ZZ,\"0,1\",0.5,0.1\n", `e.csv:2: field "sites": "0,1": separate sites by spaces, as in "0 1"`},
+		{"semicolon sites", h + "ZZ,0;1,0.5,0.1\n", `e.csv:2: field "sites": "0;1": separate sites by spaces`},
 		{"bad site", h + "ZZ,0 x,0.5,\n", `e.csv:2: field "sites": "x" is not a site index`},
 		{"negative site", h + "Z,-1,0.5,\n", `e.csv:2: field "sites": "-1" is not a site index`},
 		{"site count", h + "ZZ,0,0.5,\n", `e.csv:2: field "sites": 1 sites for the 2 letters of "ZZ"`},
-		{"repeated site", h + "ZZ,3 3,0.5,\n", `e.csv:2: field "sites": pauli "ZZ": site 3 repeated`},
+		{"repeated site", h + "ZZ,3 3,0.5,\n", `e.csv:2: field "sites": "ZZ": site 3 repeated`},
 		{"bad quoting", h + "Z,0,0.5,,\"x\n", `e.csv:2: malformed CSV`},
 	} {
 		t.Run(tc.name, func(t *testing.T) {
@@ -146,7 +150,7 @@ func TestWriteTableRefuses(t *testing.T) {
 		{"NaN stderr", Table{Rows: []Row{z(0.1, math.NaN(), true)}}, "table row 1 (Z 0): stderr is NaN"},
 		{"out of range", Table{Rows: []Row{z(1.5, 0.01, true)}}, "table row 1 (Z 0): value 1.5 lies outside"},
 		{"duplicate", Table{Rows: []Row{{Pauli: "XZ", Sites: []int{2, 1}}, {Pauli: "ZX", Sites: []int{1, 2}}}}, "table row 2 (ZX 1 2): term repeats row 1"},
-		{"bad term", Table{Rows: []Row{{Pauli: "Q", Sites: []int{0}}}}, "table row 1: pauli \"Q\""},
+		{"bad term", Table{Rows: []Row{{Pauli: "Q", Sites: []int{0}}}}, "table row 1: \"Q\": letter 'Q' is not X, Y or Z"},
 		{"extra count", Table{ExtraHeader: []string{"a"}, Rows: []Row{{Pauli: "Z", Sites: []int{0}, Extra: []string{"1", "2"}}}}, "2 extra fields, the table has 1"},
 	} {
 		t.Run(tc.name, func(t *testing.T) {

@@ -6,6 +6,7 @@ import (
 	"testing"
 
 	"warmfit/lattice"
+	"warmfit/lattice/model"
 )
 
 // uniformXXZ returns a tied (uniform) XXZ model with fields on the lattice.
@@ -15,11 +16,11 @@ func uniformXXZ(t *testing.T, spec string) (*lattice.Lattice, []lattice.Term) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	terms, params, err := lattice.PresetTerms(lat, "xxz", map[string]float64{"Jxy": 0.5, "Jz": 0.35, "hz": 0.25, "hx": 0.15})
+	terms, params, err := model.PresetTerms(lat, "xxz", map[string]float64{"Jxy": 0.5, "Jz": 0.35, "hz": 0.25, "hx": 0.15})
 	if err != nil {
 		t.Fatal(err)
 	}
-	lattice.TieUniform(terms, params)
+	model.TieUniform(terms, params)
 	return lat, terms
 }
 

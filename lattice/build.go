@@ -117,12 +117,21 @@ func cellCoords(uc *unitCell, size []int) [][]float64 {
 // I < J and sorted; with periodic wrapping on a small torus they may
 // contain self pairs and repeats, which wrapProblem detects.
 func cellBonds(uc *unitCell, size []int, periodic bool, table []offset) []Bond {
-	nb := len(uc.Basis)
-	ncell := numCells(size)
-	bonds := make([]Bond, 0, ncell*len(table))
-	for c := 0; c < ncell; c++ {
+	bonds := make([]Bond, 0, numCells(size)*len(table))
+	eachCellBond(len(uc.Basis), size, periodic, table, func(_, i, j int) {
+		bonds = append(bonds, Bond{min(i, j), max(i, j)})
+	})
+	slices.SortFunc(bonds, compareBonds)
+	return bonds
+}
+
+// eachCellBond calls f(k, i, j) for every cell and every entry k of the
+// offset table whose bond from site i of the cell reaches site j inside
+// the sizes (after wrapping, if periodic), cell by cell.
+func eachCellBond(nb int, size []int, periodic bool, table []offset, f func(k, i, j int)) {
+	for c := 0; c < numCells(size); c++ {
 		x := cellPosition(c, size)
-		for _, o := range table {
+		for k, o := range table {
 			var y [3]int
 			for a := range size {
 				y[a] = x[a] + o.D[a]
@@ -131,12 +140,9 @@ func cellBonds(uc *unitCell, size []int, periodic bool, table []offset) []Bond {
 			if !ok {
 				continue
 			}
-			i, j := o.From+nb*c, o.To+nb*t
-			bonds = append(bonds, Bond{min(i, j), max(i, j)})
+			f(k, o.From+nb*c, o.To+nb*t)
 		}
 	}
-	slices.SortFunc(bonds, compareBonds)
-	return bonds
 }
 
 func compareBonds(a, b Bond) int {

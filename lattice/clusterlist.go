@@ -88,7 +88,7 @@ func (l *Lattice) BuildClusters(maxSize int, limit int64) (*ClusterList, error) 
 		start:   make([]int64, total+1),
 	}
 	list.start[total] = siteAt[len(perBlock)]
-	blocks := l.anchorBlocks()
+	blocks := l.AnchorBlocks()
 	var g errgroup.Group
 	g.SetLimit(runtime.GOMAXPROCS(0))
 	for b, blk := range blocks {

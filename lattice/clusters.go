@@ -63,10 +63,12 @@ func (l *Lattice) EachCluster(maxSize int, visit func(sites []int) bool) {
 	}
 }
 
-// anchorBlocks splits the sites into contiguous blocks of anchors, the
-// units of parallel work. The split depends on the lattice only, so that
-// every pass over the blocks agrees.
-func (l *Lattice) anchorBlocks() [][2]int {
+// AnchorBlocks splits the sites into contiguous blocks of anchors
+// [lo, hi), the units of parallel work over clusters (EachClusterFrom
+// each anchor of a block). The split depends on the number of sites
+// only, so every pass over the blocks, with any number of workers, sums
+// in the same order: the basis of bit-identical parallel results.
+func (l *Lattice) AnchorBlocks() [][2]int {
 	n := l.NumSites()
 	nb := min(n, 512)
 	blocks := make([][2]int, nb)
@@ -79,7 +81,7 @@ func (l *Lattice) anchorBlocks() [][2]int {
 // countBlocks counts the clusters of each anchor block in parallel:
 // out[b][n-1] is the number of clusters of n sites anchored in block b.
 func (l *Lattice) countBlocks(maxSize int) [][]int64 {
-	blocks := l.anchorBlocks()
+	blocks := l.AnchorBlocks()
 	out := make([][]int64, len(blocks))
 	var g errgroup.Group
 	g.SetLimit(runtime.GOMAXPROCS(0))

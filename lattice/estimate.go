@@ -7,26 +7,39 @@ import "math"
 // estimateBudget search nodes; larger sizes are extrapolated.
 const (
 	estimateAnchors = 64
-	estimateBudget  = 1 << 20
+	estimateBudget  = 1 << 22
 )
 
 // EstimateClusters estimates, cheaply, how many connected clusters of at
 // most maxSize sites the lattice has and how many bytes a ClusterList of
 // them takes, so that callers can refuse work past a limit before
-// starting it.
+// starting it (see EstimateClusterSizes for the method).
+func (l *Lattice) EstimateClusters(maxSize int) (count int64, bytes int64) {
+	var c, b float64
+	for k, t := range l.EstimateClusterSizes(maxSize) {
+		c += t
+		b += t * clusterBytes(k+1)
+	}
+	return clampInt64(c), clampInt64(b)
+}
+
+// EstimateClusterSizes estimates the number of connected clusters of
+// each size: out[s-1] for s = 1..maxSize. It is the one cluster-count
+// estimate of the project: cost models (package cluster) weigh it by the
+// price of each size.
 //
 // It counts exactly the clusters anchored at up to 64 evenly spaced
 // sites, scaled to all sites (exact when the lattice has at most 64
-// sites), increasing the size while the work stays small (about 10^6
-// search nodes). Sizes beyond that are extrapolated from the growth ratio
-// of successive counts, whose increase is continued with geometrically
-// shrinking steps, as lattice-animal ratios approach their limit from
-// below. On regular lattices the extrapolated total is typically within
-// tens of percent.
-func (l *Lattice) EstimateClusters(maxSize int) (count int64, bytes int64) {
+// sites), increasing the size while the work stays small (about 4x10^6
+// search nodes, a few tens of milliseconds). Sizes beyond that are
+// extrapolated from the growth ratio of successive counts, whose
+// increase is continued with geometrically shrinking steps, as
+// lattice-animal ratios approach their limit from below. On regular
+// lattices the extrapolated total is typically within tens of percent.
+func (l *Lattice) EstimateClusterSizes(maxSize int) []float64 {
 	n := l.NumSites()
 	if n == 0 || maxSize < 1 {
-		return 0, 0
+		return nil
 	}
 	anchors := make([]int, min(n, estimateAnchors))
 	for k := range anchors {
@@ -59,13 +72,7 @@ func (l *Lattice) EstimateClusters(maxSize int) (count int64, bytes int64) {
 			break
 		}
 	}
-	totals := extrapolate(exact, maxSize)
-	var c, b float64
-	for k, t := range totals {
-		c += t
-		b += t * clusterBytes(k+1)
-	}
-	return clampInt64(c), clampInt64(b)
+	return extrapolate(exact, maxSize)
 }
 
 // clusterBytes is the storage of one cluster of n sites in a ClusterList.

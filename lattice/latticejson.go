@@ -9,6 +9,8 @@ import (
 	"math"
 	"os"
 	"strconv"
+
+	"warmfit/lattice/internal/jsonpos"
 )
 
 // DecodeLatticeJSON decodes a lattice object, the "lattice" field of a
@@ -258,7 +260,7 @@ func ReadFile(path string) (*Lattice, error) {
 func describeSyntaxError(data []byte, err error) string {
 	var se *json.SyntaxError
 	if errors.As(err, &se) {
-		line, col := lineColumn(data, se.Offset)
+		line, col := jsonpos.LineCol(data, int(se.Offset)-1) // Offset counts the culprit too
 		return fmt.Sprintf("line %d, column %d: %v", line, col, err)
 	}
 	var te *json.UnmarshalTypeError
@@ -266,14 +268,6 @@ func describeSyntaxError(data []byte, err error) string {
 		return fmt.Sprintf("want a JSON object, got %s", te.Value)
 	}
 	return err.Error()
-}
-
-func lineColumn(data []byte, offset int64) (line, col int) {
-	offset = min(max(offset, 0), int64(len(data)))
-	before := data[:offset]
-	line = bytes.Count(before, []byte{'\n'}) + 1
-	col = int(offset) - (bytes.LastIndexByte(before, '\n') + 1)
-	return line, max(col, 1)
 }
 
 // latticeSpecJSON is the parsed form of a specification.

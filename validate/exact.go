@@ -2,7 +2,6 @@ package validate
 
 import (
 	"fmt"
-	"math"
 
 	"warmfit/cluster"
 	"warmfit/lattice"
@@ -39,25 +38,9 @@ func exactHamiltonian(n int, terms []lattice.Term) (*cluster.Hamiltonian, error)
 		return nil, fmt.Errorf("validate: %d qubits exceed the dense exact-diagonalisation limit of %d (cluster.MaxDenseQubits); use the matrix-free typicality estimate (validate.Typical) instead",
 			n, cluster.MaxDenseQubits)
 	}
-	h := &cluster.Hamiltonian{
-		NumQubits: n,
-		Ops:       make([]cluster.PauliString, len(terms)),
-		Coeffs:    make([]float64, len(terms)),
-	}
-	for k, t := range terms {
-		for _, s := range t.Sites {
-			if s < 0 || s >= n {
-				return nil, fmt.Errorf("validate: term %d (%s): site %d outside 0..%d", k, t.Key(), s, n-1)
-			}
-		}
-		p, err := cluster.ParsePauli(t.Pauli, t.Sites)
-		if err != nil {
-			return nil, fmt.Errorf("validate: term %d (%s): %w", k, t.Key(), err)
-		}
-		if math.IsNaN(t.Coeff) || math.IsInf(t.Coeff, 0) {
-			return nil, fmt.Errorf("validate: term %d (%s): coefficient %v is not finite", k, t.Key(), t.Coeff)
-		}
-		h.Ops[k], h.Coeffs[k] = p, t.Coeff
+	h, err := cluster.NewHamiltonian(n, terms)
+	if err != nil {
+		return nil, fmt.Errorf("validate: %w", err)
 	}
 	return h, nil
 }

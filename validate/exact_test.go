@@ -198,7 +198,7 @@ func TestExactThermalErrors(t *testing.T) {
 	}{
 		{"too many qubits", 13, nil, 1, "Typical"},
 		{"zero qubits", 0, nil, 1, "at least one"},
-		{"site outside", 2, []lattice.Term{mustTerm("ZZ", 1, 1, 2)}, 1, "site 2 outside 0..1"},
+		{"site outside", 2, []lattice.Term{mustTerm("ZZ", 1, 1, 2)}, 1, "site 2 is out of range: the system has 2 sites"},
 		{"bad coefficient", 2, []lattice.Term{mustTerm("X", math.NaN(), 0)}, 1, "not finite"},
 		{"bad letter", 2, []lattice.Term{{Pauli: "Q", Sites: []int{0}, Coeff: 1}}, 1, "Q"},
 		{"negative beta", 2, []lattice.Term{mustTerm("X", 1, 0)}, -1, "non-negative"},

@@ -72,17 +72,11 @@ func NewFreeFermionChain(n int, terms []lattice.Term, beta float64) (*FreeFermio
 	if err := finiteArgs(beta); err != nil {
 		return nil, err
 	}
-	ops := make([]cluster.PauliString, len(terms))
-	for k, t := range terms {
-		p, err := termPauli(n, t)
-		if err != nil {
-			return nil, fmt.Errorf("validate: term %d (%s): %w", k, t.Key(), err)
-		}
-		if err := finiteArgs(t.Coeff); err != nil {
-			return nil, fmt.Errorf("validate: term %d (%s): %w", k, t.Key(), err)
-		}
-		ops[k] = p
+	h, err := cluster.NewHamiltonian(n, terms)
+	if err != nil {
+		return nil, fmt.Errorf("validate: %w", err)
 	}
+	ops := h.Ops
 	var firstErr error
 	for _, fr := range letterFrames {
 		sys, err := buildMajorana(n, ops, terms, fr)

@@ -65,29 +65,11 @@ func NewOperator(n int, terms []lattice.Term, workers int) (*Operator, error) {
 	if n < 1 || n > MaxOperatorQubits {
 		return nil, fmt.Errorf("validate: %d qubits outside the supported range 1..%d", n, MaxOperatorQubits)
 	}
-	ops := make([]cluster.PauliString, len(terms))
-	coeffs := make([]float64, len(terms))
-	for k, t := range terms {
-		p, err := termPauli(n, t)
-		if err != nil {
-			return nil, fmt.Errorf("validate: term %d (%s): %w", k, t.Key(), err)
-		}
-		if math.IsNaN(t.Coeff) || math.IsInf(t.Coeff, 0) {
-			return nil, fmt.Errorf("validate: term %d (%s): coefficient %v is not finite", k, t.Key(), t.Coeff)
-		}
-		ops[k], coeffs[k] = p, t.Coeff
+	h, err := cluster.NewHamiltonian(n, terms)
+	if err != nil {
+		return nil, fmt.Errorf("validate: %w", err)
 	}
-	return newOperator(n, ops, coeffs, workers), nil
-}
-
-// termPauli converts a term to its Pauli string, checking its sites.
-func termPauli(n int, t lattice.Term) (cluster.PauliString, error) {
-	for _, s := range t.Sites {
-		if s < 0 || s >= n {
-			return cluster.PauliString{}, fmt.Errorf("site %d outside 0..%d", s, n-1)
-		}
-	}
-	return cluster.ParsePauli(t.Pauli, t.Sites)
+	return newOperator(n, h.Ops, h.Coeffs, workers), nil
 }
 
 func newOperator(n int, ops []cluster.PauliString, coeffs []float64, workers int) *Operator {

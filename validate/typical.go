@@ -119,7 +119,7 @@ func TypicalThermal(n int, terms []lattice.Term, beta float64, observables []clu
 	}
 	realH := true
 	for _, t := range terms {
-		if p, err := cluster.ParsePauli(t.Pauli, t.Sites); err == nil && !p.IsReal() && t.Coeff != 0 {
+		if p, err := cluster.TermPauli(t); err == nil && !p.IsReal() && t.Coeff != 0 {
 			realH = false
 		}
 	}

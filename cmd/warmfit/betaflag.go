@@ -33,7 +33,15 @@ func (b *betaFlag) Set(s string) error {
 
 func (b *betaFlag) Type() string { return "B" }
 
-// addBetaFlag registers --beta, which overrides the model file's beta.
-func addBetaFlag(fs *pflag.FlagSet, b *betaFlag) {
-	fs.Var(b, "beta", "inverse temperature (overrides the model's beta)")
+// addBetaFlag registers --beta with the given usage (default: it
+// overrides the model file's beta). It clears b first: the command runner
+// registers flags afresh for every run, and a value left from an earlier
+// run in the same process must not leak into the next.
+func addBetaFlag(fs *pflag.FlagSet, b *betaFlag, usage ...string) {
+	*b = betaFlag{}
+	u := "inverse temperature (overrides the model's beta)"
+	if len(usage) > 0 {
+		u = usage[0]
+	}
+	fs.Var(b, "beta", u)
 }

@@ -187,7 +187,7 @@ func (d *demoRun) figCoefficients() (*svgCanvas, error) {
 	c.endGroup()
 	cmp := d.array
 	c.text(95, 540, fmt.Sprintf("bars are 1 sigma; L2 error %s, Linf %s, median stderr %s; %.1f%% of the errors lie within 2 sigma of zero",
-		demoG3(cmp.L2), demoG3(cmp.Linf), demoG3(cmp.MedStderr), 100*cmp.Within2), textOpt{Size: 12, Color: "#444"})
+		fmtG3(cmp.L2), fmtG3(cmp.Linf), fmtG3(cmp.MedStderr), 100*cmp.Within2), textOpt{Size: 12, Color: "#444"})
 	return c, nil
 }
 

@@ -17,6 +17,7 @@ import (
 	"warmfit/cluster"
 	"warmfit/fit"
 	"warmfit/lattice"
+	"warmfit/lattice/model"
 	"warmfit/validate"
 )
 
@@ -32,13 +33,13 @@ type demoRun struct {
 	commands []demoCommand
 	files    []string // written, relative to out
 
-	device, template   *lattice.Model
+	device, template   *model.Model
 	bases              []string
-	fitted             *lattice.Model
+	fitted             *model.Model
 	fitReport          *fit.Report
 	array              *demoComparison
-	patchTruth         *lattice.Model
-	patchFitted        *lattice.Model
+	patchTruth         *model.Model
+	patchFitted        *model.Model
 	patchReport        *fit.Report
 	patch              *demoComparison
 	patchBases         []string
@@ -103,8 +104,8 @@ func (d *demoRun) write(name string, fn func(w io.Writer) error) error {
 	return nil
 }
 
-func (d *demoRun) writeModel(name string, m *lattice.Model) error {
-	return d.write(name, func(w io.Writer) error { return lattice.WriteModel(w, m) })
+func (d *demoRun) writeModel(name string, m *model.Model) error {
+	return d.write(name, func(w io.Writer) error { return model.Write(w, m) })
 }
 
 // invoke runs a warmfit subcommand in-process, exactly as the command
@@ -245,8 +246,8 @@ func (d *demoRun) fitArgs(template, data, truth, out string, order int) []string
 }
 
 // readFitted reads a fitted model and its report back from disk.
-func readFitted(path string) (*lattice.Model, *fit.Report, error) {
-	m, err := lattice.ReadModel(path)
+func readFitted(path string) (*model.Model, *fit.Report, error) {
+	m, err := model.ReadFile(path)
 	if err != nil {
 		return nil, nil, err
 	}
@@ -277,7 +278,7 @@ func (d *demoRun) stepFitArray() error {
 	}
 	d.array = cmp
 	d.say("against the truth: L2 %s, Linf %s (%s); pulls mean %+.3f, rms %.3f, %.1f%% within 2 sigma (normal: 95.4%%)",
-		demoG3(cmp.L2), demoG3(cmp.Linf), cmp.Worst, cmp.PullMean, cmp.PullRMS, 100*cmp.Within2)
+		fmtG3(cmp.L2), fmtG3(cmp.Linf), cmp.Worst, cmp.PullMean, cmp.PullRMS, 100*cmp.Within2)
 	return nil
 }
 
@@ -322,7 +323,7 @@ func (d *demoRun) stepPatch() error {
 		return err
 	}
 	d.say("patch fit against the truth: Linf %s, pulls rms %.3f, %.1f%% within 2 sigma",
-		demoG3(d.patch.Linf), d.patch.PullRMS, 100*d.patch.Within2)
+		fmtG3(d.patch.Linf), d.patch.PullRMS, 100*d.patch.Within2)
 
 	// The expansion against dense exact diagonalisation on the patch.
 	order := d.arrayOrder()
@@ -336,7 +337,7 @@ func (d *demoRun) stepPatch() error {
 		"expect", "--model", "patch-truth.json", "--method", "exact", "-o", "patch-exact.csv")
 	d.record(4, "", "expect", "--model", "patch-truth.json", "--order", strconv.Itoa(order), "-o", "patch-expansion.csv")
 	d.say("expansion vs dense exact diagonalisation on the patch: max |difference| %s at order %d (the array's order), %s at order %d (all %d sites)",
-		demoG3(check.MaxDev[min(order, len(check.MaxDev))-1]), order, demoG3(check.MaxDev[len(check.MaxDev)-1]), len(check.MaxDev), n)
+		fmtG3(check.MaxDev[min(order, len(check.MaxDev))-1]), order, fmtG3(check.MaxDev[len(check.MaxDev)-1]), len(check.MaxDev), n)
 	return nil
 }
 
@@ -361,7 +362,7 @@ type demoEDCheck struct {
 	Elapsed    time.Duration
 }
 
-func expansionVersusExact(env *runEnv, m *lattice.Model, beta float64) (*demoEDCheck, error) {
+func expansionVersusExact(env *runEnv, m *model.Model, beta float64) (*demoEDCheck, error) {
 	t0 := time.Now()
 	n := m.Lattice.NumSites()
 	th, err := validate.ExactThermal(n, m.Terms, beta)
@@ -430,7 +431,7 @@ func (d *demoRun) stepTemperature() error {
 	d.say("sufficient-condition bound (term-overlap degree %d, max|coeff| %.3g): beta < %.3g; operating beta %s is %.0fx beyond it",
 		t.Bound.Degree, t.Bound.MaxCoeff, t.Bound.Beta, fmtFloat(sc.Beta), sc.Beta/t.Bound.Beta)
 	d.say("measured convergence at the fit (order %d): %d of %d term expectations unconverged; truncation error %s vs target %s",
-		t.Order, t.Untrusted, t.Terms, fmtMaybePtr(t.Truncation.Error), demoG3(t.Truncation.Target))
+		t.Order, t.Untrusted, t.Terms, fmtMaybePtr(t.Truncation.Error), fmtG3(t.Truncation.Target))
 
 	betas, err := parseBetaRange(sc.thermoRange())
 	if err != nil {
@@ -526,7 +527,7 @@ func (d *demoRun) stepPlan() error {
 		d.record(6, "", "plan", "--model", "fitted.json", "--target", fmtFloat(eps))
 	}
 	d.say("the planner predicts a largest stderr of %s at the %d shots used; the fit reported %s",
-		demoG3(d.planPredictedAtRun), sc.Shots, demoG3(d.array.MaxStderr))
+		fmtG3(d.planPredictedAtRun), sc.Shots, fmtG3(d.array.MaxStderr))
 	return nil
 }
 
@@ -534,7 +535,7 @@ func fmtMaybePtr(v *float64) string {
 	if v == nil {
 		return "unknown"
 	}
-	return demoG3(*v)
+	return fmtG3(*v)
 }
 
 // demoComparison compares fitted coefficients with the truth.

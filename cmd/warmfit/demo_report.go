@@ -4,7 +4,6 @@ import (
 	"fmt"
 	"io"
 	"math"
-	"strconv"
 	"strings"
 	"time"
 
@@ -75,23 +74,23 @@ func (d *demoRun) verdicts() []demoVerdict {
 			v = append(v, demoVerdict{false, "Array fit: the truncation error is unknown (no lower order to compare with)."})
 		case tr.OK:
 			v = append(v, demoVerdict{true, fmt.Sprintf("Array fit: truncation under control: the coefficients moved by at most %s between the last orders, under the target %s (a tenth of the median statistical error %s).",
-				fmtMaybePtr(tr.Error), demoG3(tr.Target), demoG3(tr.StatError))})
+				fmtMaybePtr(tr.Error), fmtG3(tr.Target), fmtG3(tr.StatError))})
 		default:
 			v = append(v, demoVerdict{false, fmt.Sprintf("Array fit: the truncation error %s exceeds its target %s: the temperature is too low for order %d, the coefficients carry a systematic error comparable to their error bars.",
-				fmtMaybePtr(tr.Error), demoG3(tr.Target), rep.Order)})
+				fmtMaybePtr(tr.Error), fmtG3(tr.Target), rep.Order)})
 		}
 	}
 	v = append(v, pullVerdicts(fmt.Sprintf("Array (%d coefficients)", d.arrayTerms()), d.array)...)
 	v = append(v, pullVerdicts(fmt.Sprintf("Patch (%d coefficients, exact snapshots)", d.patchTerms()), d.patch)...)
 	if c := d.edCheck; c != nil {
 		full := c.MaxDev[len(c.MaxDev)-1]
-		v = append(v, demoVerdict{full <= 1e-9, fmt.Sprintf("Exact check: with clusters as large as the patch (%d sites) the expansion reproduces dense exact diagonalisation to %s.", c.Qubits, demoG3(full))})
+		v = append(v, demoVerdict{full <= 1e-9, fmt.Sprintf("Exact check: with clusters as large as the patch (%d sites) the expansion reproduces dense exact diagonalisation to %s.", c.Qubits, fmtG3(full))})
 		o := min(c.ArrayOrder, len(c.MaxDev))
 		dev := c.MaxDev[o-1]
 		noise := d.dataNoise()
 		ok := dev <= 0.1*noise
 		v = append(v, demoVerdict{ok, fmt.Sprintf("Exact check: at the array's order %d the expansion is within %s of exact on the patch, %.2g x the statistical error %s of one measured expectation (the fitter asks for at most 0.1 x). A %dx%d patch is mostly boundary, where the series converge faster than in the bulk: the array's own convergence is judged below.",
-			o, demoG3(dev), dev/noise, demoG3(noise), d.sc.Patch, d.sc.Patch)})
+			o, fmtG3(dev), dev/noise, fmtG3(noise), d.sc.Patch, d.sc.Patch)})
 	}
 	if t := d.temp; t != nil {
 		v = append(v, demoVerdict{t.Untrusted == 0, fmt.Sprintf("Temperature: %d of %d term expectations of the fitted model have not converged in the expansion at order %d (criterion: %s).",
@@ -362,10 +361,10 @@ func (d *demoRun) reportResults(b *strings.Builder) {
 	}
 	row("coefficients", func(c *demoComparison, _ *fitReportView) string { return fmt.Sprint(c.Terms) })
 	row("expansion order", func(_ *demoComparison, r *fitReportView) string { return r.order })
-	row("L2 error", func(c *demoComparison, _ *fitReportView) string { return demoG3(c.L2) })
-	row("Linf error (term)", func(c *demoComparison, _ *fitReportView) string { return demoG3(c.Linf) + " (" + c.Worst + ")" })
+	row("L2 error", func(c *demoComparison, _ *fitReportView) string { return fmtG3(c.L2) })
+	row("Linf error (term)", func(c *demoComparison, _ *fitReportView) string { return fmtG3(c.Linf) + " (" + c.Worst + ")" })
 	row("median / largest stderr", func(c *demoComparison, _ *fitReportView) string {
-		return demoG3(c.MedStderr) + " / " + demoG3(c.MaxStderr)
+		return fmtG3(c.MedStderr) + " / " + fmtG3(c.MaxStderr)
 	})
 	row("pull mean", func(c *demoComparison, _ *fitReportView) string { return fmt.Sprintf("%+.3f", c.PullMean) })
 	row("pull rms", func(c *demoComparison, _ *fitReportView) string { return fmt.Sprintf("%.3f", c.PullRMS) })
@@ -379,7 +378,7 @@ func (d *demoRun) reportResults(b *strings.Builder) {
 	p("By kind of term (array):\n\n")
 	p("| term | count | true values (mean, range) | rms error | median stderr | pull rms |\n|---|---|---|---|---|---|\n")
 	for _, s := range d.array.ByLetters {
-		p("| %s | %d | %.3f (%.3f .. %.3f) | %s | %s | %.2f |\n", s.Pauli, s.Count, s.TrueMean, s.TrueMin, s.TrueMax, demoG3(s.RMSError), demoG3(s.MedStderr), s.PullRMS)
+		p("| %s | %d | %.3f (%.3f .. %.3f) | %s | %s | %.2f |\n", s.Pauli, s.Count, s.TrueMean, s.TrueMin, s.TrueMax, fmtG3(s.RMSError), fmtG3(s.MedStderr), s.PullRMS)
 	}
 	p("\n")
 
@@ -387,7 +386,7 @@ func (d *demoRun) reportResults(b *strings.Builder) {
 		p("### The expansion against exact diagonalisation (patch)\n\n")
 		p("Largest difference over the patch's %d term expectations between the linked-cluster\n", d.patchTerms())
 		p("expansion at order L and dense exact diagonalisation of all %d qubits, at beta = %s.\n", c.Qubits, fmtFloat(sc.Beta))
-		p("For comparison, one measured expectation has a statistical error of about %s.\n\n", demoG3(d.dataNoise()))
+		p("For comparison, one measured expectation has a statistical error of about %s.\n\n", fmtG3(d.dataNoise()))
 		p("| order L |")
 		for o := 2; o <= len(c.MaxDev); o++ {
 			p(" %d |", o)
@@ -402,7 +401,7 @@ func (d *demoRun) reportResults(b *strings.Builder) {
 			if o == c.ArrayOrder {
 				mark = " (array)"
 			}
-			p(" %s%s |", demoG3(c.MaxDev[o-1]), mark)
+			p(" %s%s |", fmtG3(c.MaxDev[o-1]), mark)
 		}
 		p("\n\n")
 	}
@@ -413,7 +412,7 @@ func (d *demoRun) reportResults(b *strings.Builder) {
 		p("| sufficient-condition bound (term-overlap degree %d) | beta < %.3g |\n", t.Bound.Degree, t.Bound.Beta)
 		p("| operating beta | %s (%.0fx the bound) |\n", fmtFloat(sc.Beta), sc.Beta/t.Bound.Beta)
 		p("| unconverged term expectations at the fit (order %d) | %d of %d |\n", t.Order, t.Untrusted, t.Terms)
-		p("| truncation error of the coefficients (orders %s) | %s (target %s) |\n", intsJoin(t.Truncation.Orders), fmtMaybePtr(t.Truncation.Error), demoG3(t.Truncation.Target))
+		p("| truncation error of the coefficients (orders %s) | %s (target %s) |\n", intsJoin(t.Truncation.Orders), fmtMaybePtr(t.Truncation.Error), fmtG3(t.Truncation.Target))
 		if t.Scan != nil {
 			edge := "beyond the scan"
 			if t.Edge > 0 {
@@ -431,10 +430,10 @@ func (d *demoRun) reportResults(b *strings.Builder) {
 		p("model with %d covering bases. Error bars shrink as 1/sqrt(shots).\n\n", d.plans[0].Bases)
 		p("| Linf target eps | shots per basis | total shots | predicted largest stderr |\n|---|---|---|---|\n")
 		for _, pl := range d.plans {
-			p("| %s | %d | %d | %s |\n", fmtFloat(pl.Target), pl.ShotsPerBasis, pl.TotalShots, demoG3(pl.MaxStderr))
+			p("| %s | %d | %d | %s |\n", fmtFloat(pl.Target), pl.ShotsPerBasis, pl.TotalShots, fmtG3(pl.MaxStderr))
 		}
-		p("\nAt the %d shots per basis of this run the planner predicts a largest stderr of %s; the\n", sc.Shots, demoG3(d.planPredictedAtRun))
-		p("fit reported %s.\n\n", demoG3(d.array.MaxStderr))
+		p("\nAt the %d shots per basis of this run the planner predicts a largest stderr of %s; the\n", sc.Shots, fmtG3(d.planPredictedAtRun))
+		p("fit reported %s.\n\n", fmtG3(d.array.MaxStderr))
 	}
 }
 
@@ -492,14 +491,14 @@ func (d *demoRun) printSummary(w io.Writer) {
 		sc.Width, sc.Height, d.arrayTerms(), fmtFloat(sc.Beta), sc.Shots, len(d.bases))
 	if c, r := d.array, d.fitReport; c != nil && r != nil {
 		p("  array fit    order %d: L2 error %s, Linf %s; pulls mean %+.2f, rms %.2f, %.1f%% within 2 sigma",
-			r.Order, demoG3(c.L2), demoG3(c.Linf), c.PullMean, c.PullRMS, 100*c.Within2)
+			r.Order, fmtG3(c.L2), fmtG3(c.Linf), c.PullMean, c.PullRMS, 100*c.Within2)
 	}
 	if c, r := d.patch, d.patchReport; c != nil && r != nil {
 		line := fmt.Sprintf("  %dx%d patch    exact snapshots, order %d: Linf %s; pulls rms %.2f, %.1f%% within 2 sigma",
-			sc.Patch, sc.Patch, r.Order, demoG3(c.Linf), c.PullRMS, 100*c.Within2)
+			sc.Patch, sc.Patch, r.Order, fmtG3(c.Linf), c.PullRMS, 100*c.Within2)
 		if e := d.edCheck; e != nil {
 			o := min(e.ArrayOrder, len(e.MaxDev))
-			line += fmt.Sprintf("; expansion vs exact at order %d: %s", o, demoG3(e.MaxDev[o-1]))
+			line += fmt.Sprintf("; expansion vs exact at order %d: %s", o, fmtG3(e.MaxDev[o-1]))
 		}
 		p("%s", line)
 	}
@@ -533,13 +532,4 @@ func (d *demoRun) printSummary(w io.Writer) {
 		p("  verdict      every check passed: the expansion is trusted at this temperature and the error bars are honest")
 	}
 	p("  report       %s", d.path("report.md"))
-}
-
-// demoG3 prints a number with three significant digits, "n/a" when it is
-// not finite.
-func demoG3(v float64) string {
-	if math.IsNaN(v) || math.IsInf(v, 0) {
-		return "n/a"
-	}
-	return strconv.FormatFloat(v, 'g', 3, 64)
 }

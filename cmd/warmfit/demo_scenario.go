@@ -8,6 +8,7 @@ import (
 	"time"
 
 	"warmfit/lattice"
+	"warmfit/lattice/model"
 )
 
 // demoParam is one design value of the device Hamiltonian (a parameter of
@@ -158,29 +159,29 @@ func (s *demoScenario) maxDesignCoeff() float64 {
 // seeded disorder, exactly as "warmfit model --preset xxz --set ...
 // --disorder W --seed S --beta B" does, so that the command in the report
 // writes the same file.
-func (s *demoScenario) buildDevice() (*lattice.Model, error) {
+func (s *demoScenario) buildDevice() (*model.Model, error) {
 	l, err := lattice.Open(s.latticeSpec())
 	if err != nil {
 		return nil, err
 	}
-	terms, _, err := lattice.PresetTerms(l, "xxz", s.values())
+	terms, _, err := model.PresetTerms(l, "xxz", s.values())
 	if err != nil {
 		return nil, err
 	}
 	if s.Disorder > 0 {
-		lattice.AddDisorder(terms, s.Disorder, s.Seed)
+		model.AddDisorder(terms, s.Disorder, s.Seed)
 	}
-	return &lattice.Model{Lattice: l, Terms: terms, Beta: s.Beta}, nil
+	return &model.Model{Lattice: l, Terms: terms, Beta: s.Beta}, nil
 }
 
 // demoTemplate is what the lab knows before the fit: the lattice, which
 // terms the device can have, and beta; every coefficient is 0.
-func demoTemplate(m *lattice.Model) *lattice.Model {
+func demoTemplate(m *model.Model) *model.Model {
 	terms := make([]lattice.Term, len(m.Terms))
 	for k, t := range m.Terms {
 		terms[k] = lattice.Term{Pauli: t.Pauli, Sites: append([]int(nil), t.Sites...)}
 	}
-	return &lattice.Model{Lattice: m.Lattice, Terms: terms, Beta: m.Beta}
+	return &model.Model{Lattice: m.Lattice, Terms: terms, Beta: m.Beta}
 }
 
 // patchOrigin is the lower-left corner of the checked patch: the middle
@@ -205,7 +206,7 @@ func (s *demoScenario) patchSites() []int {
 // extractPatch cuts the patch out of the device: the terms whose support
 // lies inside it, renumbered onto an open square lattice of the patch's
 // size. Array site i maps to patch site local[i].
-func (s *demoScenario) extractPatch(device *lattice.Model) (*lattice.Model, error) {
+func (s *demoScenario) extractPatch(device *model.Model) (*model.Model, error) {
 	l, err := lattice.Open(fmt.Sprintf("square:%dx%d", s.Patch, s.Patch))
 	if err != nil {
 		return nil, err
@@ -235,7 +236,7 @@ func (s *demoScenario) extractPatch(device *lattice.Model) (*lattice.Model, erro
 		}
 		terms = append(terms, nt)
 	}
-	m := &lattice.Model{Lattice: l, Terms: terms, Beta: device.Beta}
+	m := &model.Model{Lattice: l, Terms: terms, Beta: device.Beta}
 	if err := m.Validate(); err != nil {
 		return nil, fmt.Errorf("patch model: %v", err)
 	}

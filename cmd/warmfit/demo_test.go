@@ -12,6 +12,7 @@ import (
 	"testing"
 
 	"warmfit/lattice"
+	"warmfit/lattice/model"
 )
 
 // TestDemoQuick runs the whole demo in its quick form and checks the
@@ -81,11 +82,11 @@ func TestDemoQuick(t *testing.T) {
 		}
 	}
 
-	truth, err := lattice.ReadModel(filepath.Join(dir, "truth.json"))
+	truth, err := model.ReadFile(filepath.Join(dir, "truth.json"))
 	if err != nil {
 		t.Fatal(err)
 	}
-	fitted, err := lattice.ReadModel(filepath.Join(dir, "fitted.json"))
+	fitted, err := model.ReadFile(filepath.Join(dir, "fitted.json"))
 	if err != nil {
 		t.Fatalf("fitted.json does not read back: %v", err)
 	}

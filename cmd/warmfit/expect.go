@@ -12,7 +12,7 @@ import (
 
 	"warmfit/cluster"
 	"warmfit/fit"
-	"warmfit/lattice"
+	"warmfit/lattice/model"
 	"warmfit/validate"
 )
 
@@ -43,10 +43,11 @@ changes over pairs of orders), resummed (Wynn epsilon acceleration of the partia
 sums) and trusted (trunc_error <= --tol). The stderr column repeats trunc_error,
 the value's uncertainty, so the table can serve as fit data.
 A summary on stderr says plainly when the temperature is too low for the order.
-Without --order the order is chosen automatically: it starts low (4 in two
-dimensions) and rises while some value is untrusted, up to a ceiling by lattice
-dimension (9 on a chain, 6 in two dimensions), and stops rising once one order took
-more than 3 seconds; stderr says which order was used and why.
+Without --order the order is chosen automatically, the same way on every machine:
+it starts low (4 in two dimensions) and rises while some value is untrusted, up to
+a ceiling by lattice dimension (12 on a chain, 8 in two dimensions) and while the
+estimated work of the next order stays within about a minute of computing; stderr
+says which order was used and why.
 
 --method exact diagonalises the whole system: densely up to 11 qubits (stderr
 empty), and by thermal typicality with random vectors up to 26 qubits, in which case
@@ -98,11 +99,11 @@ warmfit expect --model m.json --method exact`,
 
 // loadModelBeta reads a model and settles the inverse temperature: the
 // flag wins over the file; one of them must give a positive value.
-func loadModelBeta(path string, beta betaFlag) (*lattice.Model, float64, error) {
+func loadModelBeta(path string, beta betaFlag) (*model.Model, float64, error) {
 	if path == "" {
 		return nil, 0, usagef("--model is required")
 	}
-	m, err := lattice.ReadModel(path)
+	m, err := model.ReadFile(path)
 	if err != nil {
 		return nil, 0, err
 	}
@@ -125,84 +126,7 @@ func checkOrderFlag(fs *pflag.FlagSet, order int) error {
 	return nil
 }
 
-// autoOrderStepLimit stops the automatic order from rising once one
-// evaluation took this long: the next order costs several times more.
-const autoOrderStepLimit = 3 * time.Second
-
-// autoOrder raises the expansion order from a low start while some value
-// is untrusted, up to a ceiling by lattice dimension, and stops rising
-// once one evaluation took autoOrderStepLimit. It returns the last
-// evaluation and its order.
-func autoOrder(env *runEnv, m *lattice.Model, evaluate func(L int) (*cluster.Result, error), tol float64) (*cluster.Result, int, error) {
-	L, ceiling := autoOrderRange(m.Lattice)
-	var prev *cluster.Result
-	for {
-		t0 := time.Now()
-		res, err := evaluate(L)
-		if err != nil {
-			if prev == nil {
-				return nil, 0, err
-			}
-			fmt.Fprintf(env.Stderr, "expansion: order %d refused (%v); keeping order %d\n", L, err, L-1)
-			return prev, L - 1, nil
-		}
-		prev = res
-		untrusted := 0
-		for _, c := range res.TermConvergence(m.Terms, tol) {
-			if !c.Trusted {
-				untrusted++
-			}
-		}
-		took := time.Since(t0)
-		why := ""
-		switch {
-		case untrusted == 0:
-			why = "every value trusted"
-		case L >= ceiling:
-			why = fmt.Sprintf("ceiling %d for this lattice reached (set --order to go further)", ceiling)
-		case took > autoOrderStepLimit:
-			why = fmt.Sprintf("order %d took %.1fs; the next would take several times longer (set --order to go further)", L, took.Seconds())
-		}
-		if why != "" {
-			fmt.Fprintf(env.Stderr, "expansion: order %d chosen automatically: %s\n", L, why)
-			return res, L, nil
-		}
-		fmt.Fprintf(env.Stderr, "expansion: order %d: %d values untrusted, raising the order\n", L, untrusted)
-		L++
-	}
-}
-
-// autoOrderRange is where the automatic order starts and its ceiling.
-func autoOrderRange(l *lattice.Lattice) (start, ceiling int) {
-	switch {
-	case l.Spec.Kind == "chain":
-		return 6, 9
-	case l.Spec.Kind == "ladder":
-		return 5, 7
-	case l.Dim() >= 3 && l.Spec.Kind != "graph":
-		return 3, 5
-	default:
-		return 4, 6
-	}
-}
-
-// defaultOrder is the expansion order used when none is asked for by
-// commands without an automatic choice: the largest whose cost stays in
-// seconds for a few hundred sites.
-func defaultOrder(l *lattice.Lattice) int {
-	switch {
-	case l.Spec.Kind == "chain":
-		return 7
-	case l.Spec.Kind == "ladder":
-		return 6
-	case l.Dim() >= 3 && l.Spec.Kind != "graph":
-		return 4
-	default:
-		return 5
-	}
-}
-
-func modelCoeffs(m *lattice.Model) []float64 {
+func modelCoeffs(m *model.Model) []float64 {
 	c := make([]float64, len(m.Terms))
 	for k, t := range m.Terms {
 		c[k] = t.Coeff
@@ -210,27 +134,33 @@ func modelCoeffs(m *lattice.Model) []float64 {
 	return c
 }
 
-func expectByExpansion(env *runEnv, m *lattice.Model, beta float64, order int, tol float64) (*fit.Table, error) {
+func expectByExpansion(env *runEnv, m *model.Model, beta float64, order int, tol float64) (*fit.Table, error) {
 	exp, err := cluster.NewExpansion(m.Lattice, m.Terms)
 	if err != nil {
 		return nil, err
 	}
 	coeffs := modelCoeffs(m)
 	start := time.Now()
-	evaluate := func(L int) (*cluster.Result, error) {
-		bar := newProgressBar(env, fmt.Sprintf("expanding, order %d", L))
-		defer bar.Done()
-		return exp.Evaluate(coeffs, beta, cluster.Options{Order: L, Progress: bar.Update})
-	}
+	bar := newProgressBar(env, "expanding")
+	opt := cluster.Options{Progress: bar.Update}
 	var res *cluster.Result
 	if order > 0 {
-		if res, err = evaluate(order); err != nil {
-			return nil, err
-		}
+		opt.Order = order
+		res, err = exp.Evaluate(coeffs, beta, opt)
 	} else {
-		if res, order, err = autoOrder(env, m, evaluate, tol); err != nil {
-			return nil, err
+		var choice cluster.OrderChoice
+		res, choice, err = exp.ChooseOrder(coeffs, beta, tol, cluster.NewOrderPolicy(m.Lattice, m.Terms), opt)
+		if err == nil {
+			order = choice.Order
+			for _, st := range choice.Steps {
+				fmt.Fprintf(env.Stderr, "expansion: %s\n", st)
+			}
+			fmt.Fprintf(env.Stderr, "expansion: order %d chosen automatically: %s\n", order, choice.Reason)
 		}
+	}
+	bar.Done()
+	if err != nil {
+		return nil, err
 	}
 	conv := res.TermConvergence(m.Terms, tol)
 	t := &fit.Table{ExtraHeader: []string{"step", "trunc_error", "resummed", "trusted"}}
@@ -240,24 +170,22 @@ func expectByExpansion(env *runEnv, m *lattice.Model, beta float64, order int, t
 		if !c.Trusted {
 			untrusted++
 		}
-		// The truncation error is the value's uncertainty, so the table
-		// stays usable as fit data. An empty stderr would claim an exact
-		// value; where too few orders leave the error unknown, stderr is
-		// 1, the size of the whole range a Pauli expectation can take.
-		stderr := c.Error
+		// The value is the expansion's exact prediction at this order: no
+		// measurement noise, so stderr says "exact" and the table fits
+		// back as exact data. How far it may be from the Gibbs state is
+		// the truncation error, in its own column.
 		if math.IsInf(c.Error, 0) || math.IsNaN(c.Error) {
 			unknown++
-			stderr = unknownTruncation
 		} else {
 			worst = math.Max(worst, c.Error)
 		}
-		if math.Abs(c.Value) > 1+5*stderr+1e-9 {
+		if math.Abs(c.Value) > 1+1e-9 {
 			return nil, fmt.Errorf("the expansion has broken down at beta = %s, order %d: <%s> = %.4g lies outside [-1, 1]; raise --order or use a higher temperature",
 				fmtFloat(beta), order, term.Key(), c.Value)
 		}
 		t.Rows = append(t.Rows, fit.Row{
-			Pauli: term.Pauli, Sites: term.Sites, Value: c.Value, Stderr: stderr, HasStderr: true,
-			Extra: []string{fmtDiag(c.LastStep), fmtDiag(c.Error), fmtDiag(c.Resummed), strconv.FormatBool(c.Trusted)},
+			Pauli: term.Pauli, Sites: term.Sites, Value: c.Value,
+			Extra: []string{fmtFloat(c.LastStep), fmtFloat(c.Error), fmtFloat(c.Resummed), strconv.FormatBool(c.Trusted)},
 		})
 	}
 	bound := cluster.SufficientBeta(m.Terms, coeffs)
@@ -274,10 +202,6 @@ func expectByExpansion(env *runEnv, m *lattice.Model, beta float64, order int, t
 	return t, nil
 }
 
-// unknownTruncation is the stderr written for a value whose truncation
-// error cannot be estimated (too few orders past its smallest cluster).
-const unknownTruncation = 1
-
 // expansionVerdict is the plain-language trust statement for a table:
 // unconverged values (the temperature is too low for the order) and
 // values the order is too low to judge at all are told apart.
@@ -288,8 +212,8 @@ func expansionVerdict(unconverged, unknown, total int, worst, tol, beta float64,
 			unconverged, total, worst, tol, fmtFloat(beta), order))
 	}
 	if unknown > 0 {
-		parts = append(parts, fmt.Sprintf("WARNING: %d of %d values cannot be judged: order %d leaves fewer than two orders past their smallest cluster; their stderr is set to %d (unknown); raise --order",
-			unknown, total, order, unknownTruncation))
+		parts = append(parts, fmt.Sprintf("WARNING: %d of %d values cannot be judged: order %d leaves fewer than two orders past their smallest cluster (trunc_error n/a, trusted false); raise --order",
+			unknown, total, order))
 	}
 	if len(parts) == 0 {
 		return fmt.Sprintf("converged: estimated truncation error at most %.2g for every value (tolerance %.2g)", worst, tol)
@@ -308,7 +232,7 @@ func boundLine(b cluster.ThresholdBound, beta float64) string {
 	return fmt.Sprintf("sufficient-temperature bound (cluster-expansion criterion, term-overlap degree %d): beta < %.3g; this beta is %s it, so trust rests on the measured convergence", b.Degree, b.Beta, rel)
 }
 
-func expectExact(env *runEnv, m *lattice.Model, beta float64, vectors int, seed uint64) (*fit.Table, error) {
+func expectExact(env *runEnv, m *model.Model, beta float64, vectors int, seed uint64) (*fit.Table, error) {
 	n := m.Lattice.NumSites()
 	if n > validate.MaxTypicalityQubits {
 		return nil, fmt.Errorf("--method exact handles at most %d qubits (dense up to %d, thermal typicality beyond); this model has %d: use --method expansion",
@@ -356,17 +280,6 @@ func expectExact(env *runEnv, m *lattice.Model, beta float64, vectors int, seed 
 // exact sampler diagonalise densely by default: 11 qubits take seconds,
 // 12 (cluster.MaxDenseQubits) minutes, where thermal typicality is faster.
 const denseExactQubits = 11
-
-func fmtFloat(v float64) string { return strconv.FormatFloat(v, 'g', 6, 64) }
-
-// fmtDiag formats a diagnostic that may be undefined (too few orders to
-// judge) as "n/a" rather than a non-number.
-func fmtDiag(v float64) string {
-	if math.IsNaN(v) || math.IsInf(v, 0) {
-		return "n/a"
-	}
-	return strconv.FormatFloat(v, 'g', 6, 64)
-}
 
 func sum64(v []int64) int64 {
 	var s int64

@@ -4,12 +4,13 @@ import (
 	"math"
 	"os"
 	"path/filepath"
+	"slices"
 	"strconv"
 	"strings"
 	"testing"
 
 	"warmfit/fit"
-	"warmfit/lattice"
+	"warmfit/lattice/model"
 )
 
 // writeTestModel writes a small XXZ model with fields on a 3x2 lattice.
@@ -38,12 +39,12 @@ func readTable(t *testing.T, text string) *fit.Table {
 // (`--method exact`) to rounding (inclusion–exclusion identity; Rigol,
 // Bryant, Singh, arXiv 0706.3254).
 func TestExpectExpansionMatchesExact(t *testing.T) {
-	model := writeTestModel(t, t.TempDir())
-	code, exact, stderr := runCmd("expect", "--model", model, "--method", "exact")
+	modelPath := writeTestModel(t, t.TempDir())
+	code, exact, stderr := runCmd("expect", "--model", modelPath, "--method", "exact")
 	if code != 0 {
 		t.Fatalf("exact: exit %d: %s", code, stderr)
 	}
-	code, expanded, stderr := runCmd("expect", "--model", model, "--order", "6")
+	code, expanded, stderr := runCmd("expect", "--model", modelPath, "--order", "6")
 	if code != 0 {
 		t.Fatalf("expansion: exit %d: %s", code, stderr)
 	}
@@ -67,8 +68,8 @@ func TestExpectExpansionMatchesExact(t *testing.T) {
 // At a temperature far too low for the order, the output must say so in
 // the file and on stderr, not only in the trusted column.
 func TestExpectWarnsWhenNotConverged(t *testing.T) {
-	model := writeTestModel(t, t.TempDir())
-	code, out, stderr := runCmd("expect", "--model", model, "--order", "3", "--beta", "1")
+	modelPath := writeTestModel(t, t.TempDir())
+	code, out, stderr := runCmd("expect", "--model", modelPath, "--order", "3", "--beta", "1")
 	if code != 0 {
 		t.Fatalf("exit %d: %s", code, stderr)
 	}
@@ -82,7 +83,7 @@ func TestExpectWarnsWhenNotConverged(t *testing.T) {
 
 func TestExpectBadInput(t *testing.T) {
 	dir := t.TempDir()
-	model := writeTestModel(t, dir)
+	modelPath := writeTestModel(t, dir)
 	keep := filepath.Join(dir, "keep.csv")
 	if err := os.WriteFile(keep, []byte("precious\n"), 0o644); err != nil {
 		t.Fatal(err)
@@ -92,16 +93,16 @@ func TestExpectBadInput(t *testing.T) {
 		code int
 	}{
 		{[]string{"expect"}, 2},
-		{[]string{"expect", "--model", model, "--beta", "-1"}, 2},
-		{[]string{"expect", "--model", model, "--order", "0"}, 2},
-		{[]string{"expect", "--model", model, "--method", "guess"}, 2},
+		{[]string{"expect", "--model", modelPath, "--beta", "-1"}, 2},
+		{[]string{"expect", "--model", modelPath, "--order", "0"}, 2},
+		{[]string{"expect", "--model", modelPath, "--method", "guess"}, 2},
 		{[]string{"expect", "--model", filepath.Join(dir, "missing.json")}, 1},
-		{[]string{"expect", "--model", model, "--order", "13", "-o", keep}, 2},
-		{[]string{"expect", "--model", model, "--beta", "0", "-o", keep}, 2},
-		{[]string{"thermo", "--model", model, "--beta-range", "1:0:3"}, 2},
-		{[]string{"thermo", "--model", model}, 2},
-		{[]string{"sample", "--model", model}, 2},
-		{[]string{"sample", "--model", model, "--shots", "10", "--bases", "random:x"}, 2},
+		{[]string{"expect", "--model", modelPath, "--order", "13", "-o", keep}, 2},
+		{[]string{"expect", "--model", modelPath, "--beta", "0", "-o", keep}, 2},
+		{[]string{"thermo", "--model", modelPath, "--beta-range", "1:0:3"}, 2},
+		{[]string{"thermo", "--model", modelPath}, 2},
+		{[]string{"sample", "--model", modelPath}, 2},
+		{[]string{"sample", "--model", modelPath, "--shots", "10", "--bases", "random:x"}, 2},
 	}
 	for _, c := range cases {
 		code, _, stderr := runCmd(c.args...)
@@ -117,27 +118,60 @@ func TestExpectBadInput(t *testing.T) {
 	}
 }
 
-// With too few orders to judge a value, the table must not claim it exact
-// (an empty stderr means exact in formats.md).
-func TestExpectUnknownTruncationIsNotExact(t *testing.T) {
-	model := writeTestModel(t, t.TempDir())
-	code, out, stderr := runCmd("expect", "--model", model, "--order", "2")
+// With too few orders to judge a value, the table says so: its
+// truncation error is n/a and it is not trusted.
+func TestExpectUnknownTruncationIsNotTrusted(t *testing.T) {
+	modelPath := writeTestModel(t, t.TempDir())
+	code, out, stderr := runCmd("expect", "--model", modelPath, "--order", "2")
 	if code != 0 {
 		t.Fatalf("exit %d: %s", code, stderr)
 	}
 	if !strings.Contains(stderr, "cannot be judged") {
 		t.Errorf("no warning about unjudged values:\n%s", stderr)
 	}
-	for _, r := range readTable(t, out).Rows {
-		if !r.HasStderr {
-			t.Errorf("%s written as exact", r.Key())
+	tab := readTable(t, out)
+	errCol := slices.Index(tab.ExtraHeader, "trunc_error")
+	trustCol := slices.Index(tab.ExtraHeader, "trusted")
+	for _, r := range tab.Rows {
+		if r.Extra[errCol] == "n/a" && r.Extra[trustCol] != "false" {
+			t.Errorf("%s: unjudged value marked trusted", r.Key())
+		}
+	}
+}
+
+// A prediction fits back to the model that made it (the round trip a
+// user expects; common practice): the table's values are exact
+// predictions, so the fit reaches its exact-data tolerance.
+func TestExpectFitRoundTrip(t *testing.T) {
+	dir := t.TempDir()
+	modelPath := writeTestModel(t, dir)
+	table := filepath.Join(dir, "e.csv")
+	if code, _, stderr := runCmd("expect", "--model", modelPath, "--order", "6", "-o", table); code != 0 {
+		t.Fatalf("expect: exit %d: %s", code, stderr)
+	}
+	fitted := filepath.Join(dir, "fitted.json")
+	code, _, stderr := runCmd("fit", "--model", modelPath, "--data", table, "--order", "6", "-o", fitted)
+	if code != 0 {
+		t.Fatalf("fit: exit %d: %s", code, stderr)
+	}
+	want, err := model.ReadFile(modelPath)
+	if err != nil {
+		t.Fatal(err)
+	}
+	got, err := model.ReadFile(fitted)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for k := range want.Terms {
+		if d := math.Abs(got.Terms[k].Coeff - want.Terms[k].Coeff); d > 1e-8 {
+			t.Errorf("%s: fitted %v, model %v", want.Terms[k].Key(), got.Terms[k].Coeff, want.Terms[k].Coeff)
 		}
 	}
 }
 
 func TestThermoTable(t *testing.T) {
-	model := writeTestModel(t, t.TempDir())
-	code, out, stderr := runCmd("thermo", "--model", model, "--beta-range", "0.01:2:4", "--order", "4")
+	modelPath := writeTestModel(t, t.TempDir())
+	code, out, stderr := runCmd("thermo", "--model", modelPath, "--beta-range", "0.01:2:4", "--order", "4")
 	if code != 0 {
 		t.Fatalf("exit %d: %s", code, stderr)
 	}
@@ -148,7 +182,7 @@ func TestThermoTable(t *testing.T) {
 	// High-temperature expansion for orthonormal traceless Paulis:
 	// tr H^2 / 2^N = sum_k c_k^2, so S/N = ln 2 - beta^2 sum_k c_k^2 / (2N)
 	// + O(beta^3) (derived closed form: second cumulant of H at beta = 0).
-	m, err := lattice.ReadModel(model)
+	m, err := model.ReadFile(modelPath)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -168,15 +202,15 @@ func TestThermoTable(t *testing.T) {
 }
 
 func TestSampleExactSnapshots(t *testing.T) {
-	model := writeTestModel(t, t.TempDir())
-	code, out, stderr := runCmd("sample", "--model", model, "--shots", "500", "--seed", "3")
+	modelPath := writeTestModel(t, t.TempDir())
+	code, out, stderr := runCmd("sample", "--model", modelPath, "--shots", "500", "--seed", "3")
 	if code != 0 {
 		t.Fatalf("exit %d: %s", code, stderr)
 	}
 	if !strings.HasPrefix(out, "basis,outcome,count\n") {
 		t.Fatalf("not a snapshot file:\n%.200s", out)
 	}
-	_, again, _ := runCmd("sample", "--model", model, "--shots", "500", "--seed", "3")
+	_, again, _ := runCmd("sample", "--model", modelPath, "--shots", "500", "--seed", "3")
 	if again != out {
 		t.Error("same seed, different snapshots")
 	}

@@ -16,6 +16,7 @@ import (
 	"warmfit/cluster"
 	"warmfit/fit"
 	"warmfit/lattice"
+	"warmfit/lattice/model"
 )
 
 // fitOptions holds the flags of "warmfit fit"; Flags resets them on every
@@ -50,7 +51,7 @@ func init() {
 			o := &fitOptions
 			fs.StringVar(&o.model, "model", "", "template model `FILE`: lattice, terms, groups (coefficients are ignored unless --start template)")
 			fs.StringVar(&o.data, "data", "", "expectation table or snapshot `FILE` (told apart by the header)")
-			fs.Var(&o.beta, "beta", "inverse temperature (overrides the template's; without either, beta*lambda is fitted)")
+			addBetaFlag(fs, &o.beta, "inverse temperature (overrides the template's; without either, beta*lambda is fitted)")
 			fs.StringVar(&o.order, "order", "auto", "expansion order L (largest cluster), or auto")
 			fs.IntVar(&o.maxOrder, "max-order", 0, "highest order --order auto may use (default: sites, at most 12)")
 			fs.DurationVar(&o.budget, "budget", 60*time.Second, "wall time --order auto may spend (a higher order is not started, or is abandoned, past it)")
@@ -153,7 +154,7 @@ func runFit(env *runEnv, args []string) error {
 		return usagef("--start %q: want first-order or template", o.start)
 	}
 
-	tmpl, err := lattice.ReadModel(o.model)
+	tmpl, err := model.ReadFile(o.model)
 	if err != nil {
 		return err
 	}
@@ -162,13 +163,14 @@ func runFit(env *runEnv, args []string) error {
 	if o.beta.set {
 		beta, betaSource = o.beta.value, "from --beta"
 	}
-	est, kind, err := fitLoadData(o.data, o.model, tmpl, o.covDist)
+	est, dataSummary, err := fit.LoadEstimates(o.data, tmpl.Lattice, tmpl.Terms, fit.CovarianceOptions{Distance: o.covDist})
 	if err != nil {
 		return err
 	}
-	var truth *lattice.Model
+	kind := dataSummary.Kind
+	var truth *model.Model
 	if o.truth != "" {
-		if truth, err = lattice.ReadModel(o.truth); err != nil {
+		if truth, err = model.ReadFile(o.truth); err != nil {
 			return err
 		}
 	}
@@ -238,79 +240,6 @@ func runFit(env *runEnv, args []string) error {
 	})
 }
 
-// fitLoadData reads a table or snapshot file into estimates aligned with
-// the template's terms.
-func fitLoadData(path, tmplPath string, tmpl *lattice.Model, covDist int) (*fit.Estimates, string, error) {
-	kind, err := fit.DetectDataKind(path)
-	if err != nil {
-		return nil, "", err
-	}
-	switch kind {
-	case fit.KindTable:
-		t, err := fit.ReadTableFile(path)
-		if err != nil {
-			return nil, "", err
-		}
-		index := t.Index()
-		est, unused, err := fit.EstimatesFromTable(t, tmpl.Terms, groupedAllowMissing(tmpl.Terms, func(k int) bool {
-			_, ok := index[tmpl.Terms[k].Key()]
-			return ok
-		}))
-		if err != nil {
-			return nil, "", fmt.Errorf("%s: %w", path, err)
-		}
-		if len(unused) > 0 {
-			show := unused[:min(10, len(unused))]
-			more := ""
-			if len(unused) > len(show) {
-				more = fmt.Sprintf(" and %d more", len(unused)-len(show))
-			}
-			return nil, "", fmt.Errorf("%s: %d data term(s) are not in the template %s: %s%s (add them to the template or drop them from the data)",
-				path, len(unused), tmplPath, strings.Join(show, "; "), more)
-		}
-		return est, kind, nil
-	case fit.KindSnapshots:
-		f, err := os.Open(path)
-		if err != nil {
-			return nil, "", err
-		}
-		defer f.Close()
-		// Which terms get data is known only after counting; the fit
-		// refuses any whose group ends up without a measured member.
-		copt := fit.CovarianceOptions{Distance: covDist, Neighbors: tmpl.Lattice.Neighbors,
-			AllowMissing: groupedAllowMissing(tmpl.Terms, func(int) bool { return true })}
-		est, err := fit.EstimateSnapshots(f, path, tmpl.Lattice.NumSites(), tmpl.Terms, copt)
-		if err != nil {
-			return nil, "", err
-		}
-		return est, kind, nil
-	}
-	return nil, "", fmt.Errorf("%s: unknown data kind %q", path, kind)
-}
-
-// groupedAllowMissing lists the terms that may lack data: members of a
-// group with at least two terms, at least one of which has data
-// (hasData). The fit determines them through that group.
-func groupedAllowMissing(terms []lattice.Term, hasData func(k int) bool) []int {
-	size := map[string]int{}
-	measured := map[string]bool{}
-	for k, t := range terms {
-		if t.Group != "" {
-			size[t.Group]++
-			if hasData(k) {
-				measured[t.Group] = true
-			}
-		}
-	}
-	var allow []int
-	for k, t := range terms {
-		if t.Group != "" && size[t.Group] > 1 && measured[t.Group] {
-			allow = append(allow, k)
-		}
-	}
-	return allow
-}
-
 // fitUnconvergedPath names the file for the last iterate of a fit that
 // did not converge: beside -o (or in the current directory when the
 // output is stdout or a device), never over -o and never over an existing
@@ -334,7 +263,7 @@ func fitUnconvergedPath(out string) string {
 
 // fitWriteModel writes the fitted model with per-term stderr and the fit
 // report; terms get "significant" when it was computed.
-func fitWriteModel(w io.Writer, tmpl *lattice.Model, res *fit.Result, rep *fit.Report) error {
+func fitWriteModel(w io.Writer, tmpl *model.Model, res *fit.Result, rep *fit.Report) error {
 	raw, err := rep.JSON()
 	if err != nil {
 		return fmt.Errorf("fit report: %v", err)
@@ -346,8 +275,8 @@ func fitWriteModel(w io.Writer, tmpl *lattice.Model, res *fit.Result, rep *fit.R
 			terms[k].Significant = &flag
 		}
 	}
-	m := &lattice.Model{Lattice: tmpl.Lattice, Beta: res.Beta, Terms: terms, Units: tmpl.Units, Fit: raw}
-	return lattice.WriteModel(w, m)
+	m := &model.Model{Lattice: tmpl.Lattice, Beta: res.Beta, Terms: terms, Units: tmpl.Units, Fit: raw}
+	return model.Write(w, m)
 }
 
 // fitWriteCSV writes pauli,sites,coeff,stderr,significant with the
@@ -435,11 +364,4 @@ func fitSummary(w io.Writer, res *fit.Result, rep *fit.Report, cmp *fit.TruthCom
 	for _, warn := range res.Warnings {
 		fmt.Fprintf(w, "WARNING: %s\n", warn)
 	}
-}
-
-func fmtG3(v float64) string {
-	if math.IsNaN(v) || math.IsInf(v, 0) {
-		return "n/a"
-	}
-	return strconv.FormatFloat(v, 'g', 3, 64)
 }

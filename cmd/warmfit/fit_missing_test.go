@@ -12,7 +12,7 @@ import (
 
 	"warmfit/cluster"
 	"warmfit/fit"
-	"warmfit/lattice"
+	"warmfit/lattice/model"
 	"warmfit/validate"
 )
 
@@ -20,9 +20,9 @@ import (
 // template with every ZZ bond in group "J" (0.9) and every X field in
 // group "h" (0.6); ungrouped, when not empty, names one X term left out
 // of its group.
-func groupedTruth(t *testing.T, ungrouped string) *lattice.Model {
+func groupedTruth(t *testing.T, ungrouped string) *model.Model {
 	t.Helper()
-	m, err := lattice.ReadModel(fitTemplate)
+	m, err := model.ReadFile(fitTemplate)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -41,7 +41,7 @@ func groupedTruth(t *testing.T, ungrouped string) *lattice.Model {
 // writeExactTableWithout writes the exact expectations of the model
 // (dense exact diagonalisation of the whole chain) except the terms
 // whose keys are in skip.
-func writeExactTableWithout(t *testing.T, m *lattice.Model, skip []string, path string) {
+func writeExactTableWithout(t *testing.T, m *model.Model, skip []string, path string) {
 	t.Helper()
 	th, err := validate.ExactThermal(m.Lattice.NumSites(), m.Terms, m.Beta)
 	if err != nil {
@@ -113,7 +113,7 @@ func TestFitCommandMissingGroupedTerms(t *testing.T) {
 			if code != exitOK {
 				return
 			}
-			m, err := lattice.ReadModel(out)
+			m, err := model.ReadFile(out)
 			if err != nil {
 				t.Fatal(err)
 			}
@@ -166,7 +166,7 @@ func TestFitCommandSnapshotsMissingGroupedTerms(t *testing.T) {
 	if !strings.Contains(errs, "2 terms had no data and were fitted through their group") {
 		t.Errorf("summary does not report the unmeasured terms:\n%s", errs)
 	}
-	m, err := lattice.ReadModel(out)
+	m, err := model.ReadFile(out)
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -13,7 +13,7 @@ import (
 
 	"warmfit/cluster"
 	"warmfit/fit"
-	"warmfit/lattice"
+	"warmfit/lattice/model"
 	"warmfit/validate"
 )
 
@@ -27,9 +27,9 @@ func runCmd(args ...string) (code int, stdout, stderr string) {
 const fitTemplate = "../../testdata/fit/template_chain4.json"
 
 // fitTruth is a transverse-field Ising chain on the template's terms.
-func fitTruth(t *testing.T) *lattice.Model {
+func fitTruth(t *testing.T) *model.Model {
 	t.Helper()
-	m, err := lattice.ReadModel(fitTemplate)
+	m, err := model.ReadFile(fitTemplate)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -42,7 +42,7 @@ func fitTruth(t *testing.T) *lattice.Model {
 // writeExactTable writes the exact expectations of the model (dense exact
 // diagonalisation of the whole chain), optionally with Gaussian noise of
 // standard error sigma, as an expectation table.
-func writeExactTable(t *testing.T, m *lattice.Model, sigma float64, path string) {
+func writeExactTable(t *testing.T, m *model.Model, sigma float64, path string) {
 	t.Helper()
 	th, err := validate.ExactThermal(m.Lattice.NumSites(), m.Terms, m.Beta)
 	if err != nil {
@@ -68,10 +68,10 @@ func writeExactTable(t *testing.T, m *lattice.Model, sigma float64, path string)
 	}
 }
 
-func writeModelFile(t *testing.T, m *lattice.Model, path string) {
+func writeModelFile(t *testing.T, m *model.Model, path string) {
 	t.Helper()
 	var buf bytes.Buffer
-	if err := lattice.WriteModel(&buf, m); err != nil {
+	if err := model.Write(&buf, m); err != nil {
 		t.Fatal(err)
 	}
 	if err := os.WriteFile(path, buf.Bytes(), 0o644); err != nil {
@@ -99,7 +99,7 @@ func TestFitCommandExactRoundTrip(t *testing.T) {
 			t.Errorf("summary lacks %q:\n%s", w, errs)
 		}
 	}
-	m, err := lattice.ReadModel(out)
+	m, err := model.ReadFile(out)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -155,7 +155,7 @@ func TestFitCommandSnapshotsUnknownBeta(t *testing.T) {
 	if err := os.WriteFile(data, buf.Bytes(), 0o644); err != nil {
 		t.Fatal(err)
 	}
-	tmpl, err := lattice.ReadModel(fitTemplate)
+	tmpl, err := model.ReadFile(fitTemplate)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -208,7 +208,7 @@ func TestFitCommandBadInput(t *testing.T) {
 		args []string
 		want string
 	}{
-		{"term not in template", []string{"--data", "../../testdata/fit/extra_term.csv"}, "not in the template"},
+		{"term not in template", []string{"--data", "../../testdata/fit/extra_term.csv"}, "line 10: Z 2 is not a term of the template"},
 		{"value beyond 5 sigma", []string{"--data", "../../testdata/fit/out_of_range.csv"}, `out_of_range.csv:7: field "value"`},
 		{"basis length", []string{"--data", "../../testdata/fit/bad_basis.csv"}, "bad_basis.csv:4"},
 		{"no such data", []string{"--data", filepath.Join(dir, "missing.csv")}, "missing.csv"},

@@ -12,6 +12,7 @@ import (
 	"github.com/spf13/pflag"
 
 	"warmfit/lattice"
+	"warmfit/lattice/model"
 )
 
 // modelOptions holds the flags of "warmfit model"; Flags resets them on
@@ -40,13 +41,13 @@ func init() {
 		Example: modelExample,
 		Flags: func(fs *pflag.FlagSet) {
 			o := &modelOptions
-			o.beta, o.shells = betaFlag{}, modelIntFlag{}
+			o.shells = modelIntFlag{}
 			fs.StringVar(&o.lattice, "lattice", "", "lattice specification (square:4x4, chain:12:periodic, ...) or JSON file")
-			fs.StringVar(&o.preset, "preset", "", "model family: "+strings.Join(lattice.PresetNames(), ", "))
+			fs.StringVar(&o.preset, "preset", "", "model family: "+strings.Join(model.PresetNames(), ", "))
 			fs.StringSliceVar(&o.set, "set", nil, "coefficients, NAME=VALUE[,NAME=VALUE...] (repeatable)")
 			fs.Float64Var(&o.disorder, "disorder", 0, "add an independent uniform shift in [-W, W) to every coefficient")
 			fs.Uint64Var(&o.seed, "seed", 1, "seed of the disorder")
-			fs.Var(&o.beta, "beta", "inverse temperature to record in the model (> 0)")
+			addBetaFlag(fs, &o.beta, "inverse temperature to record in the model (> 0)")
 			fs.Var(&o.shells, "shells", "neighbour shells of the interaction graph, 1 or 2 (overrides the lattice)")
 			fs.BoolVar(&o.tie, "tie", false, "give terms of one preset parameter a common group (uniform fit)")
 			fs.StringVar(&o.units, "units", "", "energy unit of the coefficients, recorded in the model")
@@ -88,7 +89,7 @@ seed gives the same model everywhere.
 
 Presets:
 `)
-	for _, p := range lattice.Presets() {
+	for _, p := range model.Presets() {
 		fmt.Fprintf(&b, "\n  %s\n", modelIndentAfterFirst(modelWrapText(p.Name+": "+p.Hamiltonian, 74), "      "))
 		if p.Shells > 1 {
 			fmt.Fprintf(&b, "    needs --shells 2 (or a lattice specification ending in :shells=2)\n")
@@ -115,7 +116,7 @@ func runModel(env *runEnv, args []string) error {
 	if o.lattice == "" || o.preset == "" {
 		return usagef("need --lattice and --preset (or --check FILE)")
 	}
-	info, err := lattice.LookupPreset(o.preset)
+	info, err := model.LookupPreset(o.preset)
 	if err != nil {
 		return usagef("--preset: %v", err)
 	}
@@ -136,25 +137,25 @@ func runModel(env *runEnv, args []string) error {
 	if err != nil {
 		return err
 	}
-	terms, params, err := lattice.PresetTerms(l, info.Name, values)
+	terms, params, err := model.PresetTerms(l, info.Name, values)
 	if err != nil {
 		return usagef("%v", err)
 	}
 	if o.disorder > 0 {
-		lattice.AddDisorder(terms, o.disorder, o.seed)
+		model.AddDisorder(terms, o.disorder, o.seed)
 	}
 	if o.tie {
-		lattice.TieUniform(terms, params)
+		model.TieUniform(terms, params)
 	}
-	m := &lattice.Model{Lattice: l, Terms: terms, Units: o.units}
+	m := &model.Model{Lattice: l, Terms: terms, Units: o.units}
 	if o.beta.set {
 		m.Beta = o.beta.value
 	}
-	return writeOutput(env, o.out, func(w io.Writer) error { return lattice.WriteModel(w, m) })
+	return writeOutput(env, o.out, func(w io.Writer) error { return model.Write(w, m) })
 }
 
 // parseSetFlags reads NAME=VALUE pairs for the preset's parameters.
-func parseSetFlags(pairs []string, info lattice.PresetInfo) (map[string]float64, error) {
+func parseSetFlags(pairs []string, info model.PresetInfo) (map[string]float64, error) {
 	valid := map[string]bool{}
 	names := make([]string, len(info.Params))
 	for i, p := range info.Params {
@@ -229,7 +230,7 @@ func checkModel(env *runEnv) error {
 	if o.lattice != "" || o.preset != "" || len(o.set) > 0 || o.disorder != 0 || o.tie || o.shells.set || o.out != "" || o.units != "" {
 		return usagef("--check takes only --beta; it does not combine with --lattice, --preset, --set, --disorder, --tie, --shells, --units or -o")
 	}
-	m, err := lattice.ReadModel(o.check)
+	m, err := model.ReadFile(o.check)
 	if err != nil {
 		return err
 	}
@@ -241,7 +242,7 @@ func checkModel(env *runEnv) error {
 }
 
 // modelSummary describes a valid model in one paragraph.
-func modelSummary(name string, m *lattice.Model) string {
+func modelSummary(name string, m *model.Model) string {
 	l := m.Lattice
 	var b strings.Builder
 	fmt.Fprintf(&b, "%s is a valid model on %s: %d sites, %d interaction bonds", name, l.Spec, l.NumSites(), len(l.InteractionBonds()))
@@ -274,7 +275,7 @@ func modelSummary(name string, m *lattice.Model) string {
 	if m.Units != "" {
 		unit = " " + m.Units
 	}
-	fmt.Fprintf(&b, ". Coefficients from %s to %s%s (max |coeff| %s)", modelG4(lo), modelG4(hi), unit, modelG4(maxAbs))
+	fmt.Fprintf(&b, ". Coefficients from %s to %s%s (max |coeff| %s)", formatG(lo, 4), formatG(hi, 4), unit, formatG(maxAbs, 4))
 	if withErr > 0 {
 		fmt.Fprintf(&b, ", %d with standard errors", withErr)
 	}
@@ -282,7 +283,7 @@ func modelSummary(name string, m *lattice.Model) string {
 		b.WriteString("; the file carries a fit report")
 	}
 	if m.Beta > 0 {
-		fmt.Fprintf(&b, ". beta = %s, beta*max|coeff| = %s (the expansion converges best when this is small)", modelG4(m.Beta), modelG4(m.Beta*maxAbs))
+		fmt.Fprintf(&b, ". beta = %s, beta*max|coeff| = %s (the expansion converges best when this is small)", formatG(m.Beta, 4), formatG(m.Beta*maxAbs, 4))
 	} else {
 		b.WriteString(". No beta: give --beta to commands that need one")
 	}
@@ -312,8 +313,6 @@ func modelCountLetters(terms []lattice.Term) string {
 	}
 	return strings.Join(parts, ", ")
 }
-
-func modelG4(v float64) string { return strconv.FormatFloat(v, 'g', 4, 64) }
 
 // modelWrapText breaks a paragraph into lines of at most width characters.
 func modelWrapText(s string, width int) string {

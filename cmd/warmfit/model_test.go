@@ -7,7 +7,7 @@ import (
 	"strings"
 	"testing"
 
-	"warmfit/lattice"
+	"warmfit/lattice/model"
 )
 
 // runModelCmd runs warmfit with args and returns exit code, stdout, stderr.
@@ -17,9 +17,9 @@ func runModelCmd(args ...string) (int, string, string) {
 	return code, out.String(), errb.String()
 }
 
-func parseModelOutput(t *testing.T, out string) *lattice.Model {
+func parseModelOutput(t *testing.T, out string) *model.Model {
 	t.Helper()
-	m, err := lattice.ParseModel(strings.NewReader(out), "stdout")
+	m, err := model.Parse(strings.NewReader(out), "stdout")
 	if err != nil {
 		t.Fatalf("output is not a valid model: %v\n%s", err, out)
 	}
@@ -166,7 +166,7 @@ func TestModelCommandOutputFile(t *testing.T) {
 	if code != exitOK || out != "" {
 		t.Fatalf("exit %d, stdout %q, stderr %s", code, out, errs)
 	}
-	m, err := lattice.ReadModel(path)
+	m, err := model.ReadFile(path)
 	if err != nil || len(m.Terms) != 6 { // 2 bonds x 3 letters
 		t.Fatalf("%v, %v", m, err)
 	}
@@ -233,7 +233,7 @@ func TestModelHelp(t *testing.T) {
 	if code != exitOK {
 		t.Fatalf("exit %d", code)
 	}
-	for _, p := range lattice.PresetNames() {
+	for _, p := range model.PresetNames() {
 		if !strings.Contains(out, p+":") {
 			t.Errorf("help does not describe preset %s", p)
 		}

@@ -7,12 +7,12 @@ import (
 	"io"
 	"math"
 	"strconv"
-	"strings"
 
 	"github.com/spf13/pflag"
 
 	"warmfit/fit"
 	"warmfit/lattice"
+	"warmfit/lattice/model"
 )
 
 // planOptions holds the flags of "warmfit plan"; Flags resets them on
@@ -106,25 +106,19 @@ func runPlan(env *runEnv, args []string) error {
 		return err
 	}
 	n := m.Lattice.NumSites()
-	var bases []string
-	scheme := o.bases
-	switch {
-	case o.bases == "covering":
-		if bases, err = fit.CoveringBases(n, m.Terms); err != nil {
-			return err
+	bases, scheme, err := fit.SchemeBases(o.bases, n, m.Terms, o.seed)
+	if err != nil {
+		return usagef("--%v", err)
+	}
+	order := o.order
+	if order == 0 {
+		order = fittedOrder(m)
+		if order > 0 {
+			fmt.Fprintf(env.Stderr, "plan: order %d, the order the model was fitted at\n", order)
 		}
-	case strings.HasPrefix(o.bases, "random:"):
-		count, err := strconv.Atoi(strings.TrimPrefix(o.bases, "random:"))
-		if err != nil || count < 1 {
-			return usagef("--bases %q: want random:N with N a positive integer", o.bases)
-		}
-		bases = fit.RandomBases(n, count, o.seed)
-		scheme = fmt.Sprintf("%s (seed %d)", o.bases, o.seed)
-	default:
-		return usagef("--bases %q: want covering or random:N", o.bases)
 	}
 	plan, err := fit.PlanShots(m.Lattice, m.Terms, beta, fit.PlanOptions{
-		Target: o.target, Norm: o.norm, Confidence: o.confidence, Bases: bases, Order: o.order, Workers: o.workers,
+		Target: o.target, Norm: o.norm, Confidence: o.confidence, Bases: bases, Order: order, Workers: o.workers,
 	})
 	if err != nil {
 		return err
@@ -220,4 +214,16 @@ func planWriteJSON(w io.Writer, terms []lattice.Term, p *fit.Plan, scheme string
 	enc := json.NewEncoder(w)
 	enc.SetIndent("", "  ")
 	return enc.Encode(out)
+}
+
+// fittedOrder is the expansion order stored in a fitted model's report,
+// or 0 when the model was not fitted.
+func fittedOrder(m *model.Model) int {
+	var rep struct {
+		Order int `json:"order"`
+	}
+	if len(m.Fit) == 0 || json.Unmarshal(m.Fit, &rep) != nil {
+		return 0
+	}
+	return rep.Order
 }

@@ -1,20 +1,17 @@
 package main
 
 import (
-	"bufio"
 	"fmt"
 	"io"
 	"math"
 	"math/rand/v2"
-	"strconv"
-	"strings"
 	"time"
 
 	"github.com/spf13/pflag"
 
 	"warmfit/cluster"
 	"warmfit/fit"
-	"warmfit/lattice"
+	"warmfit/lattice/model"
 	"warmfit/validate"
 )
 
@@ -60,7 +57,7 @@ warmfit sample --model big.json --shots 100000 --generator binomial -o big-data.
 			fs.StringVar(&bases, "bases", "covering", "bases scheme: covering or random:K")
 			fs.Uint64Var(&seed, "seed", 1, "random seed")
 			fs.StringVar(&generator, "generator", "auto", "exact, binomial or auto")
-			fs.IntVar(&order, "order", 0, "expansion order for the binomial generator (default: by lattice dimension)")
+			fs.IntVar(&order, "order", 0, "expansion order for the binomial generator (default: chosen automatically, as in expect)")
 			fs.StringVarP(&out, "output", "o", "", "write the data to `FILE` instead of stdout")
 		},
 		Run: func(env *runEnv, args []string) error {
@@ -78,9 +75,9 @@ warmfit sample --model big.json --shots 100000 --generator binomial -o big-data.
 				return err
 			}
 			n := m.Lattice.NumSites()
-			basisList, err := chooseBases(bases, n, m.Terms, seed)
+			basisList, _, err := fit.SchemeBases(bases, n, m.Terms, seed)
 			if err != nil {
-				return err
+				return usagef("--%v", err)
 			}
 			switch generator {
 			case "auto":
@@ -104,23 +101,7 @@ warmfit sample --model big.json --shots 100000 --generator binomial -o big-data.
 	})
 }
 
-// chooseBases turns a --bases scheme into the list of product bases.
-func chooseBases(scheme string, n int, terms []lattice.Term, seed uint64) ([]string, error) {
-	switch {
-	case scheme == "covering":
-		return fit.CoveringBases(n, terms)
-	case strings.HasPrefix(scheme, "random:"):
-		k, err := strconv.Atoi(strings.TrimPrefix(scheme, "random:"))
-		if err != nil || k < 1 {
-			return nil, usagef("--bases %q: want random:K with K a positive integer", scheme)
-		}
-		return fit.RandomBases(n, k, seed), nil
-	default:
-		return nil, usagef("--bases %q: want covering or random:K", scheme)
-	}
-}
-
-func sampleExact(env *runEnv, m *lattice.Model, beta float64, bases []string, shots int64, seed uint64, out string) error {
+func sampleExact(env *runEnv, m *model.Model, beta float64, bases []string, shots int64, seed uint64, out string) error {
 	start := time.Now()
 	s, err := validate.NewSampler(m.Lattice.NumSites(), m.Terms, beta)
 	if err != nil {
@@ -143,28 +124,38 @@ func sampleExact(env *runEnv, m *lattice.Model, beta float64, bases []string, sh
 		blocks = append(blocks, block{basis, c})
 	}
 	fmt.Fprintf(env.Stderr, "sample: exact Gibbs-state snapshots, %.2fs\n", time.Since(start).Seconds())
+	n := m.Lattice.NumSites()
 	return writeOutput(env, out, func(w io.Writer) error {
-		bw := bufio.NewWriter(w)
-		fmt.Fprintln(bw, "basis,outcome,count")
+		sw := fit.NewSnapshotWriter(w, n)
 		for _, b := range blocks {
 			for _, c := range b.counts {
-				fmt.Fprintf(bw, "%s,%s,%d\n", b.basis, c.Outcome, c.Count)
+				if err := sw.Write(b.basis, c.Outcome, int64(c.Count)); err != nil {
+					return err
+				}
 			}
 		}
-		return bw.Flush()
+		return sw.Flush()
 	})
 }
 
-func sampleBinomial(env *runEnv, m *lattice.Model, beta float64, bases []string, shots int64, seed uint64, order int, out string) error {
-	if order == 0 {
-		order = defaultOrder(m.Lattice)
-	}
+func sampleBinomial(env *runEnv, m *model.Model, beta float64, bases []string, shots int64, seed uint64, order int, out string) error {
 	exp, err := cluster.NewExpansion(m.Lattice, m.Terms)
 	if err != nil {
 		return err
 	}
 	bar := newProgressBar(env, "expanding")
-	res, err := exp.Evaluate(modelCoeffs(m), beta, cluster.Options{Order: order, Progress: bar.Update})
+	opt := cluster.Options{Order: order, Progress: bar.Update}
+	var res *cluster.Result
+	if order > 0 {
+		res, err = exp.Evaluate(modelCoeffs(m), beta, opt)
+	} else {
+		var choice cluster.OrderChoice
+		res, choice, err = exp.ChooseOrder(modelCoeffs(m), beta, 1e-3, cluster.NewOrderPolicy(m.Lattice, m.Terms), opt)
+		if err == nil {
+			order = choice.Order
+			fmt.Fprintf(env.Stderr, "sample: expansion order %d chosen automatically: %s\n", order, choice.Reason)
+		}
+	}
 	bar.Done()
 	if err != nil {
 		return err

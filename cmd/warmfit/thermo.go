@@ -12,7 +12,7 @@ import (
 	"github.com/spf13/pflag"
 
 	"warmfit/cluster"
-	"warmfit/lattice"
+	"warmfit/lattice/model"
 )
 
 func init() {
@@ -42,7 +42,7 @@ warmfit thermo --model h.json --beta-range 0.05:1:20 --order 6`,
 			flags = fs
 			fs.StringVar(&modelPath, "model", "", "model file (JSON)")
 			fs.StringVar(&betaRange, "beta-range", "", "grid A:B:N of inverse temperatures")
-			fs.IntVar(&order, "order", 0, "largest cluster size (default: by lattice dimension)")
+			fs.IntVar(&order, "order", 0, "largest cluster size (default: the highest the automatic work limit affords)")
 			fs.Float64Var(&tol, "tol", 1e-3, "truncation error per site at which a row counts as trusted")
 			fs.StringVarP(&out, "output", "o", "", "write the table to `FILE` instead of stdout")
 		},
@@ -63,16 +63,19 @@ warmfit thermo --model h.json --beta-range 0.05:1:20 --order 6`,
 			if err != nil {
 				return err
 			}
-			m, err := lattice.ReadModel(modelPath)
+			m, err := model.ReadFile(modelPath)
 			if err != nil {
 				return err
-			}
-			if order == 0 {
-				order = defaultOrder(m.Lattice)
 			}
 			exp, err := cluster.NewExpansion(m.Lattice, m.Terms)
 			if err != nil {
 				return err
+			}
+			if order == 0 {
+				// One diagonalisation per cluster serves every temperature,
+				// so the automatic order is the highest the policy affords.
+				order = cluster.NewOrderPolicy(m.Lattice, m.Terms).Highest(exp)
+				fmt.Fprintf(env.Stderr, "thermo: expansion order %d chosen automatically (the highest within the automatic work limit)\n", order)
 			}
 			bar := newProgressBar(env, "expanding")
 			start := time.Now()
@@ -154,7 +157,7 @@ func writeThermo(w io.Writer, env *runEnv, r *cluster.ThermoResult, tol float64)
 			bw.WriteString(strconv.FormatFloat(v, 'g', 10, 64))
 			bw.WriteByte(',')
 		}
-		fmt.Fprintf(bw, "%s,%s,%t\n", fmtDiag(e.Error), fmtDiag(c.Error), trusted)
+		fmt.Fprintf(bw, "%s,%s,%t\n", fmtFloat(e.Error), fmtFloat(c.Error), trusted)
 	}
 	switch {
 	case firstUntrusted < 0:

@@ -47,14 +47,6 @@ func linearToSRGB(v float64) float64 {
 	return 1.055*math.Pow(v, 1/2.4) - 0.055
 }
 
-// luminance returns the relative luminance Y of the colour: the D65
-// weights of the sRGB primaries (IEC 61966-2-1, as in ITU-R BT.709)
-// applied to the linear components. It is what a careful conversion to
-// grey keeps.
-func (c Color) luminance() float64 {
-	return 0.2126*srgbToLinear(c.R) + 0.7152*srgbToLinear(c.G) + 0.0722*srgbToLinear(c.B)
-}
-
 // shade returns the colour with its OKLab lightness moved by dL, hue and
 // chroma kept, clipped into the gamut: the outline of a marker is its
 // fill, darkened.

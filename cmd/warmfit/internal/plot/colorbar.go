@@ -1,6 +1,9 @@
 package plot
 
-import "strconv"
+import (
+	"math"
+	"strconv"
+)
 
 // Room a colour bar needs around its bar, in pixels: a horizontal bar
 // has its label above and its tick labels below; a vertical bar has its
@@ -45,9 +48,7 @@ func (d *Document) ColorBar(r Rect, m ColorMap) {
 	if horizontal {
 		length = r.W
 	}
-	step := niceStep(m.Max-m.Min, max(2, int(length/55)), false)
-	ticks := linearTicks(m.Min, m.Max, step)
-	labels := tickLabels(ticks, step)
+	ticks, labels := barTicks(m, length, horizontal)
 	tick := Stroke{Color: frameColor, Width: weightAxis}
 	for i, v := range ticks {
 		f := (v - m.Min) / (m.Max - m.Min)
@@ -62,4 +63,22 @@ func (d *Document) ColorBar(r Rect, m ColorMap) {
 		}
 	}
 	d.Text(r.X, r.Y-6, m.Label, TextStyle{Size: sizeLegend})
+}
+
+// barTicks chooses about one tick per 45 pixels of a bar, fewer when
+// the labels of a horizontal bar would touch.
+func barTicks(m ColorMap, length float64, horizontal bool) ([]float64, []richText) {
+	for target := max(2, int(length/45)); ; target-- {
+		step := niceStep(m.Max-m.Min, target, false)
+		ticks := linearTicks(m.Min, m.Max, step)
+		labels := tickLabels(ticks, step)
+		widest := 0.0
+		for _, l := range labels {
+			widest = math.Max(widest, l.width(sizeTick))
+		}
+		gap := step / (m.Max - m.Min) * length
+		if !horizontal || target <= 2 || gap >= widest+8 {
+			return ticks, labels
+		}
+	}
 }

@@ -31,11 +31,13 @@ func NewColorMap(s Scale, label string, values []float64) (ColorMap, error) {
 	if len(values) == 0 {
 		return ColorMap{}, fmt.Errorf("plot: colour map %q: no values", label)
 	}
+	// The range ends on a multiple of a nice step of about 1/8 of it
+	// (of its half, for a diverging map): little of the scale is wasted.
 	if s == Diverging {
-		m := math.Max(math.Abs(lo), math.Abs(hi))
-		lo, hi = widen(-m, m, 4, false)
+		_, m := widen(0, math.Max(math.Abs(lo), math.Abs(hi)), 8, false)
+		lo, hi = -m, m
 	} else {
-		lo, hi = widen(lo, hi, 4, false)
+		lo, hi = widen(lo, hi, 8, false)
 	}
 	return ColorMap{Scale: s, Min: lo, Max: hi, Label: label}, nil
 }

@@ -112,6 +112,24 @@ type Rect struct{ X, Y, W, H float64 }
 // Inset returns r shrunk by m on every side.
 func (r Rect) Inset(m float64) Rect { return Rect{r.X + m, r.Y + m, r.W - 2*m, r.H - 2*m} }
 
+// Grid divides r into rows x cols cells with gaps between them, listed
+// row by row from the upper left. It panics unless rows and cols are
+// positive.
+func (r Rect) Grid(rows, cols int, gapX, gapY float64) []Rect {
+	if rows <= 0 || cols <= 0 {
+		panic(fmt.Sprintf("plot: grid of %d x %d cells", rows, cols))
+	}
+	w := (r.W - float64(cols-1)*gapX) / float64(cols)
+	h := (r.H - float64(rows-1)*gapY) / float64(rows)
+	out := make([]Rect, 0, rows*cols)
+	for i := range rows {
+		for j := range cols {
+			out = append(out, Rect{r.X + float64(j)*(w+gapX), r.Y + float64(i)*(h+gapY), w, h})
+		}
+	}
+	return out
+}
+
 // Right and Bottom return the far edges.
 func (r Rect) Right() float64  { return r.X + r.W }
 func (r Rect) Bottom() float64 { return r.Y + r.H }
@@ -153,15 +171,7 @@ func (d *Document) open(name string) elem {
 	return elem{d: d, b: &d.body, name: name}
 }
 
-func (e elem) num(attr string, v float64) elem {
-	s, ok := formatNumber(v)
-	if !ok {
-		e.d.failf("%s attribute %s: non-finite value %v", e.name, attr, v)
-		s = "0"
-	}
-	e.b.WriteString(" " + attr + `="` + s + `"`)
-	return e
-}
+func (e elem) num(attr string, v float64) elem { return e.nums(attr, []float64{v}, "") }
 
 // nums writes a list of numbers separated by sep (points, dash arrays).
 func (e elem) nums(attr string, vs []float64, sep string) elem {

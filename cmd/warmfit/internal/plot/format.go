@@ -47,41 +47,45 @@ const minus = "\u2212"
 
 func withMinus(s string) string { return strings.Replace(s, "-", minus, 1) }
 
-// tickLabels prints the values of one axis's ticks, all in the same
-// notation: as many decimals as the step needs, or, when the step is
-// below 1e-4 or a value reaches 1e5, a mantissa times one power of ten
-// shared by the whole axis.
+// tickLabels prints the values of one axis's ticks: with as many
+// decimals as the step needs, or, when the step is below 1e-4 or a
+// value reaches 1e5, each as a mantissa times a power of ten with the
+// digits the step needs at that power.
 func tickLabels(ticks []float64, step float64) []richText {
 	top := step
 	for _, v := range ticks {
 		top = math.Max(top, math.Abs(v))
 	}
 	out := make([]richText, len(ticks))
-	if step >= 1e-4 && top < 1e5 {
-		for i, v := range ticks {
-			out[i] = plain(fixed(v, decimals(step)))
-		}
-		return out
-	}
-	k := int(math.Floor(math.Log10(top) + 1e-9))
-	scale := math.Pow(10, float64(k))
-	dec := decimals(step / scale)
 	for i, v := range ticks {
-		if v == 0 {
-			out[i] = plain("0")
-			continue
-		}
-		m := fixed(v/scale, dec)
-		switch m {
-		case "1":
-			out[i] = power(k, false)
-		case minus + "1":
-			out[i] = power(k, true)
-		default:
-			out[i] = append(plain(m+"×10"), span{text: withMinus(strconv.Itoa(k)), super: true})
+		if step >= 1e-4 && top < 1e5 {
+			out[i] = plain(fixed(v, decimals(step)))
+		} else {
+			out[i] = scientific(v, step)
 		}
 	}
 	return out
+}
+
+// scientific writes v as m×10^k with 1 <= |m| < 10, m without trailing
+// zeros; a mantissa of 1 is left out.
+func scientific(v, step float64) richText {
+	if v == 0 {
+		return plain("0")
+	}
+	k := int(math.Floor(math.Log10(math.Abs(v)) + 1e-9))
+	scale := math.Pow(10, float64(k))
+	m := fixed(v/scale, decimals(step/scale))
+	if strings.Contains(m, ".") {
+		m = strings.TrimRight(strings.TrimRight(m, "0"), ".")
+	}
+	switch m {
+	case "1":
+		return power(k, false)
+	case minus + "1":
+		return power(k, true)
+	}
+	return append(plain(m+"×10"), span{text: withMinus(strconv.Itoa(k)), super: true})
 }
 
 // fixed prints v with dec decimals, zero without sign.

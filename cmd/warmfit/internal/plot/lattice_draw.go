@@ -1,7 +1,9 @@
 package plot
 
 import (
+	"cmp"
 	"fmt"
+	"maps"
 	"math"
 	"slices"
 	"strconv"
@@ -124,7 +126,7 @@ func LatticeFigure(g Geometry) *Document {
 	l, err := newLatticeLayout(g)
 	if err != nil {
 		d := New(1, 1, g.Name)
-		d.failf("lattice %q: %v", g.Name, err)
+		d.failf("lattice %q: %w", g.Name, err)
 		return d
 	}
 	l.scale = latticeSpacing / closestSeparation(l.pts, g.NN)
@@ -151,7 +153,7 @@ func (d *Document) Lattice(box Rect, g Geometry, layers LatticeLayers) *LatticeV
 		err = layers.check(g)
 	}
 	if err != nil {
-		d.failf("lattice %q: %v", g.Name, err)
+		d.failf("lattice %q: %w", g.Name, err)
 		return &LatticeView{d: d}
 	}
 	spacing := closestSeparation(l.pts, g.NN)
@@ -190,21 +192,39 @@ func numberFont(r float64, n int) float64 {
 	return f
 }
 
+// check reports the first bad value, in the order of the sites and of
+// the geometry's bonds, so that the message does not depend on the
+// order of a map.
 func (ls LatticeLayers) check(g Geometry) error {
-	for i, v := range ls.SiteValues {
+	sites := slices.Sorted(maps.Keys(ls.SiteValues))
+	for _, i := range sites {
 		if i < 0 || i >= len(g.Coords) {
-			return fmt.Errorf("site value for site %d of %d", i, len(g.Coords))
+			return fmt.Errorf("value for site %d, beyond the %d sites", i, len(g.Coords))
 		}
-		if !finite(v) {
+		if v := ls.SiteValues[i]; !finite(v) {
 			return fmt.Errorf("site %d: value %v: %w", i, v, errNonFinite)
 		}
 	}
 	if ls.SiteValues != nil && !(ls.SiteMap.Max > ls.SiteMap.Min) {
 		return fmt.Errorf("site values without a colour map")
 	}
-	for b, v := range ls.BondValues {
-		if !finite(v) {
-			return fmt.Errorf("bond %d-%d: value %v: %w", b.I, b.J, v, errNonFinite)
+	known := 0
+	for _, b := range slices.Concat(g.NN, g.NNN) {
+		if v, ok := ls.BondValues[b]; ok {
+			known++
+			if !finite(v) {
+				return fmt.Errorf("bond %d-%d: value %v: %w", b.I, b.J, v, errNonFinite)
+			}
+		}
+	}
+	if known != len(ls.BondValues) {
+		bonds := slices.SortedFunc(maps.Keys(ls.BondValues), func(a, b lattice.Bond) int {
+			return cmp.Or(cmp.Compare(a.I, b.I), cmp.Compare(a.J, b.J))
+		})
+		for _, b := range bonds {
+			if !slices.Contains(g.NN, b) && !slices.Contains(g.NNN, b) {
+				return fmt.Errorf("value for bond %d-%d, which is not a bond of the lattice", b.I, b.J)
+			}
 		}
 	}
 	if ls.BondValues != nil && !(ls.BondMap.Max > ls.BondMap.Min) {

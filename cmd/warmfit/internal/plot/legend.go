@@ -78,7 +78,12 @@ func (p *Panel) Legend(entries ...LegendEntry) {
 	if p.dead || len(entries) == 0 {
 		return
 	}
-	w, h := legendSize(entries)
+	p.d.drawLegend(p.legendPlace(legendSize(entries)), entries)
+}
+
+// legendPlace returns the least covering of the eight places for a box
+// of w x h pixels.
+func (p *Panel) legendPlace(w, h float64) Rect {
 	a := p.area.Inset(legendInset)
 	xs := []float64{a.Right() - w, a.X, a.X + (a.W-w)/2}
 	ys := []float64{a.Y, a.Bottom() - h, a.Y + (a.H-h)/2}
@@ -92,7 +97,7 @@ func (p *Panel) Legend(entries ...LegendEntry) {
 			best, bestCost = b, c
 		}
 	}
-	p.d.drawLegend(best, entries)
+	return best
 }
 
 // legendSize returns the width and height of a legend box.

@@ -17,6 +17,25 @@ const (
 	Hexagon
 )
 
+// String returns the shape's name: "circle", "square", ...
+func (s Shape) String() string {
+	switch s {
+	case Circle:
+		return "circle"
+	case Square:
+		return "square"
+	case Diamond:
+		return "diamond"
+	case TriangleUp:
+		return "triangle-up"
+	case TriangleDown:
+		return "triangle-down"
+	case Hexagon:
+		return "hexagon"
+	}
+	return fmt.Sprintf("Shape(%d)", int(s))
+}
+
 // MarkerStyle is how a data point is drawn: a filled shape outlined in a
 // darker shade of its fill, so that markers stay visible on light
 // grounds and where they overlap.

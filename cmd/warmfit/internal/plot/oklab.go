@@ -47,8 +47,11 @@ func mul3(m [3][3]float64, v [3]float64) [3]float64 {
 }
 
 // linearToOKLab converts linear sRGB components to OKLab.
-func linearToOKLab(rgb [3]float64) oklab {
-	lms := mul3(linearToLMS, rgb)
+func linearToOKLab(rgb [3]float64) oklab { return lmsToOKLab(mul3(linearToLMS, rgb)) }
+
+// lmsToOKLab applies the cube root and the second matrix of Ottosson
+// (2020) to cone-like LMS responses.
+func lmsToOKLab(lms [3]float64) oklab {
 	for i := range lms {
 		lms[i] = math.Cbrt(lms[i])
 	}

@@ -54,7 +54,7 @@ func (d *Document) Stack(outer Rect, x Axis, rows ...Row) []*Panel {
 		panels[i] = &Panel{d: d, title: r.Title}
 		m, err := newAxisMap(r.Y, heights[i], 48)
 		if err != nil {
-			d.failf("panel %q: y axis: %v", r.Title, err)
+			d.failf("panel %q: y axis: %w", r.Title, err)
 			panels[i].dead = true
 			continue
 		}
@@ -63,7 +63,7 @@ func (d *Document) Stack(outer Rect, x Axis, rows ...Row) []*Panel {
 	}
 	xm, right, err := fitXAxis(x, outer.W-left)
 	if err != nil {
-		d.failf("panel %q: x axis: %v", rows[len(rows)-1].Title, err)
+		d.failf("panel %q: x axis: %w", rows[len(rows)-1].Title, err)
 	}
 	y := outer.Y
 	for i, p := range panels {
@@ -206,7 +206,7 @@ func (p *Panel) drawFrame() {
 	p.drawXTicks(spine)
 	p.drawYTicks(spine)
 	if p.title != "" {
-		d.Text(a.X, a.Y-titleGap-2, p.title, TextStyle{Size: sizePanelTitle, Bold: true})
+		d.Subheading(a.X, a.Y-titleGap-2, p.title)
 	}
 	p.clipArea = d.clipPath(a)
 	p.clipMarks = d.clipPath(a.Inset(-(markerRadius + 2)))

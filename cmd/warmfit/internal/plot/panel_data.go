@@ -85,7 +85,7 @@ func (p *Panel) ErrorBars(xs, ys, errs []float64, s Stroke) {
 		}
 		lo[i], hi[i] = ys[i]-e, ys[i]+e
 	}
-	if p.Log() && !p.dead {
+	if !p.dead && p.y.spec.Log {
 		// On a log axis a bar reaching zero or below goes to the bottom.
 		for i := range lo {
 			if finite(lo[i]) && lo[i] <= 0 {
@@ -107,9 +107,6 @@ func (p *Panel) ErrorBars(xs, ys, errs []float64, s Stroke) {
 		p.addPath([]float64{px[i], px[i]}, []float64{plo[i], phi[i]}, weightOfData)
 	}
 }
-
-// Log reports whether the panel's y axis is logarithmic.
-func (p *Panel) Log() bool { return !p.dead && p.y.spec.Log }
 
 // Band fills the region between the curves lo(x) and hi(x): an
 // uncertainty band, or a tolerance about a fit.

@@ -1,16 +1,59 @@
 package plot
 
 import (
+	"bytes"
 	"fmt"
 	"math"
 	"math/rand/v2"
+	"os"
+	"os/exec"
+	"path/filepath"
+	"strings"
+	"testing"
 
 	"warmfit/lattice"
 )
 
 // Sample figures of every kind the commands draw, on invented data with
-// fixed seeds: the tests check them as documents, and a person looks at
-// them rendered (see TestSampleFigures).
+// fixed seeds: the test checks them as documents and renders them.
+
+// Every sample figure is a well-formed SVG without a non-finite number,
+// the same bytes when drawn twice, and, where rsvg-convert is installed,
+// renders to a PNG. The files go to the test's temporary directory.
+func TestSampleFigures(t *testing.T) {
+	first, err := sampleFigures()
+	if err != nil {
+		t.Fatal(err)
+	}
+	second, err := sampleFigures()
+	if err != nil {
+		t.Fatal(err)
+	}
+	dir := t.TempDir()
+	converter, _ := exec.LookPath("rsvg-convert")
+	for i, s := range first {
+		doc := render(t, s.name, s.doc)
+		checkSVG(t, s.name, doc)
+		if again := render(t, s.name, second[i].doc); !bytes.Equal(doc, again) {
+			t.Errorf("%s: two drawings differ", s.name)
+		}
+		path := filepath.Join(dir, s.name+".svg")
+		if err := os.WriteFile(path, doc, 0o644); err != nil {
+			t.Fatal(err)
+		}
+		if converter == "" || testing.Short() {
+			continue
+		}
+		png := filepath.Join(dir, s.name+".png")
+		if out, err := exec.Command(converter, "-o", png, path).CombinedOutput(); err != nil {
+			t.Errorf("%s: rsvg-convert: %v\n%s", s.name, err, out)
+			continue
+		}
+		if fi, err := os.Stat(png); err != nil || fi.Size() < 1000 {
+			t.Errorf("%s: no PNG image: %v", s.name, err)
+		}
+	}
+}
 
 type sample struct {
 	name string
@@ -36,7 +79,7 @@ func sampleFigures() ([]sample, error) {
 		if err != nil {
 			return nil, err
 		}
-		add("lattice-"+spec, LatticeFigure(LatticeGeometry(l)))
+		add("lattice-"+strings.ReplaceAll(spec, ":", "-"), LatticeFigure(LatticeGeometry(l)))
 	}
 	return out, nil
 }
@@ -73,7 +116,7 @@ func sampleCoefficients() *Document {
 		hi = math.Max(hi, math.Max(truth[i], fitted[i]))
 	}
 	left := d.Panel(Rect{24, top, 470, 460}, "fitted vs true",
-		Axis{Label: "true coefficient", Min: lo, Max: hi, Step: 0.25}, Axis{Label: "fitted coefficient", Min: lo, Max: hi, Step: 0.25})
+		Axis{Label: "true coefficient", Min: lo, Max: hi, Step: NiceStep(hi-lo, 6)}, Axis{Label: "fitted coefficient", Min: lo, Max: hi, Step: NiceStep(hi-lo, 6)})
 	ref := Stroke{Color: refColor, Width: weightThin, Dash: []float64{6, 4}}
 	left.Line([]float64{lo - 1, hi + 1}, []float64{lo - 1, hi + 1}, ref)
 	var legend []LegendEntry
@@ -148,7 +191,8 @@ func samplePulls() *Document {
 		for k := range pulls {
 			pulls[k] = set.scale * rng.NormFloat64()
 		}
-		const lim, width = 4.0, 0.5
+		const lim = 4.0
+		width := NiceStep(2*lim, 16)
 		edges := make([]float64, 0, 17)
 		for e := -lim; e <= lim+1e-9; e += width {
 			edges = append(edges, e)
@@ -372,6 +416,7 @@ func sampleLatticeMaps() (*Document, error) {
 	top := d.Heading("The fitted 6x6 array: couplings on the bonds, fields on the sites",
 		"bond width grows with |coupling|; the dashed square is the 3x3 patch checked exactly")
 	patch := []int{0, 1, 2, 6, 7, 8, 12, 13, 14}
+	cells := Rect{24, top, 712, 500 - top}.Grid(1, 2, 30, 0)
 	for i, spec := range []struct {
 		title string
 		ls    LatticeLayers
@@ -380,9 +425,9 @@ func sampleLatticeMaps() (*Document, error) {
 		{"XX couplings, X fields", LatticeLayers{BondValues: couplings, BondMap: bondMap, SiteValues: fields, SiteMap: siteMap, WidenBonds: true, Numbers: true}, []ColorMap{bondMap, siteMap}},
 		{"pulls per bond and site", LatticeLayers{BondValues: bondPull, BondMap: pullMap, SiteValues: sitePull, SiteMap: pullMap}, []ColorMap{pullMap}},
 	} {
-		x := 24 + float64(i)*370
-		d.Text(x, top+8, spec.title, TextStyle{Size: sizePanelTitle, Bold: true})
-		box := Rect{x, top + 16, 340, 300}
+		x := cells[i].X
+		d.Subheading(x, top+8, spec.title)
+		box := Rect{x, top + 16, cells[i].W, 300}
 		v := d.Lattice(box, g, spec.ls)
 		v.Outline(patch, "patch")
 		for k, m := range spec.maps {

@@ -16,8 +16,8 @@ const (
 	// mauve and wine to deep umber (high values), its lightness falling
 	// evenly.
 	Sequential Scale = iota
-	// Diverging runs from deep cerulean (t = 0) through a warm off-white
-	// (t = 1/2) to deep copper (t = 1), each half falling evenly in
+	// Diverging runs from deep cerulean (t = 0) through a neutral light
+	// grey (t = 1/2) to deep copper (t = 1), each half falling evenly in
 	// lightness from the centre, the two halves mirror images in
 	// lightness and chroma.
 	Diverging

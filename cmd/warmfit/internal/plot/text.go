@@ -101,6 +101,13 @@ func (d *Document) Heading(title, subtitle string) float64 {
 	return y + 14
 }
 
+// Subheading writes a title over a part of a figure that is not a
+// panel (a lattice map, a group of colour bars) in the style of a
+// panel's title, its baseline at y.
+func (d *Document) Subheading(x, y float64, title string) {
+	d.Text(x, y, title, TextStyle{Size: sizePanelTitle, Bold: true})
+}
+
 // Note writes text in the muted house ink from (x, y) on, wrapped to
 // width, and returns the y coordinate of the line after it.
 func (d *Document) Note(x, y, width float64, text string) float64 {

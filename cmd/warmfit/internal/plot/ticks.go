@@ -12,6 +12,12 @@ var (
 	integerSteps = []float64{1, 2, 5, 10}
 )
 
+// NiceStep returns the smallest step of 1, 2, 2.5 or 5 times a power of
+// ten that divides span into at most intervals parts: for a histogram's
+// bin width, or a tick step two axes should share (Axis.Step). A span
+// that is not positive and finite gets 1.
+func NiceStep(span float64, intervals int) float64 { return niceStep(span, intervals, false) }
+
 // niceStep returns the smallest nice step at least span/target; integer
 // axes get steps of at least 1.
 func niceStep(span float64, target int, integer bool) float64 {
@@ -42,9 +48,21 @@ func linearTicks(lo, hi, step float64) []float64 {
 	first := math.Ceil(lo/step - 1e-9)
 	var ticks []float64
 	for k := first; k*step <= hi+step*1e-9 && len(ticks) < maxTicks; k++ {
-		ticks = append(ticks, k*step)
+		ticks = append(ticks, multiple(k, step))
 	}
 	return ticks
+}
+
+// multiple returns k times step, dividing by 1/step when that is a
+// whole number so that 28 x 0.2 comes out as 5.6 and not
+// 5.6000000000000005.
+func multiple(k, step float64) float64 {
+	if step < 1 {
+		if inv := math.Round(1 / step); math.Abs(inv*step-1) < 1e-12 {
+			return k / inv
+		}
+	}
+	return k * step
 }
 
 // widen returns [lo, hi] widened outward to multiples of a nice step for
@@ -59,7 +77,7 @@ func widen(lo, hi float64, target int, integer bool) (float64, float64) {
 		lo, hi = lo-d, hi+d
 	}
 	step := niceStep(hi-lo, target, integer)
-	return math.Floor(lo/step+1e-9) * step, math.Ceil(hi/step-1e-9) * step
+	return multiple(math.Floor(lo/step+1e-9), step), multiple(math.Ceil(hi/step-1e-9), step)
 }
 
 // logTicks returns the decades 10^k inside [lo, hi] (lo > 0) as major

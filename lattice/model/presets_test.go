@@ -1,14 +1,16 @@
-package lattice
+package model
 
 import (
 	"math"
 	"reflect"
 	"strings"
 	"testing"
+
+	"warmfit/lattice"
 )
 
 // countByPauli counts terms by their letters.
-func countByPauli(terms []Term) map[string]int {
+func countByPauli(terms []lattice.Term) map[string]int {
 	out := map[string]int{}
 	for _, t := range terms {
 		out[t.Pauli]++
@@ -17,7 +19,7 @@ func countByPauli(terms []Term) map[string]int {
 }
 
 func TestPresetTermCounts(t *testing.T) {
-	// Bond counts are closed forms: open chain of L sites L-1 bonds,
+	// lattice.Bond counts are closed forms: open chain of L sites L-1 bonds,
 	// periodic chain L; open W x H square W(H-1) + H(W-1) nearest and
 	// 2(W-1)(H-1) diagonal (next-nearest) bonds; open chain L-2
 	// next-nearest bonds; open L-rung ladder 2(L-1) + L; open L^3 cube
@@ -106,7 +108,7 @@ func TestPresetOrderAndLetters(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	want := []Term{
+	want := []lattice.Term{
 		{Pauli: "XX", Sites: []int{0, 1}, Coeff: 2}, {Pauli: "YY", Sites: []int{0, 1}, Coeff: 2}, {Pauli: "ZZ", Sites: []int{0, 1}, Coeff: 3},
 		{Pauli: "XX", Sites: []int{1, 2}, Coeff: 2}, {Pauli: "YY", Sites: []int{1, 2}, Coeff: 2}, {Pauli: "ZZ", Sites: []int{1, 2}, Coeff: 3},
 		{Pauli: "X", Sites: []int{0}, Coeff: 5}, {Pauli: "X", Sites: []int{1}, Coeff: 5}, {Pauli: "X", Sites: []int{2}, Coeff: 5},
@@ -182,8 +184,8 @@ func TestAddDisorder(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	apply := func(w float64, seed uint64) []Term {
-		ts := make([]Term, len(base))
+	apply := func(w float64, seed uint64) []lattice.Term {
+		ts := make([]lattice.Term, len(base))
 		copy(ts, base)
 		AddDisorder(ts, w, seed)
 		return ts
@@ -231,7 +233,7 @@ func TestAddDisorderPanicsOnBadWidth(t *testing.T) {
 					t.Errorf("width %v: no panic", w)
 				}
 			}()
-			AddDisorder([]Term{{Pauli: "Z", Sites: []int{0}}}, w, 1)
+			AddDisorder([]lattice.Term{{Pauli: "Z", Sites: []int{0}}}, w, 1)
 		}()
 	}
 }

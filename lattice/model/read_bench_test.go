@@ -1,16 +1,18 @@
-package lattice
+package model
 
 import (
 	"bytes"
 	"io"
 	"testing"
+
+	"warmfit/lattice"
 )
 
 // benchModelFile writes the all2local template on an open side x side
 // square lattice: 9 terms per bond and 3 per site.
 func benchModelFile(b *testing.B, side int) ([]byte, *Model) {
 	b.Helper()
-	l, err := Build(Spec{Kind: "square", Size: []int{side, side}})
+	l, err := lattice.Build(lattice.Spec{Kind: "square", Size: []int{side, side}})
 	if err != nil {
 		b.Fatal(err)
 	}
@@ -21,7 +23,7 @@ func benchModelFile(b *testing.B, side int) ([]byte, *Model) {
 	AddDisorder(terms, 0.1, 1)
 	m := &Model{Lattice: l, Beta: 0.5, Terms: terms}
 	var buf bytes.Buffer
-	if err := WriteModel(&buf, m); err != nil {
+	if err := Write(&buf, m); err != nil {
 		b.Fatal(err)
 	}
 	return buf.Bytes(), m
@@ -32,7 +34,7 @@ func BenchmarkParseModel100x100All2Local(b *testing.B) {
 	b.SetBytes(int64(len(doc)))
 	b.ReportMetric(float64(len(m.Terms)), "terms")
 	for b.Loop() {
-		if _, err := ParseModel(bytes.NewReader(doc), "bench.json"); err != nil {
+		if _, err := Parse(bytes.NewReader(doc), "bench.json"); err != nil {
 			b.Fatal(err)
 		}
 	}
@@ -42,7 +44,7 @@ func BenchmarkWriteModel100x100All2Local(b *testing.B) {
 	doc, m := benchModelFile(b, 100)
 	b.SetBytes(int64(len(doc)))
 	for b.Loop() {
-		if err := WriteModel(io.Discard, m); err != nil {
+		if err := Write(io.Discard, m); err != nil {
 			b.Fatal(err)
 		}
 	}

@@ -1,10 +1,11 @@
-package lattice_test
+package model_test
 
 import (
 	"fmt"
 	"log"
 
 	"warmfit/lattice"
+	"warmfit/lattice/model"
 )
 
 func ExamplePreset() {
@@ -19,7 +20,7 @@ func ExamplePreset() {
 	// Transverse-field Ising ring: J on the 4 bonds (in the lattice's
 	// sorted bond order), hx on the 4 sites; hz keeps its default 0, so
 	// there are no Z terms.
-	terms, err := lattice.Preset(l, "tfim", map[string]float64{"J": -1, "hx": -0.7})
+	terms, err := model.Preset(l, "tfim", map[string]float64{"J": -1, "hx": -0.7})
 	if err != nil {
 		log.Fatal(err)
 	}
@@ -40,8 +41,8 @@ func ExamplePreset() {
 func ExampleAddDisorder() {
 	spec, _ := lattice.ParseSpec("chain:6")
 	l, _ := lattice.Build(spec)
-	terms, _ := lattice.Preset(l, "heisenberg", nil)
-	lattice.AddDisorder(terms, 0.1, 1)
+	terms, _ := model.Preset(l, "heisenberg", nil)
+	model.AddDisorder(terms, 0.1, 1)
 	ok := true
 	for _, t := range terms {
 		ok = ok && t.Coeff >= 0.9 && t.Coeff < 1.1

@@ -1,4 +1,4 @@
-package lattice
+package model
 
 import (
 	"bytes"
@@ -7,14 +7,17 @@ import (
 	"io"
 	"math"
 	"strconv"
+
+	"warmfit/lattice"
+	"warmfit/lattice/internal/jsonpos"
 )
 
-// WriteModel writes m as JSON in the format ParseModel reads: members in a
+// Write writes m as JSON in the format Parse reads: members in a
 // fixed order (lattice, beta, units, terms, fit), one term per line, every
 // number in the shortest form that reads back to the same float64. It
 // refuses (with an error, before writing anything) a model that fails
 // Validate, so no NaN or infinity is ever written.
-func WriteModel(w io.Writer, m *Model) error {
+func Write(w io.Writer, m *Model) error {
 	if err := m.Validate(); err != nil {
 		return fmt.Errorf("not writing an invalid model: %w", err)
 	}
@@ -56,7 +59,7 @@ func WriteModel(w io.Writer, m *Model) error {
 	return err
 }
 
-func writeTerm(b *bytes.Buffer, t Term) {
+func writeTerm(b *bytes.Buffer, t lattice.Term) {
 	var num [32]byte
 	b.WriteString(`{"pauli": "`)
 	b.WriteString(t.Pauli) // validated: letters X, Y, Z only
@@ -128,11 +131,11 @@ func writeLatticeValue(b *bytes.Buffer, raw []byte) error {
 		return err
 	}
 	inline := spaced(compact.Bytes())
-	if len(inline) <= maxInlineWidth || jsonKind(inline) != "object" {
+	if len(inline) <= maxInlineWidth || jsonpos.Kind(inline) != "object" {
 		b.Write(inline)
 		return nil
 	}
-	members, err := objectMembers(compact.Bytes(), 0)
+	members, err := jsonpos.ObjectMembers(compact.Bytes(), 0)
 	if err != nil {
 		return err
 	}
@@ -142,8 +145,8 @@ func writeLatticeValue(b *bytes.Buffer, raw []byte) error {
 		b.WriteString(quote(f.Key))
 		b.WriteString(": ")
 		v := spaced(f.Value)
-		if len(v) > maxInlineWidth && jsonKind(v) == "array" {
-			elems, err := arrayElements(f.Value, 0)
+		if len(v) > maxInlineWidth && jsonpos.Kind(v) == "array" {
+			elems, err := jsonpos.ArrayElements(f.Value, 0)
 			if err != nil {
 				return err
 			}
@@ -162,7 +165,7 @@ func writeLatticeValue(b *bytes.Buffer, raw []byte) error {
 
 // writeWrappedArray writes elements several to a line, each line starting
 // with indent.
-func writeWrappedArray(b *bytes.Buffer, elems []jsonMember, indent string) {
+func writeWrappedArray(b *bytes.Buffer, elems []jsonpos.Member, indent string) {
 	b.WriteString("[\n")
 	width := 0
 	for i, e := range elems {

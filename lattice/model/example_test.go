@@ -1,4 +1,4 @@
-package lattice_test
+package model_test
 
 import (
 	"fmt"
@@ -7,10 +7,11 @@ import (
 	"path/filepath"
 
 	"warmfit/lattice"
+	"warmfit/lattice/model"
 )
 
-func ExampleReadModel() {
-	m, err := lattice.ReadModel(filepath.Join("..", "testdata", "models", "square3x3_tfim.json"))
+func ExampleReadFile() {
+	m, err := model.ReadFile(filepath.Join("..", "..", "testdata", "models", "square3x3_tfim.json"))
 	if err != nil {
 		log.Fatal(err)
 	}
@@ -26,7 +27,7 @@ func ExampleReadModel() {
 	// 21 terms
 }
 
-func ExampleWriteModel() {
+func ExampleWrite() {
 	spec, err := lattice.ParseSpec("chain:3")
 	if err != nil {
 		log.Fatal(err)
@@ -35,12 +36,12 @@ func ExampleWriteModel() {
 	if err != nil {
 		log.Fatal(err)
 	}
-	terms, err := lattice.Preset(l, "tfim", map[string]float64{"J": -1, "hx": -0.5})
+	terms, err := model.Preset(l, "tfim", map[string]float64{"J": -1, "hx": -0.5})
 	if err != nil {
 		log.Fatal(err)
 	}
-	m := &lattice.Model{Lattice: l, Beta: 2, Terms: terms}
-	if err := lattice.WriteModel(os.Stdout, m); err != nil {
+	m := &model.Model{Lattice: l, Beta: 2, Terms: terms}
+	if err := model.Write(os.Stdout, m); err != nil {
 		log.Fatal(err)
 	}
 	// Output:

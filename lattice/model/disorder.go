@@ -1,9 +1,11 @@
-package lattice
+package model
 
 import (
 	"fmt"
 	"math"
 	"math/rand/v2"
+
+	"warmfit/lattice"
 )
 
 // disorderStream is the PCG stream used by AddDisorder; with the seed it
@@ -17,7 +19,7 @@ const disorderStream = 0x9e3779b97f4a7c15
 // Terms that share a Group get different shifts, so disorder and
 // TieUniform do not belong together. A negative or non-finite width is a
 // programming error and panics.
-func AddDisorder(terms []Term, width float64, seed uint64) {
+func AddDisorder(terms []lattice.Term, width float64, seed uint64) {
 	if !(width >= 0) || math.IsInf(width, 0) {
 		panic(fmt.Sprintf("lattice: AddDisorder width %v, want finite and >= 0", width))
 	}

@@ -1,10 +1,12 @@
-package lattice
+package model
 
 import (
 	"fmt"
 	"math"
 	"sort"
 	"strings"
+
+	"warmfit/lattice"
 )
 
 // PresetParam is one named coefficient of a preset.
@@ -200,14 +202,14 @@ func findPreset(name string) (*presetDef, error) {
 // serve as a fitting template; all2local's coefficients all default to 0.
 // Presets with next-nearest-neighbour couplings (j1j2) need a lattice
 // built with two neighbour shells.
-func Preset(l *Lattice, name string, values map[string]float64) ([]Term, error) {
+func Preset(l *lattice.Lattice, name string, values map[string]float64) ([]lattice.Term, error) {
 	terms, _, err := PresetTerms(l, name, values)
 	return terms, err
 }
 
 // PresetTerms is Preset that also returns, aligned with the terms, the
 // name of the parameter each coefficient came from (for TieUniform).
-func PresetTerms(l *Lattice, name string, values map[string]float64) ([]Term, []string, error) {
+func PresetTerms(l *lattice.Lattice, name string, values map[string]float64) ([]lattice.Term, []string, error) {
 	d, err := findPreset(name)
 	if err != nil {
 		return nil, nil, err
@@ -239,7 +241,7 @@ func PresetTerms(l *Lattice, name string, values map[string]float64) ([]Term, []
 	}
 
 	var (
-		terms  []Term
+		terms  []lattice.Term
 		params []string
 	)
 	add := func(lp letterParam, sites ...int) error {
@@ -247,7 +249,7 @@ func PresetTerms(l *Lattice, name string, values map[string]float64) ([]Term, []
 		if c == 0 && !info.Template {
 			return nil
 		}
-		t, err := NewTerm(lp.Pauli, sites, c)
+		t, err := lattice.NewTerm(lp.Pauli, sites, c)
 		if err != nil {
 			return err
 		}
@@ -256,12 +258,12 @@ func PresetTerms(l *Lattice, name string, values map[string]float64) ([]Term, []
 		return nil
 	}
 	bondSets := []struct {
-		bonds []Bond
+		bonds []lattice.Bond
 		lps   []letterParam
 	}{{l.NN, d.nn}, {l.NNN, d.nnn}}
 	if len(d.bond) > 0 {
 		bondSets = append(bondSets, struct {
-			bonds []Bond
+			bonds []lattice.Bond
 			lps   []letterParam
 		}{l.InteractionBonds(), d.bond})
 	}
@@ -304,7 +306,7 @@ func paramNames(info PresetInfo) string {
 // TieUniform sets each term's Group to the preset parameter it came from
 // (params as returned by PresetTerms), so that a fit treats the model as
 // uniform: one coefficient per parameter instead of one per term.
-func TieUniform(terms []Term, params []string) {
+func TieUniform(terms []lattice.Term, params []string) {
 	if len(params) != len(terms) {
 		panic(fmt.Sprintf("lattice: TieUniform with %d terms but %d parameter names", len(terms), len(params)))
 	}

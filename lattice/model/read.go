@@ -1,4 +1,4 @@
-package lattice
+package model
 
 import (
 	"bytes"
@@ -11,20 +11,23 @@ import (
 	"slices"
 	"strconv"
 	"strings"
+
+	"warmfit/lattice"
+	"warmfit/lattice/internal/jsonpos"
 )
 
-// ReadModel reads and validates the model file at path (JSON, see
-// ParseModel).
-func ReadModel(path string) (*Model, error) {
+// ReadFile reads and validates the model file at path (JSON, see
+// Parse).
+func ReadFile(path string) (*Model, error) {
 	f, err := os.Open(path)
 	if err != nil {
 		return nil, err
 	}
 	defer f.Close()
-	return ParseModel(f, path)
+	return Parse(f, path)
 }
 
-// ParseModel reads a model in the JSON format of formats.md from r; name
+// Parse reads a model in the JSON format of formats.md from r; name
 // (usually the file name) prefixes every error, together with the line
 // and column and the JSON path of the offending value.
 //
@@ -34,9 +37,9 @@ func ReadModel(path string) (*Model, error) {
 // "coeff" means 0 (useful in fitting templates); "beta", "group",
 // "stderr", "units" and "fit" are optional, and unknown fields are
 // ignored. The lattice may also be given as a specification string such
-// as "square:3x3". ParseModel makes the checks of Validate as it goes
+// as "square:3x3". Parse makes the checks of Validate as it goes
 // (with positions), so the result passes Validate.
-func ParseModel(r io.Reader, name string) (*Model, error) {
+func Parse(r io.Reader, name string) (*Model, error) {
 	doc, err := io.ReadAll(r)
 	if err != nil {
 		return nil, fmt.Errorf("%s: %w", name, err)
@@ -50,10 +53,10 @@ type modelParser struct {
 	name string
 }
 
-// errAt builds a ModelError for the value at byte offset off.
-func (p *modelParser) errAt(off int, path string, err error) *ModelError {
-	line, col := lineCol(p.doc, off)
-	return &ModelError{File: p.name, Line: line, Col: col, Path: path, Err: err}
+// errAt builds a Error for the value at byte offset off.
+func (p *modelParser) errAt(off int, path string, err error) *Error {
+	line, col := jsonpos.LineCol(p.doc, off)
+	return &Error{File: p.name, Line: line, Col: col, Path: path, Err: err}
 }
 
 func (p *modelParser) parse() (*Model, error) {
@@ -65,19 +68,19 @@ func (p *modelParser) parse() (*Model, error) {
 			off := int(se.Offset) - 1 // Offset counts the bytes read, the culprit included
 			return nil, p.errAt(off, "", fmt.Errorf("invalid JSON: %v", se))
 		}
-		return nil, &ModelError{File: p.name, Err: fmt.Errorf("invalid JSON: %v", err)}
+		return nil, &Error{File: p.name, Err: fmt.Errorf("invalid JSON: %v", err)}
 	}
-	start := skipSpace(p.doc, 0)
-	members, err := objectMembers(p.doc, 0)
+	start := jsonpos.SkipSpace(p.doc, 0)
+	members, err := jsonpos.ObjectMembers(p.doc, 0)
 	if err != nil {
 		return nil, p.errAt(start, "", fmt.Errorf("a model file must hold one JSON object: %v", err))
 	}
-	fields := map[string]jsonMember{}
+	fields := map[string]jsonpos.Member{}
 	for _, f := range members {
 		switch f.Key {
 		case "lattice", "beta", "terms", "units", "fit":
 			if prev, dup := fields[f.Key]; dup {
-				pl, _ := lineCol(p.doc, prev.Off)
+				pl, _ := jsonpos.LineCol(p.doc, prev.Off)
 				return nil, p.errAt(f.Off, f.Key, fmt.Errorf("given twice (first on line %d)", pl))
 			}
 			fields[f.Key] = f
@@ -86,13 +89,13 @@ func (p *modelParser) parse() (*Model, error) {
 
 	m := &Model{}
 	lat, ok := fields["lattice"]
-	if !ok || isNull(lat.Value) {
+	if !ok || jsonpos.IsNull(lat.Value) {
 		return nil, p.errAt(start, "lattice", fmt.Errorf("missing: the model must say which lattice it lives on"))
 	}
 	if m.Lattice, err = p.lattice(lat); err != nil {
 		return nil, err
 	}
-	if f, ok := fields["beta"]; ok && !isNull(f.Value) {
+	if f, ok := fields["beta"]; ok && !jsonpos.IsNull(f.Value) {
 		b, err := parseNumber(f.Value)
 		if err == nil && !(b > 0) {
 			err = fmt.Errorf("must be > 0, got %v", b)
@@ -102,13 +105,13 @@ func (p *modelParser) parse() (*Model, error) {
 		}
 		m.Beta = b
 	}
-	if f, ok := fields["units"]; ok && !isNull(f.Value) {
+	if f, ok := fields["units"]; ok && !jsonpos.IsNull(f.Value) {
 		if err := json.Unmarshal(f.Value, &m.Units); err != nil {
-			return nil, p.errAt(f.Off, "units", fmt.Errorf("must be a string, got %s", jsonKind(f.Value)))
+			return nil, p.errAt(f.Off, "units", fmt.Errorf("must be a string, got %s", jsonpos.Kind(f.Value)))
 		}
 	}
-	if f, ok := fields["fit"]; ok && !isNull(f.Value) {
-		if k := jsonKind(f.Value); k != "object" {
+	if f, ok := fields["fit"]; ok && !jsonpos.IsNull(f.Value) {
+		if k := jsonpos.Kind(f.Value); k != "object" {
 			return nil, p.errAt(f.Off, "fit", fmt.Errorf("must be a JSON object, got %s", k))
 		}
 		var buf bytes.Buffer
@@ -118,7 +121,7 @@ func (p *modelParser) parse() (*Model, error) {
 		m.Fit = json.RawMessage(buf.Bytes())
 	}
 	tf, ok := fields["terms"]
-	if !ok || isNull(tf.Value) {
+	if !ok || jsonpos.IsNull(tf.Value) {
 		return nil, p.errAt(start, "terms", fmt.Errorf("missing: the model must list its terms"))
 	}
 	if m.Terms, err = p.terms(tf, m.Lattice); err != nil {
@@ -127,39 +130,39 @@ func (p *modelParser) parse() (*Model, error) {
 	return m, nil
 }
 
-func (p *modelParser) lattice(f jsonMember) (*Lattice, error) {
-	if jsonKind(f.Value) == "string" {
+func (p *modelParser) lattice(f jsonpos.Member) (*lattice.Lattice, error) {
+	if jsonpos.Kind(f.Value) == "string" {
 		var spec string
 		_ = json.Unmarshal(f.Value, &spec)
-		s, err := ParseSpec(spec)
+		s, err := lattice.ParseSpec(spec)
 		if err != nil {
 			return nil, p.errAt(f.Off, "lattice", err)
 		}
-		l, err := Build(s)
+		l, err := lattice.Build(s)
 		if err != nil {
 			return nil, p.errAt(f.Off, "lattice", err)
 		}
 		return l, nil
 	}
-	if k := jsonKind(f.Value); k != "object" {
+	if k := jsonpos.Kind(f.Value); k != "object" {
 		return nil, p.errAt(f.Off, "lattice", fmt.Errorf("must be an object such as {\"kind\": \"chain\", \"size\": [8]} or a specification string, got %s", k))
 	}
-	l, err := DecodeLatticeJSON(f.Value, "") // the ModelError adds the file name
+	l, err := lattice.DecodeLatticeJSON(f.Value, "") // the Error adds the file name
 	if err != nil {
 		return nil, p.errAt(f.Off, "lattice", err)
 	}
 	return l, nil
 }
 
-func (p *modelParser) terms(f jsonMember, l *Lattice) ([]Term, error) {
-	elems, err := arrayElements(f.Value, f.Off)
+func (p *modelParser) terms(f jsonpos.Member, l *lattice.Lattice) ([]lattice.Term, error) {
+	elems, err := jsonpos.ArrayElements(f.Value, f.Off)
 	if err != nil {
 		return nil, p.errAt(f.Off, "terms", err)
 	}
 	if len(elems) == 0 {
 		return nil, p.errAt(f.Off, "terms", fmt.Errorf("the model has no terms"))
 	}
-	terms := make([]Term, len(elems))
+	terms := make([]lattice.Term, len(elems))
 	seen := make(map[string]int, len(elems))
 	for i, e := range elems {
 		t, err := p.term(e, i, l)
@@ -168,7 +171,7 @@ func (p *modelParser) terms(f jsonMember, l *Lattice) ([]Term, error) {
 		}
 		key := t.Key()
 		if j, dup := seen[key]; dup {
-			jl, _ := lineCol(p.doc, elems[j].Off)
+			jl, _ := jsonpos.LineCol(p.doc, elems[j].Off)
 			return nil, p.errAt(e.Off, fmt.Sprintf("terms[%d]", i),
 				fmt.Errorf("%s duplicates terms[%d] (line %d): both are %s on %v in canonical form",
 					p.termAsWritten(e), j, jl, t.Pauli, t.Sites))
@@ -181,7 +184,7 @@ func (p *modelParser) terms(f jsonMember, l *Lattice) ([]Term, error) {
 
 // termAsWritten describes a term the way the file spells it, for
 // duplicate messages ("XZ on [3 1]").
-func (p *modelParser) termAsWritten(e jsonMember) string {
+func (p *modelParser) termAsWritten(e jsonpos.Member) string {
 	var t struct {
 		Pauli string `json:"pauli"`
 		Sites []int  `json:"sites"`
@@ -193,16 +196,16 @@ func (p *modelParser) termAsWritten(e jsonMember) string {
 // termFields are the members of a term object the reader knows.
 var termFields = [...]string{"pauli", "sites", "coeff", "group", "stderr"}
 
-func (p *modelParser) term(e jsonMember, i int, l *Lattice) (Term, error) {
+func (p *modelParser) term(e jsonpos.Member, i int, l *lattice.Lattice) (lattice.Term, error) {
 	fail := func(off int, field string, err error) error {
 		return p.errAt(off, fmt.Sprintf("terms[%d]%s", i, field), err)
 	}
-	members, err := objectMembers(e.Value, e.Off)
+	members, err := jsonpos.ObjectMembers(e.Value, e.Off)
 	if err != nil {
-		return Term{}, fail(e.Off, "", err)
+		return lattice.Term{}, fail(e.Off, "", err)
 	}
 	var (
-		t     Term
+		t     lattice.Term
 		pauli string
 		sites []int
 		at    [len(termFields)]int // offset of each known member + 1; 0 if absent
@@ -214,29 +217,29 @@ func (p *modelParser) term(e jsonMember, i int, l *Lattice) (Term, error) {
 		}
 		fp := "." + f.Key
 		if at[k] > 0 {
-			pl, _ := lineCol(p.doc, at[k]-1)
-			return Term{}, fail(f.Off, fp, fmt.Errorf("given twice (first on line %d)", pl))
+			pl, _ := jsonpos.LineCol(p.doc, at[k]-1)
+			return lattice.Term{}, fail(f.Off, fp, fmt.Errorf("given twice (first on line %d)", pl))
 		}
 		at[k] = f.Off + 1
-		if isNull(f.Value) && f.Key != "pauli" && f.Key != "sites" {
+		if jsonpos.IsNull(f.Value) && f.Key != "pauli" && f.Key != "sites" {
 			continue // an optional member given as null is absent
 		}
 		switch f.Key {
 		case "pauli":
 			if pauli, err = parseString(f.Value); err != nil {
-				return Term{}, fail(f.Off, fp, fmt.Errorf("must be a string of X, Y, Z letters, got %s", jsonKind(f.Value)))
+				return lattice.Term{}, fail(f.Off, fp, fmt.Errorf("must be a string of X, Y, Z letters, got %s", jsonpos.Kind(f.Value)))
 			}
 		case "sites":
 			if sites, err = parseSites(f.Value); err != nil {
-				return Term{}, fail(f.Off, fp, err)
+				return lattice.Term{}, fail(f.Off, fp, err)
 			}
 		case "coeff":
 			if t.Coeff, err = parseNumber(f.Value); err != nil {
-				return Term{}, fail(f.Off, fp, err)
+				return lattice.Term{}, fail(f.Off, fp, err)
 			}
 		case "group":
 			if t.Group, err = parseString(f.Value); err != nil {
-				return Term{}, fail(f.Off, fp, fmt.Errorf("must be a string, got %s", jsonKind(f.Value)))
+				return lattice.Term{}, fail(f.Off, fp, fmt.Errorf("must be a string, got %s", jsonpos.Kind(f.Value)))
 			}
 		case "stderr":
 			v, err := parseNumber(f.Value)
@@ -244,16 +247,16 @@ func (p *modelParser) term(e jsonMember, i int, l *Lattice) (Term, error) {
 				err = checkStderr(v)
 			}
 			if err != nil {
-				return Term{}, fail(f.Off, fp, err)
+				return lattice.Term{}, fail(f.Off, fp, err)
 			}
 			t.Stderr, t.HasStderr = v, true
 		}
 	}
 	if at[0] == 0 {
-		return Term{}, fail(e.Off, ".pauli", fmt.Errorf("missing"))
+		return lattice.Term{}, fail(e.Off, ".pauli", fmt.Errorf("missing"))
 	}
 	if at[1] == 0 {
-		return Term{}, fail(e.Off, ".sites", fmt.Errorf("missing"))
+		return lattice.Term{}, fail(e.Off, ".sites", fmt.Errorf("missing"))
 	}
 	cp, cs, field, err := checkTermSupport(l, pauli, sites)
 	if err != nil {
@@ -261,7 +264,7 @@ func (p *modelParser) term(e jsonMember, i int, l *Lattice) (Term, error) {
 		if k := slices.Index(termFields[:], strings.TrimPrefix(field, ".")); k >= 0 && at[k] > 0 {
 			off = at[k] - 1
 		}
-		return Term{}, fail(off, field, err)
+		return lattice.Term{}, fail(off, field, err)
 	}
 	t.Pauli, t.Sites = cp, cs
 	return t, nil
@@ -280,7 +283,7 @@ func parseString(raw json.RawMessage) (string, error) {
 // parseNumber reads a JSON number as a finite float64. Strings such as
 // "NaN" and numbers too large for float64 (1e999) are refused.
 func parseNumber(raw json.RawMessage) (float64, error) {
-	if k := jsonKind(raw); k != "number" {
+	if k := jsonpos.Kind(raw); k != "number" {
 		return 0, fmt.Errorf("must be a number, got %s %s", k, bytes.TrimSpace(raw))
 	}
 	s := string(bytes.TrimSpace(raw))
@@ -293,10 +296,10 @@ func parseNumber(raw json.RawMessage) (float64, error) {
 
 // parseSites reads a JSON array of site indices.
 func parseSites(raw json.RawMessage) ([]int, error) {
-	if k := jsonKind(raw); k != "array" {
+	if k := jsonpos.Kind(raw); k != "array" {
 		return nil, fmt.Errorf("must be an array of site indices, got %s", k)
 	}
-	elems, err := arrayElements(raw, 0)
+	elems, err := jsonpos.ArrayElements(raw, 0)
 	if err != nil {
 		return nil, err
 	}

@@ -1,4 +1,8 @@
-package lattice
+// Package jsonpos walks valid JSON documents by hand, keeping the byte
+// offset of every value, and converts offsets to the line and column a
+// user sees in an editor. The lattice and model readers use it so that
+// every error names file:line:column.
+package jsonpos
 
 import (
 	"bytes"
@@ -7,44 +11,44 @@ import (
 	"unicode/utf8"
 )
 
-// The model reader checks a whole document with json.Valid first and then
-// walks it with the small scanner below, which can assume valid JSON.
+// Readers check a whole document with json.Valid first and then walk it
+// with the small scanner below, which can assume valid JSON.
 // Walking by hand keeps the byte offset of every value (for line:column
 // in errors) and is several times faster than encoding/json's token
 // stream on files with 10^5 terms.
 
-// jsonMember is one member of a JSON object, or one element of an array
+// Member is one member of a JSON object, or one element of an array
 // (Key empty), with the byte offset of its value in the whole document.
-type jsonMember struct {
+type Member struct {
 	Key   string
 	Value json.RawMessage
 	Off   int
 }
 
-// objectMembers splits the JSON object data, found at offset base of the
+// ObjectMembers splits the JSON object data, found at offset base of the
 // document, into its members in file order. data must be valid JSON.
-func objectMembers(data []byte, base int) ([]jsonMember, error) {
+func ObjectMembers(data []byte, base int) ([]Member, error) {
 	return splitContainer(data, base, '{', "object")
 }
 
-// arrayElements splits the JSON array data, found at offset base of the
+// ArrayElements splits the JSON array data, found at offset base of the
 // document, into its elements. data must be valid JSON.
-func arrayElements(data []byte, base int) ([]jsonMember, error) {
+func ArrayElements(data []byte, base int) ([]Member, error) {
 	return splitContainer(data, base, '[', "array")
 }
 
-func splitContainer(data []byte, base int, open byte, kind string) ([]jsonMember, error) {
-	i := skipSpace(data, 0)
+func splitContainer(data []byte, base int, open byte, kind string) ([]Member, error) {
+	i := SkipSpace(data, 0)
 	if i >= len(data) || data[i] != open {
-		return nil, fmt.Errorf("want a JSON %s, got %s", kind, jsonKind(data))
+		return nil, fmt.Errorf("want a JSON %s, got %s", kind, Kind(data))
 	}
-	out := make([]jsonMember, 0, 4)
-	i = skipSpace(data, i+1)
+	out := make([]Member, 0, 4)
+	i = SkipSpace(data, i+1)
 	if i < len(data) && (data[i] == '}' || data[i] == ']') {
 		return out, nil
 	}
 	for i < len(data) {
-		var m jsonMember
+		var m Member
 		if open == '{' {
 			end := skipString(data, i)
 			key := data[i:end]
@@ -55,22 +59,23 @@ func splitContainer(data []byte, base int, open byte, kind string) ([]jsonMember
 			} else {
 				m.Key = internKey(key[1 : len(key)-1])
 			}
-			i = skipSpace(data, end)
-			i = skipSpace(data, i+1) // the ':'
+			i = SkipSpace(data, end)
+			i = SkipSpace(data, i+1) // the ':'
 		}
 		end := skipValue(data, i)
 		m.Value, m.Off = json.RawMessage(data[i:end]), base+i
 		out = append(out, m)
-		i = skipSpace(data, end)
+		i = SkipSpace(data, end)
 		if i >= len(data) || data[i] != ',' {
 			break
 		}
-		i = skipSpace(data, i+1)
+		i = SkipSpace(data, i+1)
 	}
 	return out, nil
 }
 
-// internKey returns the member names of model files without allocating.
+// internKey returns the common member names of model files without
+// allocating.
 func internKey(b []byte) string {
 	switch string(b) {
 	case "pauli":
@@ -87,7 +92,8 @@ func internKey(b []byte) string {
 	return string(b)
 }
 
-func skipSpace(data []byte, i int) int {
+// SkipSpace returns the offset of the first non-space byte at or after i.
+func SkipSpace(data []byte, i int) int {
 	for i < len(data) {
 		switch data[i] {
 		case ' ', '\t', '\n', '\r':
@@ -149,8 +155,8 @@ func skipValue(data []byte, i int) int {
 	}
 }
 
-// jsonKind names the kind of the JSON value raw, for error messages.
-func jsonKind(raw []byte) string {
+// Kind names the kind of the JSON value raw, for error messages.
+func Kind(raw []byte) string {
 	raw = bytes.TrimLeft(raw, " \t\r\n")
 	if len(raw) == 0 {
 		return "nothing"
@@ -171,11 +177,13 @@ func jsonKind(raw []byte) string {
 	}
 }
 
-func isNull(raw []byte) bool { return jsonKind(raw) == "null" }
+// IsNull reports whether raw is the JSON null.
+func IsNull(raw []byte) bool { return Kind(raw) == "null" }
 
-// lineCol converts a byte offset in doc to a 1-based line and a 1-based
-// column counted in characters.
-func lineCol(doc []byte, off int) (line, col int) {
+// LineCol converts a byte offset in doc to a 1-based line and a 1-based
+// column counted in characters (runes), as editors show them. Offsets
+// outside doc are clamped to it.
+func LineCol(doc []byte, off int) (line, col int) {
 	off = min(max(off, 0), len(doc))
 	line = 1 + bytes.Count(doc[:off], []byte{'\n'})
 	start := bytes.LastIndexByte(doc[:off], '\n') + 1

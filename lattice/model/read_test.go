@@ -1,4 +1,4 @@
-package lattice
+package model
 
 import (
 	"bytes"
@@ -8,17 +8,20 @@ import (
 	"os"
 	"path/filepath"
 	"reflect"
+	"slices"
 	"strings"
 	"testing"
+
+	"warmfit/lattice"
 )
 
-func modelTestLattice(t testing.TB, spec string) *Lattice {
+func modelTestLattice(t testing.TB, spec string) *lattice.Lattice {
 	t.Helper()
-	s, err := ParseSpec(spec)
+	s, err := lattice.ParseSpec(spec)
 	if err != nil {
 		t.Fatal(err)
 	}
-	l, err := Build(s)
+	l, err := lattice.Build(s)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -58,7 +61,7 @@ func sameModel(t *testing.T, got, want *Model) {
 	}
 	for i := range got.Terms {
 		g, w := got.Terms[i], want.Terms[i]
-		if g.Pauli != w.Pauli || !equalInts(g.Sites, w.Sites) || g.Group != w.Group ||
+		if g.Pauli != w.Pauli || !slices.Equal(g.Sites, w.Sites) || g.Group != w.Group ||
 			math.Float64bits(g.Coeff) != math.Float64bits(w.Coeff) || g.HasStderr != w.HasStderr ||
 			(w.HasStderr && math.Float64bits(g.Stderr) != math.Float64bits(w.Stderr)) {
 			t.Errorf("term %d: got %+v, want %+v", i, g, w)
@@ -91,11 +94,11 @@ func TestModelRoundTrip(t *testing.T) {
 			m := &Model{Lattice: l, Beta: 0.37, Terms: terms, Units: "MHz",
 				Fit: []byte(`{"iterations":12,"converged":true,"notes":["a","b"],"nested":{"x":1.5}}`)}
 			var buf bytes.Buffer
-			if err := WriteModel(&buf, m); err != nil {
+			if err := Write(&buf, m); err != nil {
 				t.Fatal(err)
 			}
 			first := buf.String()
-			back, err := ParseModel(strings.NewReader(first), "roundtrip.json")
+			back, err := Parse(strings.NewReader(first), "roundtrip.json")
 			if err != nil {
 				t.Fatalf("%v\n%s", err, first)
 			}
@@ -105,7 +108,7 @@ func TestModelRoundTrip(t *testing.T) {
 			}
 			// Writing what was read gives the same bytes.
 			buf.Reset()
-			if err := WriteModel(&buf, back); err != nil {
+			if err := Write(&buf, back); err != nil {
 				t.Fatal(err)
 			}
 			if buf.String() != first {
@@ -125,14 +128,14 @@ func TestModelRoundTripCustomGraph(t *testing.T) {
 	// "bonds" arrays that the writer wraps.
 	const n = 40
 	coords := make([][]float64, n)
-	var bonds []Bond
+	var bonds []lattice.Bond
 	for i := range coords {
 		a := 2 * math.Pi * float64(i) / n
 		coords[i] = []float64{10 * math.Cos(a), 10 * math.Sin(a)}
-		bonds = append(bonds, Bond{i, (i + 1) % n})
+		bonds = append(bonds, lattice.Bond{I: i, J: (i + 1) % n})
 	}
-	bonds = append(bonds, Bond{0, n / 2})
-	l, err := FromGraph(coords, bonds, 1)
+	bonds = append(bonds, lattice.Bond{I: 0, J: n / 2})
+	l, err := lattice.FromGraph(coords, bonds, 1)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -142,7 +145,7 @@ func TestModelRoundTripCustomGraph(t *testing.T) {
 	}
 	m := &Model{Lattice: l, Beta: 1.5, Terms: terms}
 	var buf bytes.Buffer
-	if err := WriteModel(&buf, m); err != nil {
+	if err := Write(&buf, m); err != nil {
 		t.Fatal(err)
 	}
 	for i, line := range strings.Split(buf.String(), "\n") {
@@ -150,7 +153,7 @@ func TestModelRoundTripCustomGraph(t *testing.T) {
 			t.Errorf("line %d has %d characters", i+1, len(line))
 		}
 	}
-	back, err := ParseModel(&buf, "graph.json")
+	back, err := Parse(&buf, "graph.json")
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -165,7 +168,7 @@ func TestModelRoundTripCustomGraph(t *testing.T) {
 }
 
 func TestReadModelSample(t *testing.T) {
-	m, err := ReadModel(filepath.Join("..", "testdata", "models", "square3x3_tfim.json"))
+	m, err := ReadFile(filepath.Join("..", "..", "testdata", "models", "square3x3_tfim.json"))
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -185,11 +188,11 @@ func TestParseModelCanonicalises(t *testing.T) {
 	           {"pauli": "XYZ", "sites": [3, 1, 2]},
 	           {"pauli": "Y", "sites": [0], "coeff": -2, "stderr": 0.1, "group": null},
 	           {"p\u0061uli": "X", "sites": [ 3 ] , "group": "a\"]}[{,:b", "coeff":1E-2 }]}`
-	m, err := ParseModel(strings.NewReader(doc), "c.json")
+	m, err := Parse(strings.NewReader(doc), "c.json")
 	if err != nil {
 		t.Fatal(err)
 	}
-	want := []Term{
+	want := []lattice.Term{
 		{Pauli: "ZX", Sites: []int{1, 2}, Coeff: 0.5},
 		{Pauli: "YZX", Sites: []int{1, 2, 3}}, // letters follow their sites; missing coeff is 0
 		{Pauli: "Y", Sites: []int{0}, Coeff: -2, Stderr: 0.1, HasStderr: true},
@@ -209,7 +212,7 @@ func TestParseModelCanonicalises(t *testing.T) {
 
 func TestParseModelLatticeSpecString(t *testing.T) {
 	doc := `{"lattice": "chain:3", "terms": [{"pauli": "ZZ", "sites": [1, 2], "coeff": 1}]}`
-	m, err := ParseModel(strings.NewReader(doc), "s.json")
+	m, err := Parse(strings.NewReader(doc), "s.json")
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -239,8 +242,8 @@ func TestParseModelErrors(t *testing.T) {
 		{"disconnected", "{" + chain + `,
 "terms": [
  {"pauli": "ZZ", "sites": [0, 2], "coeff": 1}]}`, "terms[0].sites", 3, "not connected"},
-		{"site out of range", "{" + chain + `, "terms": [{"pauli": "Z", "sites": [4]}]}`, "terms[0].sites", 1, "out of range"},
-		{"negative site", "{" + chain + `, "terms": [{"pauli": "Z", "sites": [-1]}]}`, "terms[0].sites", 1, "out of range"},
+		{"site out of range", "{" + chain + `, "terms": [{"pauli": "Z", "sites": [4]}]}`, "terms[0].sites", 1, "beyond the lattice: chain:4 has 4 sites"},
+		{"negative site", "{" + chain + `, "terms": [{"pauli": "Z", "sites": [-1]}]}`, "terms[0].sites", 1, "negative site"},
 		{"fractional site", "{" + chain + `, "terms": [{"pauli": "Z", "sites": [1.5]}]}`, "terms[0].sites", 1, "not a non-negative integer"},
 		{"repeated site", "{" + chain + `, "terms": [{"pauli": "ZX", "sites": [1, 1]}]}`, "terms[0].sites", 1, "repeated"},
 		{"duplicate after canonical form", `{"lattice": {"kind": "square", "size": [3, 3], "shells": 2},
@@ -276,13 +279,13 @@ func TestParseModelErrors(t *testing.T) {
 	}
 	for _, tc := range tests {
 		t.Run(tc.name, func(t *testing.T) {
-			_, err := ParseModel(strings.NewReader(tc.doc), "in.json")
+			_, err := Parse(strings.NewReader(tc.doc), "in.json")
 			if err == nil {
 				t.Fatal("no error")
 			}
-			var me *ModelError
+			var me *Error
 			if !errors.As(err, &me) {
-				t.Fatalf("error %v is not a *ModelError", err)
+				t.Fatalf("error %v is not a *Error", err)
 			}
 			if me.File != "in.json" || me.Path != tc.path || (tc.line > 0 && me.Line != tc.line) {
 				t.Errorf("error at %s:%d path %q, want in.json:%d path %q (%v)", me.File, me.Line, me.Path, tc.line, tc.path, err)
@@ -297,8 +300,8 @@ func TestParseModelErrors(t *testing.T) {
 func TestSyntaxErrorColumn(t *testing.T) {
 	// The 'x' is the 8th character of line 2.
 	doc := "{\n  \"a\": x}"
-	_, err := ParseModel(strings.NewReader(doc), "f.json")
-	var me *ModelError
+	_, err := Parse(strings.NewReader(doc), "f.json")
+	var me *Error
 	if !errors.As(err, &me) || me.Line != 2 || me.Col != 8 {
 		t.Fatalf("got %v, want line 2 column 8", err)
 	}
@@ -314,7 +317,7 @@ func TestBadModelFiles(t *testing.T) {
 		"bad_syntax.json":       ":6:",
 		"bad_beta.json":         "beta",
 	}
-	files, err := filepath.Glob(filepath.Join("..", "testdata", "models", "bad_*.json"))
+	files, err := filepath.Glob(filepath.Join("..", "..", "testdata", "models", "bad_*.json"))
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -322,7 +325,7 @@ func TestBadModelFiles(t *testing.T) {
 		t.Errorf("found %d bad_*.json files, the test knows %d", len(files), len(want))
 	}
 	for _, f := range files {
-		_, err := ReadModel(f)
+		_, err := ReadFile(f)
 		if err == nil {
 			t.Errorf("%s: no error", f)
 			continue
@@ -334,7 +337,7 @@ func TestBadModelFiles(t *testing.T) {
 }
 
 func TestReadModelMissingFile(t *testing.T) {
-	_, err := ReadModel(filepath.Join(t.TempDir(), "none.json"))
+	_, err := ReadFile(filepath.Join(t.TempDir(), "none.json"))
 	if !errors.Is(err, os.ErrNotExist) {
 		t.Errorf("got %v", err)
 	}
@@ -343,7 +346,7 @@ func TestReadModelMissingFile(t *testing.T) {
 func TestValidate(t *testing.T) {
 	l := modelTestLattice(t, "chain:4")
 	good := func() *Model {
-		return &Model{Lattice: l, Beta: 1, Terms: []Term{
+		return &Model{Lattice: l, Beta: 1, Terms: []lattice.Term{
 			{Pauli: "XZ", Sites: []int{0, 1}, Coeff: 1},
 			{Pauli: "Y", Sites: []int{3}, Coeff: -1},
 		}}
@@ -360,12 +363,12 @@ func TestValidate(t *testing.T) {
 		{"NaN beta", func(m *Model) { m.Beta = math.NaN() }, "beta"},
 		{"negative beta", func(m *Model) { m.Beta = -1 }, "beta"},
 		{"no terms", func(m *Model) { m.Terms = nil }, "terms"},
-		{"not canonical", func(m *Model) { m.Terms[0] = Term{Pauli: "ZX", Sites: []int{1, 0}} }, "terms[0]"},
+		{"not canonical", func(m *Model) { m.Terms[0] = lattice.Term{Pauli: "ZX", Sites: []int{1, 0}} }, "terms[0]"},
 		{"NaN coeff", func(m *Model) { m.Terms[1].Coeff = math.NaN() }, "terms[1].coeff"},
 		{"infinite coeff", func(m *Model) { m.Terms[1].Coeff = math.Inf(-1) }, "terms[1].coeff"},
 		{"NaN stderr", func(m *Model) { m.Terms[1].Stderr, m.Terms[1].HasStderr = math.NaN(), true }, "terms[1].stderr"},
-		{"duplicate", func(m *Model) { m.Terms[1] = Term{Pauli: "XZ", Sites: []int{0, 1}} }, "terms[1]"},
-		{"disconnected", func(m *Model) { m.Terms[1] = Term{Pauli: "XX", Sites: []int{0, 3}} }, "terms[1].sites"},
+		{"duplicate", func(m *Model) { m.Terms[1] = lattice.Term{Pauli: "XZ", Sites: []int{0, 1}} }, "terms[1]"},
+		{"disconnected", func(m *Model) { m.Terms[1] = lattice.Term{Pauli: "XX", Sites: []int{0, 3}} }, "terms[1].sites"},
 		{"bad fit", func(m *Model) { m.Fit = []byte(`[1]`) }, "fit"},
 	}
 	for _, tc := range tests {
@@ -373,14 +376,14 @@ func TestValidate(t *testing.T) {
 			m := good()
 			tc.change(m)
 			err := m.Validate()
-			var me *ModelError
+			var me *Error
 			if !errors.As(err, &me) || me.Path != tc.path {
 				t.Fatalf("got %v, want an error at %q", err, tc.path)
 			}
 			// An invalid model is never written, and nothing is written.
 			var buf bytes.Buffer
-			if werr := WriteModel(&buf, m); werr == nil || buf.Len() != 0 {
-				t.Errorf("WriteModel wrote %d bytes, error %v", buf.Len(), werr)
+			if werr := Write(&buf, m); werr == nil || buf.Len() != 0 {
+				t.Errorf("Write wrote %d bytes, error %v", buf.Len(), werr)
 			}
 		})
 	}
@@ -388,7 +391,7 @@ func TestValidate(t *testing.T) {
 	m := good()
 	m.Terms[0].Stderr = math.NaN()
 	var buf bytes.Buffer
-	if err := WriteModel(&buf, m); err != nil || strings.Contains(buf.String(), "NaN") || strings.Contains(buf.String(), "stderr") {
+	if err := Write(&buf, m); err != nil || strings.Contains(buf.String(), "NaN") || strings.Contains(buf.String(), "stderr") {
 		t.Errorf("err %v, output %s", err, buf.String())
 	}
 }
@@ -403,18 +406,6 @@ func TestFormatNumberMatchesEncodingJSON(t *testing.T) {
 		}
 		if got := formatNumber(v); got != string(want) {
 			t.Errorf("%v: %s, want %s", v, got, want)
-		}
-	}
-}
-
-func TestLineCol(t *testing.T) {
-	doc := []byte("ab\ncdé\nf")
-	tests := []struct{ off, line, col int }{
-		{0, 1, 1}, {2, 1, 3}, {3, 2, 1}, {5, 2, 3}, {7, 2, 4}, {8, 3, 1}, {100, 3, 2},
-	}
-	for _, tc := range tests {
-		if l, c := lineCol(doc, tc.off); l != tc.line || c != tc.col {
-			t.Errorf("offset %d: %d:%d, want %d:%d", tc.off, l, c, tc.line, tc.col)
 		}
 	}
 }
