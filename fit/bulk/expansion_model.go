@@ -1,0 +1,108 @@
+package bulk
+
+import (
+	"fmt"
+	"slices"
+
+	"warmfit/cluster"
+)
+
+// ExpansionModel is the production ForwardModel: the translation-invariant
+// linked-cluster expansion of package cluster (cluster.UniformExpansion)
+// on the infinite lattice, resummed, with each curve trusted down to its
+// reach (cluster.Curve.ResummedReach: the bare sums of the last orders, or
+// the Wynn and Euler resummations, agree within the tolerance on the whole
+// way down from the highest grid temperature). Derivatives are the
+// expansion's own analytic derivatives of the chosen estimate.
+//
+// The engine works in the same convention as this package: the couplings
+// multiply Pauli strings with weight 1/4 per S.S component, and the field
+// h couples to S^z = (1/2) sum Z, with M and chi per site in spin units.
+type ExpansionModel struct {
+	lattice   string
+	z         int
+	exp       *cluster.UniformExpansion
+	couplings []string
+	trust     cluster.TrustOptions
+}
+
+// expansionCoordination lists the coordination of the lattices the
+// expansion offers.
+var expansionCoordination = map[string]int{"chain": 2, "ladder": 3, "square": 4, "triangular": 6, "honeycomb": 3, "kagome": 4, "cubic": 6}
+
+// NewExpansionModel prepares the expansion of a lattice to the given
+// order (largest cluster), with the next-nearest coupling J2 when withJ2.
+func NewExpansionModel(lattice string, order int, withJ2 bool, trust cluster.TrustOptions) (*ExpansionModel, error) {
+	z, ok := expansionCoordination[lattice]
+	if !ok {
+		return nil, fmt.Errorf("bulk: the expansion offers no lattice %q", lattice)
+	}
+	um := cluster.UniformModel{Lattice: lattice, Couplings: []cluster.Coupling{
+		{Name: CouplingJxy, Terms: []cluster.TemplateTerm{{Pauli: "XX", Weight: 0.25}, {Pauli: "YY", Weight: 0.25}}},
+		{Name: CouplingJz, Terms: []cluster.TemplateTerm{{Pauli: "ZZ", Weight: 0.25}}},
+	}}
+	names := []string{CouplingJxy, CouplingJz}
+	if withJ2 {
+		um.Shells = 2
+		um.Couplings = append(um.Couplings, cluster.Coupling{Name: CouplingJ2, Terms: []cluster.TemplateTerm{
+			{Pauli: "XX", Kind: 1, Weight: 0.25}, {Pauli: "YY", Kind: 1, Weight: 0.25}, {Pauli: "ZZ", Kind: 1, Weight: 0.25}}})
+		names = append(names, CouplingJ2)
+	}
+	exp, err := cluster.NewUniformExpansion(um, order)
+	if err != nil {
+		return nil, err
+	}
+	return &ExpansionModel{lattice: lattice, z: z, exp: exp, couplings: names, trust: trust}, nil
+}
+
+// Lattice implements ForwardModel.
+func (m *ExpansionModel) Lattice() string { return m.lattice }
+
+// Coordination implements ForwardModel.
+func (m *ExpansionModel) Coordination() int { return m.z }
+
+// Couplings implements ForwardModel.
+func (m *ExpansionModel) Couplings() []string { return slices.Clone(m.couplings) }
+
+// Describe implements ForwardModel.
+func (m *ExpansionModel) Describe() string {
+	return fmt.Sprintf("linked-cluster expansion of the infinite %s lattice to order %d, resummed (Wynn, Euler), trusted where the last orders agree", m.lattice, m.exp.Order())
+}
+
+// Curves implements ForwardModel.
+func (m *ExpansionModel) Curves(req Request) (*Curves, error) {
+	if err := checkRequest(req, len(m.couplings)); err != nil {
+		return nil, err
+	}
+	res, err := m.exp.Evaluate(req.Couplings, cluster.UniformOptions{
+		Temperatures: req.Temps, Fields: []float64{req.Field}, Derivatives: len(req.Tangents) > 0})
+	if err != nil {
+		return nil, err
+	}
+	out := &Curves{Temps: slices.Clone(req.Temps)}
+	for q, dst := range map[cluster.Quantity]*Curve{
+		cluster.QuantityLogZ: &out.LogZ, cluster.QuantityEnergy: &out.Energy, cluster.QuantityEntropy: &out.Entropy,
+		cluster.QuantityHeatCapacity: &out.HeatCapacity, cluster.QuantityMagnetization: &out.Magnetization,
+		cluster.QuantitySusceptibility: &out.Susceptibility,
+	} {
+		cv := res.Curve(q, 0, m.trust)
+		dst.Value = slices.Clone(cv.Value)
+		dst.TrustedFrom = cv.ResummedReach
+		if len(req.Tangents) == 0 {
+			continue
+		}
+		if cv.DValue == nil {
+			return nil, fmt.Errorf("bulk: the expansion gives no derivative of the %s for these couplings", q)
+		}
+		dst.Deriv = make([][]float64, len(req.Tangents))
+		for k, t := range req.Tangents {
+			dst.Deriv[k] = make([]float64, len(req.Temps))
+			for p, tp := range t {
+				for i := range req.Temps {
+					dst.Deriv[k][i] += tp * cv.DValue[p][i]
+				}
+			}
+		}
+	}
+	return out, nil
+}

@@ -1,0 +1,57 @@
+package bulk
+
+import (
+	"math"
+	"testing"
+	"time"
+
+	"warmfit/cluster"
+)
+
+// The expansion adapter against the 12-site Heisenberg ring, an
+// independent exact diagonalisation that equals the infinite chain to
+// 1e-6 at T >= J (references.md, ring checks): values and derivatives
+// must agree wherever the expansion says it is trusted.
+func TestExpansionModelMatchesRing(t *testing.T) {
+	exp, err := NewExpansionModel("chain", 12, false, cluster.TrustOptions{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	ring, err := NewPeriodicClusterModel("chain", PeriodicClusterOptions{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	req := Request{Couplings: []float64{20, 20}, Temps: logGrid(20, 200, 12), Tangents: [][]float64{{1, 1}}}
+	start := time.Now()
+	a, err := exp.Curves(req)
+	if err != nil {
+		t.Fatal(err)
+	}
+	t.Logf("expansion: %v; chi trusted from %.3g K, C from %.3g K", time.Since(start), a.Susceptibility.TrustedFrom, a.HeatCapacity.TrustedFrom)
+	ringReq := req
+	ringReq.Couplings = heisenberg(t, ring, 20)
+	ringReq.Tangents = [][]float64{heisenberg(t, ring, 1)}
+	b, err := ring.Curves(ringReq)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, pair := range []struct {
+		name string
+		x, y *Curve
+	}{{"chi", &a.Susceptibility, &b.Susceptibility}, {"C", &a.HeatCapacity, &b.HeatCapacity}} {
+		if math.IsInf(pair.x.TrustedFrom, 1) {
+			t.Errorf("%s: expansion trusts nothing up to 10 J", pair.name)
+		}
+		for i, T := range req.Temps {
+			if T < pair.x.TrustedFrom || T < 20 {
+				continue
+			}
+			if d := math.Abs(pair.x.Value[i] - pair.y.Value[i]); d > 2e-3*math.Abs(pair.y.Value[i]) {
+				t.Errorf("%s at %.3g K: expansion %.8g, ring %.8g", pair.name, T, pair.x.Value[i], pair.y.Value[i])
+			}
+			if d := math.Abs(pair.x.Deriv[0][i] - pair.y.Deriv[0][i]); d > 5e-3*math.Abs(pair.y.Deriv[0][i])+1e-12 {
+				t.Errorf("d%s/dJ at %.3g K: expansion %.8g, ring %.8g", pair.name, T, pair.x.Deriv[0][i], pair.y.Deriv[0][i])
+			}
+		}
+	}
+}
