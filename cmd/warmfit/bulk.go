@@ -10,6 +10,7 @@ import (
 
 	"github.com/spf13/pflag"
 
+	"warmfit/cluster"
 	"warmfit/fit/bulk"
 )
 
@@ -25,6 +26,8 @@ type bulkFlags struct {
 	cwChi0      bool
 	rejectBelow float64
 	sizeTol     float64
+	engine      string
+	order       int
 	out         string
 	curves      string
 	figures     string
@@ -54,6 +57,8 @@ func init() {
 			fs.Float64Var(&o.cwAbove, "cw-above", 0, "lowest temperature (K) of the Curie–Weiss first look (default: upper half of the chi range)")
 			fs.BoolVar(&o.cwChi0, "cw-chi0", true, "fit a temperature-independent chi0 in the Curie–Weiss first look")
 			fs.Float64Var(&o.rejectBelow, "reject-below", bulk.DefaultRejectBelow, "p-value below which a candidate is rejected")
+			fs.StringVar(&o.engine, "engine", "expansion", "forward model: expansion (linked-cluster expansion of the infinite lattice) or clusters (exact diagonalisation of 12-site periodic clusters; faster, trusted only higher)")
+			fs.IntVar(&o.order, "order", 0, "expansion order, the largest cluster (default 10 for the chain, 8 otherwise)")
 			fs.Float64Var(&o.sizeTol, "finite-size-tol", bulk.DefaultFiniteSizeTolerance, "relative agreement of the two periodic clusters that marks a curve trusted")
 			fs.StringVarP(&o.out, "output", "o", "", "write the fit (JSON) to `FILE` instead of stdout")
 			fs.StringVar(&o.curves, "curves", "", "write data against model curves (CSV) to `FILE`")
@@ -88,9 +93,10 @@ The curves of each candidate come from a forward model that states the temperatu
 range it trusts; only points inside that range are fitted, the range is recomputed
 from the fitted couplings and the fit repeated until it settles, and every point left
 out is reported (nothing is extrapolated). Data entirely below the range are refused
-with the lowest usable temperature. The forward model is exact diagonalisation of a
-12-site periodic cluster, trusted where it agrees with a smaller one to
---finite-size-tol.
+with the lowest usable temperature. The forward model (--engine) is the
+linked-cluster expansion of the infinite lattice, resummed and trusted where its last
+orders agree, or exact diagonalisation of 12-site periodic clusters, trusted where they
+agree with smaller ones to --finite-size-tol (faster, but trusted only at higher T).
 
 The first look is a Curie–Weiss fit chi = C/(T + theta) of the high-T tail (theta > 0
 antiferromagnetic; theta = z J/4 for spin-1/2), which also gives the start values of J
@@ -154,6 +160,12 @@ func newBulkJob(files []string) (*bulkJob, error) {
 	}
 	if !(o.sizeTol > 0 && o.sizeTol < 1) {
 		return nil, usagef("--finite-size-tol %v: must be in (0, 1)", o.sizeTol)
+	}
+	if o.engine != "expansion" && o.engine != "clusters" {
+		return nil, usagef("--engine %q: want expansion or clusters", o.engine)
+	}
+	if o.order < 0 || o.order > 16 {
+		return nil, usagef("--order %d: want 1-16", o.order)
 	}
 	switch o.phonon {
 	case "T3", "none":
@@ -324,7 +336,7 @@ func (j *bulkJob) fit(env *runEnv) (*bulkRun, error) {
 // candidate builds one candidate; J and g start from the Curie–Weiss
 // first look unless given.
 func (j *bulkJob) candidate(spec string, latExtra []string, cw *bulk.CurieWeiss) (*bulk.Candidate, error) {
-	fwd, err := bulk.NewPeriodicClusterModel(latExtra[0], bulk.PeriodicClusterOptions{Tolerance: bulkOptions.sizeTol})
+	fwd, err := newForwardModel(latExtra[0], slices.Contains(latExtra[1:], bulk.ParamJ2))
 	if err != nil {
 		return nil, err
 	}
@@ -350,6 +362,22 @@ func (j *bulkJob) candidate(spec string, latExtra []string, cw *bulk.CurieWeiss)
 	}
 	c.SitesPerFormula = j.perFormula
 	return c, nil
+}
+
+// newForwardModel builds the forward model chosen by --engine.
+func newForwardModel(lattice string, withJ2 bool) (bulk.ForwardModel, error) {
+	o := &bulkOptions
+	if o.engine == "clusters" {
+		return bulk.NewPeriodicClusterModel(lattice, bulk.PeriodicClusterOptions{Tolerance: o.sizeTol})
+	}
+	order := o.order
+	if order == 0 {
+		order = 8
+		if lattice == "chain" {
+			order = 10
+		}
+	}
+	return bulk.NewExpansionModel(lattice, order, withJ2, cluster.TrustOptions{})
 }
 
 // collectWarnings gathers the warnings of every fit and of the ranking.

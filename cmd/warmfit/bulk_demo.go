@@ -86,6 +86,7 @@ func runBulkDemo(env *runEnv, dir string) error {
 	}
 	o := &bulkOptions
 	o.models = []string{"chain", "square", "honeycomb"}
+	o.engine = "clusters" // the model the curves were made with, and the fast one
 	if o.out == "" {
 		o.out = filepath.Join(dir, "fit.json")
 	}

@@ -2,6 +2,7 @@ package bulk
 
 import (
 	"fmt"
+	"math"
 	"slices"
 
 	"warmfit/cluster"
@@ -30,6 +31,11 @@ type ExpansionModel struct {
 // expansion offers.
 var expansionCoordination = map[string]int{"chain": 2, "ladder": 3, "square": 4, "triangular": 6, "honeycomb": 3, "kagome": 4, "cubic": 6}
 
+// DefaultExpansionTolerance is the trust tolerance of the expansion
+// model, per site in units of the largest coupling: 1e-4 is about 0.1% of
+// the susceptibility near its maximum, below the errors of good data.
+const DefaultExpansionTolerance = 1e-4
+
 // NewExpansionModel prepares the expansion of a lattice to the given
 // order (largest cluster), with the next-nearest coupling J2 when withJ2.
 func NewExpansionModel(lattice string, order int, withJ2 bool, trust cluster.TrustOptions) (*ExpansionModel, error) {
@@ -51,6 +57,9 @@ func NewExpansionModel(lattice string, order int, withJ2 bool, trust cluster.Tru
 	exp, err := cluster.NewUniformExpansion(um, order)
 	if err != nil {
 		return nil, err
+	}
+	if trust.Tolerance == 0 {
+		trust.Tolerance = DefaultExpansionTolerance
 	}
 	return &ExpansionModel{lattice: lattice, z: z, exp: exp, couplings: names, trust: trust}, nil
 }
@@ -74,11 +83,30 @@ func (m *ExpansionModel) Curves(req Request) (*Curves, error) {
 	if err := checkRequest(req, len(m.couplings)); err != nil {
 		return nil, err
 	}
-	res, err := m.exp.Evaluate(req.Couplings, cluster.UniformOptions{
-		Temperatures: req.Temps, Fields: []float64{req.Field}, Derivatives: len(req.Tangents) > 0})
+	// The engine judges trust by an absolute tolerance in the energy unit
+	// of the couplings, so it runs in units of the largest coupling s:
+	// Q(c, T, h) = s^a Q'(c/s, T/s, h/s) with a = 1 for E, -1 for chi and
+	// 0 for the dimensionless curves.
+	s := 0.0
+	for _, c := range req.Couplings {
+		s = max(s, math.Abs(c))
+	}
+	if s == 0 {
+		s = 1
+	}
+	scaled := func(x []float64) []float64 {
+		out := make([]float64, len(x))
+		for i, v := range x {
+			out[i] = v / s
+		}
+		return out
+	}
+	res, err := m.exp.Evaluate(scaled(req.Couplings), cluster.UniformOptions{
+		Temperatures: scaled(req.Temps), Fields: []float64{req.Field / s}, Derivatives: len(req.Tangents) > 0})
 	if err != nil {
 		return nil, err
 	}
+	unit := map[cluster.Quantity]float64{cluster.QuantityEnergy: s, cluster.QuantitySusceptibility: 1 / s}
 	out := &Curves{Temps: slices.Clone(req.Temps)}
 	for q, dst := range map[cluster.Quantity]*Curve{
 		cluster.QuantityLogZ: &out.LogZ, cluster.QuantityEnergy: &out.Energy, cluster.QuantityEntropy: &out.Entropy,
@@ -86,8 +114,15 @@ func (m *ExpansionModel) Curves(req Request) (*Curves, error) {
 		cluster.QuantitySusceptibility: &out.Susceptibility,
 	} {
 		cv := res.Curve(q, 0, m.trust)
-		dst.Value = slices.Clone(cv.Value)
-		dst.TrustedFrom = cv.ResummedReach
+		u := unit[q]
+		if u == 0 {
+			u = 1
+		}
+		dst.Value = make([]float64, len(cv.Value))
+		for i, v := range cv.Value {
+			dst.Value[i] = u * v
+		}
+		dst.TrustedFrom = s * cv.ResummedReach
 		if len(req.Tangents) == 0 {
 			continue
 		}
@@ -99,7 +134,7 @@ func (m *ExpansionModel) Curves(req Request) (*Curves, error) {
 			dst.Deriv[k] = make([]float64, len(req.Temps))
 			for p, tp := range t {
 				for i := range req.Temps {
-					dst.Deriv[k][i] += tp * cv.DValue[p][i]
+					dst.Deriv[k][i] += tp * u / s * cv.DValue[p][i]
 				}
 			}
 		}
