@@ -9,9 +9,10 @@ import (
 // The cost model of the expansion, in machine-independent units: one
 // unit is the work D^3 = 8^|c| of diagonalising a cluster of |c| sites
 // densely; a cluster diagonalised in the blocks of a Symmetry costs the
-// sum of the cubes of its sector dimensions (blockWork). Every refusal, every automatic order choice and every time
-// prediction of the project goes through this file, so that they agree
-// with each other and can be calibrated in one place.
+// sum of the cubes of its sector dimensions (blockWork). Every refusal,
+// every automatic order choice and every time prediction of the project
+// goes through this file, so that they agree with each other and can be
+// calibrated in one place.
 
 // DefaultMaxWork is the largest evaluation Evaluate and Thermodynamics
 // accept unless Options.MaxWork says otherwise: about an hour on a

@@ -40,12 +40,13 @@ func modelHolds(s Symmetry, terms []lattice.Term, coeffs []float64) bool {
 		if coeffs[k] == 0 {
 			continue
 		}
-		if len(t.Sites) > MaxQubits {
-			return false // cannot be written as a PauliString; no blocks
+		local := make([]int, len(t.Sites))
+		for i := range local {
+			local[i] = i
 		}
-		var p PauliString
-		for i := 0; i < len(t.Pauli); i++ {
-			p.setLetter(uint64(1)<<uint(i), t.Pauli[i])
+		p, err := ParsePauli(t.Pauli, local)
+		if err != nil {
+			return false // e.g. more than MaxQubits sites: no blocks
 		}
 		key := supportKey(t.Sites)
 		g := groups[key]
