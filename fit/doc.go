@@ -1,7 +1,77 @@
 // Package fit learns the coefficients of a local Hamiltonian from
-// measurements of its Gibbs state: it reads expectation tables and
-// snapshot files, minimises the convex maximum-entropy dual
-// G(lambda) = log Z(lambda) + beta sum_k lambda_k e_k with log Z from the
-// linked-cluster expansion, propagates the data covariance into error bars,
-// and plans how many shots a target precision needs.
+// measurements of its Gibbs state, with honest error bars, and plans how
+// many shots a target precision costs.
+//
+// # Data
+//
+// Measurements arrive as an expectation table (header
+// pauli,sites,value,stderr; ReadTable, WriteTable) or as a snapshot file of
+// product-basis shots (header basis,outcome,count; ScanSnapshots streams
+// it, SnapshotWriter writes it). LoadEstimates reads either, tells them
+// apart by the header, and returns Estimates aligned with a template's
+// terms: values, standard errors, and the covariance of estimates that
+// share shots (CovarianceOptions says which pairs are kept). Exactness is
+// never implied: a value is exact only when its stderr says "exact"
+// (ExactStderr); a blank or zero stderr is an error naming the file and
+// line. Rows that match no template term are an error too, each named by
+// its line, so nothing in the data is silently dropped.
+//
+// # The fit
+//
+// Learning lambda is the convex maximum-entropy dual problem
+//
+//	minimise G(lambda) = log Z(lambda) + beta sum_k lambda_k e_k,
+//
+// whose minimum reproduces the measured expectations e_k (Jaynes 1957).
+// Fit evaluates log Z, <E_k> and the response d<E_k>/d lambda_j with the
+// linked-cluster expansion of package cluster, takes damped Newton steps
+// solved by conjugate gradients on the sparse response, and stops when
+// every gradient component is below a small fraction of its data noise. A
+// fit that does not converge is not an error: the Result says so and
+// why, and commands never write it over an existing file. Terms sharing a
+// Group share one coefficient (Params); terms without data are fitted
+// through their group by moment matching. Without beta the products
+// beta*lambda are fitted, and every output says so.
+//
+// The expansion order is the fit's main approximation. The lower orders
+// L-1 and L-2 are refitted from the solution, and the change of the
+// coefficients measures the truncation error, which the Result compares
+// with the statistical error; the automatic order rises until truncation
+// is negligible against statistics, within cluster.OrderPolicy's work
+// limit (machine-independent), with the wall-clock budget only a guard.
+//
+// # Error bars and planning
+//
+// Error bars come from the delta method, Cov(theta) = M Cov(e) M^T with
+// M = (A^T R A)^{-1} A^T and R the response at the solution: dense
+// Cholesky for small problems, local conjugate-gradient solves with an a
+// posteriori bound for large ones (O(n)). With the truth known,
+// CompareTruth gives pulls and L2/Linf errors; the honesty tests check
+// that pulls have unit variance over hundreds of seeded repetitions and
+// that the variance meets the Cramér–Rao bound. NewSignificance flags
+// coefficients that are significantly non-zero at a false-discovery rate
+// (Benjamini–Hochberg). PlanShots predicts, before any data are taken,
+// the shots per basis a target precision needs, from the same delta
+// method at a best-guess model; CoveringBases and SchemeBases choose the
+// measurement bases.
+//
+//	est, _, err := fit.LoadEstimates("data.csv", tmpl.Lattice, tmpl.Terms, fit.DefaultCovarianceOptions())
+//	if err != nil {
+//		return err
+//	}
+//	res, err := fit.Fit(&fit.Problem{Lattice: tmpl.Lattice, Terms: tmpl.Terms, Data: est, Beta: 0.35}, fit.Options{})
+//	// res.Converged, res.Coeffs, res.ThetaStderr, res.Truncation, res.Warnings
+//
+// # Invariants and panics
+//
+// Every number written by a writer of this package is finite: writers
+// refuse NaN and infinities before writing a byte. Results are
+// deterministic for any number of workers. Functions panic only on
+// programmer misuse (mismatched slice lengths); everything that comes from
+// data is an error naming its source.
+//
+// Sub-packages: fit/bulk fits uniform couplings to bulk thermodynamic
+// curves of materials; fit/stationary learns coefficients from the
+// stationarity of the thermal state, where the expansion does not
+// converge.
 package fit
