@@ -9,6 +9,7 @@ import (
 
 	"github.com/spf13/pflag"
 
+	"warmfit/cmd/warmfit/internal/plot"
 	"warmfit/lattice"
 )
 
@@ -120,7 +121,7 @@ func runLattice(env *runEnv, args []string) error {
 		}
 	}
 	if o.svg != "" {
-		if err := writeFileAtomic(o.svg, l.WriteSVG); err != nil {
+		if err := writeFileAtomic(o.svg, func(w io.Writer) error { _, err := plot.LatticeFigure(plot.LatticeGeometry(l)).WriteTo(w); return err }); err != nil {
 			return err
 		}
 	}

@@ -104,24 +104,21 @@ func TestLatticeGeometryTranslations(t *testing.T) {
 	}
 }
 
-// The drawing puts the sites where the lattice package's own writer
-// does, relative to site 0 (that writer is to be replaced by this one).
-func TestLatticeFigureMatchesLatticeWriter(t *testing.T) {
-	for _, spec := range []string{"honeycomb:3x3:periodic:shells=2", "cubic:3x3x3:periodic", "kagome:2x3"} {
+// The stand-alone drawing puts site i at its lattice coordinates, 56
+// pixels per unit (the closest two sites of these lattices are one unit
+// apart: derived from the unit cells), y pointing down.
+func TestLatticeFigureSitePositions(t *testing.T) {
+	for _, spec := range []string{"honeycomb:3x3:periodic:shells=2", "kagome:2x3", "triangular:4x3", "square:3x3"} {
 		l := mustOpen(t, spec)
-		var old bytes.Buffer
-		if err := l.WriteSVG(&old); err != nil {
-			t.Fatal(err)
+		c := circleCentres(t, render(t, spec, LatticeFigure(LatticeGeometry(l))))
+		if len(c) != l.NumSites() {
+			t.Fatalf("%s: %d circles for %d sites", spec, len(c), l.NumSites())
 		}
-		a, b := circleCentres(t, old.Bytes()), circleCentres(t, render(t, spec, LatticeFigure(LatticeGeometry(l))))
-		if len(a) != len(b) {
-			t.Fatalf("%s: %d and %d circles", spec, len(a), len(b))
-		}
-		for i := range a {
-			dx := (a[i][0] - a[0][0]) - (b[i][0] - b[0][0])
-			dy := (a[i][1] - a[0][1]) - (b[i][1] - b[0][1])
-			if math.Hypot(dx, dy) > 0.15 {
-				t.Errorf("%s: circle %d moved by (%.2f, %.2f)", spec, i, dx, dy)
+		for i, p := range l.Coords {
+			wx := latticeSpacing * (p[0] - l.Coords[0][0])
+			wy := -latticeSpacing * (p[1] - l.Coords[0][1])
+			if dx, dy := c[i][0]-c[0][0]-wx, c[i][1]-c[0][1]-wy; math.Hypot(dx, dy) > 0.02 {
+				t.Errorf("%s: site %d drawn %.3f, %.3f px off its coordinates", spec, i, dx, dy)
 			}
 		}
 	}
