@@ -1,0 +1,376 @@
+package validate
+
+import (
+	"fmt"
+	"math"
+	"runtime"
+	"sync"
+
+	"golang.org/x/sync/errgroup"
+
+	"warmfit/cluster"
+	"warmfit/lattice/model"
+)
+
+// CrosscheckOptions tunes Crosscheck. The zero value is usable.
+type CrosscheckOptions struct {
+	// Tol is the largest |expansion - exact| at which a value agrees;
+	// 0 means 1e-3.
+	Tol float64
+	// MaxOrder is the highest expansion order on any patch; 0 means the
+	// patch size, at most DenseQubits, lowered while the patch's
+	// expansion would cost more than its share of MaxWork.
+	MaxOrder int
+	// MaxWork is the work (cluster.Expansion.EstimateWork units) the
+	// automatic MaxOrder may spend over all patches; each patch gets an
+	// equal share, at least 1e9 units (about a second). 0 means
+	// cluster.DefaultAutoWork, about a minute.
+	MaxWork float64
+	// DenseQubits is the largest patch diagonalised densely; larger
+	// patches (up to MaxTypicalityQubits) are checked by thermal
+	// typicality, whose statistical errors enter the comparison. 0 means
+	// 11.
+	DenseQubits int
+	// Typicality tunes the typicality estimates; its Workers is ignored.
+	Typicality TypicalityOptions
+	// Workers bounds the number of patches worked on at once; <= 0 means
+	// GOMAXPROCS. Results do not depend on it.
+	Workers int
+	// Progress, when set, is called after each patch with the number
+	// done and the total, one call at a time.
+	Progress func(done, total int)
+}
+
+// PatchCheck is the comparison on one patch.
+type PatchCheck struct {
+	Patch *Patch
+	// Method is "dense" (exact diagonalisation) or "typicality".
+	Method string
+	// Exact holds the reference value of each patch term; Stderr is 0
+	// for dense diagonalisation.
+	Exact []Estimate
+	// Expansion[o-1][i] is the expansion's value of patch term i at order
+	// o, for o = 1..Orders.
+	Expansion [][]float64
+	// Estimate[o-1][i] is the expansion's own estimate of its truncation
+	// error at order o (cluster.Converge on orders 1..o at tolerance
+	// Tol); +Inf where it cannot judge.
+	Estimate [][]float64
+	// Orders is the highest order evaluated; at the patch's size the
+	// expansion is exact by construction.
+	Orders int
+}
+
+// Diff returns expansion minus exact for patch term i at order o.
+func (p *PatchCheck) Diff(o, i int) float64 { return p.Expansion[o-1][i] - p.Exact[i].Value }
+
+// OrderCheck summarises one order over every patch evaluated at it.
+type OrderCheck struct {
+	Order int
+	// Values is the number of (patch, term) values compared.
+	Values int
+	// MaxDiff and RMSDiff are the largest and root-mean-square
+	// |expansion - exact|; the largest is at term WorstTerm of patch
+	// WorstPatch.
+	MaxDiff, RMSDiff      float64
+	WorstPatch, WorstTerm int
+	// Noise is the largest standard error of the reference values
+	// compared (0 when all are dense).
+	Noise float64
+	// Exact is true when every patch compared has at most Order sites:
+	// the expansion then equals exact diagonalisation by construction and
+	// the order says nothing about convergence.
+	Exact bool
+	// Agrees is true when every value of a patch larger than Order (every
+	// value, when Exact) satisfies |diff| <= Tol + 2 stderr.
+	Agrees bool
+	// Judged counts the values whose own truncation estimate is finite;
+	// Covered those among them whose estimate is at least |diff|.
+	Judged, Covered int
+}
+
+// CrosscheckResult is the comparison of the expansion with exact
+// results on patches of one model at one temperature.
+type CrosscheckResult struct {
+	Beta, Tol float64
+	Patches   []PatchCheck
+	// Orders[o-1] summarises order o.
+	Orders []OrderCheck
+	// AgreeOrder is the lowest order below the patch size from which
+	// every order agrees (0 when there is none).
+	AgreeOrder int
+	// Trusted is true when the expansion agrees from an order at least
+	// one below the highest it can check short of the patch size, so that
+	// the agreement shows convergence rather than the end of the patch.
+	Trusted bool
+	// Verdict states the outcome in words, one line per statement; lines
+	// that should stop a user begin with "WARNING:".
+	Verdict []string
+}
+
+// Crosscheck compares the expansion with exact results on patches of m
+// at inverse temperature beta. Each site set is cut from m (CutPatch);
+// on each patch every term's expectation is computed by the expansion of
+// the patch at orders 1..MaxOrder and exactly, by dense diagonalisation
+// up to DenseQubits sites and by thermal typicality beyond. Patches are
+// worked on in parallel, each in its own slot, so the result does not
+// depend on the number of workers.
+func Crosscheck(m *model.Model, beta float64, siteSets [][]int, opt CrosscheckOptions) (*CrosscheckResult, error) {
+	if len(siteSets) == 0 {
+		return nil, fmt.Errorf("validate: crosscheck needs at least one patch")
+	}
+	if !(beta >= 0) || math.IsInf(beta, 0) {
+		return nil, fmt.Errorf("validate: beta = %v: must be finite and >= 0", beta)
+	}
+	opt = opt.withDefaults()
+	patches := make([]*Patch, len(siteSets))
+	for i, s := range siteSets {
+		p, err := CutPatch(m, s)
+		if err != nil {
+			return nil, fmt.Errorf("validate: %v", err)
+		}
+		if n := len(p.Sites); n > MaxTypicalityQubits {
+			return nil, fmt.Errorf("validate: patch %s has %d sites, more than the %d exact methods reach", siteList(p.Sites), n, MaxTypicalityQubits)
+		}
+		patches[i] = p
+	}
+	share := math.Max(opt.MaxWork/float64(len(patches)), 1e9)
+	res := &CrosscheckResult{Beta: beta, Tol: opt.Tol, Patches: make([]PatchCheck, len(patches))}
+	g := new(errgroup.Group)
+	g.SetLimit(opt.Workers)
+	var mu sync.Mutex
+	done := 0
+	for i, p := range patches {
+		g.Go(func() error {
+			if err := checkPatch(&res.Patches[i], p, beta, share, opt); err != nil {
+				return fmt.Errorf("validate: patch %s: %v", siteList(p.Sites), err)
+			}
+			if opt.Progress != nil {
+				mu.Lock()
+				done++
+				opt.Progress(done, len(patches))
+				mu.Unlock()
+			}
+			return nil
+		})
+	}
+	if err := g.Wait(); err != nil {
+		return nil, err
+	}
+	res.summarise()
+	return res, nil
+}
+
+func (o CrosscheckOptions) withDefaults() CrosscheckOptions {
+	if o.Tol <= 0 {
+		o.Tol = 1e-3
+	}
+	if o.MaxWork <= 0 {
+		o.MaxWork = cluster.DefaultAutoWork
+	}
+	if o.DenseQubits <= 0 {
+		o.DenseQubits = 11
+	}
+	o.DenseQubits = min(o.DenseQubits, cluster.MaxDenseQubits)
+	if o.Workers <= 0 {
+		o.Workers = runtime.GOMAXPROCS(0)
+	}
+	o.Typicality.Workers = 1
+	return o
+}
+
+// checkPatch fills c with the exact values and the expansion of p.
+func checkPatch(c *PatchCheck, p *Patch, beta, maxWork float64, opt CrosscheckOptions) error {
+	c.Patch = p
+	pm := p.Model
+	n := len(p.Sites)
+	exp, err := cluster.NewExpansion(pm.Lattice, pm.Terms)
+	if err != nil {
+		return err
+	}
+	L := opt.MaxOrder
+	if L <= 0 {
+		L = min(n, opt.DenseQubits)
+		for L > 1 {
+			if _, w := exp.EstimateWork(L); w <= maxWork {
+				break
+			}
+			L--
+		}
+	}
+	L = min(L, n, cluster.MaxDenseQubits)
+	coeffs := make([]float64, len(pm.Terms))
+	ops := make([]cluster.PauliString, len(pm.Terms))
+	for k, t := range pm.Terms {
+		coeffs[k] = t.Coeff
+		if ops[k], err = cluster.TermPauli(t); err != nil {
+			return err
+		}
+	}
+	if c.Exact, c.Method, err = exactValues(n, pm, beta, ops, opt); err != nil {
+		return err
+	}
+	r, err := exp.Evaluate(coeffs, beta, cluster.Options{Order: L, Workers: 1, MaxWork: math.Inf(1)})
+	if err != nil {
+		return err
+	}
+	c.Orders, c.Expansion = L, r.Expect
+	c.Estimate = make([][]float64, L)
+	series := make([]float64, L)
+	for o := 1; o <= L; o++ {
+		c.Estimate[o-1] = make([]float64, len(pm.Terms))
+	}
+	for k, t := range pm.Terms {
+		for o := range series {
+			series[o] = r.Expect[o][k]
+			if math.IsNaN(series[o]) || math.IsInf(series[o], 0) {
+				return fmt.Errorf("the expansion gave a non-finite <%s> at order %d", t.Key(), o+1)
+			}
+		}
+		for o := 1; o <= L; o++ {
+			c.Estimate[o-1][k] = cluster.Converge(series[:o], len(t.Sites), opt.Tol).Error
+		}
+	}
+	return nil
+}
+
+// exactValues computes the reference expectations of ops on the patch.
+func exactValues(n int, pm *model.Model, beta float64, ops []cluster.PauliString, opt CrosscheckOptions) ([]Estimate, string, error) {
+	out := make([]Estimate, len(ops))
+	if n <= opt.DenseQubits {
+		th, err := ExactThermal(n, pm.Terms, beta)
+		if err != nil {
+			return nil, "", err
+		}
+		vals := make([]float64, len(ops))
+		th.ExpectAll(ops, vals)
+		for k, v := range vals {
+			out[k] = Estimate{Value: v}
+		}
+		return out, "dense", nil
+	}
+	_, est, err := Typical(n, pm.Terms, beta, ops, opt.Typicality)
+	if err != nil {
+		return nil, "", err
+	}
+	copy(out, est)
+	return out, "typicality", nil
+}
+
+// summarise fills the per-order table, the agreement order and the
+// verdict from the patch comparisons.
+func (r *CrosscheckResult) summarise() {
+	top := 0
+	for i := range r.Patches {
+		top = max(top, r.Patches[i].Orders)
+	}
+	r.Orders = make([]OrderCheck, top)
+	for o := 1; o <= top; o++ {
+		r.Orders[o-1] = r.orderCheck(o)
+	}
+	lastOpen := 0 // the highest order that is not exact by construction
+	for _, oc := range r.Orders {
+		if !oc.Exact {
+			lastOpen = oc.Order
+		}
+	}
+	for o := lastOpen; o >= 1 && r.Orders[o-1].Agrees; o-- {
+		r.AgreeOrder = o
+	}
+	for _, oc := range r.Orders[lastOpen:] {
+		if !oc.Agrees {
+			r.AgreeOrder = 0 // an exact order that disagrees is a fault, not agreement
+		}
+	}
+	r.Trusted = r.AgreeOrder > 0 && r.AgreeOrder < lastOpen
+	r.Verdict = r.verdict(lastOpen)
+}
+
+func (r *CrosscheckResult) orderCheck(o int) OrderCheck {
+	oc := OrderCheck{Order: o, Exact: true, Agrees: true, WorstPatch: -1, WorstTerm: -1}
+	var sum2 float64
+	for pi := range r.Patches {
+		pc := &r.Patches[pi]
+		if pc.Orders < o {
+			continue
+		}
+		if len(pc.Patch.Sites) > o {
+			oc.Exact = false
+		}
+	}
+	for pi := range r.Patches {
+		pc := &r.Patches[pi]
+		if pc.Orders < o {
+			continue
+		}
+		open := len(pc.Patch.Sites) > o
+		for i := range pc.Exact {
+			d := math.Abs(pc.Diff(o, i))
+			sigma := pc.Exact[i].Stderr
+			oc.Values++
+			sum2 += d * d
+			oc.Noise = math.Max(oc.Noise, sigma)
+			if d > oc.MaxDiff || oc.WorstPatch < 0 {
+				oc.MaxDiff, oc.WorstPatch, oc.WorstTerm = d, pi, i
+			}
+			if (open || oc.Exact) && d > r.Tol+2*sigma {
+				oc.Agrees = false
+			}
+			if e := pc.Estimate[o-1][i]; open && !math.IsInf(e, 0) {
+				oc.Judged++
+				if e >= d {
+					oc.Covered++
+				}
+			}
+		}
+	}
+	if oc.Values > 0 {
+		oc.RMSDiff = math.Sqrt(sum2 / float64(oc.Values))
+	}
+	return oc
+}
+
+// verdict words the outcome; lastOpen is the highest order below the
+// patch size.
+func (r *CrosscheckResult) verdict(lastOpen int) []string {
+	var lines []string
+	np := len(r.Patches)
+	switch {
+	case lastOpen == 0:
+		lines = append(lines, fmt.Sprintf("WARNING: every order evaluated covers the whole patch, where the expansion is exact by construction: nothing is checked at beta = %.4g; use larger patches", r.Beta))
+	case r.Trusted:
+		lines = append(lines, fmt.Sprintf("trusted: at beta = %.4g the expansion agrees with exact results within %.2g on all %d patches from order %d on (checked up to order %d, the last below the patch size)",
+			r.Beta, r.Tol, np, r.AgreeOrder, lastOpen))
+	case r.AgreeOrder > 0:
+		lines = append(lines, fmt.Sprintf("WARNING: at beta = %.4g the expansion agrees with exact results within %.2g only at order %d, the last below the patch size: these patches are too small to show convergence at this temperature; use larger patches or a higher temperature",
+			r.Beta, r.Tol, r.AgreeOrder))
+	default:
+		best := r.Orders[0]
+		for _, oc := range r.Orders[:lastOpen] {
+			if oc.MaxDiff < best.MaxDiff {
+				best = oc
+			}
+		}
+		lines = append(lines, fmt.Sprintf("WARNING: at beta = %.4g the expansion does NOT agree with exact results within %.2g at any order below the patch size (smallest largest difference %.2g, at order %d): the temperature is too low for the orders these patches check; do not trust expansion values at this temperature",
+			r.Beta, r.Tol, best.MaxDiff, best.Order))
+	}
+	noise := 0.0
+	judged, covered := 0, 0
+	for _, oc := range r.Orders[:lastOpen] {
+		noise = math.Max(noise, oc.Noise)
+		judged += oc.Judged
+		covered += oc.Covered
+	}
+	if 2*noise > r.Tol {
+		lines = append(lines, fmt.Sprintf("WARNING: the typicality references carry statistical errors up to %.2g (2 sigma %.2g > tolerance %.2g): agreement is resolved only to that level; use more random vectors", noise, 2*noise, r.Tol))
+	}
+	if judged > 0 {
+		frac := float64(covered) / float64(judged)
+		line := fmt.Sprintf("the expansion's own truncation estimate bounded the true difference for %d of %d judged values (%.1f%%) below the patch size", covered, judged, 100*frac)
+		if frac < 0.9 {
+			line = "WARNING: " + line + ": its trusted flags are optimistic for this model"
+		}
+		lines = append(lines, line)
+	}
+	return lines
+}
