@@ -7,9 +7,14 @@ import (
 	"strings"
 	"time"
 
+	"warmfit/cmd/warmfit/internal/plot"
 	"warmfit/lattice"
 	"warmfit/lattice/model"
+	"warmfit/validate"
 )
+
+// The demo's scenario: a made-up calibration problem and every choice
+// of the run that is not left to the library.
 
 // demoParam is one design value of the device Hamiltonian (a parameter of
 // the xxz preset).
@@ -30,28 +35,22 @@ type demoScenario struct {
 	Seed          uint64
 	Beta          float64
 	Shots         int64 // per measurement basis
-	// DataOrder is the expansion order of the expectation values behind
-	// the synthetic data of the whole array.
-	DataOrder int
-	// Order is the fit's expansion order; 0 lets the fitter choose.
+	// Order fixes the array fit's expansion order; 0 leaves it to the
+	// fitter (the one order policy, cluster.OrderPolicy).
 	Order int
-	// MaxOrder caps the fitter's automatic choice (the cost grows about
-	// tenfold per order on the square lattice).
-	MaxOrder int
-	// Budget is the wall time the automatic order choice may spend. It is
-	// generous so that the choice depends on the data, not on how busy
-	// the machine is.
+	// Budget guards the wall time of the fit's automatic order choice.
+	// It is generous so that the choice rests on the data and the work
+	// estimate, not on how busy the machine is.
 	Budget time.Duration
 	// Patch is the side of the square patch checked against exact
 	// methods.
 	Patch int
-	// Thermo grid: ThermoPoints inverse temperatures from ThermoMax/N to
-	// ThermoMax.
-	ThermoMax    float64
-	ThermoPoints int
-	ThermoTol    float64 // per-site truncation tolerance of the scan
-	PlanTargets  []float64
-	Quick        bool
+	// SweepPoints bounds the inverse temperatures of the thermodynamic
+	// sweep; SweepTol is its per-site truncation tolerance.
+	SweepPoints int
+	SweepTol    float64
+	PlanTargets []float64
+	Quick       bool
 }
 
 // The design values. Couplings are deliberately weaker than the fields:
@@ -71,32 +70,27 @@ var demoDesign = []demoParam{
 func defaultDemoScenario() demoScenario {
 	return demoScenario{
 		Width: 6, Height: 6,
-		Params:       append([]demoParam(nil), demoDesign...),
-		Disorder:     0.05,
-		Seed:         1,
-		Beta:         0.35,
-		Shots:        20000,
-		DataOrder:    6,
-		MaxOrder:     6,
-		Budget:       10 * time.Minute,
-		Patch:        3,
-		ThermoPoints: 40,
-		ThermoTol:    1e-3,
-		PlanTargets:  []float64{0.05, 0.02, 0.01},
+		Params:      append([]demoParam(nil), demoDesign...),
+		Disorder:    0.05,
+		Seed:        1,
+		Beta:        0.35,
+		Shots:       20000,
+		Budget:      10 * time.Minute,
+		Patch:       3,
+		SweepPoints: 60,
+		SweepTol:    1e-3,
+		PlanTargets: []float64{0.05, 0.02, 0.01},
 	}
 }
 
 // quickDemoScenario is the small variant for tests and a first look: a
-// 4x4 array, fit orders capped at 5 and a slightly higher temperature, at
-// which order 5 meets the fitter's truncation target. The data come from
-// order 6, so that the array comparison includes the truncation.
+// 4x4 array at a slightly higher temperature, where the fitter stops at
+// order 5.
 func quickDemoScenario() demoScenario {
 	s := defaultDemoScenario()
 	s.Width, s.Height = 4, 4
 	s.Beta = 0.25
-	s.DataOrder = 6
-	s.MaxOrder = 5
-	s.ThermoPoints = 24
+	s.SweepPoints = 50
 	s.Quick = true
 	return s
 }
@@ -137,14 +131,6 @@ func (s *demoScenario) setFlag() string {
 	return strings.Join(parts, ",")
 }
 
-func (s *demoScenario) values() map[string]float64 {
-	v := make(map[string]float64, len(s.Params))
-	for _, p := range s.Params {
-		v[p.Name] = p.Value
-	}
-	return v
-}
-
 // maxDesignCoeff bounds |coefficient| over the device: the largest design
 // value plus the disorder width.
 func (s *demoScenario) maxDesignCoeff() float64 {
@@ -155,96 +141,104 @@ func (s *demoScenario) maxDesignCoeff() float64 {
 	return m + s.Disorder
 }
 
-// buildDevice lays the design Hamiltonian on the array and adds the
-// seeded disorder, exactly as "warmfit model --preset xxz --set ...
-// --disorder W --seed S --beta B" does, so that the command in the report
-// writes the same file.
-func (s *demoScenario) buildDevice() (*model.Model, error) {
+// designModel is what the lab knows before the fit: the lattice, the
+// terms the device can have at their design values, and beta, as
+// "warmfit model --preset xxz --set ... --beta B" writes it.
+func (s *demoScenario) designModel() (*model.Model, error) {
 	l, err := lattice.Open(s.latticeSpec())
 	if err != nil {
 		return nil, err
 	}
-	terms, _, err := model.PresetTerms(l, "xxz", s.values())
+	values := make(map[string]float64, len(s.Params))
+	for _, p := range s.Params {
+		values[p.Name] = p.Value
+	}
+	terms, _, err := model.PresetTerms(l, "xxz", values)
 	if err != nil {
 		return nil, err
-	}
-	if s.Disorder > 0 {
-		model.AddDisorder(terms, s.Disorder, s.Seed)
 	}
 	return &model.Model{Lattice: l, Terms: terms, Beta: s.Beta}, nil
 }
 
-// demoTemplate is what the lab knows before the fit: the lattice, which
-// terms the device can have, and beta; every coefficient is 0.
-func demoTemplate(m *model.Model) *model.Model {
-	terms := make([]lattice.Term, len(m.Terms))
-	for k, t := range m.Terms {
-		terms[k] = lattice.Term{Pauli: t.Pauli, Sites: append([]int(nil), t.Sites...)}
-	}
-	return &model.Model{Lattice: m.Lattice, Terms: terms, Beta: m.Beta}
-}
-
-// patchOrigin is the lower-left corner of the checked patch: the middle
-// of the array, so that it sees bulk couplings.
-func (s *demoScenario) patchOrigin() (x0, y0 int) {
-	return (s.Width - s.Patch) / 2, (s.Height - s.Patch) / 2
-}
-
-// patchSites returns, for each patch site (x fastest), its index in the
-// array.
-func (s *demoScenario) patchSites() []int {
-	x0, y0 := s.patchOrigin()
-	out := make([]int, 0, s.Patch*s.Patch)
-	for y := 0; y < s.Patch; y++ {
-		for x := 0; x < s.Patch; x++ {
-			out = append(out, (x0+x)+s.Width*(y0+y))
-		}
-	}
-	return out
-}
-
-// extractPatch cuts the patch out of the device: the terms whose support
-// lies inside it, renumbered onto an open square lattice of the patch's
-// size. Array site i maps to patch site local[i].
-func (s *demoScenario) extractPatch(device *model.Model) (*model.Model, error) {
-	l, err := lattice.Open(fmt.Sprintf("square:%dx%d", s.Patch, s.Patch))
+// buildDevice is the design model with the seeded disorder added, as
+// "warmfit model ... --disorder W --seed S" writes it.
+func (s *demoScenario) buildDevice() (*model.Model, error) {
+	m, err := s.designModel()
 	if err != nil {
 		return nil, err
 	}
-	local := map[int]int{}
-	for i, site := range s.patchSites() {
-		local[site] = i
-	}
-	var terms []lattice.Term
-	for _, t := range device.Terms {
-		sites := make([]int, len(t.Sites))
-		inside := true
-		for j, site := range t.Sites {
-			p, ok := local[site]
-			if !ok {
-				inside = false
-				break
-			}
-			sites[j] = p
-		}
-		if !inside {
-			continue
-		}
-		nt, err := lattice.NewTerm(t.Pauli, sites, t.Coeff)
-		if err != nil {
-			return nil, err
-		}
-		terms = append(terms, nt)
-	}
-	m := &model.Model{Lattice: l, Terms: terms, Beta: device.Beta}
-	if err := m.Validate(); err != nil {
-		return nil, fmt.Errorf("patch model: %v", err)
+	if s.Disorder > 0 {
+		model.AddDisorder(m.Terms, s.Disorder, s.Seed)
 	}
 	return m, nil
 }
 
-// thermoGrid is the --beta-range argument of the scan.
-func (s *demoScenario) thermoRange() string {
-	lo := s.ThermoMax / float64(s.ThermoPoints)
-	return strconv.FormatFloat(lo, 'g', 6, 64) + ":" + strconv.FormatFloat(s.ThermoMax, 'g', 6, 64) + ":" + strconv.Itoa(s.ThermoPoints)
+// dataNoise is the typical statistical error of one measured
+// expectation: the shot noise sqrt((1 - e^2)/N) of a +-1 outcome with e
+// near 0 (the state is weakly polarised at high temperature) and N the
+// shots per basis (every term here is served by one basis).
+func (s *demoScenario) dataNoise() float64 { return 1 / math.Sqrt(float64(s.Shots)) }
+
+// dataTol is the truncation error the synthetic data and the exact
+// cross-check allow an expectation value: a tenth of its shot noise, the
+// fraction the fitter allows its own truncation (fit.Options).
+func (s *demoScenario) dataTol() float64 { return 0.1 * s.dataNoise() }
+
+// patchSites returns the sites of the checked patch: of the Patch x Patch
+// boxes of the array, the one nearest its middle (the first of equals),
+// so that the patch sees bulk couplings.
+func (s *demoScenario) patchSites(l *lattice.Lattice) ([]int, error) {
+	boxes, err := validate.PatchesOfShape(l, []int{s.Patch, s.Patch})
+	if err != nil {
+		return nil, err
+	}
+	centre := func(sites []int) (x, y float64) {
+		for _, i := range sites {
+			x += l.Coords[i][0]
+			y += l.Coords[i][1]
+		}
+		return x / float64(len(sites)), y / float64(len(sites))
+	}
+	all := make([]int, l.NumSites())
+	for i := range all {
+		all[i] = i
+	}
+	cx, cy := centre(all)
+	best, bestDist := 0, math.Inf(1)
+	for b, sites := range boxes {
+		x, y := centre(sites)
+		if d := math.Hypot(x-cx, y-cy); d < bestDist-1e-9 {
+			best, bestDist = b, d
+		}
+	}
+	return boxes[best], nil
+}
+
+// sweepGrid returns the thermodynamic sweep's grid, LO..HI with points
+// evenly spaced values: from one step up to about four times the
+// operating beta, far enough to see the series fail, in a round step
+// that gives at most SweepPoints temperatures.
+func (s *demoScenario) sweepGrid() (lo, hi float64, points int) {
+	span := 4 * s.Beta
+	step := plot.NiceStep(span, s.SweepPoints)
+	points = int(math.Ceil(span/step - 1e-9))
+	// The ends are the numbers the command line in the report prints
+	// (56 x 0.025 is 1.4, not 1.4000000000000001), so that the command
+	// sweeps the same grid.
+	printed := func(v float64) float64 { p, _ := strconv.ParseFloat(fmtFloat(v), 64); return p }
+	return printed(step), printed(float64(points) * step), points
+}
+
+// sweepBetas are the inverse temperatures of "warmfit sweep --beta-grid
+// LO..HI --points N": N evenly spaced values, both ends included.
+func (s *demoScenario) sweepBetas() []float64 {
+	lo, hi, n := s.sweepGrid()
+	betas := make([]float64, n)
+	for i := range betas {
+		betas[i] = lo
+		if n > 1 {
+			betas[i] = lo + (hi-lo)*float64(i)/float64(n-1)
+		}
+	}
+	return betas
 }

@@ -117,7 +117,7 @@ func sampleCoefficients() *Document {
 	}
 	left := d.Panel(Rect{24, top, 470, 460}, "fitted vs true",
 		Axis{Label: "true coefficient", Min: lo, Max: hi, Step: NiceStep(hi-lo, 6)}, Axis{Label: "fitted coefficient", Min: lo, Max: hi, Step: NiceStep(hi-lo, 6)})
-	ref := Stroke{Color: refColor, Width: weightThin, Dash: []float64{6, 4}}
+	ref := ReferenceStroke(true)
 	left.Line([]float64{lo - 1, hi + 1}, []float64{lo - 1, hi + 1}, ref)
 	var legend []LegendEntry
 	byKind := map[string][]int{}
@@ -134,7 +134,7 @@ func sampleCoefficients() *Document {
 			x, y, e = append(x, truth[i]), append(y, fitted[i]), append(e, stderr[i])
 		}
 		m := KindMarker(k)
-		left.ErrorBars(x, y, e, Stroke{Color: m.Color, Width: weightThin, Alpha: 0.7})
+		left.ErrorBars(x, y, e, ErrorBarStroke(m.Color))
 		left.Points(x, y, m)
 		legend = append(legend, LegendEntry{Label: k, Marker: &m})
 	}
@@ -169,7 +169,7 @@ func sampleCoefficients() *Document {
 		Axis{Label: "fitted − true", Min: -elim, Max: elim})
 	right.HLine(0, ref, "")
 	for i := range xs {
-		right.ErrorBars(xs[i:i+1], es[i:i+1], bars[i:i+1], Stroke{Color: cols[i].Color, Width: weightThin, Alpha: 0.7})
+		right.ErrorBars(xs[i:i+1], es[i:i+1], bars[i:i+1], ErrorBarStroke(cols[i].Color))
 		m := cols[i]
 		m.Size = 2.6
 		right.Points(xs[i:i+1], es[i:i+1], m)
@@ -209,15 +209,15 @@ func samplePulls() *Document {
 		}
 		p := d.Panel(Rect{24 + float64(i)*490, top, 460, 360}, set.title,
 			Axis{Label: "pull", Min: -lim, Max: lim, Tight: true}, Axis{Label: "terms per bin", Min: 0, Max: top2 * 1.15})
-		barColor := Sequential.At(0.3)
-		p.Bars(edges, counts, Fill{Color: barColor}, Stroke{Color: barColor.shade(-0.2), Width: 0.8})
+		bars, outline := HistogramStyle()
+		p.Bars(edges, counts, bars, outline)
 		var xs, ys []float64
 		for k := 0; k <= 160; k++ {
 			z := -lim + 2*lim*float64(k)/160
 			xs = append(xs, z)
 			ys = append(ys, peak*math.Exp(-z*z/2))
 		}
-		normal := Stroke{Color: refColor, Width: weightData}
+		normal := ReferenceStroke(false)
 		p.Line(xs, ys, normal)
 		mean, rms := 0.0, 0.0
 		for _, z := range pulls {
@@ -227,7 +227,7 @@ func samplePulls() *Document {
 		mean /= float64(set.n)
 		rms = math.Sqrt(rms / float64(set.n))
 		p.Legend(
-			LegendEntry{Label: fmt.Sprintf("%d pulls", set.n), Fill: &Fill{Color: barColor}},
+			LegendEntry{Label: fmt.Sprintf("%d pulls", set.n), Fill: &bars},
 			LegendEntry{Label: "standard normal", Line: normal},
 			LegendEntry{Label: fmt.Sprintf("mean %+.3f", mean)},
 			LegendEntry{Label: fmt.Sprintf("rms %.3f", rms)},
@@ -258,7 +258,7 @@ func sampleThermo() *Document {
 		{Color: Category(1), Width: 1.4, Dash: []float64{2, 3}},
 	}
 	for qi, p := range panels {
-		p.ShadeX(0, 0.74, Fill{Color: Diverging.At(0.42), Alpha: 0.5})
+		p.ShadeX(0, 0.74, TrustedFill())
 		for oi, o := range orders {
 			ys := make([]float64, len(betas))
 			for i, b := range betas {
@@ -277,7 +277,8 @@ func sampleThermo() *Document {
 			for oi, o := range orders {
 				entries = append(entries, LegendEntry{Label: fmt.Sprintf("order %d", o), Line: styles[oi]})
 			}
-			entries = append(entries, LegendEntry{Label: "converged (tol 1e-3 per site)", Fill: &Fill{Color: Diverging.At(0.42), Alpha: 0.5}},
+			trusted := TrustedFill()
+			entries = append(entries, LegendEntry{Label: "converged (tol 1e-3 per site)", Fill: &trusted},
 				LegendEntry{Label: "operating point", Line: op})
 			p.Legend(entries...)
 		}
@@ -309,7 +310,7 @@ func sampleMaterials() *Document {
 	ps := d.Stack(Rect{24, top, 852, 560 - top - 10}, Axis{Label: "temperature T / J", Min: 0.3, Max: 6.1, Tight: true},
 		Row{Title: "χ(T)", Y: Axis{Label: "χ J / (g μB)²", Min: 0, Max: 0.2}, Weight: 3},
 		Row{Y: Axis{Label: "residual / σ", Min: -3.5, Max: 3.5, Tight: true}, Weight: 1.2})
-	trusted := Fill{Color: Diverging.At(0.42), Alpha: 0.5}
+	trusted := TrustedFill()
 	for _, p := range ps {
 		p.ShadeX(1.2, 6.1, trusted)
 	}

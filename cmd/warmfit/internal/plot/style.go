@@ -60,3 +60,35 @@ const (
 	legendSample  = 24
 	lineHeight    = 1.35 // in font sizes
 )
+
+// The house strokes and fills, for the figures the commands compose:
+// use these rather than widths and colours of their own, so that every
+// figure draws curves, error bars, references and trusted ranges alike.
+
+// CurveStroke is a data or model curve in colour c.
+func CurveStroke(c Color) Stroke { return Stroke{Color: c, Width: weightData} }
+
+// ErrorBarStroke is an error bar in colour c, a little transparent so
+// that dense bars do not hide their markers.
+func ErrorBarStroke(c Color) Stroke { return Stroke{Color: c, Width: weightThin, Alpha: 0.7} }
+
+// ReferenceStroke is a reference in the dark neutral no data colour
+// uses: dashed and thin for a line the data should follow (y = x, zero),
+// solid at the weight of a curve for a curve they should fill (a normal
+// density).
+func ReferenceStroke(dashed bool) Stroke {
+	if dashed {
+		return Stroke{Color: refColor, Width: weightThin, Dash: []float64{6, 4}}
+	}
+	return Stroke{Color: refColor, Width: weightData}
+}
+
+// TrustedFill shades the range of a variable where a method is trusted
+// (Panel.ShadeX): the pale cool side of the diverging scale.
+func TrustedFill() Fill { return Fill{Color: Diverging.At(0.42), Alpha: 0.5} }
+
+// HistogramStyle is the fill and outline of histogram bars.
+func HistogramStyle() (Fill, Stroke) {
+	c := Sequential.At(0.3)
+	return Fill{Color: c}, Stroke{Color: c.shade(-0.2), Width: weightFrame}
+}
