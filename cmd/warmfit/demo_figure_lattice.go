@@ -54,9 +54,12 @@ func (d *demoRun) latticePanel(doc *plot.Document, cell plot.Rect, title string,
 	box := plot.Rect{X: cell.X, Y: cell.Y + 20, W: cell.W - 16, H: latticeBox}
 	v := doc.Lattice(box, g, layers)
 	v.Outline(d.patch.Sites, "patch")
-	barW := (box.W - 40) / 2
+	// Two bars side by side, far enough apart that their end labels,
+	// centred on the ends, do not meet.
+	const gap = 40.0
+	barW := (box.W - 20 - gap) / 2
 	for k, m := range maps {
-		doc.ColorBar(plot.Rect{X: box.X + 10 + float64(k)*(barW+20), Y: box.Bottom() + 10 + plot.ColorBarAbove, W: barW, H: 10}, m)
+		doc.ColorBar(plot.Rect{X: box.X + 10 + float64(k)*(barW+gap), Y: box.Bottom() + 10 + plot.ColorBarAbove, W: barW, H: 10}, m)
 	}
 }
 

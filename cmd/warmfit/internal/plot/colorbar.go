@@ -66,9 +66,10 @@ func (d *Document) ColorBar(r Rect, m ColorMap) {
 }
 
 // barTicks chooses about one tick per 45 pixels of a bar, fewer when
-// the labels of a horizontal bar would touch.
+// the labels of a horizontal bar would touch, more when that leaves
+// fewer than three ticks and their labels still fit.
 func barTicks(m ColorMap, length float64, horizontal bool) ([]float64, []richText) {
-	for target := max(2, int(length/45)); ; target-- {
+	try := func(target int) ([]float64, []richText, bool) {
 		step := niceStep(m.Max-m.Min, target, false)
 		ticks := linearTicks(m.Min, m.Max, step)
 		labels := tickLabels(ticks, step)
@@ -76,8 +77,20 @@ func barTicks(m ColorMap, length float64, horizontal bool) ([]float64, []richTex
 		for _, l := range labels {
 			widest = math.Max(widest, l.width(sizeTick))
 		}
-		gap := step / (m.Max - m.Min) * length
-		if !horizontal || target <= 2 || gap >= widest+8 {
+		return ticks, labels, !horizontal || step/(m.Max-m.Min)*length >= widest+8
+	}
+	target := max(2, int(length/45))
+	for t := target + 1; t <= target+6; t++ {
+		if ticks, _, _ := try(t - 1); len(ticks) >= 3 {
+			break
+		}
+		if _, _, fits := try(t); !fits {
+			break
+		}
+		target = t
+	}
+	for ; ; target-- {
+		if ticks, labels, fits := try(target); fits || target <= 2 {
 			return ticks, labels
 		}
 	}
