@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"math"
 
+	"warmfit/cluster"
 	"warmfit/cmd/warmfit/internal/plot"
 )
 
@@ -14,18 +15,9 @@ import (
 func (d *demoRun) figSweep() (*plot.Document, error) {
 	t := d.temp
 	r := t.Sweep
-	L := r.Order
-	var orders []int
-	for o := L; o >= max(1, L-2); o-- {
+	var orders []int // the fit's first
+	for o := r.Order; o >= max(1, r.Order-2); o-- {
 		orders = append(orders, o)
-	}
-	// Per site, at order o.
-	series := func(q [][]float64, o int) []float64 {
-		out := make([]float64, len(r.Betas))
-		for i := range r.Betas {
-			out[i] = q[i][o-1] / float64(r.NumSites)
-		}
-		return out
 	}
 	top := r.Betas[len(r.Betas)-1]
 	edge := top // where the shaded, trusted range ends
@@ -35,27 +27,13 @@ func (d *demoRun) figSweep() (*plot.Document, error) {
 	case t.Edge > 0:
 		edge = 0
 	}
-	quantities := []struct {
-		title, label string
-		data         [][]float64
-	}{{"energy per site", "E / N", r.Energy}, {"heat capacity per site", "C / N", r.HeatCapacity}}
+	quantities := []sweepQuantity{{"energy per site", "E / N", r.Energy}, {"heat capacity per site", "C / N", r.HeatCapacity}}
 	rows := make([]plot.Row, len(quantities))
 	for qi, q := range quantities {
-		// The range follows the fit's order and the lower orders only up
-		// to a little beyond the trusted range, so that a diverging low
-		// order does not flatten the plot.
-		lo, hi := 0.0, 0.0
-		for _, o := range orders {
-			for i, v := range series(q.data, o) {
-				if o == L || r.Betas[i] <= 1.3*edge {
-					lo, hi = math.Min(lo, v), math.Max(hi, v)
-				}
-			}
-		}
-		rows[qi] = plot.Row{Title: q.title, Y: plot.Axis{Label: q.label, Min: lo, Max: hi}}
+		rows[qi] = q.row(r, orders, edge)
 	}
 	doc := plot.New(860, 700, "thermodynamics of the fitted model")
-	head := doc.Heading(fmt.Sprintf("Thermodynamics of the fitted model (order-%d expansion)", L),
+	head := doc.Heading(fmt.Sprintf("Thermodynamics of the fitted model (order-%d expansion)", r.Order),
 		"the series are trusted where successive orders agree; beyond, the expansion needs larger clusters")
 	panels := doc.Stack(plot.Rect{X: 24, Y: head, W: 812, H: 700 - head - 40}, plot.Axis{Label: "inverse temperature β", Min: 0, Max: top}, rows...)
 	styles := []plot.Stroke{
@@ -72,22 +50,19 @@ func (d *demoRun) figSweep() (*plot.Document, error) {
 		// The fit's order last, on top: where the orders agree, it is
 		// the one seen.
 		for j := len(orders) - 1; j >= 0; j-- {
-			p.Line(r.Betas, series(quantities[qi].data, orders[j]), styles[j])
+			p.Line(r.Betas, quantities[qi].perSite(r, orders[j]), styles[j])
 		}
 		p.VLine(d.sc.Beta, operating, fmt.Sprintf("operating β = %s", fmtFloat(d.sc.Beta)))
 		if b := t.Bound.Beta; b > 0 && b < top {
 			p.VLine(b, plot.ReferenceStroke(true), "sufficient bound")
 		}
-		if qi == 0 {
-			var entries []plot.LegendEntry
-			for j, o := range orders {
-				entries = append(entries, plot.LegendEntry{Label: fmt.Sprintf("order %d", o), Line: styles[j]})
-			}
-			entries = append(entries, plot.LegendEntry{Label: fmt.Sprintf("converged (tol %g per site)", d.sc.SweepTol), Fill: &trusted},
-				plot.LegendEntry{Label: "operating point", Line: operating})
-			p.Legend(entries...)
-		}
 	}
+	var entries []plot.LegendEntry
+	for j, o := range orders {
+		entries = append(entries, plot.LegendEntry{Label: fmt.Sprintf("order %d", o), Line: styles[j]})
+	}
+	panels[0].Legend(append(entries, plot.LegendEntry{Label: fmt.Sprintf("converged (tol %g per site)", d.sc.SweepTol), Fill: &trusted},
+		plot.LegendEntry{Label: "operating point", Line: operating})...)
 	note := fmt.Sprintf("energy and heat capacity converge over the whole sweep; the sufficient-condition bound is β < %.2g", t.Bound.Beta)
 	if t.Edge > 0 {
 		note = fmt.Sprintf("energy and heat capacity converge up to β = %s (first failure at %s); the sufficient-condition bound is β < %.2g",
@@ -95,4 +70,35 @@ func (d *demoRun) figSweep() (*plot.Document, error) {
 	}
 	doc.Note(24, 700-18, 812, note)
 	return doc, nil
+}
+
+// sweepQuantity is one panel of the sweep figure: a series per
+// temperature and order of the sweep's result.
+type sweepQuantity struct {
+	title, label string
+	data         [][]float64 // [temperature][order-1], whole lattice
+}
+
+// perSite returns the quantity per site at order o.
+func (q sweepQuantity) perSite(r *cluster.ThermoResult, o int) []float64 {
+	out := make([]float64, len(r.Betas))
+	for i := range r.Betas {
+		out[i] = q.data[i][o-1] / float64(r.NumSites)
+	}
+	return out
+}
+
+// row is the panel's y axis: the range of the fit's order everywhere and
+// of the lower orders up to a little beyond the trusted edge, so that a
+// diverging low order does not flatten the plot.
+func (q sweepQuantity) row(r *cluster.ThermoResult, orders []int, edge float64) plot.Row {
+	lo, hi := 0.0, 0.0
+	for _, o := range orders {
+		for i, v := range q.perSite(r, o) {
+			if o == r.Order || r.Betas[i] <= 1.3*edge {
+				lo, hi = math.Min(lo, v), math.Max(hi, v)
+			}
+		}
+	}
+	return plot.Row{Title: q.title, Y: plot.Axis{Label: q.label, Min: lo, Max: hi}}
 }

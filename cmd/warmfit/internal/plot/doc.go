@@ -36,7 +36,11 @@
 //
 // Categorical colours (Category, CategoryMarker) tell apart things that
 // have no order; KindMarker gives each kind of Pauli term (XX, Z, ...)
-// one colour and marker shape in every figure.
+// one colour and marker shape in every figure. CurveStroke,
+// ErrorBarStroke, ReferenceStroke, TrustedFill and HistogramStyle are
+// the house strokes and fills for the figures the commands compose, so
+// that curves, error bars, references and trusted ranges look alike in
+// all of them.
 //
 // # Example
 //
@@ -46,13 +50,13 @@
 //		plot.Axis{Label: "T / J", Min: 0.3, Max: 6},
 //		plot.Row{Title: "χ(T)", Y: plot.Axis{Label: "χ", Min: 0, Max: 0.2}, Weight: 3},
 //		plot.Row{Y: plot.Axis{Label: "residual / σ", Min: -3, Max: 3}})
-//	ps[0].ShadeX(1.2, 6, plot.Fill{Color: plot.Diverging.At(0.42), Alpha: 0.5})
+//	ps[0].ShadeX(1.2, 6, plot.TrustedFill())
 //	m := plot.CategoryMarker(0)
-//	ps[0].ErrorBars(ts, chi, errs, plot.Stroke{Color: m.Color, Width: 1})
+//	ps[0].ErrorBars(ts, chi, errs, plot.ErrorBarStroke(m.Color))
 //	ps[0].Points(ts, chi, m)
-//	ps[0].Line(fitT, fitChi, plot.Stroke{Color: plot.Category(7), Width: 1.7})
+//	ps[0].Line(fitT, fitChi, plot.CurveStroke(plot.Category(7)))
 //	ps[0].Legend(plot.LegendEntry{Label: "measured", Marker: &m})
-//	ps[1].HLine(0, plot.Stroke{Width: 1}, "")
+//	ps[1].HLine(0, plot.ReferenceStroke(true), "")
 //	ps[1].Points(ts, residuals, m)
 //	if _, err := d.WriteTo(w); err != nil {
 //		return err // names the panel, the method and the value
