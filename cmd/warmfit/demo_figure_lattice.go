@@ -110,23 +110,33 @@ func latticeValuesOf(r *demoRecovery) *latticeValues {
 func (v *latticeValues) layers(bond, site string) (plot.LatticeLayers, []plot.ColorMap, error) {
 	ls := plot.LatticeLayers{WidenBonds: true}
 	var maps []plot.ColorMap
-	if m := v.bonds[bond]; m != nil {
-		cm, err := plot.AutoColorMap("bonds: "+bond+" coupling", mapValues(m))
-		if err != nil {
-			return ls, nil, err
-		}
-		ls.BondValues, ls.BondMap = m, cm
-		maps = append(maps, cm)
+	bondMap, err := autoColorMapOf("bonds: "+bond+" coupling", v.bonds[bond])
+	if err != nil {
+		return ls, nil, err
 	}
-	if m := v.sites[site]; m != nil {
-		cm, err := plot.AutoColorMap("sites: "+site+" field", mapValues(m))
-		if err != nil {
-			return ls, nil, err
-		}
-		ls.SiteValues, ls.SiteMap = m, cm
-		maps = append(maps, cm)
+	siteMap, err := autoColorMapOf("sites: "+site+" field", v.sites[site])
+	if err != nil {
+		return ls, nil, err
+	}
+	if bondMap != nil {
+		ls.BondValues, ls.BondMap = v.bonds[bond], *bondMap
+		maps = append(maps, *bondMap)
+	}
+	if siteMap != nil {
+		ls.SiteValues, ls.SiteMap = v.sites[site], *siteMap
+		maps = append(maps, *siteMap)
 	}
 	return ls, maps, nil
+}
+
+// autoColorMapOf returns the colour map of a layer's values, nil for a
+// layer the model does not have.
+func autoColorMapOf[K comparable](label string, values map[K]float64) (*plot.ColorMap, error) {
+	if values == nil {
+		return nil, nil
+	}
+	m, err := plot.AutoColorMap(label, mapValues(values))
+	return &m, err
 }
 
 // pullLayers colours bonds and sites by their signed pulls on one

@@ -2,7 +2,6 @@ package main
 
 import (
 	"fmt"
-	"strings"
 	"time"
 
 	"warmfit/fit"
@@ -106,10 +105,4 @@ func (d *demoRun) crosscheckPatch() error {
 }
 
 // siteList writes sites the way "warmfit crosscheck --sites" reads them.
-func siteList(sites []int) string {
-	parts := make([]string, len(sites))
-	for i, s := range sites {
-		parts[i] = fmt.Sprint(s)
-	}
-	return strings.Join(parts, ",")
-}
+func siteList(sites []int) string { return joinInts(sites, ",") }

@@ -213,7 +213,7 @@ func (d *demoRun) reportTemperature(m *mdWriter) {
 	m.p("| sufficient-condition bound (term-overlap degree %d) | beta < %.3g |\n", t.Bound.Degree, t.Bound.Beta)
 	m.p("| operating beta | %s (%.0fx the bound) |\n", fmtFloat(sc.Beta), sc.Beta/t.Bound.Beta)
 	m.p("| unconverged term expectations at the fit (order %d) | %d of %d |\n", t.Order, t.Untrusted, t.Terms)
-	m.p("| truncation error of the coefficients (orders %s) | %s (target %s) |\n", intsJoin(t.Truncation.Orders), fmtMaybePtr(t.Truncation.Error), fmtG3(t.Truncation.Target))
+	m.p("| truncation error of the coefficients (orders %s) | %s (target %s) |\n", joinInts(t.Truncation.Orders, ", "), fmtMaybePtr(t.Truncation.Error), fmtG3(t.Truncation.Target))
 	edge := "beyond the sweep"
 	if t.Edge > 0 {
 		edge = "beta < " + fmtFloat(t.Edge)
@@ -316,12 +316,12 @@ func plural(n int, what string) string {
 	return fmt.Sprintf("%d %ss", n, what)
 }
 
-func intsJoin(v []int) string {
+func joinInts(v []int, sep string) string {
 	s := make([]string, len(v))
 	for i, x := range v {
 		s[i] = fmt.Sprint(x)
 	}
-	return strings.Join(s, ", ")
+	return strings.Join(s, sep)
 }
 
 func capitalise(s string) string {
