@@ -62,7 +62,7 @@ func (d *demoRun) stepTemperature() error {
 		"sweep", "--model", "fitted.json", "--beta-grid", fmtFloat(lo)+".."+fmtFloat(hi), "--points", fmt.Sprint(n),
 		"--order", fmt.Sprint(t.Order), "--tol", fmtG3(sc.SweepTol), "-o", "sweep.csv")
 	if err := d.write("sweep.csv", func(w io.Writer) error {
-		return writeThermo(w, &runEnv{Stderr: io.Discard}, res, sc.SweepTol)
+		return writeSweep(w, &runEnv{Stderr: io.Discard}, res, sc.SweepTol)
 	}); err != nil {
 		return err
 	}

@@ -109,14 +109,14 @@ Without beta (neither --beta nor the template's), the products beta*lambda are
 fitted and written with beta = 1; the report says so.
 
 Output: the fitted model as JSON with a per-term "stderr" and a "fit" report object
-(it feeds straight back into 'warmfit expect'), or with --format csv the table
+(it feeds straight back into 'warmfit predict'), or with --format csv the table
 pauli,sites,coeff,stderr,significant. A plain-language summary goes to stderr, with
 WARNING lines whenever the result could mislead.`
 
 const fitExample = `# simulate, then learn back a disordered XXZ model on a 4x4 lattice
 warmfit model --lattice square:4x4 --preset xxz --set Jxy=0.4,Jz=0.3,hz=0.2 --disorder 0.1 --beta 0.5 -o truth.json
 warmfit model --lattice square:4x4 --preset xxz --set Jxy=1,Jz=1,hz=1 --beta 0.5 -o template.json
-warmfit expect --model truth.json --order 8 -o e.csv
+warmfit predict --model truth.json --order 8 -o e.csv
 warmfit fit --model template.json --data e.csv --truth truth.json -o fitted.json
 
 # snapshots, fixed order, coefficients as CSV

@@ -57,7 +57,7 @@ warmfit sample --model big.json --shots 100000 --generator binomial -o big-data.
 			fs.StringVar(&bases, "bases", "covering", "bases scheme: covering or random:K")
 			fs.Uint64Var(&seed, "seed", 1, "random seed")
 			fs.StringVar(&generator, "generator", "auto", "exact, binomial or auto")
-			fs.IntVar(&order, "order", 0, "expansion order for the binomial generator (default: chosen automatically, as in expect)")
+			fs.IntVar(&order, "order", 0, "expansion order for the binomial generator (default: chosen automatically, as in predict)")
 			fs.StringVarP(&out, "output", "o", "", "write the data to `FILE` instead of stdout")
 		},
 		Run: func(env *runEnv, args []string) error {

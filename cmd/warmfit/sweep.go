@@ -18,18 +18,19 @@ import (
 func init() {
 	var (
 		modelPath string
-		betaRange string
+		betaGrid  string
+		oldRange  string // the retired --beta-range, answered with a pointer
 		order     int
 		tol       float64
 		out       string
 		flags     *pflag.FlagSet
 	)
 	register(&command{
-		Name:  "thermo",
+		Name:  "sweep",
 		Short: "per-site thermodynamics over a temperature grid",
-		Usage: "warmfit thermo --model M.json --beta-range A:B:N [--order L] [-o FILE]",
-		Long: `Thermo sums the linked-cluster expansion of the model for N inverse temperatures
-evenly spaced from A to B and writes, per site: log Z, energy, entropy (nats) and heat
+		Usage: "warmfit sweep --model M.json --beta-grid from=A,to=B,points=N [--order L] [-o FILE]",
+		Long: `Sweep sums the linked-cluster expansion of the model for N inverse temperatures
+evenly spaced from A to B (both included) and writes, per site: log Z, energy, entropy (nats) and heat
 capacity, with the estimated truncation error of energy and heat capacity and
 whether both are within --tol. Each cluster is diagonalised
 once for the whole grid. The model's own beta is ignored.
@@ -37,11 +38,13 @@ once for the whole grid. The model's own beta is ignored.
 Rows with trusted=false lie at temperatures too low for the order: the stderr summary
 gives the trusted range.`,
 		Example: `warmfit model --lattice square:12x12:periodic --preset heisenberg --set J=1 -o h.json
-warmfit thermo --model h.json --beta-range 0.05:1:20 --order 6`,
+warmfit sweep --model h.json --beta-grid from=0.05,to=1,points=20 --order 6`,
 		Flags: func(fs *pflag.FlagSet) {
 			flags = fs
 			fs.StringVar(&modelPath, "model", "", "model file (JSON)")
-			fs.StringVar(&betaRange, "beta-range", "", "grid A:B:N of inverse temperatures")
+			fs.StringVar(&betaGrid, "beta-grid", "", "inverse temperatures: from=A,to=B,points=N (evenly spaced, both ends included)")
+			fs.StringVar(&oldRange, "beta-range", "", "replaced by --beta-grid")
+			_ = fs.MarkHidden("beta-range")
 			fs.IntVar(&order, "order", 0, "largest cluster size (default: the highest the automatic work limit affords)")
 			fs.Float64Var(&tol, "tol", 1e-3, "truncation error per site at which a row counts as trusted")
 			fs.StringVarP(&out, "output", "o", "", "write the table to `FILE` instead of stdout")
@@ -59,7 +62,10 @@ warmfit thermo --model h.json --beta-range 0.05:1:20 --order 6`,
 			if !(tol > 0) || math.IsInf(tol, 0) {
 				return usagef("--tol %v: must be a positive number", tol)
 			}
-			betas, err := parseBetaRange(betaRange)
+			if oldRange != "" {
+				return retiredBetaRange(oldRange)
+			}
+			betas, err := parseBetaGrid(betaGrid)
 			if err != nil {
 				return err
 			}
@@ -75,7 +81,7 @@ warmfit thermo --model h.json --beta-range 0.05:1:20 --order 6`,
 				// One diagonalisation per cluster serves every temperature,
 				// so the automatic order is the highest the policy affords.
 				order = cluster.NewOrderPolicy(m.Lattice, m.Terms).Highest(exp)
-				fmt.Fprintf(env.Stderr, "thermo: expansion order %d chosen automatically (the highest within the automatic work limit)\n", order)
+				fmt.Fprintf(env.Stderr, "sweep: expansion order %d chosen automatically (the highest within the automatic work limit)\n", order)
 			}
 			bar := newProgressBar(env, "expanding")
 			start := time.Now()
@@ -84,35 +90,71 @@ warmfit thermo --model h.json --beta-range 0.05:1:20 --order 6`,
 			if err != nil {
 				return err
 			}
-			fmt.Fprintf(env.Stderr, "thermo: %s, %d sites, order %d, %d temperatures, %.2fs\n",
+			fmt.Fprintf(env.Stderr, "sweep: %s, %d sites, order %d, %d temperatures, %.2fs\n",
 				m.Lattice.Spec, m.Lattice.NumSites(), order, len(betas), time.Since(start).Seconds())
 			return writeOutput(env, out, func(w io.Writer) error {
-				return writeThermo(w, env, res, tol)
+				return writeSweep(w, env, res, tol)
 			})
 		},
 	})
 }
 
-func parseBetaRange(s string) ([]float64, error) {
+// parseBetaGrid reads "from=A,to=B,points=N" (keys in any order). The
+// colon form A:B:N of earlier versions is refused with a pointer to this one:
+// in a common numerical language a:b:c means start:step:end, so it misleads.
+func parseBetaGrid(s string) ([]float64, error) {
+	const example = "from=0.05,to=1,points=20"
 	if s == "" {
-		return nil, usagef("--beta-range A:B:N is required")
+		return nil, usagef("--beta-grid is required, for example --beta-grid %s", example)
 	}
-	parts := strings.Split(s, ":")
-	if len(parts) != 3 {
-		return nil, usagef("--beta-range %q: want A:B:N, for example 0.1:1:10", s)
+	if strings.Contains(s, ":") {
+		return nil, usagef("--beta-grid %q: the colon form is not accepted (A:B:C reads as start:step:end in some languages); write the keys, for example --beta-grid %s", s, example)
 	}
-	a, errA := strconv.ParseFloat(parts[0], 64)
-	b, errB := strconv.ParseFloat(parts[1], 64)
-	n, errN := strconv.Atoi(parts[2])
+	var a, b float64
+	n := -1
+	seen := map[string]bool{}
+	for _, part := range strings.Split(s, ",") {
+		key, val, ok := strings.Cut(strings.TrimSpace(part), "=")
+		if !ok {
+			return nil, usagef("--beta-grid %q: %q is not key=value; want %s", s, part, example)
+		}
+		key = strings.TrimSpace(key)
+		val = strings.TrimSpace(val)
+		if seen[key] {
+			return nil, usagef("--beta-grid %q: %s given twice", s, key)
+		}
+		seen[key] = true
+		switch key {
+		case "from", "to":
+			x, err := strconv.ParseFloat(val, 64)
+			if err != nil || math.IsNaN(x) || math.IsInf(x, 0) || x <= 0 {
+				return nil, usagef("--beta-grid %q: %s=%s must be a positive number", s, key, val)
+			}
+			if key == "from" {
+				a = x
+			} else {
+				b = x
+			}
+		case "points":
+			k, err := strconv.Atoi(val)
+			if err != nil || k < 1 || k > maxGridPoints {
+				return nil, usagef("--beta-grid %q: points=%s must be an integer from 1 to %d", s, val, maxGridPoints)
+			}
+			n = k
+		default:
+			return nil, usagef("--beta-grid %q: unknown key %q (keys: from, to, points)", s, key)
+		}
+	}
+	for _, key := range []string{"from", "to", "points"} {
+		if !seen[key] {
+			return nil, usagef("--beta-grid %q: %s is missing; want %s", s, key, example)
+		}
+	}
 	switch {
-	case errA != nil || math.IsNaN(a) || math.IsInf(a, 0) || a <= 0:
-		return nil, usagef("--beta-range %q: start %q must be a positive number", s, parts[0])
-	case errB != nil || math.IsNaN(b) || math.IsInf(b, 0) || b < a:
-		return nil, usagef("--beta-range %q: end %q must be a number >= the start", s, parts[1])
-	case errN != nil || n < 1 || n > 100000:
-		return nil, usagef("--beta-range %q: count %q must be an integer from 1 to 100000", s, parts[2])
+	case b < a:
+		return nil, usagef("--beta-grid %q: to=%s is below from=%s", s, fmtFloat(b), fmtFloat(a))
 	case n == 1 && a != b:
-		return nil, usagef("--beta-range %q: one point needs A = B", s)
+		return nil, usagef("--beta-grid %q: one point needs from = to", s)
 	}
 	betas := make([]float64, n)
 	for i := range betas {
@@ -124,11 +166,25 @@ func parseBetaRange(s string) ([]float64, error) {
 	return betas, nil
 }
 
-func writeThermo(w io.Writer, env *runEnv, r *cluster.ThermoResult, tol float64) error {
+// retiredBetaRange answers the old --beta-range A:B:N with the equivalent
+// --beta-grid, spelled out, so the user sees which number meant what.
+func retiredBetaRange(old string) error {
+	parts := strings.Split(old, ":")
+	if len(parts) == 3 {
+		return usagef("--beta-range was replaced by --beta-grid, which names its numbers; if %q meant start:end:count, write --beta-grid from=%s,to=%s,points=%s", old, parts[0], parts[1], parts[2])
+	}
+	return usagef("--beta-range was replaced by --beta-grid; write for example --beta-grid from=0.05,to=1,points=20")
+}
+
+// maxGridPoints bounds --beta-grid: every point costs a pass over all
+// cluster spectra and a row of output.
+const maxGridPoints = 100000
+
+func writeSweep(w io.Writer, env *runEnv, r *cluster.ThermoResult, tol float64) error {
 	bw := bufio.NewWriter(w)
 	n := float64(r.NumSites)
 	L := r.Order
-	fmt.Fprintf(bw, "# warmfit thermo: linked-cluster expansion, order %d, %d sites; values per site, entropy in nats\n", L, r.NumSites)
+	fmt.Fprintf(bw, "# warmfit sweep: linked-cluster expansion, order %d, %d sites; values per site, entropy in nats\n", L, r.NumSites)
 	fmt.Fprintln(bw, "beta,T,log_z,energy,entropy,heat_capacity,energy_error,heat_capacity_error,trusted")
 	lastTrusted := -1
 	firstUntrusted := -1
