@@ -54,7 +54,7 @@ says which order was used and why.
 empty), and by thermal typicality with random vectors up to 26 qubits, in which case
 stderr holds the statistical error of each value.
 
-`+csvOutputHelp,
+` + csvOutputHelp,
 		Example: `warmfit model --lattice square:4x4 --preset xxz --set Jxy=0.5,Jz=1,hz=0.3 --beta 0.4 -o m.json
 warmfit predict --model m.json --order 6 -o e.csv
 warmfit predict --model m.json --method exact`,

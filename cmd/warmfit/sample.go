@@ -47,7 +47,7 @@ file and on stderr.
 --bases covering picks a small set of product bases in which every term of the model
 is measured at least once; random:K draws K bases with a random letter per qubit.
 
-`+csvOutputHelp,
+` + csvOutputHelp,
 		Example: `warmfit model --lattice chain:8 --preset tfim --set J=1,hx=0.7 --beta 0.5 -o tfim.json
 warmfit sample --model tfim.json --shots 20000 --seed 7 -o shots.csv
 warmfit model --lattice square:20x20 --preset xxz --disorder 0.1 --seed 3 --beta 0.3 -o big.json

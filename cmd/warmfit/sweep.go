@@ -39,7 +39,7 @@ once for the whole grid. The model's own beta is ignored.
 Rows with trusted=false lie at temperatures too low for the order: the stderr summary
 gives the trusted range.
 
-`+csvOutputHelp,
+` + csvOutputHelp,
 		Example: `warmfit model --lattice square:12x12:periodic --preset heisenberg --set J=1 -o h.json
 warmfit sweep --model h.json --beta-grid from=0.05,to=1,points=20 --order 6`,
 		Flags: func(fs *pflag.FlagSet) {
