@@ -22,12 +22,17 @@ type Report struct {
 	OrderMode     string   `json:"order_selection"` // "fixed" or "auto"
 	Beta          float64  `json:"beta"`
 	BetaKnown     bool     `json:"beta_known"`
-	CoeffMeaning  string   `json:"coefficients"` // "lambda" or "beta*lambda"
-	Terms         int      `json:"terms"`
-	Parameters    int      `json:"parameters"`
-	DataKind      string   `json:"data,omitempty"`
-	DataFile      string   `json:"data_file,omitempty"`
-	ExactData     bool     `json:"exact_data"`
+	// BetaSource says where Beta comes from: "given", "energy scale"
+	// (recovered by ScaleEnergy; see EnergyScale) or "unknown" (Beta is
+	// 1 by convention and the coefficients are beta*lambda).
+	BetaSource   string             `json:"beta_source"`
+	EnergyScale  *ReportEnergyScale `json:"energy_scale,omitempty"`
+	CoeffMeaning string             `json:"coefficients"` // "lambda" or "beta*lambda"
+	Terms        int                `json:"terms"`
+	Parameters   int                `json:"parameters"`
+	DataKind     string             `json:"data,omitempty"`
+	DataFile     string             `json:"data_file,omitempty"`
+	ExactData    bool               `json:"exact_data"`
 	// Unmeasured counts terms without data fitted through their group.
 	Unmeasured  int    `json:"unmeasured_terms,omitempty"`
 	ErrorMethod string `json:"error_bars,omitempty"`
@@ -42,6 +47,19 @@ type Report struct {
 	Warnings       []string `json:"warnings"`
 	Notes          []string `json:"notes,omitempty"`
 	ElapsedSeconds float64  `json:"elapsed_seconds"`
+}
+
+// ReportEnergyScale is an EnergyScale in the report.
+type ReportEnergyScale struct {
+	From       string   `json:"from"` // the calibration, as a person writes it
+	Term       string   `json:"term,omitempty"`
+	Value      float64  `json:"value,omitempty"`
+	Beta       float64  `json:"beta"`
+	BetaStderr *float64 `json:"beta_stderr,omitempty"`
+	Method     string   `json:"method"`
+	// TrueBeta and BetaPull compare beta with the truth's (with --truth).
+	TrueBeta *float64 `json:"true_beta,omitempty"`
+	BetaPull *float64 `json:"beta_pull,omitempty"`
 }
 
 // ReportTruncation is Truncation in the report.
@@ -150,7 +168,15 @@ func NewReport(r *Result, mode, dataKind, dataFile string, tol float64) *Report 
 		Notes:         r.Notes,
 	}
 	rep.ElapsedSeconds = math.Round(r.Elapsed.Seconds()*1000) / 1000
-	if !r.BetaKnown {
+	rep.BetaSource = "given"
+	if es := r.EnergyScale; es != nil {
+		rep.BetaSource = "energy scale"
+		rep.EnergyScale = &ReportEnergyScale{
+			From: es.Calibration.String(), Term: es.Calibration.Term, Value: es.Calibration.Value,
+			Beta: es.Beta, BetaStderr: finitePtr(es.BetaStderr), Method: es.Method,
+		}
+	} else if !r.BetaKnown {
+		rep.BetaSource = "unknown"
 		rep.CoeffMeaning = "beta*lambda"
 	}
 	if r.Exact {
