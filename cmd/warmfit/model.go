@@ -234,6 +234,12 @@ func checkModel(env *runEnv) error {
 	if err != nil {
 		return err
 	}
+	if fittedWithoutScale(m) {
+		if o.beta.set {
+			return usagef("%s was fitted without beta: its coefficients are beta*lambda (beta = 1 by convention), so --beta would count the temperature twice; fix the energy scale with 'warmfit fit ... --scale-from TERM=VALUE'", o.check)
+		}
+		fmt.Fprintln(env.Stderr, unscaledModelWarning(o.check, "its beta and beta*max|coeff| below describe the products, and no energy in it is in physical units"))
+	}
 	if o.beta.set {
 		m.Beta = o.beta.value
 	}
@@ -282,7 +288,9 @@ func modelSummary(name string, m *model.Model) string {
 	if len(m.Fit) > 0 {
 		b.WriteString("; the file carries a fit report")
 	}
-	if m.Beta > 0 {
+	if fittedWithoutScale(m) {
+		fmt.Fprintf(&b, ". The coefficients are beta*lambda, fitted at unknown temperature: beta = %s is a convention, and beta*max|coeff| = %s", formatG(m.Beta, 4), formatG(m.Beta*maxAbs, 4))
+	} else if m.Beta > 0 {
 		fmt.Fprintf(&b, ". beta = %s, beta*max|coeff| = %s (the expansion converges best when this is small)", formatG(m.Beta, 4), formatG(m.Beta*maxAbs, 4))
 	} else {
 		b.WriteString(". No beta: give --beta to commands that need one")

@@ -109,6 +109,11 @@ func runPlan(env *runEnv, args []string) error {
 	if err != nil {
 		return err
 	}
+	var unscaled string
+	if fittedWithoutScale(m) {
+		unscaled = unscaledModelWarning(o.model, "the plan is for learning beta*lambda: --target and the predicted stderrs are in units of beta*lambda, not of lambda")
+		fmt.Fprintln(env.Stderr, unscaled)
+	}
 	n := m.Lattice.NumSites()
 	bases, scheme, err := fit.SchemeBases(o.bases, n, m.Terms, o.seed)
 	if err != nil {
@@ -130,6 +135,9 @@ func runPlan(env *runEnv, args []string) error {
 	fmt.Fprintf(env.Stderr, "plan: %s, %d sites, %d terms, beta %s, order-%d expansion\n", m.Lattice.Spec.Kind, n, len(m.Terms), fmtFloat(beta), plan.Order)
 	if o.format == "csv" {
 		meta := planCSVMeta(plan, scheme)
+		if unscaled != "" {
+			meta.line("%s", unscaled)
+		}
 		meta.set("model", o.model)
 		meta.set("beta", beta)
 		return writeCSVResult(env, o.out, o.csv, meta, func(w io.Writer) error { return planWriteCSV(w, m.Terms, plan) })

@@ -122,6 +122,9 @@ func loadModelBeta(path string, beta betaFlag) (*model.Model, float64, error) {
 	}
 	b := m.Beta
 	if beta.set {
+		if fittedWithoutScale(m) {
+			return nil, 0, usagef("%s was fitted without beta: its coefficients are beta*lambda (beta = 1 by convention), so --beta %s would count the temperature twice; drop --beta, or fix the energy scale with 'warmfit fit ... --scale-from TERM=VALUE'", path, beta.String())
+		}
 		b = beta.value
 	}
 	if b <= 0 {
