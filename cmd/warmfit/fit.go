@@ -159,6 +159,9 @@ func runFit(env *runEnv, args []string) error {
 		return usagef("--start %q: want first-order or template", o.start)
 	}
 
+	if err := checkOutputs([]outputFile{{"-o", o.out}}, o.model, o.data, o.truth); err != nil {
+		return err
+	}
 	tmpl, err := model.ReadFile(o.model)
 	if err != nil {
 		return err
