@@ -18,7 +18,7 @@ import (
 // j): the influence matrix U[p, j] = sum_a w_a M_ap c_aj maps string
 // noise to it, S = U Cov(m) U^T, and
 //
-//	Cov(theta_f) = X_ff^-1 S_ff X_ff^-1
+//	Cov(theta_f) = G_ff^-1 S_ff G_ff^-1
 //
 // when calibrations fix every multiplier; with a thermal match the
 // directions it fixes get the match covariance instead (pseudo-inverse of
@@ -30,7 +30,14 @@ func (res *Result) errorBars(sys *System, est *fit.Estimates, calRows []int, bas
 	np := ws.np
 	theta := res.Theta
 	ws.reweight(theta)
+	// The noise in the entries inflates both S and the plain normal
+	// matrix G = sum_a w_a M_a M_a^T by the same first-order amount, so
+	// the sandwich uses G (not the noise-corrected X): their biases
+	// cancel, which seeded repetitions confirm (pulls_test.go).
+	saved := append([]float64(nil), ws.r...)
+	clear(ws.r)
 	x := ws.dense()
+	copy(ws.r, saved)
 	// U columns per string.
 	u := make(map[int32]map[int32]float64)
 	for a := range ws.rows() {
