@@ -129,6 +129,9 @@ func runBulk(env *runEnv, args []string) error {
 	if len(args) == 0 {
 		return usagef("no input files (or --demo DIR)")
 	}
+	if err := checkOutputs([]outputFile{{"-o", o.out}, {"--curves", o.curves}}, args...); err != nil {
+		return err
+	}
 	job, err := newBulkJob(args)
 	if err != nil {
 		return err

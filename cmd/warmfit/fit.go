@@ -171,6 +171,9 @@ func runFit(env *runEnv, args []string) error {
 		calibration = &c
 	}
 
+	if err := checkOutputs([]outputFile{{"-o", o.out}}, o.model, o.data, o.truth); err != nil {
+		return err
+	}
 	tmpl, err := model.ReadFile(o.model)
 	if err != nil {
 		return err

@@ -109,6 +109,9 @@ func runLattice(env *runEnv, args []string) error {
 	if o.maxClusters < 0 {
 		return usagef("--max-clusters %d: want a count >= 0", o.maxClusters)
 	}
+	if err := checkOutputs([]outputFile{{"-o", o.out}, {"--svg", o.svg}}, o.lattice); err != nil {
+		return err
+	}
 	l, err := openLattice(o.lattice, o.shells)
 	if err != nil {
 		return err

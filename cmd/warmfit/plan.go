@@ -105,6 +105,9 @@ func runPlan(env *runEnv, args []string) error {
 	if o.order < 0 {
 		return usagef("--order %d: must be positive", o.order)
 	}
+	if err := checkOutputs([]outputFile{{"-o", o.out}}, o.model); err != nil {
+		return err
+	}
 	m, beta, err := loadModelBeta(o.model, o.beta)
 	if err != nil {
 		return err

@@ -80,6 +80,9 @@ warmfit predict --model m.json --method exact`,
 			if !(tol > 0) || math.IsInf(tol, 0) {
 				return usagef("--tol %v: must be a positive number", tol)
 			}
+			if err := checkOutputs([]outputFile{{"-o", out}}, modelPath); err != nil {
+				return err
+			}
 			m, b, err := loadModelBeta(modelPath, beta)
 			if err != nil {
 				return err

@@ -74,6 +74,9 @@ warmfit sample --model big.json --shots 100000 --generator binomial -o big-data.
 			if shots <= 0 {
 				return usagef("--shots N is required and must be positive")
 			}
+			if err := checkOutputs([]outputFile{{"-o", out}}, modelPath); err != nil {
+				return err
+			}
 			m, b, err := loadModelBeta(modelPath, beta)
 			if err != nil {
 				return err

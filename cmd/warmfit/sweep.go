@@ -73,6 +73,9 @@ warmfit sweep --model h.json --beta-grid from=0.05,to=1,points=20 --order 6`,
 			if err != nil {
 				return err
 			}
+			if err := checkOutputs([]outputFile{{"-o", out}}, modelPath); err != nil {
+				return err
+			}
 			m, err := model.ReadFile(modelPath)
 			if err != nil {
 				return err
