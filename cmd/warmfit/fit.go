@@ -54,6 +54,7 @@ func init() {
 			fs.StringVar(&o.model, "model", "", "template model `FILE`: lattice, terms, groups (coefficients are ignored unless --start template)")
 			fs.StringVar(&o.data, "data", "", "expectation table or snapshot `FILE` (told apart by the header)")
 			addBetaFlag(fs, &o.beta, "inverse temperature (overrides the template's; without either, beta*lambda is fitted)")
+			o.beta.omitted = betaOmittedFits
 			fs.StringVar(&o.order, "order", "auto", "expansion order L (largest cluster), or auto")
 			fs.IntVar(&o.maxOrder, "max-order", 0, "highest order --order auto may use (default: sites, at most 12)")
 			fs.DurationVar(&o.budget, "budget", 60*time.Second, "wall time --order auto may spend (a higher order is not started, or is abandoned, past it)")

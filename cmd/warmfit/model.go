@@ -48,6 +48,7 @@ func init() {
 			fs.Float64Var(&o.disorder, "disorder", 0, "add an independent uniform shift in [-W, W) to every coefficient")
 			fs.Uint64Var(&o.seed, "seed", 1, "seed of the disorder")
 			addBetaFlag(fs, &o.beta, "inverse temperature to record in the model (> 0)")
+			o.beta.omitted = "leave --beta out to write a model without beta (commands then need --beta, and fit learns beta*lambda)"
 			fs.Var(&o.shells, "shells", "neighbour shells of the interaction graph, 1 or 2 (overrides the lattice)")
 			fs.BoolVar(&o.tie, "tie", false, "give terms of one preset parameter a common group (uniform fit)")
 			fs.StringVar(&o.units, "units", "", "energy unit of the coefficients, recorded in the model")
