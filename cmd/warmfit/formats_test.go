@@ -55,6 +55,9 @@ func jsonKeys(v any, into map[string]bool) {
 	case map[string]any:
 		for k, e := range x {
 			into[k] = true
+			if k == "z_scores" {
+				continue // keyed by term, not field names
+			}
 			jsonKeys(e, into)
 		}
 	case []any:
