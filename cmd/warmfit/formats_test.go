@@ -56,7 +56,7 @@ func jsonKeys(v any, into map[string]bool) {
 		for k, e := range x {
 			into[k] = true
 			if k == "z_scores" {
-				continue // keyed by term ("ZZ 0 1"), not by field names
+				continue // keyed by term, not field names
 			}
 			jsonKeys(e, into)
 		}
