@@ -162,6 +162,11 @@ func newBulkJob(files []string) (*bulkJob, error) {
 	if !(o.perFormula > 0) {
 		return nil, usagef("--sites-per-formula %v: must be positive", o.perFormula)
 	}
+	if o.curves == "" && o.demo == "" {
+		if err := o.csv.misuse("the fit (JSON); they go with --curves"); err != nil {
+			return nil, err
+		}
+	}
 	if !(o.rejectBelow > 0 && o.rejectBelow < 1) {
 		return nil, usagef("--reject-below %v: must be in (0, 1)", o.rejectBelow)
 	}

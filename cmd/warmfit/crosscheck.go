@@ -120,6 +120,11 @@ func runCrosscheck(env *runEnv, o *crosscheckFlags, args []string) error {
 	if o.format != "csv" && o.format != "json" {
 		return usagef("--format %q: want csv or json", o.format)
 	}
+	if o.format == "json" {
+		if err := o.csv.misuse("--format json"); err != nil {
+			return err
+		}
+	}
 	if o.shape != "" && len(o.sites) > 0 {
 		return usagef("give --shape or --sites, not both")
 	}

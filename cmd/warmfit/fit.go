@@ -146,6 +146,11 @@ func runFit(env *runEnv, args []string) error {
 	if o.format != "json" && o.format != "csv" {
 		return usagef("--format %q: want json or csv", o.format)
 	}
+	if o.format != "csv" {
+		if err := o.csv.misuse("the fitted model (JSON); add --format csv"); err != nil {
+			return err
+		}
+	}
 	order := 0
 	if o.order != "auto" {
 		n, err := strconv.Atoi(o.order)

@@ -99,6 +99,11 @@ func runPlan(env *runEnv, args []string) error {
 	if o.format != "text" && o.format != "csv" && o.format != "json" {
 		return usagef("--format %q: want text, csv or json", o.format)
 	}
+	if o.format != "csv" {
+		if err := o.csv.misuse("--format " + o.format + "; add --format csv"); err != nil {
+			return err
+		}
+	}
 	if !(o.confidence > 0 && o.confidence < 1) {
 		return usagef("--confidence %v: must lie in (0, 1)", o.confidence)
 	}
