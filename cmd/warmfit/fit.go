@@ -186,6 +186,11 @@ func runFit(env *runEnv, args []string) error {
 	}
 	beta := tmpl.Beta
 	betaSource := "from " + o.model
+	if fittedWithoutScale(tmpl) && !o.beta.set {
+		// Its beta = 1 is a convention: the temperature is still unknown.
+		beta = 0
+		fmt.Fprintf(env.Stderr, "fit: %s holds a fit at unknown temperature (beta*lambda); its beta = 1 is not used\n", o.model)
+	}
 	if o.beta.set {
 		beta, betaSource = o.beta.value, "from --beta"
 	}

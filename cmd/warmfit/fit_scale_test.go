@@ -148,6 +148,17 @@ func TestFitUnknownBetaLabelled(t *testing.T) {
 			t.Errorf("%v: exit %d, no warning on stderr:\n%s", args, code, errs)
 		}
 	}
+	// Refitting with the unscaled model as template keeps beta unknown.
+	again := filepath.Join(dir, "again.json")
+	if code, _, errs := runCmd("fit", "--model", out, "--data", data, "--order", "4", "-o", again); code != exitOK || !strings.Contains(errs, "its beta = 1 is not used") {
+		t.Errorf("refit on the unscaled model: exit %d\n%s", code, errs)
+	}
+	if _, rep := fitReportOf(t, again); rep["beta_source"] != "unknown" {
+		t.Errorf("refit on the unscaled model: beta_source %v, want unknown", rep["beta_source"])
+	}
+	if code, stdout, errs := runCmd("predict", "--model", out, "--order", "4", "--csv-comments"); code != exitOK || !strings.Contains(stdout, "# the model's coefficients are beta*lambda") {
+		t.Errorf("predict on the unscaled model: exit %d\n%s\n%s", code, stdout, errs)
+	}
 	for _, args := range [][]string{
 		{"plan", "--model", out, "--target", "0.05", "--beta", "0.3"},
 		{"predict", "--model", out, "--beta", "0.3"},

@@ -105,6 +105,12 @@ warmfit predict --model m.json --method exact`,
 			meta.set("model", modelPath)
 			meta.set("method", method)
 			meta.set("beta", b)
+			if fittedWithoutScale(m) {
+				note := "the model's coefficients are beta*lambda (fitted without beta): beta = 1 is the temperature of its data, by convention"
+				meta.line("%s", note)
+				meta.set("beta_meaning", "1 by convention: the coefficients are beta*lambda")
+				fmt.Fprintln(env.Stderr, "predict: "+note)
+			}
 			for k, v := range fields {
 				meta.set(k, v)
 			}
