@@ -311,6 +311,9 @@ func predictExact(env *runEnv, m *model.Model, beta float64, vectors int, seed u
 	meta["exact_method"] = "thermal typicality"
 	meta["qubits"] = n
 	meta["vectors"] = opt.Vectors
+	if opt.Vectors == 0 {
+		meta["vectors"] = 16 // validate.TypicalityOptions' default
+	}
 	meta["seed"] = seed
 	meta["log_z"] = logZ.Value
 	meta["log_z_stderr"] = logZ.Stderr
