@@ -139,8 +139,11 @@ func runFit(env *runEnv, args []string) error {
 	order := 0
 	if o.order != "auto" {
 		n, err := strconv.Atoi(o.order)
-		if err != nil || n < 1 || n > cluster.MaxDenseQubits {
-			return usagef("--order %q: want auto or an integer from 1 to %d (clusters are diagonalised exactly)", o.order, cluster.MaxDenseQubits)
+		if err != nil {
+			return usagef("--order %q: want auto or an integer from %d to %d", o.order, minExpansionOrder, cluster.MaxDenseQubits)
+		}
+		if err := checkOrder(o.order, n); err != nil {
+			return err
 		}
 		order = n
 	}

@@ -117,11 +117,25 @@ func loadModelBeta(path string, beta betaFlag) (*model.Model, float64, error) {
 	return m, b, nil
 }
 
-// checkOrderFlag refuses an explicit --order outside 1..MaxDenseQubits
-// (clusters are diagonalised densely).
+// checkOrderFlag refuses an explicit --order outside
+// minExpansionOrder..MaxDenseQubits as a usage error.
 func checkOrderFlag(fs *pflag.FlagSet, order int) error {
-	if fs.Changed("order") && (order < 1 || order > cluster.MaxDenseQubits) {
-		return usagef("--order %d: must be from 1 to %d (clusters are diagonalised exactly)", order, cluster.MaxDenseQubits)
+	if fs.Changed("order") {
+		return checkOrder(strconv.Itoa(order), order)
+	}
+	return nil
+}
+
+// minExpansionOrder is the lowest --order any command takes: order 1
+// holds single sites only, no two-site term and no convergence estimate.
+const minExpansionOrder = 2
+
+// checkOrder is the one range check of an --order value (given is the
+// flag as written, for the message).
+func checkOrder(given string, order int) error {
+	if order < minExpansionOrder || order > cluster.MaxDenseQubits {
+		return usagef("--order %s: must be from %d to %d (order 1 holds single sites only; clusters are diagonalised exactly, at most %d sites)",
+			given, minExpansionOrder, cluster.MaxDenseQubits, cluster.MaxDenseQubits)
 	}
 	return nil
 }

@@ -180,30 +180,81 @@ func retiredBetaRange(old string) error {
 // cluster spectra and a row of output.
 const maxGridPoints = 100000
 
+// sweepTrust is the trust verdict of a sweep, per temperature and for the
+// grid; "warmfit sweep" and the demo state it in the same words
+// (sweepVerdict).
+type sweepTrust struct {
+	Energy, HeatCapacity []cluster.Convergence // per site, per temperature
+	Trusted              []bool                // both within tol
+	// LastGood is the last trusted beta before the first untrusted one
+	// (0 when the first is untrusted), Edge that first untrusted beta (0
+	// when every point is trusted).
+	LastGood, Edge float64
+	Tol            float64
+}
+
+// judgeSweep judges energy and heat capacity per site at every
+// temperature of r against tol.
+func judgeSweep(r *cluster.ThermoResult, tol float64) *sweepTrust {
+	n := float64(r.NumSites)
+	perSite := func(series []float64) []float64 {
+		out := make([]float64, len(series))
+		for o, v := range series {
+			out[o] = v / n
+		}
+		return out
+	}
+	t := &sweepTrust{Tol: tol}
+	for i, beta := range r.Betas {
+		e := cluster.Converge(perSite(r.Energy[i]), 1, tol)
+		c := cluster.Converge(perSite(r.HeatCapacity[i]), 1, tol)
+		ok := e.Trusted && c.Trusted
+		t.Energy, t.HeatCapacity, t.Trusted = append(t.Energy, e), append(t.HeatCapacity, c), append(t.Trusted, ok)
+		if t.Edge == 0 {
+			if ok {
+				t.LastGood = beta
+			} else {
+				t.Edge = beta
+			}
+		}
+	}
+	return t
+}
+
+// sweepVerdict is the one sentence on the trusted range of a sweep; it
+// starts with "WARNING: " when part of the grid is untrusted.
+func (t *sweepTrust) sweepVerdict() string {
+	switch {
+	case t.Edge == 0:
+		return fmt.Sprintf("converged at every temperature of the grid (tolerance %.2g per site)", t.Tol)
+	case t.LastGood == 0:
+		return fmt.Sprintf("WARNING: NOT converged at any temperature of the grid (tolerance %.2g per site): every row is untrusted; raise --order or go to higher temperature", t.Tol)
+	}
+	return fmt.Sprintf("WARNING: %s; rows from beta %s on are marked trusted=false and should not be used",
+		t.rangeText(), fmtFloat(t.Edge))
+}
+
+// rangeText says how far the series converge, e.g. "converged (tolerance
+// 0.001 per site) up to beta 0.6 (T = 1.67), the last trusted point of the
+// grid"; only meaningful when LastGood > 0.
+func (t *sweepTrust) rangeText() string {
+	return fmt.Sprintf("converged (tolerance %.2g per site) up to beta %s (T = %s), the last trusted point of the grid",
+		t.Tol, fmtFloat(t.LastGood), fmtFloat(1/t.LastGood))
+}
+
+// writeSweep writes the sweep table with its verdict as comment lines
+// and the verdict on env's stderr.
 func writeSweep(w io.Writer, env *runEnv, r *cluster.ThermoResult, tol float64) error {
 	bw := bufio.NewWriter(w)
 	n := float64(r.NumSites)
 	L := r.Order
+	trust := judgeSweep(r, tol)
+	verdict := trust.sweepVerdict()
 	fmt.Fprintf(bw, "# warmfit sweep: linked-cluster expansion, order %d, %d sites; values per site, entropy in nats\n", L, r.NumSites)
+	fmt.Fprintf(bw, "# %s\n", verdict)
 	fmt.Fprintln(bw, "beta,T,log_z,energy,entropy,heat_capacity,energy_error,heat_capacity_error,trusted")
-	lastTrusted := -1
-	firstUntrusted := -1
 	for i, beta := range r.Betas {
-		perSite := func(series []float64) []float64 {
-			out := make([]float64, len(series))
-			for o, v := range series {
-				out[o] = v / n
-			}
-			return out
-		}
-		e := cluster.Converge(perSite(r.Energy[i]), 1, tol)
-		c := cluster.Converge(perSite(r.HeatCapacity[i]), 1, tol)
-		trusted := e.Trusted && c.Trusted
-		if trusted {
-			lastTrusted = i
-		} else if firstUntrusted < 0 {
-			firstUntrusted = i
-		}
+		e, c := trust.Energy[i], trust.HeatCapacity[i]
 		logZ := r.LogZ[i][L-1]/n + math.Ln2
 		vals := []float64{beta, 1 / beta, logZ, e.Value, r.Entropy(i, L) / n, c.Value}
 		for _, v := range vals {
@@ -213,16 +264,8 @@ func writeSweep(w io.Writer, env *runEnv, r *cluster.ThermoResult, tol float64) 
 			bw.WriteString(strconv.FormatFloat(v, 'g', 10, 64))
 			bw.WriteByte(',')
 		}
-		fmt.Fprintf(bw, "%s,%s,%t\n", fmtFloat(e.Error), fmtFloat(c.Error), trusted)
+		fmt.Fprintf(bw, "%s,%s,%t\n", fmtFloat(e.Error), fmtFloat(c.Error), trust.Trusted[i])
 	}
-	switch {
-	case firstUntrusted < 0:
-		fmt.Fprintf(env.Stderr, "converged at every temperature of the grid (tolerance %.2g per site)\n", tol)
-	case lastTrusted < 0:
-		fmt.Fprintf(env.Stderr, "WARNING: NOT converged at any temperature of the grid (tolerance %.2g per site): every row is untrusted; raise --order or go to higher temperature\n", tol)
-	default:
-		fmt.Fprintf(env.Stderr, "WARNING: converged only for beta < %s (T > %s); rows beyond are marked trusted=false and should not be used\n",
-			fmtFloat(r.Betas[firstUntrusted]), fmtFloat(1/r.Betas[firstUntrusted]))
-	}
+	fmt.Fprintln(env.Stderr, verdict)
 	return bw.Flush()
 }
