@@ -23,6 +23,7 @@ func init() {
 		order     int
 		tol       float64
 		out       string
+		csvOut    csvFlags
 		flags     *pflag.FlagSet
 	)
 	register(&command{
@@ -36,7 +37,9 @@ whether both are within --tol. Each cluster is diagonalised
 once for the whole grid. The model's own beta is ignored.
 
 Rows with trusted=false lie at temperatures too low for the order: the stderr summary
-gives the trusted range.`,
+gives the trusted range.
+
+` + csvOutputHelp,
 		Example: `warmfit model --lattice square:12x12:periodic --preset heisenberg --set J=1 -o h.json
 warmfit sweep --model h.json --beta-grid from=0.05,to=1,points=20 --order 6`,
 		Flags: func(fs *pflag.FlagSet) {
@@ -48,6 +51,7 @@ warmfit sweep --model h.json --beta-grid from=0.05,to=1,points=20 --order 6`,
 			fs.IntVar(&order, "order", 0, "largest cluster size (default: the highest the automatic work limit affords)")
 			fs.Float64Var(&tol, "tol", 1e-3, "truncation error per site at which a row counts as trusted")
 			fs.StringVarP(&out, "output", "o", "", "write the table to `FILE` instead of stdout")
+			addCSVFlags(fs, &csvOut)
 		},
 		Run: func(env *runEnv, args []string) error {
 			if len(args) > 0 {
@@ -67,6 +71,9 @@ warmfit sweep --model h.json --beta-grid from=0.05,to=1,points=20 --order 6`,
 			}
 			betas, err := parseBetaGrid(betaGrid)
 			if err != nil {
+				return err
+			}
+			if err := checkOutputs([]outputFile{{"-o", out}}, modelPath); err != nil {
 				return err
 			}
 			m, err := model.ReadFile(modelPath)
@@ -92,8 +99,10 @@ warmfit sweep --model h.json --beta-grid from=0.05,to=1,points=20 --order 6`,
 			}
 			fmt.Fprintf(env.Stderr, "sweep: %s, %d sites, order %d, %d temperatures, %.2fs\n",
 				m.Lattice.Spec, m.Lattice.NumSites(), order, len(betas), time.Since(start).Seconds())
-			return writeOutput(env, out, func(w io.Writer) error {
-				return writeSweep(w, env, res, tol)
+			meta := &csvMeta{Command: "sweep", Contents: "one row per inverse temperature of the grid; values per site"}
+			meta.set("model", modelPath)
+			return writeCSVResult(env, out, csvOut, meta, func(w io.Writer) error {
+				return writeSweep(w, env, res, tol, meta)
 			})
 		},
 	})
@@ -242,16 +251,19 @@ func (t *sweepTrust) rangeText() string {
 		t.Tol, fmtFloat(t.LastGood), fmtFloat(1/t.LastGood))
 }
 
-// writeSweep writes the sweep table with its verdict as comment lines
-// and the verdict on env's stderr.
-func writeSweep(w io.Writer, env *runEnv, r *cluster.ThermoResult, tol float64) error {
+// writeSweep writes the sweep table and records its facts and verdict in
+// meta (the verdict also goes to stderr).
+func writeSweep(w io.Writer, env *runEnv, r *cluster.ThermoResult, tol float64, meta *csvMeta) error {
 	bw := bufio.NewWriter(w)
 	n := float64(r.NumSites)
 	L := r.Order
 	trust := judgeSweep(r, tol)
-	verdict := trust.sweepVerdict()
-	fmt.Fprintf(bw, "# warmfit sweep: linked-cluster expansion, order %d, %d sites; values per site, entropy in nats\n", L, r.NumSites)
-	fmt.Fprintf(bw, "# %s\n", verdict)
+	meta.line("warmfit sweep: linked-cluster expansion, order %d, %d sites; values per site, entropy in nats", L, r.NumSites)
+	meta.set("order", L)
+	meta.set("sites", r.NumSites)
+	meta.set("per_site", true)
+	meta.set("entropy_unit", "nats")
+	meta.set("tolerance", tol)
 	fmt.Fprintln(bw, "beta,T,log_z,energy,entropy,heat_capacity,energy_error,heat_capacity_error,trusted")
 	for i, beta := range r.Betas {
 		e, c := trust.Energy[i], trust.HeatCapacity[i]
@@ -266,6 +278,15 @@ func writeSweep(w io.Writer, env *runEnv, r *cluster.ThermoResult, tol float64) 
 		}
 		fmt.Fprintf(bw, "%s,%s,%t\n", fmtFloat(e.Error), fmtFloat(c.Error), trust.Trusted[i])
 	}
+	if trust.Edge > 0 {
+		meta.set("untrusted_from_beta", trust.Edge)
+		if trust.LastGood > 0 {
+			meta.set("trusted_up_to_beta", trust.LastGood)
+		}
+	}
+	meta.set("converged_everywhere", trust.Edge == 0)
+	verdict := trust.sweepVerdict()
+	meta.line("%s", verdict)
 	fmt.Fprintln(env.Stderr, verdict)
 	return bw.Flush()
 }

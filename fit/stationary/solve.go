@@ -1,0 +1,286 @@
+package stationary
+
+import (
+	"errors"
+	"fmt"
+	"math"
+	"sort"
+	"strings"
+
+	"gonum.org/v1/gonum/floats"
+
+	"warmfit/fit"
+)
+
+// ErrNoInformation is returned (wrapped) when the constraints resolve no
+// direction beyond noise: at infinite temperature every constraint
+// vanishes, and with too few shots the noise hides them.
+var ErrNoInformation = errors.New("stationary: the constraints carry no information beyond their noise")
+
+// Options tune Solve. The zero value gives the defaults.
+type Options struct {
+	// Low is the number of lowest eigenvalues of the weighted system
+	// reported (default 6).
+	Low int
+	// MaxIterations bounds the reweighting iterations (default 12).
+	MaxIterations int
+	// DenseLimit is the largest number of parameters solved with a dense
+	// eigendecomposition (default 1500); larger systems use Lanczos.
+	DenseLimit int
+	// InvisibleError is the standard error, in units of the unit
+	// direction, above which an eigen-direction counts as not resolved
+	// (default 0.3).
+	InvisibleError float64
+}
+
+func (o Options) withDefaults() Options {
+	if o.Low <= 0 {
+		o.Low = 6
+	}
+	if o.MaxIterations <= 0 {
+		o.MaxIterations = 12
+	}
+	if o.DenseLimit <= 0 {
+		o.DenseLimit = 1500
+	}
+	if o.InvisibleError <= 0 {
+		o.InvisibleError = 0.3
+	}
+	return o
+}
+
+// Direction is the learned null direction of the constraints.
+type Direction struct {
+	// Theta is the unit parameter vector (aligned with System.Params),
+	// its largest component positive.
+	Theta []float64
+	// Spectrum holds the lowest eigenvalues of the noise-weighted system
+	// X at Theta, ascending. With unit Theta, theta^T X theta is the
+	// chi² of the weighted residuals; moving a distance e along
+	// eigenvector j raises it by about e² (Spectrum[j] - Spectrum[0]).
+	Spectrum []float64
+	// StdErr[j] = 1/sqrt(Spectrum[j] - max(Spectrum[0], 0)) (j >= 1;
+	// StdErr[0] is 0): the standard error along eigenvector j.
+	StdErr []float64
+	// SNR[j] (j >= 1) is (Spectrum[j] - Spectrum[0]) over the increase
+	// noise alone gives along eigenvector j (sum_a w_a v^T C_a v): near
+	// or below 1 the direction is set by noise, not by the constraints.
+	SNR []float64
+	// Invisible lists the eigen-directions the data do not resolve
+	// (StdErr above Options.InvisibleError or SNR below 1), lowest first.
+	Invisible []InvisibleDirection
+	// Chi2 is the weighted residual sum of squares at Theta and
+	// Rows the number of constraints used (Dropped left out because a
+	// string had no data).
+	Chi2          float64
+	Rows, Dropped int
+	// Method is "dense" or "lanczos"; Iterations counts reweightings.
+	Method     string
+	Iterations int
+
+	ws  *weighted
+	low lowEigen
+}
+
+// InvisibleDirection is an eigen-direction of the constraints that the
+// data do not resolve.
+type InvisibleDirection struct {
+	Vector []float64 // unit, in parameter space, orthogonal to Theta
+	StdErr float64
+	// Name says what it is: a conserved quantity the terms can express
+	// (for example "total Z (uniform Z field)") or "not resolved by the
+	// data" when it matches none.
+	Name string
+}
+
+// Solve finds the direction of the coefficients from estimates of
+// sys.Strings. It minimises the noise-weighted residual
+// sum_a r_a(theta)² / Var(r_a(theta)) over unit theta by iterated
+// reweighting: each step takes the lowest eigenvector of
+// X = sum_a w_a M_a M_a^T - sum_a w_a² r_a² C_a (weighted total least
+// squares with the first-order noise correction), dense for small
+// systems and by Lanczos for large ones. It returns ErrNoInformation
+// (wrapped, with the spectrum in the returned Direction) when no
+// direction beyond the lowest is resolved.
+func Solve(sys *System, est *fit.Estimates, opt Options) (*Direction, error) {
+	opt = opt.withDefaults()
+	ws, err := newWeighted(sys, est)
+	if err != nil {
+		return nil, err
+	}
+	if ws.rows() == 0 {
+		return nil, fmt.Errorf("%w: no constraint has data for all its strings (%d rows left out)", ErrNoInformation, ws.dropped)
+	}
+	np := ws.np
+	k := min(opt.Low, np)
+	d := &Direction{ws: ws, Rows: ws.rows(), Dropped: ws.dropped}
+	var theta []float64
+	var low lowEigen
+	for it := 0; it < opt.MaxIterations; it++ {
+		ws.reweight(theta)
+		if theta == nil {
+			// The isotropic start has no residuals yet: no noise term.
+			clear(ws.r)
+		}
+		if np <= opt.DenseLimit {
+			low, err = denseLowest(ws.dense(), np, k)
+		} else {
+			var startVecs [][]float64
+			if low.vectors != nil {
+				startVecs = low.vectors
+			}
+			low, err = lanczosLowest(ws.mulVec, np, k, startVecs, 1e-9, 20000)
+		}
+		if err != nil {
+			return nil, err
+		}
+		next := low.vectors[0]
+		d.Iterations = it + 1
+		if theta != nil {
+			if floats.Dot(next, theta) < 0 {
+				floats.Scale(-1, next)
+			}
+			change := 0.0
+			for i := range next {
+				change = max(change, math.Abs(next[i]-theta[i]))
+			}
+			theta = next
+			if change < 1e-9 {
+				break
+			}
+			continue
+		}
+		theta = next
+	}
+	// Final weights and spectrum at the converged direction.
+	ws.reweight(theta)
+	if np <= opt.DenseLimit {
+		low, err = denseLowest(ws.dense(), np, k)
+	} else {
+		low, err = lanczosLowest(ws.mulVec, np, k, low.vectors, 1e-9, 20000)
+	}
+	if err != nil {
+		return nil, err
+	}
+	theta = low.vectors[0]
+	if theta[floats.MaxIdx(absAll(theta))] < 0 {
+		floats.Scale(-1, theta)
+	}
+	ws.reweight(theta)
+	d.Theta, d.low, d.Method = theta, low, low.method
+	d.Spectrum = low.values
+	d.Chi2 = ws.chi2()
+	d.StdErr = make([]float64, len(low.values))
+	d.SNR = make([]float64, len(low.values))
+	for j := 1; j < len(low.values); j++ {
+		// At a fixed point of the reweighting theta^T X theta = 0 exactly
+		// (the weights are 1/Var(r_a) at theta); a lowest eigenvalue below
+		// zero means the iteration wandered (no signal), and measuring
+		// from zero keeps the verdict conservative.
+		gap := low.values[j] - max(low.values[0], 0)
+		d.StdErr[j] = math.Inf(1)
+		if gap > 0 {
+			d.StdErr[j] = 1 / math.Sqrt(gap)
+		}
+		d.SNR[j] = gap / ws.noiseQuad(low.vectors[j])
+		if d.StdErr[j] > opt.InvisibleError || d.SNR[j] < 1 {
+			d.Invisible = append(d.Invisible, InvisibleDirection{Vector: low.vectors[j], StdErr: d.StdErr[j]})
+		}
+	}
+	nameInvisible(sys, d)
+	if len(low.values) > 1 && len(d.Invisible) == len(low.values)-1 {
+		return d, fmt.Errorf("%w: none of the %d lowest directions stands out of the noise (signal over noise of the next: %.3g); more shots or a lower temperature are needed",
+			ErrNoInformation, len(low.values), d.SNR[1])
+	}
+	return d, nil
+}
+
+func absAll(v []float64) []float64 {
+	out := make([]float64, len(v))
+	for i, x := range v {
+		out[i] = math.Abs(x)
+	}
+	return out
+}
+
+// conservedCandidates returns the uniform-field directions the terms can
+// express (one per letter with at least two single-site terms), named.
+func conservedCandidates(sys *System) (names []string, vecs [][]float64) {
+	p := sys.params
+	for _, l := range []string{"X", "Y", "Z"} {
+		v := make([]float64, p.NumParams())
+		count := 0
+		for q, members := range p.Members {
+			all := true
+			for _, k := range members {
+				if t := sys.terms[k]; len(t.Sites) != 1 || t.Pauli != l {
+					all = false
+				}
+			}
+			if all {
+				v[q] = 1
+				count += len(members)
+			}
+		}
+		if count >= 2 {
+			floats.Scale(1/floats.Norm(v, 2), v)
+			names = append(names, fmt.Sprintf("total %s (uniform %s field)", l, l))
+			vecs = append(vecs, v)
+		}
+	}
+	return names, vecs
+}
+
+// nameInvisible names each invisible direction after the conserved
+// candidate it overlaps best (|overlap| > 0.8), else as unresolved.
+func nameInvisible(sys *System, d *Direction) {
+	names, vecs := conservedCandidates(sys)
+	for i := range d.Invisible {
+		inv := &d.Invisible[i]
+		inv.Name = "not resolved by the data (too few shots or too little signal)"
+		best := 0.8
+		for c, v := range vecs {
+			if o := math.Abs(floats.Dot(v, inv.Vector)); o > best {
+				best, inv.Name = o, names[c]
+			}
+		}
+	}
+}
+
+// Summary describes the spectrum and the invisible directions in a few
+// lines for reports.
+func (d *Direction) Summary() string {
+	var b strings.Builder
+	fmt.Fprintf(&b, "stationarity: %d constraints (%d left out for lack of data), chi2 %.4g, solver %s, %d reweightings\n",
+		d.Rows, d.Dropped, d.Chi2, d.Method, d.Iterations)
+	vals := make([]string, len(d.Spectrum))
+	for j, v := range d.Spectrum {
+		vals[j] = fmt.Sprintf("%.4g", v)
+	}
+	fmt.Fprintf(&b, "lowest eigenvalues of the weighted system: %s\n", strings.Join(vals, " "))
+	if len(d.Invisible) == 0 {
+		fmt.Fprintf(&b, "every other direction is resolved (largest standard error %.3g)\n", maxFinite(d.StdErr))
+	}
+	for _, inv := range d.Invisible {
+		fmt.Fprintf(&b, "invisible direction (standard error %.3g): %s\n", inv.StdErr, inv.Name)
+	}
+	snr := make([]string, 0, len(d.SNR))
+	for _, v := range d.SNR[min(1, len(d.SNR)):] {
+		snr = append(snr, fmt.Sprintf("%.3g", v))
+	}
+	if len(snr) > 0 {
+		fmt.Fprintf(&b, "signal over noise of the next directions: %s\n", strings.Join(snr, " "))
+	}
+	return b.String()
+}
+
+func maxFinite(v []float64) float64 {
+	s := append([]float64(nil), v...)
+	sort.Float64s(s)
+	for i := len(s) - 1; i >= 0; i-- {
+		if !math.IsInf(s[i], 0) {
+			return s[i]
+		}
+	}
+	return math.Inf(1)
+}
