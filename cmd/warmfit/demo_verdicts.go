@@ -40,7 +40,7 @@ func (d *demoRun) verdicts() []demoVerdict {
 
 // fitVerdicts judge the array fit's convergence and truncation.
 func fitVerdicts(rep *fit.Report) []demoVerdict {
-	v := []demoVerdict{{rep.Converged, fmt.Sprintf("Array fit: converged at expansion order %d (%s selection) after %s.", rep.Order, rep.OrderMode, plural(rep.Iterations, "Newton iteration"))}}
+	v := []demoVerdict{{rep.Converged, fmt.Sprintf("Array fit: converged at expansion order %d (%s selection) after %s.", rep.Order, rep.OrderMode, newtonIterations(rep.AllIterations, rep.Iterations, rep.Order))}}
 	switch tr := rep.Truncation; {
 	case tr.Exact:
 		v = append(v, demoVerdict{true, "Array fit: the order covers the whole array, so the expansion is exact."})

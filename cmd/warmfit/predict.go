@@ -50,9 +50,9 @@ a ceiling by lattice dimension (12 on a chain, 8 in two dimensions) and while th
 estimated work of the next order stays within about a minute of computing; stderr
 says which order was used and why.
 
---method exact diagonalises the whole system: densely up to 11 qubits (stderr
-empty), and by thermal typicality with random vectors up to 26 qubits, in which case
-stderr holds the statistical error of each value.
+--method exact diagonalises the whole system: densely up to ` + fmt.Sprint(denseExactQubits) + ` qubits (stderr
+"exact"), and by thermal typicality with random vectors up to ` + fmt.Sprint(validate.MaxTypicalityQubits) + ` qubits, in which
+case stderr holds the statistical error of each value.
 
 ` + csvOutputHelp,
 		Example: `warmfit model --lattice square:4x4 --preset xxz --set Jxy=0.5,Jz=1,hz=0.3 --beta 0.4 -o m.json
