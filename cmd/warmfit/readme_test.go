@@ -9,6 +9,7 @@ import (
 	"strconv"
 	"strings"
 	"testing"
+	"time"
 
 	"github.com/spf13/pflag"
 
@@ -50,6 +51,11 @@ func readmeTour(t *testing.T, readme string) []tourLine {
 	var lines []tourLine
 	for _, l := range strings.Split(block, "\n") {
 		l = strings.TrimSpace(l)
+		// A comment line quoting a WARNING belongs to the command above.
+		if w := strings.TrimSpace(strings.TrimPrefix(l, "#")); strings.HasPrefix(l, "#") && strings.HasPrefix(w, "WARNING:") && len(lines) > 0 {
+			lines[len(lines)-1].Comment = w
+			continue
+		}
 		if l == "" || strings.HasPrefix(l, "#") || strings.HasPrefix(l, "go build") {
 			continue
 		}
@@ -64,32 +70,44 @@ func readmeTour(t *testing.T, readme string) []tourLine {
 }
 
 // tourTestSizes shrinks the tour for the test: the same commands on a
-// 3x3 lattice with fewer temperatures, so that it runs in seconds. Every
+// 4x4 lattice (the smallest with 3x3 patches that are not the whole) with
+// fewer temperatures, so that it runs in seconds. Every
 // other word is the README's own.
 var tourTestSizes = []struct{ from, to string }{
-	{"square:6x6", "square:3x3"},
+	{"square:6x6", "square:4x4"},
 	{"--clusters 6", "--clusters 5"},
 	{"points=20", "points=5"},
-	{"--shape 3x3", "--shape 2x2"},
+	{"--shots 20000", "--shots 2000"},
+	{"--shape 3x3", "--shape 3x3 --max-patches 1"},
 }
 
 // TestReadmeTourRuns runs every command line of the README tour, at test
-// sizes, in a temporary directory, in order: each must exit 0, and a line
-// whose comment quotes a WARNING must print that WARNING on stderr.
+// sizes, in a temporary directory, in order: each must exit 0, a line
+// whose comment quotes a WARNING must print that WARNING on stderr, and
+// the other lines must print none. WARMFIT_TOUR_FULL=1 runs the tour at
+// the README's own sizes (some minutes); -v logs each line's wall time.
 func TestReadmeTourRuns(t *testing.T) {
 	tour := readmeTour(t, readmeText(t))
 	if len(tour) < 8 {
 		t.Fatalf("the tour has %d command lines; the parser lost some", len(tour))
 	}
+	full := os.Getenv("WARMFIT_TOUR_FULL") != ""
 	t.Chdir(t.TempDir())
 	for _, line := range tour {
 		cmd := strings.Join(line.Args, " ")
-		for _, s := range tourTestSizes {
-			cmd = strings.ReplaceAll(cmd, s.from, s.to)
+		if !full {
+			for _, s := range tourTestSizes {
+				cmd = strings.ReplaceAll(cmd, s.from, s.to)
+			}
 		}
+		start := time.Now()
 		code, _, stderr := runCmd(strings.Fields(cmd)...)
+		t.Logf("%6.1fs  warmfit %s", time.Since(start).Seconds(), cmd)
 		if code != exitOK {
 			t.Fatalf("warmfit %s: exit %d\n%s", cmd, code, stderr)
+		}
+		if line.Comment == "" && strings.Contains(stderr, "WARNING") {
+			t.Errorf("warmfit %s: a WARNING the tour does not announce:\n%s", cmd, stderr)
 		}
 		if w, ok := strings.CutPrefix(line.Comment, "WARNING:"); ok {
 			for _, part := range strings.Split(w, "...") {
