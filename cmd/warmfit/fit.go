@@ -154,8 +154,11 @@ func runFit(env *runEnv, args []string) error {
 	order := 0
 	if o.order != "auto" {
 		n, err := strconv.Atoi(o.order)
-		if err != nil || n < 1 || n > cluster.MaxDenseQubits {
-			return usagef("--order %q: want auto or an integer from 1 to %d (clusters are diagonalised exactly)", o.order, cluster.MaxDenseQubits)
+		if err != nil {
+			return usagef("--order %q: want auto or an integer from %d to %d", o.order, minExpansionOrder, cluster.MaxDenseQubits)
+		}
+		if err := checkOrder(o.order, n); err != nil {
+			return err
 		}
 		order = n
 	}
@@ -398,6 +401,16 @@ func fitWriteCSV(w io.Writer, res *fit.Result, cmp *fit.TruthComparison) error {
 	return cw.Error()
 }
 
+// newtonIterations says how many Newton iterations a fit took, in all
+// and at its final order: the one wording of stderr, report.md and the
+// demo, so that no two of them count differently.
+func newtonIterations(total, atOrder, order int) string {
+	if total == atOrder {
+		return plural(total, "Newton iteration")
+	}
+	return fmt.Sprintf("%s (%d at order %d)", plural(total, "Newton iteration"), atOrder, order)
+}
+
 // fitSummary writes the plain-language summary to stderr.
 func fitSummary(w io.Writer, res *fit.Result, rep *fit.Report, cmp *fit.TruthComparison) {
 	p := func(format string, args ...any) { fmt.Fprintf(w, "fit: "+format+"\n", args...) }
@@ -409,8 +422,8 @@ func fitSummary(w io.Writer, res *fit.Result, rep *fit.Report, cmp *fit.TruthCom
 	if res.Exact {
 		grad = "mean residual " + fmtG3(res.GradientAbs) + " (exact data)"
 	}
-	p("%s at order %d (%s selection, orders %v) after %d Newton iterations (%d at order %d), %s, %.1fs",
-		status, res.Order, rep.OrderMode, rep.Truncation.Orders, res.TotalIterations, res.Iterations, res.Order, grad, res.Elapsed.Seconds())
+	p("%s at order %d (%s selection, orders %v) after %s, %s, %.1fs",
+		status, res.Order, rep.OrderMode, rep.Truncation.Orders, newtonIterations(res.TotalIterations, res.Iterations, res.Order), grad, res.Elapsed.Seconds())
 	p("%d terms, %d fitted parameters", len(res.Terms), res.Params.NumParams())
 	if n := len(res.Unmeasured); n > 0 {
 		p("%d terms had no data and were fitted through their group (moment matching on measured members)", n)
