@@ -12,6 +12,12 @@ import (
 	"warmfit/fit"
 )
 
+// noiseFactor: a direction whose gap above the lowest eigenvalue is
+// within this factor of the gap pure noise gives (NoiseSpectrum) is not
+// resolved. Pure noise and a draw of it agree to tens of percent; signal
+// exceeds them by orders of magnitude (solve_test.go).
+const noiseFactor = 2
+
 // ErrNoInformation is returned (wrapped) when the constraints resolve no
 // direction beyond noise: at infinite temperature every constraint
 // vanishes, and with too few shots the noise hides them.
@@ -62,12 +68,13 @@ type Direction struct {
 	// StdErr[j] = 1/sqrt(Spectrum[j] - max(Spectrum[0], 0)) (j >= 1;
 	// StdErr[0] is 0): the standard error along eigenvector j.
 	StdErr []float64
-	// SNR[j] (j >= 1) is (Spectrum[j] - Spectrum[0]) over the increase
-	// noise alone gives along eigenvector j (sum_a w_a v^T C_a v): near
-	// or below 1 the direction is set by noise, not by the constraints.
-	SNR []float64
+	// NoiseSpectrum is the same spectrum for pure-noise entries with the
+	// same covariances and weights (one seeded draw): what the
+	// constraints would show without signal.
+	NoiseSpectrum []float64
 	// Invisible lists the eigen-directions the data do not resolve
-	// (StdErr above Options.InvisibleError or SNR below 1), lowest first.
+	// (StdErr above Options.InvisibleError, or a gap within noiseFactor
+	// of the noise-alone gap), lowest first.
 	Invisible []InvisibleDirection
 	// Chi2 is the weighted residual sum of squares at Theta and
 	// Rows the number of constraints used (Dropped left out because a
@@ -114,32 +121,37 @@ func Solve(sys *System, est *fit.Estimates, opt Options) (*Direction, error) {
 	np := ws.np
 	k := min(opt.Low, np)
 	d := &Direction{ws: ws, Rows: ws.rows(), Dropped: ws.dropped}
-	var theta []float64
-	var low lowEigen
-	for it := 0; it < opt.MaxIterations; it++ {
-		ws.reweight(theta)
-		if theta == nil {
-			// The isotropic start has no residuals yet: no noise term.
-			clear(ws.r)
-		}
+	eig := func(w *weighted, start [][]float64) (lowEigen, error) {
 		if np <= opt.DenseLimit {
-			low, err = denseLowest(ws.dense(), np, k)
-		} else {
-			var startVecs [][]float64
-			if low.vectors != nil {
-				startVecs = low.vectors
-			}
-			low, err = lanczosLowest(ws.mulVec, np, k, startVecs, 1e-9, 20000)
+			return denseLowest(w.dense(), np, k)
 		}
-		if err != nil {
-			return nil, err
-		}
-		next := low.vectors[0]
-		d.Iterations = it + 1
-		if theta != nil {
-			if floats.Dot(next, theta) < 0 {
-				floats.Scale(-1, next)
+		return lanczosLowest(w.mulVec, np, k, start, 1e-9, 20000)
+	}
+	// First pass: weights that do not depend on the direction, with the
+	// expected noise correction. It treats every null direction alike, so
+	// a conserved quantity shows up as a second (near-)zero eigenvalue
+	// instead of attracting a direction-dependent reweighting.
+	ws.reweight(nil)
+	ws.fixedWeights = true
+	low, err := eig(ws, nil)
+	if err != nil {
+		return nil, err
+	}
+	theta := continueDirection(low, nil, opt)
+	open := unresolved(ws, low, theta, opt, eig)
+	d.Iterations = 1
+	if open == 0 {
+		// A single null direction: reweight at it for efficiency
+		// (noise-weighted total least squares, first-order corrected).
+		ws.fixedWeights = false
+		for it := 1; it < opt.MaxIterations; it++ {
+			ws.reweight(theta)
+			low, err = eig(ws, low.vectors)
+			if err != nil {
+				return nil, err
 			}
+			next := continueDirection(low, theta, opt)
+			d.Iterations = it + 1
 			change := 0.0
 			for i := range next {
 				change = max(change, math.Abs(next[i]-theta[i]))
@@ -148,30 +160,39 @@ func Solve(sys *System, est *fit.Estimates, opt Options) (*Direction, error) {
 			if change < 1e-9 {
 				break
 			}
-			continue
 		}
-		theta = next
+		ws.reweight(theta)
+		low, err = eig(ws, low.vectors)
+		if err != nil {
+			return nil, err
+		}
+		theta = continueDirection(low, theta, opt)
 	}
-	// Final weights and spectrum at the converged direction.
-	ws.reweight(theta)
-	if np <= opt.DenseLimit {
-		low, err = denseLowest(ws.dense(), np, k)
-	} else {
-		low, err = lanczosLowest(ws.mulVec, np, k, low.vectors, 1e-9, 20000)
-	}
-	if err != nil {
-		return nil, err
-	}
-	theta = low.vectors[0]
 	if theta[floats.MaxIdx(absAll(theta))] < 0 {
 		floats.Scale(-1, theta)
 	}
-	ws.reweight(theta)
+	if ws.fixedWeights {
+		d.Chi2 = 0
+		for a := range ws.rows() {
+			var r float64
+			lo, hi, _ := ws.block(a)
+			for e := lo; e < hi; e++ {
+				r += ws.val[e] * theta[ws.param[e]]
+			}
+			d.Chi2 += r * r / max(ws.noiseOf(a, theta), 1e-300)
+		}
+	} else {
+		ws.reweight(theta)
+		d.Chi2 = ws.chi2()
+	}
 	d.Theta, d.low, d.Method = theta, low, low.method
 	d.Spectrum = low.values
-	d.Chi2 = ws.chi2()
+	nlow, err := eig(ws.noiseOnly(theta), nil)
+	if err != nil {
+		return nil, err
+	}
+	d.NoiseSpectrum = nlow.values
 	d.StdErr = make([]float64, len(low.values))
-	d.SNR = make([]float64, len(low.values))
 	for j := 1; j < len(low.values); j++ {
 		// At a fixed point of the reweighting theta^T X theta = 0 exactly
 		// (the weights are 1/Var(r_a) at theta); a lowest eigenvalue below
@@ -182,17 +203,78 @@ func Solve(sys *System, est *fit.Estimates, opt Options) (*Direction, error) {
 		if gap > 0 {
 			d.StdErr[j] = 1 / math.Sqrt(gap)
 		}
-		d.SNR[j] = gap / ws.noiseQuad(low.vectors[j])
-		if d.StdErr[j] > opt.InvisibleError || d.SNR[j] < 1 {
-			d.Invisible = append(d.Invisible, InvisibleDirection{Vector: low.vectors[j], StdErr: d.StdErr[j]})
+		noiseGap := 0.0
+		if j < len(d.NoiseSpectrum) {
+			noiseGap = max(d.NoiseSpectrum[j]-max(d.NoiseSpectrum[0], 0), 0)
+		}
+		if d.StdErr[j] > opt.InvisibleError || gap <= noiseFactor*noiseGap {
+			d.Invisible = append(d.Invisible, InvisibleDirection{Vector: append([]float64(nil), low.vectors[j]...), StdErr: d.StdErr[j]})
 		}
 	}
+	// Theta is a combination of the near-null eigenvectors; make the
+	// invisible directions orthogonal to it (Gram-Schmidt, lowest first).
+	vs := [][]float64{append([]float64(nil), theta...)}
+	for _, inv := range d.Invisible {
+		vs = append(vs, inv.Vector)
+	}
+	orthonormalise(vs)
 	nameInvisible(sys, d)
 	if len(low.values) > 1 && len(d.Invisible) == len(low.values)-1 {
-		return d, fmt.Errorf("%w: none of the %d lowest directions stands out of the noise (signal over noise of the next: %.3g); more shots or a lower temperature are needed",
-			ErrNoInformation, len(low.values), d.SNR[1])
+		return d, fmt.Errorf("%w: none of the %d lowest directions stands out of the noise (next eigenvalue %.4g, noise alone %.4g); more shots or a lower temperature are needed",
+			ErrNoInformation, len(low.values), d.Spectrum[1], d.NoiseSpectrum[1])
 	}
 	return d, nil
+}
+
+// unresolved counts the directions beyond the lowest that are not
+// resolved (see Direction.Invisible) in the spectrum low of ws.
+func unresolved(ws *weighted, low lowEigen, theta []float64, opt Options, eig func(*weighted, [][]float64) (lowEigen, error)) int {
+	nlow, err := eig(ws.noiseOnly(theta), nil)
+	if err != nil {
+		return len(low.values)
+	}
+	count := 0
+	for j := 1; j < len(low.values); j++ {
+		gap := low.values[j] - max(low.values[0], 0)
+		noiseGap := 0.0
+		if j < len(nlow.values) {
+			noiseGap = max(nlow.values[j]-max(nlow.values[0], 0), 0)
+		}
+		if gap <= 0 || 1/math.Sqrt(gap) > opt.InvisibleError || gap <= noiseFactor*noiseGap {
+			count++
+		}
+	}
+	return count
+}
+
+// continueDirection picks the next direction of the reweighting: the
+// lowest eigenvector at first, then the previous direction projected on
+// the span of the eigenvectors not resolved from the lowest (standard
+// error above InvisibleError). With an exactly conserved quantity the
+// lowest eigenvalue is degenerate and its eigenvector an arbitrary mix;
+// projecting keeps the iteration from wandering inside that span.
+func continueDirection(low lowEigen, prev []float64, opt Options) []float64 {
+	v0 := append([]float64(nil), low.vectors[0]...)
+	if prev == nil {
+		return v0
+	}
+	next := make([]float64, len(prev))
+	limit := 1 / (opt.InvisibleError * opt.InvisibleError)
+	for j, v := range low.vectors {
+		if j > 0 && low.values[j]-max(low.values[0], 0) >= limit {
+			break
+		}
+		floats.AddScaled(next, floats.Dot(v, prev), v)
+	}
+	n := floats.Norm(next, 2)
+	if n < 0.5 {
+		if floats.Dot(v0, prev) < 0 {
+			floats.Scale(-1, v0)
+		}
+		return v0
+	}
+	floats.Scale(1/n, next)
+	return next
 }
 
 func absAll(v []float64) []float64 {
@@ -235,6 +317,14 @@ func conservedCandidates(sys *System) (names []string, vecs [][]float64) {
 // candidate it overlaps best (|overlap| > 0.8), else as unresolved.
 func nameInvisible(sys *System, d *Direction) {
 	names, vecs := conservedCandidates(sys)
+	// Compare with the candidates' parts orthogonal to Theta, as the
+	// invisible directions are.
+	for _, v := range vecs {
+		floats.AddScaled(v, -floats.Dot(v, d.Theta), d.Theta)
+		if n := floats.Norm(v, 2); n > 0 {
+			floats.Scale(1/n, v)
+		}
+	}
 	for i := range d.Invisible {
 		inv := &d.Invisible[i]
 		inv.Name = "not resolved by the data (too few shots or too little signal)"
@@ -258,18 +348,16 @@ func (d *Direction) Summary() string {
 		vals[j] = fmt.Sprintf("%.4g", v)
 	}
 	fmt.Fprintf(&b, "lowest eigenvalues of the weighted system: %s\n", strings.Join(vals, " "))
+	nvals := make([]string, len(d.NoiseSpectrum))
+	for j, v := range d.NoiseSpectrum {
+		nvals[j] = fmt.Sprintf("%.4g", v)
+	}
+	fmt.Fprintf(&b, "the same for noise alone: %s\n", strings.Join(nvals, " "))
 	if len(d.Invisible) == 0 {
 		fmt.Fprintf(&b, "every other direction is resolved (largest standard error %.3g)\n", maxFinite(d.StdErr))
 	}
 	for _, inv := range d.Invisible {
 		fmt.Fprintf(&b, "invisible direction (standard error %.3g): %s\n", inv.StdErr, inv.Name)
-	}
-	snr := make([]string, 0, len(d.SNR))
-	for _, v := range d.SNR[min(1, len(d.SNR)):] {
-		snr = append(snr, fmt.Sprintf("%.3g", v))
-	}
-	if len(snr) > 0 {
-		fmt.Fprintf(&b, "signal over noise of the next directions: %s\n", strings.Join(snr, " "))
 	}
 	return b.String()
 }

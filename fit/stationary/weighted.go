@@ -22,6 +22,24 @@ type weighted struct {
 	probes   []int     // system row of each usable row
 	dropped  int
 	w, r     []float64 // per row: weight and residual at the current direction
+	// plain drops the noise correction: X = sum_a w_a M_a M_a^T.
+	plain bool
+	// fixedWeights: the weights do not depend on the direction and there
+	// is no noise correction (the first, isotropic pass: it shifts every
+	// direction by its noise alone, which the noise-alone spectrum
+	// calibrates).
+	fixedWeights bool
+}
+
+// biasOf returns the factor of C_a in the noise correction of row a.
+func (ws *weighted) biasOf(a int) float64 {
+	switch {
+	case ws.plain:
+		return 0
+	case ws.fixedWeights:
+		return 0
+	}
+	return ws.w[a] * ws.w[a] * ws.r[a] * ws.r[a]
 }
 
 // newWeighted fills sys with estimates, leaving out rows that use a
@@ -126,16 +144,6 @@ func (ws *weighted) reweight(theta []float64) {
 	}
 }
 
-// noiseQuad returns sum_a w_a v^T C_a v: the expected increase of
-// v^T X v from noise alone, the yardstick of a direction's signal.
-func (ws *weighted) noiseQuad(v []float64) float64 {
-	var s float64
-	for a := range ws.rows() {
-		s += ws.w[a] * ws.noiseOf(a, v)
-	}
-	return s
-}
-
 // chi2 returns sum_a w_a r_a², the weighted residual at the current
 // weights and residuals.
 func (ws *weighted) chi2() float64 {
@@ -163,7 +171,7 @@ func (ws *weighted) mulVec(dst, v []float64) {
 		for e := lo; e < hi; e++ {
 			dst[ws.param[e]] += t * ws.val[e]
 		}
-		bias := ws.w[a] * ws.w[a] * ws.r[a] * ws.r[a]
+		bias := ws.biasOf(a)
 		if bias == 0 {
 			continue
 		}
@@ -185,7 +193,7 @@ func (ws *weighted) dense() []float64 {
 	for a := range ws.rows() {
 		lo, hi, c := ws.block(a)
 		k := hi - lo
-		bias := ws.w[a] * ws.w[a] * ws.r[a] * ws.r[a]
+		bias := ws.biasOf(a)
 		for i := 0; i < k; i++ {
 			pi := int(ws.param[lo+i])
 			for j := 0; j < k; j++ {
