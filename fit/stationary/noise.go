@@ -16,6 +16,7 @@ func (ws *weighted) noiseOnly(theta []float64) *weighted {
 	nw := *ws
 	nw.val = make([]float64, len(ws.val))
 	nw.w = append([]float64(nil), ws.w...)
+	nw.floor = append([]float64(nil), ws.floor...)
 	nw.r = make([]float64, len(ws.r))
 	rng := rand.New(rand.NewPCG(12, 0x9e3779b97f4a7c15))
 	for a := range ws.rows() {

@@ -12,11 +12,6 @@ import (
 	"warmfit/fit"
 )
 
-// noiseFactor: a direction whose gap above the lowest eigenvalue is
-// within this factor of the gap pure noise gives (NoiseSpectrum) is not
-// resolved. Pure noise and a draw of it agree to tens of percent; signal
-// exceeds them by orders of magnitude (solve_test.go).
-const noiseFactor = 2
 
 // ErrNoInformation is returned (wrapped) when the constraints resolve no
 // direction beyond noise: at infinite temperature every constraint
@@ -73,8 +68,8 @@ type Direction struct {
 	// constraints would show without signal.
 	NoiseSpectrum []float64
 	// Invisible lists the eigen-directions the data do not resolve
-	// (StdErr above Options.InvisibleError, or a gap within noiseFactor
-	// of the noise-alone gap), lowest first.
+	// (StdErr above Options.InvisibleError), and the conserved
+	// quantities found by their vanishing constraints, first.
 	Invisible []InvisibleDirection
 	// Chi2 is the weighted residual sum of squares at Theta and
 	// Rows the number of constraints used (Dropped left out because a
@@ -98,6 +93,12 @@ type InvisibleDirection struct {
 	// (for example "total Z (uniform Z field)") or "not resolved by the
 	// data" when it matches none.
 	Name string
+	// Chi2 and DOF are, for a conserved quantity, the constraint
+	// residuals along it (consistent with noise: chi² near DOF).
+	Chi2 float64
+	DOF  int
+
+	conserved bool
 }
 
 // Solve finds the direction of the coefficients from estimates of
@@ -127,64 +128,52 @@ func Solve(sys *System, est *fit.Estimates, opt Options) (*Direction, error) {
 		}
 		return lanczosLowest(w.mulVec, np, k, start, 1e-9, 20000)
 	}
-	// First pass: weights that do not depend on the direction, with the
-	// expected noise correction. It treats every null direction alike, so
-	// a conserved quantity shows up as a second (near-)zero eigenvalue
-	// instead of attracting a direction-dependent reweighting.
+	// Conserved quantities the terms can express (uniform fields) whose
+	// constraints vanish within noise are invisible exactly; they are
+	// pushed out of the eigenproblem (penalty) so that the weights,
+	// which depend on the direction, cannot drift into them.
+	conserved := findConserved(sys, ws)
+	ws.penalty = conserved
+	// Start: weights that do not depend on the direction, no noise
+	// correction; then the fundamental numerical scheme (weights and
+	// noise correction at the direction), iterated.
 	ws.reweight(nil)
-	ws.fixedWeights = true
+	ws.corr = noCorrection
 	low, err := eig(ws, nil)
 	if err != nil {
 		return nil, err
 	}
 	theta := continueDirection(low, nil, opt)
-	open := unresolved(ws, low, theta, opt, eig)
 	d.Iterations = 1
-	if open == 0 {
-		// A single null direction: reweight at it for efficiency
-		// (noise-weighted total least squares, first-order corrected).
-		ws.fixedWeights = false
-		for it := 1; it < opt.MaxIterations; it++ {
-			ws.reweight(theta)
-			low, err = eig(ws, low.vectors)
-			if err != nil {
-				return nil, err
-			}
-			next := continueDirection(low, theta, opt)
-			d.Iterations = it + 1
-			change := 0.0
-			for i := range next {
-				change = max(change, math.Abs(next[i]-theta[i]))
-			}
-			theta = next
-			if change < 1e-9 {
-				break
-			}
-		}
+	ws.corr = residualCorrection
+	for it := 1; it < opt.MaxIterations; it++ {
 		ws.reweight(theta)
 		low, err = eig(ws, low.vectors)
 		if err != nil {
 			return nil, err
 		}
-		theta = continueDirection(low, theta, opt)
+		next := continueDirection(low, theta, opt)
+		d.Iterations = it + 1
+		change := 0.0
+		for i := range next {
+			change = max(change, math.Abs(next[i]-theta[i]))
+		}
+		theta = next
+		if change < 1e-9 {
+			break
+		}
 	}
+	ws.reweight(theta)
+	low, err = eig(ws, low.vectors)
+	if err != nil {
+		return nil, err
+	}
+	theta = continueDirection(low, theta, opt)
 	if theta[floats.MaxIdx(absAll(theta))] < 0 {
 		floats.Scale(-1, theta)
 	}
-	if ws.fixedWeights {
-		d.Chi2 = 0
-		for a := range ws.rows() {
-			var r float64
-			lo, hi, _ := ws.block(a)
-			for e := lo; e < hi; e++ {
-				r += ws.val[e] * theta[ws.param[e]]
-			}
-			d.Chi2 += r * r / max(ws.noiseOf(a, theta), 1e-300)
-		}
-	} else {
-		ws.reweight(theta)
-		d.Chi2 = ws.chi2()
-	}
+	ws.reweight(theta)
+	d.Chi2 = ws.chi2()
 	d.Theta, d.low, d.Method = theta, low, low.method
 	d.Spectrum = low.values
 	nlow, err := eig(ws.noiseOnly(theta), nil)
@@ -203,13 +192,12 @@ func Solve(sys *System, est *fit.Estimates, opt Options) (*Direction, error) {
 		if gap > 0 {
 			d.StdErr[j] = 1 / math.Sqrt(gap)
 		}
-		noiseGap := 0.0
-		if j < len(d.NoiseSpectrum) {
-			noiseGap = max(d.NoiseSpectrum[j]-max(d.NoiseSpectrum[0], 0), 0)
-		}
-		if d.StdErr[j] > opt.InvisibleError || gap <= noiseFactor*noiseGap {
+		if d.StdErr[j] > opt.InvisibleError {
 			d.Invisible = append(d.Invisible, InvisibleDirection{Vector: append([]float64(nil), low.vectors[j]...), StdErr: d.StdErr[j]})
 		}
+	}
+	for _, c := range conserved {
+		d.Invisible = append([]InvisibleDirection{{Vector: append([]float64(nil), c.vector...), StdErr: math.Inf(1), Name: c.name, conserved: true}}, d.Invisible...)
 	}
 	// Theta is a combination of the near-null eigenvectors; make the
 	// invisible directions orthogonal to it (Gram-Schmidt, lowest first).
@@ -219,32 +207,34 @@ func Solve(sys *System, est *fit.Estimates, opt Options) (*Direction, error) {
 	}
 	orthonormalise(vs)
 	nameInvisible(sys, d)
-	if len(low.values) > 1 && len(d.Invisible) == len(low.values)-1 {
-		return d, fmt.Errorf("%w: none of the %d lowest directions stands out of the noise (next eigenvalue %.4g, noise alone %.4g); more shots or a lower temperature are needed",
-			ErrNoInformation, len(low.values), d.Spectrum[1], d.NoiseSpectrum[1])
+	if chi2, dof := signalChi2(ws, est); chi2 < float64(dof)+5*math.Sqrt(2*float64(dof)) {
+		return d, fmt.Errorf("%w: the correlators the constraints use are consistent with zero (chi2 %.4g for %d values), as at infinite temperature; more shots or a lower temperature are needed",
+			ErrNoInformation, chi2, dof)
+	}
+	if nres := len(d.Invisible) - len(conserved); len(low.values) > 1 && nres >= len(low.values)-1 {
+		return d, fmt.Errorf("%w: none of the %d lowest directions is resolved (next standard error %.3g); more shots or a lower temperature are needed",
+			ErrNoInformation, len(low.values), d.StdErr[1])
 	}
 	return d, nil
 }
 
-// unresolved counts the directions beyond the lowest that are not
-// resolved (see Direction.Invisible) in the spectrum low of ws.
-func unresolved(ws *weighted, low lowEigen, theta []float64, opt Options, eig func(*weighted, [][]float64) (lowEigen, error)) int {
-	nlow, err := eig(ws.noiseOnly(theta), nil)
-	if err != nil {
-		return len(low.values)
-	}
-	count := 0
-	for j := 1; j < len(low.values); j++ {
-		gap := low.values[j] - max(low.values[0], 0)
-		noiseGap := 0.0
-		if j < len(nlow.values) {
-			noiseGap = max(nlow.values[j]-max(nlow.values[0], 0), 0)
+// signalChi2 returns sum_j m_j²/Var(m_j) over the strings the used rows
+// need, and their number: chi² with that many degrees of freedom when
+// every expectation is zero (rho proportional to the identity; distinct
+// Pauli strings are then uncorrelated), far above it with signal.
+func signalChi2(ws *weighted, est *fit.Estimates) (float64, int) {
+	seen := map[int32]bool{}
+	var chi2 float64
+	for _, j := range ws.str {
+		if seen[j] {
+			continue
 		}
-		if gap <= 0 || 1/math.Sqrt(gap) > opt.InvisibleError || gap <= noiseFactor*noiseGap {
-			count++
+		seen[j] = true
+		if v := est.Cov.At(int(j), int(j)); v > 0 {
+			chi2 += est.Values[j] * est.Values[j] / v
 		}
 	}
-	return count
+	return chi2, len(seen)
 }
 
 // continueDirection picks the next direction of the reweighting: the
@@ -327,6 +317,9 @@ func nameInvisible(sys *System, d *Direction) {
 	}
 	for i := range d.Invisible {
 		inv := &d.Invisible[i]
+		if inv.conserved {
+			continue
+		}
 		inv.Name = "not resolved by the data (too few shots or too little signal)"
 		best := 0.8
 		for c, v := range vecs {

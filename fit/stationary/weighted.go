@@ -4,6 +4,8 @@ import (
 	"fmt"
 	"math"
 
+	"gonum.org/v1/gonum/floats"
+
 	"warmfit/fit"
 )
 
@@ -22,25 +24,40 @@ type weighted struct {
 	probes   []int     // system row of each usable row
 	dropped  int
 	w, r     []float64 // per row: weight and residual at the current direction
-	// plain drops the noise correction: X = sum_a w_a M_a M_a^T.
-	plain bool
-	// fixedWeights: the weights do not depend on the direction and there
-	// is no noise correction (the first, isotropic pass: it shifts every
-	// direction by its noise alone, which the noise-alone spectrum
-	// calibrates).
-	fixedWeights bool
+	corr     correction
+	floor    []float64 // per row: the smallest variance a weight may use
+	// penalty directions are lifted out of the low spectrum.
+	penalty []conservedDirection
 }
+
+
+// correction is the noise correction subtracted from the normal matrix.
+type correction int
+
+const (
+	// noCorrection: X = G = sum_a w_a M_a M_a^T, which noise raises in
+	// every direction by sum_a w_a v^T C_a v (used to find the near-null
+	// span; the noise-alone spectrum calibrates it).
+	noCorrection correction = iota
+	// expectedCorrection: X = G - sum_a w_a C_a, unbiased for fixed
+	// weights (bias-corrected total least squares).
+	expectedCorrection
+	// residualCorrection: X = G - sum_a w_a² r_a² C_a with weights and
+	// residuals at the direction (the fundamental numerical scheme).
+	residualCorrection
+)
 
 // biasOf returns the factor of C_a in the noise correction of row a.
 func (ws *weighted) biasOf(a int) float64 {
-	switch {
-	case ws.plain:
+	switch ws.corr {
+	case noCorrection:
 		return 0
-	case ws.fixedWeights:
-		return 0
+	case expectedCorrection:
+		return ws.w[a]
 	}
 	return ws.w[a] * ws.w[a] * ws.r[a] * ws.r[a]
 }
+
 
 // newWeighted fills sys with estimates, leaving out rows that use a
 // missing string.
@@ -138,9 +155,12 @@ func (ws *weighted) reweight(theta []float64) {
 	// an unbounded weight (and, without signal, a runaway iteration);
 	// rows of an exact table have no noise at all. Floor each variance
 	// at 1% of its isotropic value and far below the typical one.
+	if len(ws.floor) != ws.rows() {
+		ws.floor = make([]float64, ws.rows())
+	}
 	for a, v := range ws.w {
-		floor := max(0.01*iso[a], 1e-12*mean, math.SmallestNonzeroFloat64)
-		ws.w[a] = 1 / max(v, floor)
+		ws.floor[a] = max(0.01*iso[a], 1e-12*mean, math.SmallestNonzeroFloat64)
+		ws.w[a] = 1 / max(v, ws.floor[a])
 	}
 }
 
@@ -161,6 +181,11 @@ func (ws *weighted) chi2() float64 {
 // 1294 (2000)). dst and v must not share memory.
 func (ws *weighted) mulVec(dst, v []float64) {
 	clear(dst)
+	defer func() {
+		if len(ws.penalty) > 0 {
+			ws.addPenalty(dst, v, ws.penaltyWeight())
+		}
+	}()
 	for a := range ws.rows() {
 		lo, hi, c := ws.block(a)
 		var t float64
@@ -202,5 +227,32 @@ func (ws *weighted) dense() []float64 {
 			}
 		}
 	}
+	if len(ws.penalty) > 0 {
+		pw := ws.penaltyWeight()
+		for _, c := range ws.penalty {
+			for i, ui := range c.vector {
+				if ui == 0 {
+					continue
+				}
+				for j, uj := range c.vector {
+					x[i*n+j] += pw * ui * uj
+				}
+			}
+		}
+	}
 	return x
+}
+
+// penaltyWeight returns penaltyScale times the largest diagonal entry of
+// the uncorrected normal matrix: a conserved direction then sits far
+// above every eigenvalue that matters.
+func (ws *weighted) penaltyWeight() float64 {
+	diag := make([]float64, ws.np)
+	for a := range ws.rows() {
+		lo, hi, _ := ws.block(a)
+		for e := lo; e < hi; e++ {
+			diag[ws.param[e]] += ws.w[a] * ws.val[e] * ws.val[e]
+		}
+	}
+	return penaltyScale * max(floats.Max(diag), 1)
 }
