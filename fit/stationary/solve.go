@@ -12,7 +12,6 @@ import (
 	"warmfit/fit"
 )
 
-
 // ErrNoInformation is returned (wrapped) when the constraints resolve no
 // direction beyond noise: at infinite temperature every constraint
 // vanishes, and with too few shots the noise hides them.

@@ -30,7 +30,6 @@ type weighted struct {
 	penalty []conservedDirection
 }
 
-
 // correction is the noise correction subtracted from the normal matrix.
 type correction int
 
@@ -57,7 +56,6 @@ func (ws *weighted) biasOf(a int) float64 {
 	}
 	return ws.w[a] * ws.w[a] * ws.r[a] * ws.r[a]
 }
-
 
 // newWeighted fills sys with estimates, leaving out rows that use a
 // missing string.
