@@ -79,8 +79,9 @@ type Direction struct {
 	Method     string
 	Iterations int
 
-	ws  *weighted
-	low lowEigen
+	ws     *weighted
+	low    lowEigen
+	params *fit.Params
 }
 
 // InvisibleDirection is an eigen-direction of the constraints that the
@@ -120,7 +121,7 @@ func Solve(sys *System, est *fit.Estimates, opt Options) (*Direction, error) {
 	}
 	np := ws.np
 	k := min(opt.Low, np)
-	d := &Direction{ws: ws, Rows: ws.rows(), Dropped: ws.dropped}
+	d := &Direction{ws: ws, Rows: ws.rows(), Dropped: ws.dropped, params: sys.params}
 	eig := func(w *weighted, start [][]float64) (lowEigen, error) {
 		if np <= opt.DenseLimit {
 			return denseLowest(w.dense(), np, k)
@@ -328,6 +329,9 @@ func nameInvisible(sys *System, d *Direction) {
 		}
 	}
 }
+
+// ParamOf returns the parameter of term k.
+func (d *Direction) ParamOf(k int) int { return int(d.params.Of[k]) }
 
 // Summary describes the spectrum and the invisible directions in a few
 // lines for reports.
