@@ -32,6 +32,7 @@ type bulkFlags struct {
 	curves      string
 	figures     string
 	demo        string
+	csv         csvFlags
 }
 
 // bulkOptions holds the flags of the current invocation; Flags resets
@@ -64,6 +65,7 @@ func init() {
 			fs.StringVar(&o.curves, "curves", "", "write data against model curves (CSV) to `FILE`")
 			fs.StringVar(&o.figures, "figures", "", "write one SVG figure per quantity into `DIR`")
 			fs.StringVar(&o.demo, "demo", "", "write the invented demo compound's curves into `DIR` and fit them (results go there too)")
+			addCSVFlags(fs, &o.csv)
 		},
 		Run: runBulk,
 	})
@@ -105,7 +107,9 @@ the JSON output has the parameters with standard errors, their covariance and
 correlation matrices, chi^2/dof and its p-value for each candidate over its own trusted
 range, and a ranking: candidates with p < --reject-below are rejected, the rest are
 ordered by AIC on the points every candidate trusts. Warnings go to stderr and into the
-JSON.`
+JSON.
+
+The --curves CSV: ` + csvOutputHelp
 
 const bulkExample = `# the invented demo compound: curves, fit, figures in ./orvanite
 warmfit bulk --demo orvanite
@@ -124,6 +128,9 @@ func runBulk(env *runEnv, args []string) error {
 	}
 	if len(args) == 0 {
 		return usagef("no input files (or --demo DIR)")
+	}
+	if err := checkOutputs([]outputFile{{"-o", o.out}, {"--curves", o.curves}}, args...); err != nil {
+		return err
 	}
 	job, err := newBulkJob(args)
 	if err != nil {
@@ -275,7 +282,18 @@ func (j *bulkJob) run(env *runEnv) error {
 	}
 	printBulkSummary(env.Stderr, res)
 	if j.curves != "" {
-		if err := writeOutput(env, j.curves, func(w io.Writer) error { return writeBulkCurves(w, res) }); err != nil {
+		meta := &csvMeta{Command: "bulk", Contents: "one row per data point and candidate model: data, model curve, pull"}
+		meta.set("data_files", j.files)
+		var names []string
+		for _, c := range res.cmp.Candidates {
+			names = append(names, c.Name)
+		}
+		meta.set("candidates", names)
+		meta.set("best", res.cmp.Candidates[res.cmp.Ranking[0]].Name)
+		for _, w := range res.warnings {
+			meta.line("WARNING: %s", w)
+		}
+		if err := writeCSVResult(env, j.curves, bulkOptions.csv, meta, func(w io.Writer) error { return writeBulkCurves(w, res) }); err != nil {
 			return err
 		}
 	}

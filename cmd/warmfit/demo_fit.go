@@ -123,8 +123,8 @@ func newDemoRecovery(res *fit.Result, cmp *fit.TruthComparison, truth []lattice.
 		want[t.Key()] = t.Coeff
 	}
 	r := &demoRecovery{TruthComparison: cmp, Terms: res.Terms, Truth: make([]float64, len(res.Terms))}
-	if cmp.WorstTerm >= 0 {
-		r.Worst = res.Terms[cmp.WorstTerm].Key()
+	if cmp.LargestErrorTerm >= 0 {
+		r.Worst = res.Terms[cmp.LargestErrorTerm].Key()
 	}
 	stderrs := make([]float64, len(res.Terms))
 	within := 0

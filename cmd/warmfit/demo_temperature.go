@@ -61,8 +61,10 @@ func (d *demoRun) stepTemperature() error {
 	d.record(5, "the thermodynamic sweep of the fitted model at the fit's order",
 		"sweep", "--model", "fitted.json", "--beta-grid", fmtFloat(lo)+".."+fmtFloat(hi), "--points", fmt.Sprint(n),
 		"--order", fmt.Sprint(t.Order), "--tol", fmtG3(sc.SweepTol), "-o", "sweep.csv")
-	if err := d.write("sweep.csv", func(w io.Writer) error {
-		return writeThermo(w, &runEnv{Stderr: io.Discard}, res, sc.SweepTol)
+	meta := &csvMeta{Command: "sweep", Contents: "one row per inverse temperature of the grid; values per site"}
+	meta.set("model", "fitted.json")
+	if err := d.writeCSV("sweep.csv", meta, func(w io.Writer) error {
+		return writeSweep(w, &runEnv{Stderr: io.Discard}, res, sc.SweepTol, meta)
 	}); err != nil {
 		return err
 	}

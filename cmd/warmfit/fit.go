@@ -38,6 +38,7 @@ var fitOptions struct {
 	workers  int
 	verbose  bool
 	maxOrder int
+	csv      csvFlags
 }
 
 func init() {
@@ -65,6 +66,7 @@ func init() {
 			fs.IntVar(&o.covDist, "cov-distance", 1, "snapshots: keep covariances of terms within this graph distance")
 			fs.IntVar(&o.workers, "workers", 0, "parallel workers (default: all cores)")
 			fs.BoolVarP(&o.verbose, "verbose", "v", false, "log every Newton iteration")
+			addCSVFlags(fs, &o.csv)
 			addFitMethodFlags(fs)
 		},
 		Run: runFit,
@@ -110,14 +112,17 @@ Without beta (neither --beta nor the template's), the products beta*lambda are
 fitted and written with beta = 1; the report says so.
 
 Output: the fitted model as JSON with a per-term "stderr" and a "fit" report object
-(it feeds straight back into 'warmfit expect'), or with --format csv the table
+(it feeds straight back into 'warmfit predict'), or with --format csv the table
 pauli,sites,coeff,stderr,significant. A plain-language summary goes to stderr, with
-WARNING lines whenever the result could mislead.`
+WARNING lines whenever the result could mislead.
+
+` + csvOutputHelp + ` For --format csv the sidecar holds the whole
+fit report (the "fit" object of the JSON output) under "fit".`
 
 const fitExample = `# simulate, then learn back a disordered XXZ model on a 4x4 lattice
 warmfit model --lattice square:4x4 --preset xxz --set Jxy=0.4,Jz=0.3,hz=0.2 --disorder 0.1 --beta 0.5 -o truth.json
 warmfit model --lattice square:4x4 --preset xxz --set Jxy=1,Jz=1,hz=1 --beta 0.5 -o template.json
-warmfit expect --model truth.json --order 8 -o e.csv
+warmfit predict --model truth.json --order 8 -o e.csv
 warmfit fit --model template.json --data e.csv --truth truth.json -o fitted.json
 
 # snapshots, fixed order, coefficients as CSV
@@ -155,6 +160,9 @@ func runFit(env *runEnv, args []string) error {
 		return usagef("--start %q: want first-order or template", o.start)
 	}
 
+	if err := checkOutputs([]outputFile{{"-o", o.out}}, o.model, o.data, o.truth); err != nil {
+		return err
+	}
 	tmpl, err := model.ReadFile(o.model)
 	if err != nil {
 		return err
@@ -239,12 +247,14 @@ func runFit(env *runEnv, args []string) error {
 		}
 		return fmt.Errorf("the fit did not converge: %s; the last iterate is in %s (not an estimate)", res.Reason, path)
 	}
-	return writeOutput(env, o.out, func(w io.Writer) error {
-		if o.format == "csv" {
-			return fitWriteCSV(w, res, rep)
+	if o.format == "csv" {
+		meta, err := fitCSVMeta(res, rep, o.model, o.data)
+		if err != nil {
+			return err
 		}
-		return fitWriteModel(w, tmpl, res, rep)
-	})
+		return writeCSVResult(env, o.out, o.csv, meta, func(w io.Writer) error { return fitWriteCSV(w, res, cmp) })
+	}
+	return writeOutput(env, o.out, func(w io.Writer) error { return fitWriteModel(w, tmpl, res, rep) })
 }
 
 // fitUnconvergedPath names the file for the last iterate of a fit that
@@ -286,15 +296,39 @@ func fitWriteModel(w io.Writer, tmpl *model.Model, res *fit.Result, rep *fit.Rep
 	return model.Write(w, m)
 }
 
-// fitWriteCSV writes pauli,sites,coeff,stderr,significant with the
-// report's headline as comment lines.
-func fitWriteCSV(w io.Writer, res *fit.Result, rep *fit.Report) error {
-	fmt.Fprintf(w, "# warmfit fit: converged %t, order %d, %s\n", res.Converged, res.Order, map[bool]string{true: "coefficients are lambda", false: "beta unknown: coefficients are beta*lambda"}[res.BetaKnown])
-	for _, warn := range rep.Warnings {
-		fmt.Fprintf(w, "# WARNING: %s\n", warn)
+// fitCSVMeta is the metadata of the fit CSV: the report's headline and
+// warnings as lines, the whole report as the field "fit".
+func fitCSVMeta(res *fit.Result, rep *fit.Report, template, data string) (*csvMeta, error) {
+	raw, err := rep.JSON()
+	if err != nil {
+		return nil, fmt.Errorf("fit report: %v", err)
 	}
+	meta := &csvMeta{Command: "fit", Contents: "one row per template term: its fitted coefficient"}
+	meta.line("warmfit fit: converged %t, order %d, %s", res.Converged, res.Order, map[bool]string{true: "coefficients are lambda", false: "beta unknown: coefficients are beta*lambda"}[res.BetaKnown])
+	for _, warn := range rep.Warnings {
+		meta.line("WARNING: %s", warn)
+	}
+	meta.set("template", template)
+	meta.set("data", data)
+	meta.set("converged", res.Converged)
+	meta.set("order", res.Order)
+	meta.set("beta", res.Beta)
+	meta.set("beta_known", res.BetaKnown)
+	meta.set("coefficients", rep.CoeffMeaning)
+	meta.set("fit", raw)
+	return meta, nil
+}
+
+// fitWriteCSV writes pauli,sites,coeff,stderr,significant, and with a
+// comparison against the truth (cmp non-nil) the true coefficient and the
+// pull z = (coeff - true)/stderr of every term (z blank without a stderr).
+func fitWriteCSV(w io.Writer, res *fit.Result, cmp *fit.TruthComparison) error {
 	cw := csv.NewWriter(w)
-	if err := cw.Write([]string{"pauli", "sites", "coeff", "stderr", "significant"}); err != nil {
+	header := []string{"pauli", "sites", "coeff", "stderr", "significant"}
+	if cmp != nil {
+		header = append(header, "true", "z")
+	}
+	if err := cw.Write(header); err != nil {
 		return err
 	}
 	for k, t := range res.Terms {
@@ -308,7 +342,15 @@ func fitWriteCSV(w io.Writer, res *fit.Result, rep *fit.Report) error {
 		if res.Significance != nil {
 			sig = strconv.FormatBool(res.Significance.Significant[res.Params.Of[k]])
 		}
-		if err := cw.Write([]string{t.Pauli, lattice.SitesString(t.Sites), strconv.FormatFloat(t.Coeff, 'g', -1, 64), se, sig}); err != nil {
+		rec := []string{t.Pauli, lattice.SitesString(t.Sites), strconv.FormatFloat(t.Coeff, 'g', -1, 64), se, sig}
+		if cmp != nil {
+			z := ""
+			if v := cmp.Z[k]; !math.IsNaN(v) && !math.IsInf(v, 0) {
+				z = strconv.FormatFloat(v, 'g', 6, 64)
+			}
+			rec = append(rec, strconv.FormatFloat(cmp.True[k], 'g', -1, 64), z)
+		}
+		if err := cw.Write(rec); err != nil {
 			return err
 		}
 	}
@@ -356,9 +398,9 @@ func fitSummary(w io.Writer, res *fit.Result, rep *fit.Report, cmp *fit.TruthCom
 		p("significant (Benjamini-Hochberg, q = %g): %d of %d parameters", s.Q, s.Significant, s.Parameters)
 	}
 	if cmp != nil {
-		line := fmt.Sprintf("against the truth: L2 error %s, Linf error %s", fmtG3(cmp.L2), fmtG3(cmp.Linf))
+		line := fmt.Sprintf("against the truth: L2 error %s, largest error %s (%s)", fmtG3(cmp.L2), fmtG3(cmp.Linf), res.Terms[cmp.LargestErrorTerm].Key())
 		if cmp.RMSZ > 0 {
-			line += fmt.Sprintf(", z-scores rms %s, max |z| %s", fmtG3(cmp.RMSZ), fmtG3(cmp.MaxAbsZ))
+			line += fmt.Sprintf(", pulls rms %s, largest pull |z| %s (%s)", fmtG3(cmp.RMSZ), fmtG3(cmp.MaxAbsZ), res.Terms[cmp.LargestPullTerm].Key())
 		}
 		if cmp.Missing > 0 {
 			line += fmt.Sprintf(", %d true terms missing from the template", cmp.Missing)

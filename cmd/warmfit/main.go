@@ -72,7 +72,12 @@ func run(env *runEnv, args []string) int {
 	}
 	name := args[0]
 	switch name {
+	case "--version":
+		name, args = "version", []string{"version"}
 	case "help", "-h", "--help":
+		if len(args) > 1 && args[1] == "formats" {
+			return printFormatsHelp(env.Stdout, env.Stderr, args[2:])
+		}
 		if len(args) > 1 {
 			c, ok := commands[args[1]]
 			if !ok {
@@ -135,7 +140,7 @@ Commands:
 	for _, n := range names {
 		fmt.Fprintf(w, "\t%-10s %s\n", n, commands[n].Short)
 	}
-	fmt.Fprint(w, "\nUse \"warmfit help <command>\" for more about a command.\n")
+	fmt.Fprint(w, "\nUse \"warmfit help <command>\" for more about a command, \"warmfit help formats\" for\nthe file formats, \"warmfit --version\" for the version.\n")
 }
 
 func printCommandHelp(w io.Writer, c *command, fs *pflag.FlagSet) {

@@ -133,6 +133,9 @@ func runModel(env *runEnv, args []string) error {
 	if o.shells.set && o.shells.v != 1 && o.shells.v != 2 {
 		return usagef("--shells %d: want 1 or 2", o.shells.v)
 	}
+	if err := checkOutputs([]outputFile{{"-o", o.out}}, o.lattice); err != nil {
+		return err
+	}
 	l, err := openModelLattice(o.lattice, o.shells)
 	if err != nil {
 		return err

@@ -29,6 +29,7 @@ var planOptions struct {
 	format     string
 	out        string
 	workers    int
+	csv        csvFlags
 }
 
 func init() {
@@ -51,6 +52,7 @@ func init() {
 			fs.StringVar(&o.format, "format", "text", "text (summary), csv (per term) or json")
 			fs.StringVarP(&o.out, "output", "o", "", "write to `FILE` instead of stdout")
 			fs.IntVar(&o.workers, "workers", 0, "parallel workers (default: all cores)")
+			addCSVFlags(fs, &o.csv)
 		},
 		Run: runPlan,
 	})
@@ -72,7 +74,9 @@ every coefficient is within eps at once with at least that probability; with
 
 The summary gives shots per basis, the number of bases, the total number of shots
 and the predicted standard errors; --format csv lists pauli,sites,coverage,stderr per
-term, --format json the whole plan.`
+term, --format json the whole plan.
+
+` + csvOutputHelp
 
 const planExample = `warmfit model --lattice square:6x6 --preset xxz --set Jxy=0.4,Jz=0.3,hz=0.2 --beta 0.5 -o m.json
 warmfit plan --model m.json --target 0.01
@@ -101,6 +105,9 @@ func runPlan(env *runEnv, args []string) error {
 	if o.order < 0 {
 		return usagef("--order %d: must be positive", o.order)
 	}
+	if err := checkOutputs([]outputFile{{"-o", o.out}}, o.model); err != nil {
+		return err
+	}
 	m, beta, err := loadModelBeta(o.model, o.beta)
 	if err != nil {
 		return err
@@ -124,10 +131,14 @@ func runPlan(env *runEnv, args []string) error {
 		return err
 	}
 	fmt.Fprintf(env.Stderr, "plan: %s, %d sites, %d terms, beta %s, order-%d expansion\n", m.Lattice.Spec.Kind, n, len(m.Terms), fmtFloat(beta), plan.Order)
+	if o.format == "csv" {
+		meta := planCSVMeta(plan, scheme)
+		meta.set("model", o.model)
+		meta.set("beta", beta)
+		return writeCSVResult(env, o.out, o.csv, meta, func(w io.Writer) error { return planWriteCSV(w, m.Terms, plan) })
+	}
 	return writeOutput(env, o.out, func(w io.Writer) error {
 		switch o.format {
-		case "csv":
-			return planWriteCSV(w, m.Terms, plan)
 		case "json":
 			return planWriteJSON(w, m.Terms, plan, scheme)
 		}
@@ -158,8 +169,30 @@ func planWriteText(w io.Writer, terms []lattice.Term, p *fit.Plan, scheme string
 	return nil
 }
 
+// planCSVMeta is the metadata of the per-term plan CSV.
+func planCSVMeta(p *fit.Plan, scheme string) *csvMeta {
+	meta := &csvMeta{Command: "plan", Contents: "one row per model term: how many bases measure it and its predicted stderr"}
+	meta.line("warmfit plan: %d bases x %d shots = %d shots, target %s (%s)", len(p.Bases), p.ShotsPerBasis, p.TotalShots, fmtFloat(p.Target), p.Norm)
+	for _, n := range p.Notes {
+		meta.line("%s", n)
+	}
+	meta.set("target", p.Target)
+	meta.set("norm", p.Norm)
+	if p.Norm == fit.NormLinf {
+		meta.set("confidence", p.Confidence)
+	}
+	meta.set("scheme", scheme)
+	meta.set("bases", p.Bases)
+	meta.set("shots_per_basis", p.ShotsPerBasis)
+	meta.set("total_shots", p.TotalShots)
+	meta.set("order", p.Order)
+	meta.set("parameters", p.Params)
+	meta.set("max_stderr", p.PredictedLinf())
+	meta.set("l2_stderr", p.PredictedL2())
+	return meta
+}
+
 func planWriteCSV(w io.Writer, terms []lattice.Term, p *fit.Plan) error {
-	fmt.Fprintf(w, "# warmfit plan: %d bases x %d shots = %d shots, target %s (%s)\n", len(p.Bases), p.ShotsPerBasis, p.TotalShots, fmtFloat(p.Target), p.Norm)
 	cw := csv.NewWriter(w)
 	if err := cw.Write([]string{"pauli", "sites", "coverage", "stderr"}); err != nil {
 		return err
