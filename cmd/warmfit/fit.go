@@ -47,7 +47,7 @@ func init() {
 		Name:    "fit",
 		Short:   "learn a Hamiltonian's coefficients from measurements of its Gibbs state",
 		Usage:   "warmfit fit --model TEMPLATE.json --data FILE [--beta B] [--order L|auto] [--budget 60s] [--truth M.json] [--format json|csv] [-o OUT.json]",
-		Long:    fitLong,
+		Long:    fitLong + fitMethodLong,
 		Example: fitExample,
 		Flags: func(fs *pflag.FlagSet) {
 			o := &fitOptions
@@ -70,6 +70,7 @@ func init() {
 			fs.IntVar(&o.workers, "workers", 0, "parallel workers (default: all cores)")
 			fs.BoolVarP(&o.verbose, "verbose", "v", false, "log every Newton iteration")
 			addCSVFlags(fs, &o.csv)
+			addFitMethodFlags(fs)
 		},
 		Run: runFit,
 	})
@@ -200,6 +201,9 @@ func runFit(env *runEnv, args []string) error {
 	if calibration != nil && beta > 0 {
 		return usagef("--scale-from fixes the energy scale of a fit without beta, but beta is %s (%s): drop --scale-from, or fit at unknown temperature (no --beta, no beta in the template)", fmtFloat(beta), betaSource)
 	}
+	if done, err := fitMethodFirst(env, tmpl, beta); done {
+		return err
+	}
 	est, dataSummary, err := fit.LoadEstimates(o.data, tmpl.Lattice, tmpl.Terms, fit.CovarianceOptions{Distance: o.covDist})
 	if err != nil {
 		return err
@@ -243,6 +247,9 @@ func runFit(env *runEnv, args []string) error {
 	}
 	res, err := fit.Fit(&fit.Problem{Lattice: tmpl.Lattice, Terms: tmpl.Terms, Data: est, Beta: beta}, opt)
 	bar.Done()
+	if done, ferr := fitMethodAfter(env, tmpl, beta, res, err); done {
+		return ferr
+	}
 	if err != nil {
 		return fmt.Errorf("%s: %w", o.data, err)
 	}
