@@ -259,7 +259,7 @@ type blockAcc struct {
 	energy   []float64
 	heat     []float64
 	clusters []int64
-	resp     map[uint64]float64
+	resp     []respEntry // the response entries, sorted within each hand-over
 }
 
 func (a *blockAcc) grow(hi int) {
@@ -283,6 +283,7 @@ type clusterWork struct {
 	vals   []float64
 	resp   []float64
 	mult   []float64
+	lresp  *localResponse // the response of the current block
 }
 
 func newClusterWork(n int) *clusterWork {
@@ -305,7 +306,11 @@ func (e *Expansion) evaluateBlock(w *clusterWork, block [2]int, coeffs []float64
 		clusters: make([]int64, L),
 	}
 	if respOrder > 0 {
-		acc.resp = make(map[uint64]float64)
+		if w.lresp == nil {
+			w.lresp = newLocalResponse(len(e.terms))
+		}
+		var discard []respEntry
+		w.lresp.flush(&discard) // left over by a block that failed
 	}
 	err := e.eachBlockCluster(w, block, coeffs, L, func(c *clusterView) error {
 		acc.clusters[c.size-1]++
@@ -314,6 +319,9 @@ func (e *Expansion) evaluateBlock(w *clusterWork, block [2]int, coeffs []float64
 		}
 		return e.addCluster(w, acc, c, beta, L, respOrder, sym)
 	})
+	if respOrder > 0 {
+		w.lresp.flush(&acc.resp)
+	}
 	return acc, err
 }
 
@@ -437,15 +445,7 @@ func (e *Expansion) addCluster(w *clusterWork, acc *blockAcc, c *clusterView, be
 			}
 			w.resp = w.resp[:nt*nt]
 			th.Response(w.ham.Ops, w.resp)
-			for a := 0; a < nt; a++ {
-				for b := a; b < nt; b++ {
-					pa, pb := w.pos[a], w.pos[b]
-					if pa > pb {
-						pa, pb = pb, pa
-					}
-					acc.resp[uint64(pa)<<32|uint64(pb)] += m * w.resp[a*nt+b]
-				}
-			}
+			w.lresp.add(w.pos, w.resp, m, &acc.resp)
 		}
 	}
 	return nil
@@ -510,10 +510,6 @@ func (e *Expansion) merge(accs []*blockAcc, L int, beta float64, respOrder int) 
 	for o := range bySorted {
 		bySorted[o] = make([]float64, K)
 	}
-	var resp map[uint64]float64
-	if respOrder > 0 {
-		resp = make(map[uint64]float64)
-	}
 	for _, a := range accs {
 		for o := 0; o < L; o++ {
 			r.Clusters[o] += a.clusters[o]
@@ -524,10 +520,6 @@ func (e *Expansion) merge(accs []*blockAcc, L int, beta float64, respOrder int) 
 				bySorted[o][a.lo+i] += v
 			}
 		}
-		// Map order is random, but each key's sum runs in block order.
-		for key, v := range a.resp {
-			resp[key] += v
-		}
 	}
 	for o := 0; o < L; o++ {
 		r.Expect[o] = make([]float64, K)
@@ -536,7 +528,11 @@ func (e *Expansion) merge(accs []*blockAcc, L int, beta float64, respOrder int) 
 		}
 	}
 	if respOrder > 0 {
-		r.Response = newSparseSymFromPairs(K, resp, e.sorted)
+		entries := make([][]respEntry, len(accs))
+		for b, a := range accs {
+			entries[b] = a.resp
+		}
+		r.Response = mergeResponse(K, entries, e.sorted)
 		r.ResponseOrder = respOrder
 	}
 	return r

@@ -41,13 +41,17 @@ func (c Curvature) String() string {
 const exactResponseWork = 1e7
 
 // curvatureOrder returns the order of the response Newton steps at order
-// L start with: L-1 unless that order cannot hold every term, the exact
-// response is asked for, or (CurvatureAuto) it is cheap.
+// L start with: L-1, unless that order cannot hold every term or the
+// exact response is asked for; CurvatureAuto also keeps the exact one
+// when it is cheap or when L-1 is the smallest order holding every term
+// (that response misses every correlation beyond the terms' own
+// supports: a poor curvature, measured to contract the gradient by only
+// 0.43 per step on a 100x100 lattice).
 func (f *fitter) curvatureOrder(L int) int {
 	switch {
 	case f.opt.Curvature == CurvatureExact || L-1 < f.minL:
 		return L
-	case f.opt.Curvature == CurvatureAuto && f.cheapResponse(L):
+	case f.opt.Curvature == CurvatureAuto && (L-1 == f.minL || f.cheapResponse(L)):
 		return L
 	}
 	return L - 1
