@@ -85,7 +85,7 @@ func (d *demoRun) fitData(step int, j fitJob) (*demoFit, error) {
 		return nil, err
 	}
 	f.Model = &model.Model{Lattice: lat, Terms: res.Terms, Beta: res.Beta}
-	d.say("fit: order %d (%s), %s, %.1fs", res.Order, mode, plural(res.Iterations, "Newton iteration"), res.Elapsed.Seconds())
+	d.say("fit: order %d (%s), %s, %.1fs", res.Order, mode, newtonIterations(res.TotalIterations, res.Iterations, res.Order), res.Elapsed.Seconds())
 	return f, nil
 }
 

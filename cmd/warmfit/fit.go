@@ -47,7 +47,7 @@ func init() {
 		Name:    "fit",
 		Short:   "learn a Hamiltonian's coefficients from measurements of its Gibbs state",
 		Usage:   "warmfit fit --model TEMPLATE.json --data FILE [--beta B] [--order L|auto] [--budget 60s] [--truth M.json] [--format json|csv] [-o OUT.json]",
-		Long:    fitLong,
+		Long:    fitLong + fitMethodLong,
 		Example: fitExample,
 		Flags: func(fs *pflag.FlagSet) {
 			o := &fitOptions
@@ -70,6 +70,7 @@ func init() {
 			fs.IntVar(&o.workers, "workers", 0, "parallel workers (default: all cores)")
 			fs.BoolVarP(&o.verbose, "verbose", "v", false, "log every Newton iteration")
 			addCSVFlags(fs, &o.csv)
+			addFitMethodFlags(fs)
 		},
 		Run: runFit,
 	})
@@ -154,8 +155,11 @@ func runFit(env *runEnv, args []string) error {
 	order := 0
 	if o.order != "auto" {
 		n, err := strconv.Atoi(o.order)
-		if err != nil || n < 1 || n > cluster.MaxDenseQubits {
-			return usagef("--order %q: want auto or an integer from 1 to %d (clusters are diagonalised exactly)", o.order, cluster.MaxDenseQubits)
+		if err != nil {
+			return usagef("--order %q: want auto or an integer from %d to %d", o.order, minExpansionOrder, cluster.MaxDenseQubits)
+		}
+		if err := checkOrder(o.order, n); err != nil {
+			return err
 		}
 		order = n
 	}
@@ -196,6 +200,9 @@ func runFit(env *runEnv, args []string) error {
 	}
 	if calibration != nil && beta > 0 {
 		return usagef("--scale-from fixes the energy scale of a fit without beta, but beta is %s (%s): drop --scale-from, or fit at unknown temperature (no --beta, no beta in the template)", fmtFloat(beta), betaSource)
+	}
+	if done, err := fitMethodFirst(env, tmpl, beta); done {
+		return err
 	}
 	est, dataSummary, err := fit.LoadEstimates(o.data, tmpl.Lattice, tmpl.Terms, fit.CovarianceOptions{Distance: o.covDist})
 	if err != nil {
@@ -240,6 +247,9 @@ func runFit(env *runEnv, args []string) error {
 	}
 	res, err := fit.Fit(&fit.Problem{Lattice: tmpl.Lattice, Terms: tmpl.Terms, Data: est, Beta: beta}, opt)
 	bar.Done()
+	if done, ferr := fitMethodAfter(env, tmpl, beta, res, err); done {
+		return ferr
+	}
 	if err != nil {
 		return fmt.Errorf("%s: %w", o.data, err)
 	}
@@ -398,6 +408,16 @@ func fitWriteCSV(w io.Writer, res *fit.Result, cmp *fit.TruthComparison) error {
 	return cw.Error()
 }
 
+// newtonIterations says how many Newton iterations a fit took, in all
+// and at its final order: the one wording of stderr, report.md and the
+// demo, so that no two of them count differently.
+func newtonIterations(total, atOrder, order int) string {
+	if total == atOrder {
+		return plural(total, "Newton iteration")
+	}
+	return fmt.Sprintf("%s (%d at order %d)", plural(total, "Newton iteration"), atOrder, order)
+}
+
 // fitSummary writes the plain-language summary to stderr.
 func fitSummary(w io.Writer, res *fit.Result, rep *fit.Report, cmp *fit.TruthComparison) {
 	p := func(format string, args ...any) { fmt.Fprintf(w, "fit: "+format+"\n", args...) }
@@ -409,8 +429,8 @@ func fitSummary(w io.Writer, res *fit.Result, rep *fit.Report, cmp *fit.TruthCom
 	if res.Exact {
 		grad = "mean residual " + fmtG3(res.GradientAbs) + " (exact data)"
 	}
-	p("%s at order %d (%s selection, orders %v) after %d Newton iterations (%d at order %d), %s, %.1fs",
-		status, res.Order, rep.OrderMode, rep.Truncation.Orders, res.TotalIterations, res.Iterations, res.Order, grad, res.Elapsed.Seconds())
+	p("%s at order %d (%s selection, orders %v) after %s, %s, %.1fs",
+		status, res.Order, rep.OrderMode, rep.Truncation.Orders, newtonIterations(res.TotalIterations, res.Iterations, res.Order), grad, res.Elapsed.Seconds())
 	p("%d terms, %d fitted parameters", len(res.Terms), res.Params.NumParams())
 	if n := len(res.Unmeasured); n > 0 {
 		p("%d terms had no data and were fitted through their group (moment matching on measured members)", n)
