@@ -25,7 +25,8 @@ import (
 const csvOutputHelp = `CSV output: the first line is the header, so any CSV reader loads the file as it
 is. What the run was (command, order, beta, verdicts, every WARNING) goes to a JSON
 sidecar FILE.meta.json written next to -o FILE (atomically, like FILE); with the CSV
-on stdout the same facts are on stderr, and --meta M.json writes the sidecar anyway.
+on stdout there is no sidecar unless --meta M.json names one (WARNING lines are on
+stderr either way).
 --csv-comments writes them instead as '#' lines before the header (no sidecar unless
 --meta is given).`
 
