@@ -142,8 +142,10 @@ func writeCSVResult(env *runEnv, out string, f csvFlags, meta *csvMeta, body fun
 	if err != nil {
 		return err
 	}
-	if sidecar == "" {
+	if def := metaSidecarPath(out); def != "" && filepath.Clean(def) != filepath.Clean(sidecar) {
 		removeStaleSidecar(out)
+	}
+	if sidecar == "" {
 		return nil
 	}
 	if err := writeFileAtomic(sidecar, func(w io.Writer) error { _, err := w.Write(side); return err }); err != nil {
@@ -153,8 +155,8 @@ func writeCSVResult(env *runEnv, out string, f csvFlags, meta *csvMeta, body fun
 }
 
 // removeStaleSidecar deletes the sidecar an earlier run left beside out
-// when this run wrote none (--csv-comments): it would describe another
-// file. Only a sidecar warmfit wrote for that very file is removed.
+// when this run wrote none there (--csv-comments, or --meta elsewhere): it
+// would describe another file. Only a sidecar warmfit wrote for that very file is removed.
 func removeStaleSidecar(out string) {
 	side := metaSidecarPath(out)
 	if side == "" {
