@@ -163,7 +163,7 @@ func (d *demoRun) stepFitArray() error {
 	d.array = f
 	r := f.Recovery
 	d.say("against the truth: L2 %s, Linf %s (%s); pulls mean %+.3f, rms %.3f, %.1f%% within 2 sigma (normal: 95.4%%)",
-		fmtG3(r.L2), fmtG3(r.Linf), r.Worst, r.PullMean, r.RMSZ, 100*r.Within2)
+		fmtG3(r.L2), fmtG3(r.Linf), r.LargestError, r.PullMean, r.RMSZ, 100*r.Within2)
 	return nil
 }
 
