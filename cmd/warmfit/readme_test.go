@@ -208,3 +208,22 @@ func TestNewtonIterationsOneWording(t *testing.T) {
 		t.Errorf("stderr does not say %q (the report's counts):\n%s", want, errs)
 	}
 }
+
+// TestReadmeCommandTableListsEveryCommand: the README's command table has
+// a row for every registered command, and no row for one that is gone.
+func TestReadmeCommandTableListsEveryCommand(t *testing.T) {
+	rows := map[string]bool{}
+	for _, m := range regexp.MustCompile(`(?m)^\| ([a-z]+) +\|`).FindAllStringSubmatch(readmeText(t), -1) {
+		rows[m[1]] = true
+	}
+	for name := range commands {
+		if !rows[name] {
+			t.Errorf("README.md's command table has no row for %q", name)
+		}
+	}
+	for name := range rows {
+		if _, ok := commands[name]; !ok && name != "command" && name != "job" {
+			t.Errorf("README.md's command table lists %q, which is not a command", name)
+		}
+	}
+}
