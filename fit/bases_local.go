@@ -8,11 +8,13 @@ import (
 )
 
 // LocalStrings returns every Pauli string (all 3^m letter choices) on
-// every connected set of m <= maxSites sites of the terms' interaction
-// graph (sites joined when a term contains both), in a deterministic
-// order: sets by size, then by sites, letters in X, Y, Z order. maxSites
-// is 1, 2 or 3. The stationarity constraints of fit/stationary need the
-// 3-local strings on paths i-j-k, which this covers.
+// every set of m <= maxSites sites that lies inside a connected set of at
+// most maxSites+1 sites of the terms' interaction graph (sites joined
+// when a term contains both), in a deterministic order: sets by size,
+// then by sites, letters in X, Y, Z order. maxSites is 1, 2 or 3. With 3
+// this is what the stationarity constraints of fit/stationary need:
+// probes on pairs at distance one or two times a term give strings on
+// three sites within a connected set of four.
 func LocalStrings(n int, terms []lattice.Term, maxSites int) ([]lattice.Term, error) {
 	if maxSites < 1 || maxSites > 3 {
 		return nil, fmt.Errorf("local strings on %d sites: want 1, 2 or 3", maxSites)
@@ -21,46 +23,67 @@ func LocalStrings(n int, terms []lattice.Term, maxSites int) ([]lattice.Term, er
 		return nil, err
 	}
 	adj := termAdjacency(n, terms)
-	used := make([]bool, n)
+	// Connected sets of up to maxSites+1 sites, grown one neighbour at a
+	// time from every used site.
+	seen := map[string]bool{}
+	var frontier [][]int
 	for _, t := range terms {
 		for _, s := range t.Sites {
-			used[s] = true
-		}
-	}
-	var sets [][]int
-	for s := range n {
-		if used[s] {
-			sets = append(sets, []int{s})
-		}
-	}
-	if maxSites >= 2 {
-		for a := range n {
-			for _, b := range adj[a] {
-				if b > a {
-					sets = append(sets, []int{a, b})
-				}
+			key := fmt.Sprint(s)
+			if !seen[key] {
+				seen[key] = true
+				frontier = append(frontier, []int{s})
 			}
 		}
 	}
-	if maxSites >= 3 {
-		seen := map[[3]int]bool{}
-		var triples [][]int
-		for j := range n {
-			for x, i := range adj[j] {
-				for _, k := range adj[j][x+1:] {
-					tr := []int{i, j, k}
-					slices.Sort(tr)
-					key := [3]int{tr[0], tr[1], tr[2]}
+	connected := append([][]int(nil), frontier...)
+	for size := 2; size <= maxSites+1; size++ {
+		var next [][]int
+		for _, set := range frontier {
+			for _, s := range set {
+				for _, u := range adj[s] {
+					if slices.Contains(set, u) {
+						continue
+					}
+					grown := append(slices.Clone(set), u)
+					slices.Sort(grown)
+					key := fmt.Sprint(grown)
 					if !seen[key] {
 						seen[key] = true
-						triples = append(triples, tr)
+						next = append(next, grown)
 					}
 				}
 			}
 		}
-		slices.SortFunc(triples, slices.Compare)
-		sets = append(sets, triples...)
+		connected = append(connected, next...)
+		frontier = next
 	}
+	// Every subset of at most maxSites sites of those sets.
+	subsets := map[string][]int{}
+	for _, set := range connected {
+		m := len(set)
+		for mask := 1; mask < 1<<m; mask++ {
+			var sub []int
+			for i := range m {
+				if mask&(1<<i) != 0 {
+					sub = append(sub, set[i])
+				}
+			}
+			if len(sub) <= maxSites {
+				subsets[fmt.Sprint(sub)] = sub
+			}
+		}
+	}
+	sets := make([][]int, 0, len(subsets))
+	for _, sub := range subsets {
+		sets = append(sets, sub)
+	}
+	slices.SortFunc(sets, func(a, b []int) int {
+		if len(a) != len(b) {
+			return len(a) - len(b)
+		}
+		return slices.Compare(a, b)
+	})
 	var out []lattice.Term
 	for _, set := range sets {
 		total := 1

@@ -43,6 +43,15 @@ func addCSVFlags(fs *pflag.FlagSet, f *csvFlags) {
 	fs.StringVar(&f.meta, "meta", "", "write the metadata sidecar to `FILE` (default: OUT.meta.json beside -o OUT; none for stdout)")
 }
 
+// misuse refuses --csv-comments and --meta when the run writes no CSV
+// (what names the output it writes instead, e.g. "--format json").
+func (f csvFlags) misuse(what string) error {
+	if f.comments || f.meta != "" {
+		return usagef("--csv-comments and --meta apply to CSV output, not to %s", what)
+	}
+	return nil
+}
+
 // csvMeta is what a CSV file's metadata says: the lines a person reads
 // (the '#' lines of --csv-comments, WARNING lines included) and the same
 // facts as fields for a program.
@@ -106,6 +115,9 @@ func writeCSVResult(env *runEnv, out string, f csvFlags, meta *csvMeta, body fun
 		return fmt.Errorf("internal error: %s output is not a CSV: %v", meta.Command, err)
 	}
 	sidecar := f.meta
+	if sidecar != "" && out != "" && out != "-" && filepath.Clean(sidecar) == filepath.Clean(out) {
+		return usagef("--meta %s is the output file itself; name another file", sidecar)
+	}
 	if sidecar == "" && !f.comments {
 		sidecar = metaSidecarPath(out)
 	}
@@ -126,13 +138,38 @@ func writeCSVResult(env *runEnv, out string, f csvFlags, meta *csvMeta, body fun
 		_, err := w.Write(buf.Bytes())
 		return err
 	})
-	if err != nil || sidecar == "" {
+	if err != nil {
 		return err
+	}
+	if sidecar == "" {
+		removeStaleSidecar(out)
+		return nil
 	}
 	if err := writeFileAtomic(sidecar, func(w io.Writer) error { _, err := w.Write(side); return err }); err != nil {
 		return fmt.Errorf("the CSV was written but its metadata was not: %w", err)
 	}
 	return nil
+}
+
+// removeStaleSidecar deletes the sidecar an earlier run left beside out
+// when this run wrote none (--csv-comments): it would describe another
+// file. Only a sidecar warmfit wrote for that very file is removed.
+func removeStaleSidecar(out string) {
+	side := metaSidecarPath(out)
+	if side == "" {
+		return
+	}
+	b, err := os.ReadFile(side)
+	if err != nil {
+		return
+	}
+	var m struct {
+		Command string `json:"command"`
+		File    string `json:"file"`
+	}
+	if json.Unmarshal(b, &m) == nil && strings.HasPrefix(m.Command, "warmfit ") && m.File == filepath.Base(out) {
+		os.Remove(side)
+	}
 }
 
 // csvShape parses a whole CSV and returns its header and data-row count.

@@ -101,6 +101,11 @@ func runPlan(env *runEnv, args []string) error {
 	if o.format != "text" && o.format != "csv" && o.format != "json" {
 		return usagef("--format %q: want text, csv or json", o.format)
 	}
+	if o.format != "csv" {
+		if err := o.csv.misuse("--format " + o.format + "; add --format csv"); err != nil {
+			return err
+		}
+	}
 	if !(o.confidence > 0 && o.confidence < 1) {
 		return usagef("--confidence %v: must lie in (0, 1)", o.confidence)
 	}
@@ -113,6 +118,11 @@ func runPlan(env *runEnv, args []string) error {
 	m, beta, err := loadModelBeta(o.model, o.beta)
 	if err != nil {
 		return err
+	}
+	var unscaled string
+	if fittedWithoutScale(m) {
+		unscaled = unscaledModelWarning(o.model, "the plan is for learning beta*lambda: --target and the predicted stderrs are in units of beta*lambda, not of lambda")
+		fmt.Fprintln(env.Stderr, unscaled)
 	}
 	n := m.Lattice.NumSites()
 	bases, scheme, err := fit.SchemeBases(o.bases, n, m.Terms, o.seed)
@@ -138,6 +148,9 @@ func runPlan(env *runEnv, args []string) error {
 	}
 	if o.format == "csv" {
 		meta := planCSVMeta(plan, scheme)
+		if unscaled != "" {
+			meta.line("%s", unscaled)
+		}
 		meta.set("model", o.model)
 		meta.set("beta", beta)
 		return writeCSVResult(env, o.out, o.csv, meta, func(w io.Writer) error { return planWriteCSV(w, m.Terms, plan) })

@@ -105,6 +105,12 @@ warmfit predict --model m.json --method exact`,
 			meta.set("model", modelPath)
 			meta.set("method", method)
 			meta.set("beta", b)
+			if fittedWithoutScale(m) {
+				note := "the model's coefficients are beta*lambda (fitted without beta): beta = 1 is the temperature of its data, by convention"
+				meta.line("%s", note)
+				meta.set("beta_meaning", "1 by convention: the coefficients are beta*lambda")
+				fmt.Fprintln(env.Stderr, "predict: "+note)
+			}
 			for k, v := range fields {
 				meta.set(k, v)
 			}
@@ -125,6 +131,9 @@ func loadModelBeta(path string, beta betaFlag) (*model.Model, float64, error) {
 	}
 	b := m.Beta
 	if beta.set {
+		if fittedWithoutScale(m) {
+			return nil, 0, usagef("%s was fitted without beta: its coefficients are beta*lambda (beta = 1 by convention), so --beta %s would count the temperature twice; drop --beta, or fix the energy scale with 'warmfit fit ... --scale-from TERM=VALUE'", path, beta.String())
+		}
 		b = beta.value
 	}
 	if b <= 0 {
@@ -316,6 +325,9 @@ func predictExact(env *runEnv, m *model.Model, beta float64, vectors int, seed u
 	meta["exact_method"] = "thermal typicality"
 	meta["qubits"] = n
 	meta["vectors"] = opt.Vectors
+	if opt.Vectors == 0 {
+		meta["vectors"] = 16 // validate.TypicalityOptions' default
+	}
 	meta["seed"] = seed
 	meta["log_z"] = logZ.Value
 	meta["log_z_stderr"] = logZ.Stderr

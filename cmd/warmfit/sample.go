@@ -58,7 +58,7 @@ warmfit sample --model big.json --shots 100000 --generator binomial -o big-data.
 			fs.StringVar(&modelPath, "model", "", "model file (JSON)")
 			addBetaFlag(fs, &beta)
 			fs.Int64Var(&shots, "shots", 0, "shots per basis")
-			fs.StringVar(&bases, "bases", "covering", "bases scheme: covering or random:K")
+			fs.StringVar(&bases, "bases", "covering", "bases scheme: covering, covering:3 (what fit --method stationary needs) or random:K")
 			fs.Uint64Var(&seed, "seed", 1, "random seed")
 			fs.StringVar(&generator, "generator", "auto", "exact, binomial or auto")
 			fs.IntVar(&order, "order", 0, "expansion order for the binomial generator (default: chosen automatically, as in predict)")

@@ -80,6 +80,11 @@ warmfit sweep --model h.json --beta-grid from=0.05,to=1,points=20 --order 6`,
 			if err != nil {
 				return err
 			}
+			var unscaled string
+			if fittedWithoutScale(m) {
+				unscaled = unscaledModelWarning(modelPath, "the grid's beta multiplies beta*lambda, so beta = 1 is the temperature of the data and the energies are in units of k_B T there")
+				fmt.Fprintln(env.Stderr, unscaled)
+			}
 			exp, err := cluster.NewExpansion(m.Lattice, m.Terms)
 			if err != nil {
 				return err
@@ -101,6 +106,9 @@ warmfit sweep --model h.json --beta-grid from=0.05,to=1,points=20 --order 6`,
 				m.Lattice.Spec, m.Lattice.NumSites(), order, len(betas), time.Since(start).Seconds())
 			meta := &csvMeta{Command: "sweep", Contents: "one row per inverse temperature of the grid; values per site"}
 			meta.set("model", modelPath)
+			if unscaled != "" {
+				meta.line("%s", unscaled)
+			}
 			return writeCSVResult(env, out, csvOut, meta, func(w io.Writer) error {
 				return writeSweep(w, env, res, tol, meta)
 			})

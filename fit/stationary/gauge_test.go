@@ -39,14 +39,35 @@ type scenario struct {
 	values       map[string]float64
 	disorder     float64
 	beta         float64
+	// u1 sets every YY coupling to its bond's XX coupling after the
+	// disorder, so that total Z is conserved.
+	u1 bool
+	// tied makes the couplings uniform and tied (groups Jxy for XX and
+	// YY, Jz for ZZ), values from the preset.
+	tied bool
+	// far adds the probes on pairs at distance two.
+	far bool
 }
 
 // run samples shots per basis (covering:3 bases) and solves.
 func (sc scenario) run(t testing.TB, shots int, seed uint64) (*System, *fit.Estimates, *Direction, error) {
 	t.Helper()
 	l, terms := testModel(t, sc.spec, sc.preset, sc.values, sc.disorder, 11)
+	if sc.u1 {
+		tieXY(terms)
+	}
+	if sc.tied {
+		for k := range terms {
+			switch terms[k].Pauli {
+			case "XX", "YY":
+				terms[k].Coeff, terms[k].Group = sc.values["Jxy"], "Jxy"
+			case "ZZ":
+				terms[k].Coeff, terms[k].Group = sc.values["Jz"], "Jz"
+			}
+		}
+	}
 	n := l.NumSites()
-	sys, err := NewSystem(n, terms)
+	sys, err := NewSystemWith(n, terms, SystemOptions{FarPairs: sc.far})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -108,6 +129,21 @@ func TestFixCalibratedAndMatched(t *testing.T) {
 		}
 		if res.Fixed == "" {
 			t.Errorf("the result does not say how the scale was fixed")
+		}
+	}
+}
+
+// tieXY sets the YY coefficient of every bond to its XX coefficient.
+func tieXY(terms []lattice.Term) {
+	xx := map[[2]int]float64{}
+	for _, t := range terms {
+		if t.Pauli == "XX" {
+			xx[[2]int{t.Sites[0], t.Sites[1]}] = t.Coeff
+		}
+	}
+	for k, t := range terms {
+		if c, ok := xx[[2]int{t.Sites[0], t.Sites[len(t.Sites)-1]}]; ok && t.Pauli == "YY" {
+			terms[k].Coeff = c
 		}
 	}
 }

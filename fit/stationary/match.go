@@ -20,8 +20,8 @@ type ThermalMatch struct {
 	// Gibbs state of the learned direction reproduces the data: the
 	// maximum-entropy consistency test fails (a non-thermal state, or a
 	// wrong beta).
-	Chi2       float64
-	DOF, Terms int
+	Chi2        float64
+	DOF, Terms  int
 	Evaluations int
 
 	a    []float64

@@ -44,7 +44,7 @@ func calibrateFirst(sys *System) Gauge {
 // theorem: the estimator is smooth in the sampled means).
 func TestPullsAndShotScaling(t *testing.T) {
 	sc := scenario{name: "tfim8", spec: "chain:8", preset: "tfim", values: map[string]float64{"J": 1, "hx": 0.8, "hz": 0.3}, disorder: 0.3, beta: 0.7}
-	seeds := 8
+	seeds := 16
 	if testing.Short() {
 		seeds = 4
 	}

@@ -62,12 +62,13 @@ type Direction struct {
 	// StdErr[j] = 1/sqrt(Spectrum[j] - max(Spectrum[0], 0)) (j >= 1;
 	// StdErr[0] is 0): the standard error along eigenvector j.
 	StdErr []float64
-	// SNR[j] (j >= 1) is (Spectrum[j] - Spectrum[0]) over the increase
-	// noise alone gives along eigenvector j (sum_a w_a v^T C_a v): near
-	// or below 1 the direction is set by noise, not by the constraints.
-	SNR []float64
+	// NoiseSpectrum is the same spectrum for pure-noise entries with the
+	// same covariances and weights (one seeded draw): what the
+	// constraints would show without signal.
+	NoiseSpectrum []float64
 	// Invisible lists the eigen-directions the data do not resolve
-	// (StdErr above Options.InvisibleError or SNR below 1), lowest first.
+	// (StdErr above Options.InvisibleError), and the conserved
+	// quantities found by their vanishing constraints, first.
 	Invisible []InvisibleDirection
 	// Chi2 is the weighted residual sum of squares at Theta and
 	// Rows the number of constraints used (Dropped left out because a
@@ -78,8 +79,9 @@ type Direction struct {
 	Method     string
 	Iterations int
 
-	ws  *weighted
-	low lowEigen
+	ws     *weighted
+	low    lowEigen
+	params *fit.Params
 }
 
 // InvisibleDirection is an eigen-direction of the constraints that the
@@ -91,6 +93,12 @@ type InvisibleDirection struct {
 	// (for example "total Z (uniform Z field)") or "not resolved by the
 	// data" when it matches none.
 	Name string
+	// Chi2 and DOF are, for a conserved quantity, the constraint
+	// residuals along it (consistent with noise: chi² near DOF).
+	Chi2 float64
+	DOF  int
+
+	conserved bool
 }
 
 // Solve finds the direction of the coefficients from estimates of
@@ -113,65 +121,67 @@ func Solve(sys *System, est *fit.Estimates, opt Options) (*Direction, error) {
 	}
 	np := ws.np
 	k := min(opt.Low, np)
-	d := &Direction{ws: ws, Rows: ws.rows(), Dropped: ws.dropped}
-	var theta []float64
-	var low lowEigen
-	for it := 0; it < opt.MaxIterations; it++ {
-		ws.reweight(theta)
-		if theta == nil {
-			// The isotropic start has no residuals yet: no noise term.
-			clear(ws.r)
-		}
+	d := &Direction{ws: ws, Rows: ws.rows(), Dropped: ws.dropped, params: sys.params}
+	eig := func(w *weighted, start [][]float64) (lowEigen, error) {
 		if np <= opt.DenseLimit {
-			low, err = denseLowest(ws.dense(), np, k)
-		} else {
-			var startVecs [][]float64
-			if low.vectors != nil {
-				startVecs = low.vectors
-			}
-			low, err = lanczosLowest(ws.mulVec, np, k, startVecs, 1e-9, 20000)
+			return denseLowest(w.dense(), np, k)
 		}
-		if err != nil {
-			return nil, err
-		}
-		next := low.vectors[0]
-		d.Iterations = it + 1
-		if theta != nil {
-			if floats.Dot(next, theta) < 0 {
-				floats.Scale(-1, next)
-			}
-			change := 0.0
-			for i := range next {
-				change = max(change, math.Abs(next[i]-theta[i]))
-			}
-			theta = next
-			if change < 1e-9 {
-				break
-			}
-			continue
-		}
-		theta = next
+		return lanczosLowest(w.mulVec, np, k, start, 1e-9, 20000)
 	}
-	// Final weights and spectrum at the converged direction.
-	ws.reweight(theta)
-	if np <= opt.DenseLimit {
-		low, err = denseLowest(ws.dense(), np, k)
-	} else {
-		low, err = lanczosLowest(ws.mulVec, np, k, low.vectors, 1e-9, 20000)
-	}
+	// Conserved quantities the terms can express (uniform fields) whose
+	// constraints vanish within noise are invisible exactly; they are
+	// pushed out of the eigenproblem (penalty) so that the weights,
+	// which depend on the direction, cannot drift into them.
+	conserved := findConserved(sys, ws)
+	ws.penalty = conserved
+	// Start: weights that do not depend on the direction, no noise
+	// correction; then the fundamental numerical scheme (weights and
+	// noise correction at the direction), iterated.
+	ws.reweight(nil)
+	ws.corr = noCorrection
+	low, err := eig(ws, nil)
 	if err != nil {
 		return nil, err
 	}
-	theta = low.vectors[0]
+	theta := continueDirection(low, nil, opt)
+	d.Iterations = 1
+	ws.corr = residualCorrection
+	for it := 1; it < opt.MaxIterations; it++ {
+		ws.reweight(theta)
+		low, err = eig(ws, low.vectors)
+		if err != nil {
+			return nil, err
+		}
+		next := continueDirection(low, theta, opt)
+		d.Iterations = it + 1
+		change := 0.0
+		for i := range next {
+			change = max(change, math.Abs(next[i]-theta[i]))
+		}
+		theta = next
+		if change < 1e-9 {
+			break
+		}
+	}
+	ws.reweight(theta)
+	low, err = eig(ws, low.vectors)
+	if err != nil {
+		return nil, err
+	}
+	theta = continueDirection(low, theta, opt)
 	if theta[floats.MaxIdx(absAll(theta))] < 0 {
 		floats.Scale(-1, theta)
 	}
 	ws.reweight(theta)
+	d.Chi2 = ws.chi2()
 	d.Theta, d.low, d.Method = theta, low, low.method
 	d.Spectrum = low.values
-	d.Chi2 = ws.chi2()
+	nlow, err := eig(ws.noiseOnly(theta), nil)
+	if err != nil {
+		return nil, err
+	}
+	d.NoiseSpectrum = nlow.values
 	d.StdErr = make([]float64, len(low.values))
-	d.SNR = make([]float64, len(low.values))
 	for j := 1; j < len(low.values); j++ {
 		// At a fixed point of the reweighting theta^T X theta = 0 exactly
 		// (the weights are 1/Var(r_a) at theta); a lowest eigenvalue below
@@ -182,17 +192,79 @@ func Solve(sys *System, est *fit.Estimates, opt Options) (*Direction, error) {
 		if gap > 0 {
 			d.StdErr[j] = 1 / math.Sqrt(gap)
 		}
-		d.SNR[j] = gap / ws.noiseQuad(low.vectors[j])
-		if d.StdErr[j] > opt.InvisibleError || d.SNR[j] < 1 {
-			d.Invisible = append(d.Invisible, InvisibleDirection{Vector: low.vectors[j], StdErr: d.StdErr[j]})
+		if d.StdErr[j] > opt.InvisibleError {
+			d.Invisible = append(d.Invisible, InvisibleDirection{Vector: append([]float64(nil), low.vectors[j]...), StdErr: d.StdErr[j]})
 		}
 	}
+	for _, c := range conserved {
+		d.Invisible = append([]InvisibleDirection{{Vector: append([]float64(nil), c.vector...), StdErr: math.Inf(1), Name: c.name, conserved: true}}, d.Invisible...)
+	}
+	// Theta is a combination of the near-null eigenvectors; make the
+	// invisible directions orthogonal to it (Gram-Schmidt, lowest first).
+	vs := [][]float64{append([]float64(nil), theta...)}
+	for _, inv := range d.Invisible {
+		vs = append(vs, inv.Vector)
+	}
+	orthonormalise(vs)
 	nameInvisible(sys, d)
-	if len(low.values) > 1 && len(d.Invisible) == len(low.values)-1 {
-		return d, fmt.Errorf("%w: none of the %d lowest directions stands out of the noise (signal over noise of the next: %.3g); more shots or a lower temperature are needed",
-			ErrNoInformation, len(low.values), d.SNR[1])
+	if chi2, dof := signalChi2(ws, est); chi2 < float64(dof)+5*math.Sqrt(2*float64(dof)) {
+		return d, fmt.Errorf("%w: the correlators the constraints use are consistent with zero (chi2 %.4g for %d values), as at infinite temperature; more shots or a lower temperature are needed",
+			ErrNoInformation, chi2, dof)
+	}
+	if nres := len(d.Invisible) - len(conserved); len(low.values) > 1 && nres >= len(low.values)-1 {
+		return d, fmt.Errorf("%w: none of the %d lowest directions is resolved (next standard error %.3g); more shots or a lower temperature are needed",
+			ErrNoInformation, len(low.values), d.StdErr[1])
 	}
 	return d, nil
+}
+
+// signalChi2 returns sum_j m_j²/Var(m_j) over the strings the used rows
+// need, and their number: chi² with that many degrees of freedom when
+// every expectation is zero (rho proportional to the identity; distinct
+// Pauli strings are then uncorrelated), far above it with signal.
+func signalChi2(ws *weighted, est *fit.Estimates) (float64, int) {
+	seen := map[int32]bool{}
+	var chi2 float64
+	for _, j := range ws.str {
+		if seen[j] {
+			continue
+		}
+		seen[j] = true
+		if v := est.Cov.At(int(j), int(j)); v > 0 {
+			chi2 += est.Values[j] * est.Values[j] / v
+		}
+	}
+	return chi2, len(seen)
+}
+
+// continueDirection picks the next direction of the reweighting: the
+// lowest eigenvector at first, then the previous direction projected on
+// the span of the eigenvectors not resolved from the lowest (standard
+// error above InvisibleError). With an exactly conserved quantity the
+// lowest eigenvalue is degenerate and its eigenvector an arbitrary mix;
+// projecting keeps the iteration from wandering inside that span.
+func continueDirection(low lowEigen, prev []float64, opt Options) []float64 {
+	v0 := append([]float64(nil), low.vectors[0]...)
+	if prev == nil {
+		return v0
+	}
+	next := make([]float64, len(prev))
+	limit := 1 / (opt.InvisibleError * opt.InvisibleError)
+	for j, v := range low.vectors {
+		if j > 0 && low.values[j]-max(low.values[0], 0) >= limit {
+			break
+		}
+		floats.AddScaled(next, floats.Dot(v, prev), v)
+	}
+	n := floats.Norm(next, 2)
+	if n < 0.5 {
+		if floats.Dot(v0, prev) < 0 {
+			floats.Scale(-1, v0)
+		}
+		return v0
+	}
+	floats.Scale(1/n, next)
+	return next
 }
 
 func absAll(v []float64) []float64 {
@@ -235,8 +307,19 @@ func conservedCandidates(sys *System) (names []string, vecs [][]float64) {
 // candidate it overlaps best (|overlap| > 0.8), else as unresolved.
 func nameInvisible(sys *System, d *Direction) {
 	names, vecs := conservedCandidates(sys)
+	// Compare with the candidates' parts orthogonal to Theta, as the
+	// invisible directions are.
+	for _, v := range vecs {
+		floats.AddScaled(v, -floats.Dot(v, d.Theta), d.Theta)
+		if n := floats.Norm(v, 2); n > 0 {
+			floats.Scale(1/n, v)
+		}
+	}
 	for i := range d.Invisible {
 		inv := &d.Invisible[i]
+		if inv.conserved {
+			continue
+		}
 		inv.Name = "not resolved by the data (too few shots or too little signal)"
 		best := 0.8
 		for c, v := range vecs {
@@ -246,6 +329,9 @@ func nameInvisible(sys *System, d *Direction) {
 		}
 	}
 }
+
+// ParamOf returns the parameter of term k.
+func (d *Direction) ParamOf(k int) int { return int(d.params.Of[k]) }
 
 // Summary describes the spectrum and the invisible directions in a few
 // lines for reports.
@@ -258,18 +344,16 @@ func (d *Direction) Summary() string {
 		vals[j] = fmt.Sprintf("%.4g", v)
 	}
 	fmt.Fprintf(&b, "lowest eigenvalues of the weighted system: %s\n", strings.Join(vals, " "))
+	nvals := make([]string, len(d.NoiseSpectrum))
+	for j, v := range d.NoiseSpectrum {
+		nvals[j] = fmt.Sprintf("%.4g", v)
+	}
+	fmt.Fprintf(&b, "the same for noise alone: %s\n", strings.Join(nvals, " "))
 	if len(d.Invisible) == 0 {
 		fmt.Fprintf(&b, "every other direction is resolved (largest standard error %.3g)\n", maxFinite(d.StdErr))
 	}
 	for _, inv := range d.Invisible {
 		fmt.Fprintf(&b, "invisible direction (standard error %.3g): %s\n", inv.StdErr, inv.Name)
-	}
-	snr := make([]string, 0, len(d.SNR))
-	for _, v := range d.SNR[min(1, len(d.SNR)):] {
-		snr = append(snr, fmt.Sprintf("%.3g", v))
-	}
-	if len(snr) > 0 {
-		fmt.Fprintf(&b, "signal over noise of the next directions: %s\n", strings.Join(snr, " "))
 	}
 	return b.String()
 }

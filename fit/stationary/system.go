@@ -52,6 +52,22 @@ type entry struct {
 // Terms sharing a Group share one parameter (fit.NewParams). Terms must
 // be canonical and distinct (lattice.CheckTerms).
 func NewSystem(n int, terms []lattice.Term) (*System, error) {
+	return NewSystemWith(n, terms, SystemOptions{})
+}
+
+// SystemOptions choose the probes.
+type SystemOptions struct {
+	// FarPairs adds probes on pairs of sites at distance two (a common
+	// neighbour). Models with symmetries (real, parity- or U(1)-
+	// conserving) zero most nearest-neighbour rows, and the extra rows
+	// resolve directions they leave open; otherwise they mostly add
+	// correlated noise (the weights treat rows as independent), so they
+	// are off by default. Their strings are still within covering:3.
+	FarPairs bool
+}
+
+// NewSystemWith is NewSystem with a choice of probes.
+func NewSystemWith(n int, terms []lattice.Term, opt SystemOptions) (*System, error) {
 	if err := lattice.CheckTerms(n, terms); err != nil {
 		return nil, err
 	}
@@ -70,6 +86,31 @@ func NewSystem(n int, terms []lattice.Term) (*System, error) {
 				pairSet[[2]int{s, u}] = true
 			}
 		}
+	}
+	// Pairs at distance two (a common neighbour): symmetric models (real,
+	// parity- or U(1)-conserving ones) give too few independent rows from
+	// nearest-neighbour probes alone.
+	adj := map[int][]int{}
+	for p := range pairSet {
+		adj[p[0]] = append(adj[p[0]], p[1])
+		adj[p[1]] = append(adj[p[1]], p[0])
+	}
+	far := map[[2]int]bool{}
+	for _, nb := range adj {
+		if !opt.FarPairs {
+			break
+		}
+		for x, a := range nb {
+			for _, b := range nb[x+1:] {
+				p := [2]int{min(a, b), max(a, b)}
+				if !pairSet[p] {
+					far[p] = true
+				}
+			}
+		}
+	}
+	for p := range far {
+		pairSet[p] = true
 	}
 	sites := make([]int, 0, len(bySite))
 	for s := range bySite {

@@ -2,8 +2,10 @@ package stationary
 
 import (
 	"math"
+	"slices"
 	"testing"
 
+	"warmfit/fit"
 	"warmfit/validate"
 )
 
@@ -55,5 +57,27 @@ func TestResidualsVanishExactly(t *testing.T) {
 			t.Fatalf("empty system")
 		}
 		t.Logf("%s %s: %d rows, %d strings, %d params", c.spec, c.preset, sys.NumRows(), len(sys.Strings), sys.Params().NumParams())
+	}
+}
+
+// TestCovering3ServesEveryString: the covering:3 scheme measures every
+// string the constraints need (brute force with fit.Serves).
+func TestCovering3ServesEveryString(t *testing.T) {
+	for _, spec := range []string{"chain:9", "square:3x4", "honeycomb:2x2"} {
+		l, terms := testModel(t, spec, "xxz", map[string]float64{"Jxy": 1, "Jz": 0.5, "hz": 0.3, "hx": 0.2}, 0, 0)
+		sys, err := NewSystem(l.NumSites(), terms)
+		if err != nil {
+			t.Fatal(err)
+		}
+		bases, _, err := fit.SchemeBases("covering:3", l.NumSites(), terms, 1)
+		if err != nil {
+			t.Fatal(err)
+		}
+		for _, s := range sys.Strings {
+			if !slices.ContainsFunc(bases, func(b string) bool { return fit.Serves(b, s) }) {
+				t.Fatalf("%s: string %s not served by covering:3", spec, s.Key())
+			}
+		}
+		t.Logf("%s: %d strings, %d bases", spec, len(sys.Strings), len(bases))
 	}
 }

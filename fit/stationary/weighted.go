@@ -4,6 +4,8 @@ import (
 	"fmt"
 	"math"
 
+	"gonum.org/v1/gonum/floats"
+
 	"warmfit/fit"
 )
 
@@ -22,6 +24,37 @@ type weighted struct {
 	probes   []int     // system row of each usable row
 	dropped  int
 	w, r     []float64 // per row: weight and residual at the current direction
+	corr     correction
+	floor    []float64 // per row: the smallest variance a weight may use
+	// penalty directions are lifted out of the low spectrum.
+	penalty []conservedDirection
+}
+
+// correction is the noise correction subtracted from the normal matrix.
+type correction int
+
+const (
+	// noCorrection: X = G = sum_a w_a M_a M_a^T, which noise raises in
+	// every direction by sum_a w_a v^T C_a v (used to find the near-null
+	// span; the noise-alone spectrum calibrates it).
+	noCorrection correction = iota
+	// expectedCorrection: X = G - sum_a w_a C_a, unbiased for fixed
+	// weights (bias-corrected total least squares).
+	expectedCorrection
+	// residualCorrection: X = G - sum_a w_a² r_a² C_a with weights and
+	// residuals at the direction (the fundamental numerical scheme).
+	residualCorrection
+)
+
+// biasOf returns the factor of C_a in the noise correction of row a.
+func (ws *weighted) biasOf(a int) float64 {
+	switch ws.corr {
+	case noCorrection:
+		return 0
+	case expectedCorrection:
+		return ws.w[a]
+	}
+	return ws.w[a] * ws.w[a] * ws.r[a] * ws.r[a]
 }
 
 // newWeighted fills sys with estimates, leaving out rows that use a
@@ -120,20 +153,13 @@ func (ws *weighted) reweight(theta []float64) {
 	// an unbounded weight (and, without signal, a runaway iteration);
 	// rows of an exact table have no noise at all. Floor each variance
 	// at 1% of its isotropic value and far below the typical one.
+	if len(ws.floor) != ws.rows() {
+		ws.floor = make([]float64, ws.rows())
+	}
 	for a, v := range ws.w {
-		floor := max(0.01*iso[a], 1e-12*mean, math.SmallestNonzeroFloat64)
-		ws.w[a] = 1 / max(v, floor)
+		ws.floor[a] = max(0.01*iso[a], 1e-12*mean, math.SmallestNonzeroFloat64)
+		ws.w[a] = 1 / max(v, ws.floor[a])
 	}
-}
-
-// noiseQuad returns sum_a w_a v^T C_a v: the expected increase of
-// v^T X v from noise alone, the yardstick of a direction's signal.
-func (ws *weighted) noiseQuad(v []float64) float64 {
-	var s float64
-	for a := range ws.rows() {
-		s += ws.w[a] * ws.noiseOf(a, v)
-	}
-	return s
 }
 
 // chi2 returns sum_a w_a r_a², the weighted residual at the current
@@ -153,6 +179,11 @@ func (ws *weighted) chi2() float64 {
 // 1294 (2000)). dst and v must not share memory.
 func (ws *weighted) mulVec(dst, v []float64) {
 	clear(dst)
+	defer func() {
+		if len(ws.penalty) > 0 {
+			ws.addPenalty(dst, v, ws.penaltyWeight())
+		}
+	}()
 	for a := range ws.rows() {
 		lo, hi, c := ws.block(a)
 		var t float64
@@ -163,7 +194,7 @@ func (ws *weighted) mulVec(dst, v []float64) {
 		for e := lo; e < hi; e++ {
 			dst[ws.param[e]] += t * ws.val[e]
 		}
-		bias := ws.w[a] * ws.w[a] * ws.r[a] * ws.r[a]
+		bias := ws.biasOf(a)
 		if bias == 0 {
 			continue
 		}
@@ -185,7 +216,7 @@ func (ws *weighted) dense() []float64 {
 	for a := range ws.rows() {
 		lo, hi, c := ws.block(a)
 		k := hi - lo
-		bias := ws.w[a] * ws.w[a] * ws.r[a] * ws.r[a]
+		bias := ws.biasOf(a)
 		for i := 0; i < k; i++ {
 			pi := int(ws.param[lo+i])
 			for j := 0; j < k; j++ {
@@ -194,5 +225,32 @@ func (ws *weighted) dense() []float64 {
 			}
 		}
 	}
+	if len(ws.penalty) > 0 {
+		pw := ws.penaltyWeight()
+		for _, c := range ws.penalty {
+			for i, ui := range c.vector {
+				if ui == 0 {
+					continue
+				}
+				for j, uj := range c.vector {
+					x[i*n+j] += pw * ui * uj
+				}
+			}
+		}
+	}
 	return x
+}
+
+// penaltyWeight returns penaltyScale times the largest diagonal entry of
+// the uncorrected normal matrix: a conserved direction then sits far
+// above every eigenvalue that matters.
+func (ws *weighted) penaltyWeight() float64 {
+	diag := make([]float64, ws.np)
+	for a := range ws.rows() {
+		lo, hi, _ := ws.block(a)
+		for e := lo; e < hi; e++ {
+			diag[ws.param[e]] += ws.w[a] * ws.val[e] * ws.val[e]
+		}
+	}
+	return penaltyScale * max(floats.Max(diag), 1)
 }
