@@ -153,6 +153,12 @@ func TestReadmeNumbersAgreeWithCode(t *testing.T) {
 	} else if v, _ := strconv.ParseFloat(m[1], 64); v != tol {
 		t.Errorf("README.md says the default tolerance is %s; predict --tol defaults to %v", m[1], tol)
 	}
+	// The crosscheck row quotes its --dense-qubits default and size limit.
+	cfs := pflag.NewFlagSet("crosscheck", pflag.ContinueOnError)
+	commands["crosscheck"].Flags(cfs)
+	if want := fmt.Sprintf("dense to %s qubits, typicality to %d", cfs.Lookup("dense-qubits").DefValue, maxCrosscheckQubits); !strings.Contains(readme, want) {
+		t.Errorf("README.md does not say %q (crosscheck's defaults)", want)
+	}
 	// Any other "N qubits" in the README must be one of the code's limits.
 	limits := map[string]bool{}
 	for _, n := range []int{denseExactQubits, cluster.MaxDenseQubits, validate.MaxTypicalityQubits, maxCrosscheckQubits} {
