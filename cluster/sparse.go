@@ -33,14 +33,5 @@ func (s *SparseSym) MulVec(dst, x []float64) {
 	}
 }
 
-// Diag returns the diagonal.
-func (s *SparseSym) Diag() []float64 {
-	d := make([]float64, s.N)
-	for i := range d {
-		d[i] = s.At(i, i)
-	}
-	return d
-}
-
 // NNZ returns the number of stored elements.
 func (s *SparseSym) NNZ() int { return len(s.Val) }

@@ -27,22 +27,6 @@ func BenchmarkCountClustersSquare20x20Order8(b *testing.B) {
 	b.ReportMetric(float64(n)/b.Elapsed().Seconds(), "clusters/s")
 }
 
-// BenchmarkBuildClustersSquare20x20Order8 stores the same clusters in a
-// ClusterList (counting pass, then parallel fill).
-func BenchmarkBuildClustersSquare20x20Order8(b *testing.B) {
-	l := mustBuild(b, "square:20x20")
-	var n int64
-	b.ResetTimer()
-	for range b.N {
-		list, err := l.BuildClusters(8, 0)
-		if err != nil {
-			b.Fatal(err)
-		}
-		n += int64(list.Len())
-	}
-	b.ReportMetric(float64(n)/b.Elapsed().Seconds(), "clusters/s")
-}
-
 // BenchmarkCountClustersCubic8x8x8Order8 is a 3-D counting load.
 func BenchmarkCountClustersCubic8x8x8Order8(b *testing.B) {
 	l := mustBuild(b, "cubic:8x8x8")
