@@ -10,18 +10,18 @@ import (
 // pointers, omitted when undefined, so that no NaN or infinity is ever
 // written.
 type Report struct {
-	Converged     bool     `json:"converged"`
-	Reason        string   `json:"reason,omitempty"`
-	Iterations    int      `json:"iterations"`
-	AllIterations int      `json:"iterations_all_orders"`
-	Evaluations   int      `json:"evaluations"`
-	GradientSigma *float64 `json:"gradient_sigma,omitempty"` // max |gradient| / data noise
-	GradientAbs   *float64 `json:"gradient_abs,omitempty"`   // exact data: max mean residual
-	Tolerance     float64  `json:"tolerance"`
-	Order         int      `json:"order"`
-	OrderMode     string   `json:"order_selection"` // "fixed" or "auto"
-	Beta          float64  `json:"beta"`
-	BetaKnown     bool     `json:"beta_known"`
+	Converged     bool      `json:"converged"`
+	Reason        string    `json:"reason,omitempty"`
+	Iterations    int       `json:"iterations"`
+	AllIterations int       `json:"iterations_all_orders"`
+	Evaluations   int       `json:"evaluations"`
+	GradientSigma *float64  `json:"gradient_sigma,omitempty"` // max |gradient| / data noise
+	GradientAbs   *float64  `json:"gradient_abs,omitempty"`   // exact data: max mean residual
+	Tolerance     float64   `json:"tolerance"`
+	Order         int       `json:"order"`
+	OrderMode     OrderMode `json:"order_selection"`
+	Beta          float64   `json:"beta"`
+	BetaKnown     bool      `json:"beta_known"`
 	// BetaSource says where Beta comes from: "given", "energy scale"
 	// (recovered by ScaleEnergy; see EnergyScale) or "unknown" (Beta is
 	// 1 by convention and the coefficients are beta*lambda).
@@ -30,7 +30,7 @@ type Report struct {
 	CoeffMeaning string             `json:"coefficients"` // "lambda" or "beta*lambda"
 	Terms        int                `json:"terms"`
 	Parameters   int                `json:"parameters"`
-	DataKind     string             `json:"data,omitempty"`
+	DataKind     DataKind           `json:"data,omitempty"`
 	DataFile     string             `json:"data_file,omitempty"`
 	ExactData    bool               `json:"exact_data"`
 	// Unmeasured counts terms without data fitted through their group.
@@ -145,9 +145,18 @@ func finitePtr(v float64) *float64 {
 	return &v
 }
 
-// NewReport builds the report of a fit. mode is "fixed" or "auto"; data
+// OrderMode says how the order of a fit was chosen.
+type OrderMode string
+
+// Order modes of a Report.
+const (
+	OrderFixed OrderMode = "fixed" // the caller's Options.Order
+	OrderAuto  OrderMode = "auto"  // raised by the fitter (Options.Order 0)
+)
+
+// NewReport builds the report of a fit. mode is OrderFixed or OrderAuto; data
 // kind and file label the input; tol is the stopping tolerance used.
-func NewReport(r *Result, mode, dataKind, dataFile string, tol float64) *Report {
+func NewReport(r *Result, mode OrderMode, dataKind DataKind, dataFile string, tol float64) *Report {
 	rep := &Report{
 		Converged:     r.Converged,
 		Reason:        r.Reason,

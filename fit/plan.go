@@ -11,10 +11,13 @@ import (
 	"warmfit/lattice"
 )
 
+// Norm is the norm in which a shot plan's target error is measured.
+type Norm string
+
 // Norms of the target error accepted by PlanShots.
 const (
-	NormLinf = "linf"
-	NormL2   = "l2"
+	NormLinf Norm = "linf"
+	NormL2   Norm = "l2"
 )
 
 // PlanOptions controls PlanShots.
@@ -24,7 +27,7 @@ type PlanOptions struct {
 	// Norm is NormLinf (default): every coefficient within Target at
 	// Confidence, simultaneously; or NormL2: the expected squared L2
 	// error sum_k E(fit_k - lambda_k)^2 at most Target^2.
-	Norm string
+	Norm Norm
 	// Confidence of the NormLinf guarantee; default 0.95.
 	Confidence float64
 	// Bases is the measurement scheme (one letter per qubit each); nil
@@ -51,7 +54,7 @@ type Plan struct {
 	// ShotsPerBasis.
 	VarPerShot []float64
 	Stderr     []float64
-	Norm       string
+	Norm       Norm
 	Target     float64
 	Confidence float64
 	// Z is the two-sided normal quantile of the Bonferroni bound

@@ -271,9 +271,9 @@ func runFit(env *runEnv, args []string) error {
 			return err
 		}
 	}
-	mode := "auto"
+	mode := fit.OrderAuto
 	if order > 0 {
-		mode = "fixed"
+		mode = fit.OrderFixed
 	}
 	rep := fit.NewReport(res, mode, kind, o.data, o.tol)
 	var cmp *fit.TruthComparison
