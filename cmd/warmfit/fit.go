@@ -54,7 +54,7 @@ func init() {
 			addBetaFlag(fs, &o.beta, "inverse temperature (overrides the template's; without either, beta*lambda is fitted)")
 			fs.StringVar(&o.order, "order", "auto", "expansion order L (largest cluster), or auto")
 			fs.IntVar(&o.maxOrder, "max-order", 0, "highest order --order auto may use (default: sites, at most 12)")
-			fs.DurationVar(&o.budget, "budget", 60*time.Second, "wall time --order auto may spend (a higher order is not started, or is abandoned, past it)")
+			addBudgetFlag(fs, &o.budget)
 			fs.StringVar(&o.truth, "truth", "", "true model `FILE`: report z-scores and L2/Linf errors against it")
 			fs.StringVar(&o.format, "format", "json", "output format: json (fitted model with report) or csv")
 			fs.StringVarP(&o.out, "output", "o", "", "write the fit to `FILE` instead of stdout")
@@ -144,8 +144,14 @@ func runFit(env *runEnv, args []string) error {
 		}
 		order = n
 	}
-	if o.budget <= 0 {
-		return usagef("--budget %v: must be positive", o.budget)
+	if err := checkBudgetFlag(o.budget); err != nil {
+		return err
+	}
+	if o.workers < 0 {
+		return usagef("--workers %d: want a number of workers >= 1, or 0 for all cores", o.workers)
+	}
+	if o.covDist < 0 {
+		return usagef("--cov-distance %d: want a graph distance >= 0 (0 keeps variances only)", o.covDist)
 	}
 	if !(o.tol > 0) || o.maxIter < 1 || !(o.fdr > 0 && o.fdr < 1) {
 		return usagef("--tol and --fdr must be in range (tol > 0, 0 < fdr < 1) and --max-iter at least 1")
@@ -174,6 +180,22 @@ func runFit(env *runEnv, args []string) error {
 	var truth *model.Model
 	if o.truth != "" {
 		if truth, err = model.ReadFile(o.truth); err != nil {
+			return err
+		}
+		if !truth.Lattice.SameGraph(tmpl.Lattice) {
+			return usagef("--truth %s is a model on %s (%d sites), but the template %s is on %s (%d sites): their terms cannot be compared; give the true model of this lattice",
+				o.truth, truth.Lattice.Spec, truth.Lattice.NumSites(), o.model, tmpl.Lattice.Spec, tmpl.Lattice.NumSites())
+		}
+	}
+	if exp, err := cluster.NewExpansion(tmpl.Lattice, tmpl.Terms); err == nil {
+		policy := cluster.NewOrderPolicy(tmpl.Lattice, tmpl.Terms)
+		if order > 0 {
+			e := expansionEstimate(exp, tmpl.Lattice.NumSites(), order, "--order")
+			e.What = "one evaluation of the " + e.What + " (a fit makes several)"
+			if err := admit(env.Stderr, "fit", e, o.budget); err != nil {
+				return err
+			}
+		} else if err := admitExpansion(env, "fit", exp, tmpl.Lattice.NumSites(), 0, policy, o.budget); err != nil {
 			return err
 		}
 	}

@@ -7,9 +7,11 @@ import (
 	"io"
 	"math"
 	"strconv"
+	"time"
 
 	"github.com/spf13/pflag"
 
+	"warmfit/cluster"
 	"warmfit/fit"
 	"warmfit/lattice"
 	"warmfit/lattice/model"
@@ -29,6 +31,7 @@ var planOptions struct {
 	format     string
 	out        string
 	workers    int
+	budget     time.Duration
 }
 
 func init() {
@@ -51,6 +54,7 @@ func init() {
 			fs.StringVar(&o.format, "format", "text", "text (summary), csv (per term) or json")
 			fs.StringVarP(&o.out, "output", "o", "", "write to `FILE` instead of stdout")
 			fs.IntVar(&o.workers, "workers", 0, "parallel workers (default: all cores)")
+			addBudgetFlag(fs, &o.budget)
 		},
 		Run: runPlan,
 	})
@@ -101,6 +105,9 @@ func runPlan(env *runEnv, args []string) error {
 	if o.order < 0 {
 		return usagef("--order %d: must be positive", o.order)
 	}
+	if err := checkBudgetFlag(o.budget); err != nil {
+		return err
+	}
 	if err := checkOutputs([]outputFile{{"-o", o.out}}, o.model); err != nil {
 		return err
 	}
@@ -120,8 +127,17 @@ func runPlan(env *runEnv, args []string) error {
 			fmt.Fprintf(env.Stderr, "plan: order %d, the order the model was fitted at\n", order)
 		}
 	}
+	exp, err := cluster.NewExpansion(m.Lattice, m.Terms)
+	if err != nil {
+		return err
+	}
+	policy := cluster.NewOrderPolicy(m.Lattice, m.Terms)
+	policy.Budget = o.budget
+	if err := admitExpansion(env, "plan", exp, n, order, policy, o.budget); err != nil {
+		return err
+	}
 	plan, err := fit.PlanShots(m.Lattice, m.Terms, beta, fit.PlanOptions{
-		Target: o.target, Norm: o.norm, Confidence: o.confidence, Bases: bases, Order: order, Workers: o.workers,
+		Target: o.target, Norm: o.norm, Confidence: o.confidence, Bases: bases, Order: order, Workers: o.workers, Budget: o.budget,
 	})
 	if err != nil {
 		return err

@@ -25,6 +25,7 @@ func init() {
 		tol       float64
 		vectors   int
 		seed      uint64
+		budget    time.Duration
 		out       string
 		flags     *pflag.FlagSet
 	)
@@ -64,6 +65,7 @@ warmfit predict --model m.json --method exact`,
 			fs.Float64Var(&tol, "tol", 1e-3, "truncation error at which an expansion value counts as trusted")
 			fs.IntVar(&vectors, "vectors", 0, "random vectors for thermal typicality (exact method past dense size)")
 			fs.Uint64Var(&seed, "seed", 1, "seed of the random vectors")
+			addBudgetFlag(fs, &budget)
 			fs.StringVarP(&out, "output", "o", "", "write the table to `FILE` instead of stdout")
 		},
 		Run: func(env *runEnv, args []string) error {
@@ -76,6 +78,12 @@ warmfit predict --model m.json --method exact`,
 			if !(tol > 0) || math.IsInf(tol, 0) {
 				return usagef("--tol %v: must be a positive number", tol)
 			}
+			if vectors < 0 || vectors == 1 {
+				return usagef("--vectors %d: want at least 2 random vectors (0: the default 16)", vectors)
+			}
+			if err := checkBudgetFlag(budget); err != nil {
+				return err
+			}
 			if err := checkOutputs([]outputFile{{"-o", out}}, modelPath); err != nil {
 				return err
 			}
@@ -86,9 +94,9 @@ warmfit predict --model m.json --method exact`,
 			var table *fit.Table
 			switch method {
 			case "expansion":
-				table, err = predictByExpansion(env, m, b, order, tol)
+				table, err = predictByExpansion(env, m, b, order, tol, budget)
 			case "exact":
-				table, err = predictExact(env, m, b, vectors, seed)
+				table, err = predictExact(env, m, b, vectors, seed, budget)
 			default:
 				return usagef("--method %q: want expansion or exact", method)
 			}
@@ -137,9 +145,14 @@ func modelCoeffs(m *model.Model) []float64 {
 	return c
 }
 
-func predictByExpansion(env *runEnv, m *model.Model, beta float64, order int, tol float64) (*fit.Table, error) {
+func predictByExpansion(env *runEnv, m *model.Model, beta float64, order int, tol float64, budget time.Duration) (*fit.Table, error) {
 	exp, err := cluster.NewExpansion(m.Lattice, m.Terms)
 	if err != nil {
+		return nil, err
+	}
+	policy := cluster.NewOrderPolicy(m.Lattice, m.Terms)
+	policy.Budget = budget
+	if err := admitExpansion(env, "predict", exp, m.Lattice.NumSites(), order, policy, budget); err != nil {
 		return nil, err
 	}
 	coeffs := modelCoeffs(m)
@@ -152,7 +165,7 @@ func predictByExpansion(env *runEnv, m *model.Model, beta float64, order int, to
 		res, err = exp.Evaluate(coeffs, beta, opt)
 	} else {
 		var choice cluster.OrderChoice
-		res, choice, err = exp.ChooseOrder(coeffs, beta, tol, cluster.NewOrderPolicy(m.Lattice, m.Terms), opt)
+		res, choice, err = exp.ChooseOrder(coeffs, beta, tol, policy, opt)
 		if err == nil {
 			order = choice.Order
 			for _, st := range choice.Steps {
@@ -235,11 +248,25 @@ func boundLine(b cluster.ThresholdBound, beta float64) string {
 	return fmt.Sprintf("sufficient-temperature bound (cluster-expansion criterion, term-overlap degree %d): beta < %.3g; this beta is %s it, so trust rests on the measured convergence", b.Degree, b.Beta, rel)
 }
 
-func predictExact(env *runEnv, m *model.Model, beta float64, vectors int, seed uint64) (*fit.Table, error) {
+func predictExact(env *runEnv, m *model.Model, beta float64, vectors int, seed uint64, budget time.Duration) (*fit.Table, error) {
 	n := m.Lattice.NumSites()
 	if n > validate.MaxTypicalityQubits {
 		return nil, fmt.Errorf("--method exact handles at most %d qubits (dense up to %d, thermal typicality beyond); this model has %d: use --method expansion",
 			validate.MaxTypicalityQubits, denseExactQubits, n)
+	}
+	cost := denseEstimate(n, "the number of qubits (or use --method expansion)")
+	if n > denseExactQubits {
+		if vectors == 0 {
+			vectors = defaultTypicalityVectors
+		}
+		norm1 := 0.0
+		for _, t := range m.Terms {
+			norm1 += math.Abs(t.Coeff)
+		}
+		cost = typicalityEstimate(n, vectors, len(m.Terms), norm1, beta)
+	}
+	if err := admit(env.Stderr, "predict", cost, budget); err != nil {
+		return nil, err
 	}
 	ops := make([]cluster.PauliString, len(m.Terms))
 	for k, t := range m.Terms {
@@ -277,6 +304,24 @@ func predictExact(env *runEnv, m *model.Model, beta float64, vectors int, seed u
 		n, fmtFloat(beta), fmtFloat(logZ.Value), fmtFloat(logZ.Stderr))}
 	fmt.Fprintf(env.Stderr, "exact: %d qubits are past dense size (%d); thermal typicality, %.2fs\n", n, denseExactQubits, time.Since(start).Seconds())
 	return t, nil
+}
+
+// defaultTypicalityVectors is the number of random vectors of thermal
+// typicality when --vectors is not given (validate's default).
+const defaultTypicalityVectors = 16
+
+// admitExpansion predicts an expansion run before it starts: an explicit
+// order is estimated and refused past the memory or --budget; an
+// automatic choice says where it starts and that each further order is
+// predicted before it is started.
+func admitExpansion(env *runEnv, cmd string, exp *cluster.Expansion, sites, order int, policy cluster.OrderPolicy, budget time.Duration) error {
+	if order > 0 {
+		return admit(env.Stderr, cmd, expansionEstimate(exp, sites, order, "--order"), budget)
+	}
+	e := expansionEstimate(exp, sites, policy.Start, "--order")
+	fmt.Fprintf(env.Stderr, "%s: estimate: %s, about %s to start --order auto; each higher order is predicted before it starts and not begun past --budget %v\n",
+		cmd, e.What, describeTime(e.Duration), budget)
+	return nil
 }
 
 // denseExactQubits is the largest system `predict --method exact` and the

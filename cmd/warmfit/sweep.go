@@ -22,6 +22,7 @@ func init() {
 		oldRange  string // the retired --beta-range, answered with a pointer
 		order     int
 		tol       float64
+		budget    time.Duration
 		out       string
 		flags     *pflag.FlagSet
 	)
@@ -47,6 +48,7 @@ warmfit sweep --model h.json --beta-grid from=0.05,to=1,points=20 --order 6`,
 			_ = fs.MarkHidden("beta-range")
 			fs.IntVar(&order, "order", 0, "largest cluster size (default: the highest the automatic work limit affords)")
 			fs.Float64Var(&tol, "tol", 1e-3, "truncation error per site at which a row counts as trusted")
+			addBudgetFlag(fs, &budget)
 			fs.StringVarP(&out, "output", "o", "", "write the table to `FILE` instead of stdout")
 		},
 		Run: func(env *runEnv, args []string) error {
@@ -61,6 +63,9 @@ warmfit sweep --model h.json --beta-grid from=0.05,to=1,points=20 --order 6`,
 			}
 			if !(tol > 0) || math.IsInf(tol, 0) {
 				return usagef("--tol %v: must be a positive number", tol)
+			}
+			if err := checkBudgetFlag(budget); err != nil {
+				return err
 			}
 			if oldRange != "" {
 				return retiredBetaRange(oldRange)
@@ -84,7 +89,13 @@ warmfit sweep --model h.json --beta-grid from=0.05,to=1,points=20 --order 6`,
 				// One diagonalisation per cluster serves every temperature,
 				// so the automatic order is the highest the policy affords.
 				order = cluster.NewOrderPolicy(m.Lattice, m.Terms).Highest(exp)
-				fmt.Fprintf(env.Stderr, "sweep: expansion order %d chosen automatically (the highest within the automatic work limit)\n", order)
+				for order > 1 && expansionEstimate(exp, m.Lattice.NumSites(), order, "").Duration > budget {
+					order--
+				}
+				fmt.Fprintf(env.Stderr, "sweep: expansion order %d chosen automatically (the highest within the automatic work limit and --budget)\n", order)
+			}
+			if err := admit(env.Stderr, "sweep", expansionEstimate(exp, m.Lattice.NumSites(), order, "--order"), budget); err != nil {
+				return err
 			}
 			bar := newProgressBar(env, "expanding")
 			start := time.Now()
