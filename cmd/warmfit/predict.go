@@ -27,6 +27,7 @@ func init() {
 		seed      uint64
 		budget    time.Duration
 		out       string
+		csvOut    csvFlags
 		flags     *pflag.FlagSet
 	)
 	register(&command{
@@ -50,9 +51,11 @@ a ceiling by lattice dimension (12 on a chain, 8 in two dimensions) and while th
 estimated work of the next order stays within about a minute of computing; stderr
 says which order was used and why.
 
---method exact diagonalises the whole system: densely up to 11 qubits (stderr
-empty), and by thermal typicality with random vectors up to 26 qubits, in which case
-stderr holds the statistical error of each value.`,
+--method exact diagonalises the whole system: densely up to ` + fmt.Sprint(denseExactQubits) + ` qubits (stderr
+"exact"), and by thermal typicality with random vectors up to ` + fmt.Sprint(validate.MaxTypicalityQubits) + ` qubits, in which
+case stderr holds the statistical error of each value.
+
+` + csvOutputHelp,
 		Example: `warmfit model --lattice square:4x4 --preset xxz --set Jxy=0.5,Jz=1,hz=0.3 --beta 0.4 -o m.json
 warmfit predict --model m.json --order 6 -o e.csv
 warmfit predict --model m.json --method exact`,
@@ -67,6 +70,7 @@ warmfit predict --model m.json --method exact`,
 			fs.Uint64Var(&seed, "seed", 1, "seed of the random vectors")
 			addBudgetFlag(fs, &budget)
 			fs.StringVarP(&out, "output", "o", "", "write the table to `FILE` instead of stdout")
+			addCSVFlags(fs, &csvOut)
 		},
 		Run: func(env *runEnv, args []string) error {
 			if len(args) > 0 {
@@ -84,7 +88,7 @@ warmfit predict --model m.json --method exact`,
 			if err := checkBudgetFlag(budget); err != nil {
 				return err
 			}
-			if err := checkOutputs([]outputFile{{"-o", out}}, modelPath); err != nil {
+			if err := checkOutputs(withCSV("-o", out, csvOut), modelPath); err != nil {
 				return err
 			}
 			m, b, err := loadModelBeta(modelPath, beta)
@@ -92,18 +96,33 @@ warmfit predict --model m.json --method exact`,
 				return err
 			}
 			var table *fit.Table
+			fields := map[string]any{}
 			switch method {
 			case "expansion":
-				table, err = predictByExpansion(env, m, b, order, tol, budget)
+				table, err = predictByExpansion(env, m, b, order, tol, budget, fields)
 			case "exact":
-				table, err = predictExact(env, m, b, vectors, seed, budget)
+				table, err = predictExact(env, m, b, vectors, seed, budget, fields)
 			default:
 				return usagef("--method %q: want expansion or exact", method)
 			}
 			if err != nil {
 				return err
 			}
-			return writeOutput(env, out, func(w io.Writer) error { return fit.WriteTable(w, table) })
+			meta := tableMeta("predict", "expectation table: one row per model term (pauli,sites,value,stderr, then the method's columns)", table.Comments)
+			table.Comments = nil
+			meta.set("model", modelPath)
+			meta.set("method", method)
+			meta.set("beta", b)
+			if fittedWithoutScale(m) {
+				note := "the model's coefficients are beta*lambda (fitted without beta): beta = 1 is the temperature of its data, by convention"
+				meta.line("%s", note)
+				meta.set("beta_meaning", "1 by convention: the coefficients are beta*lambda")
+				fmt.Fprintln(env.Stderr, "predict: "+note)
+			}
+			for k, v := range fields {
+				meta.set(k, v)
+			}
+			return writeCSVResult(env, out, csvOut, meta, func(w io.Writer) error { return fit.WriteTable(w, table) })
 		},
 	})
 }
@@ -120,6 +139,9 @@ func loadModelBeta(path string, beta betaFlag) (*model.Model, float64, error) {
 	}
 	b := m.Beta
 	if beta.set {
+		if fittedWithoutScale(m) {
+			return nil, 0, usagef("%s was fitted without beta: its coefficients are beta*lambda (beta = 1 by convention), so --beta %s would count the temperature twice; drop --beta, or fix the energy scale with 'warmfit fit ... --scale-from TERM=VALUE'", path, beta.String())
+		}
 		b = beta.value
 	}
 	if b <= 0 {
@@ -128,11 +150,25 @@ func loadModelBeta(path string, beta betaFlag) (*model.Model, float64, error) {
 	return m, b, nil
 }
 
-// checkOrderFlag refuses an explicit --order outside 1..MaxDenseQubits
-// (clusters are diagonalised densely).
+// checkOrderFlag refuses an explicit --order outside
+// minExpansionOrder..MaxDenseQubits as a usage error.
 func checkOrderFlag(fs *pflag.FlagSet, order int) error {
-	if fs.Changed("order") && (order < 1 || order > cluster.MaxDenseQubits) {
-		return usagef("--order %d: must be from 1 to %d (clusters are diagonalised exactly)", order, cluster.MaxDenseQubits)
+	if fs.Changed("order") {
+		return checkOrder(strconv.Itoa(order), order)
+	}
+	return nil
+}
+
+// minExpansionOrder is the lowest --order any command takes: order 1
+// holds single sites only, no two-site term and no convergence estimate.
+const minExpansionOrder = 2
+
+// checkOrder is the one range check of an --order value (given is the
+// flag as written, for the message).
+func checkOrder(given string, order int) error {
+	if order < minExpansionOrder || order > cluster.MaxDenseQubits {
+		return usagef("--order %s: must be from %d to %d (order 1 holds single sites only; clusters are diagonalised exactly, at most %d sites)",
+			given, minExpansionOrder, cluster.MaxDenseQubits, cluster.MaxDenseQubits)
 	}
 	return nil
 }
@@ -145,7 +181,9 @@ func modelCoeffs(m *model.Model) []float64 {
 	return c
 }
 
-func predictByExpansion(env *runEnv, m *model.Model, beta float64, order int, tol float64, budget time.Duration) (*fit.Table, error) {
+// predictByExpansion returns the table of expansion predictions and
+// records the run's facts in meta.
+func predictByExpansion(env *runEnv, m *model.Model, beta float64, order int, tol float64, budget time.Duration, meta map[string]any) (*fit.Table, error) {
 	exp, err := cluster.NewExpansion(m.Lattice, m.Terms)
 	if err != nil {
 		return nil, err
@@ -206,6 +244,15 @@ func predictByExpansion(env *runEnv, m *model.Model, beta float64, order int, to
 	}
 	bound := cluster.SufficientBeta(m.Terms, coeffs)
 	verdict := expansionVerdict(untrusted-unknown, unknown, len(m.Terms), worst, tol, beta, order)
+	meta["order"] = order
+	meta["clusters"] = sum64(res.Clusters)
+	meta["tolerance"] = tol
+	meta["values_unconverged"] = untrusted - unknown
+	meta["values_unjudged"] = unknown
+	meta["converged"] = untrusted == 0
+	meta["max_truncation_error"] = worst
+	meta["sufficient_beta_bound"] = bound.Beta
+	meta["overlap_degree"] = bound.Degree
 	t.Comments = []string{
 		fmt.Sprintf("warmfit predict: linked-cluster expansion, order %d, beta %s, %d clusters", order, fmtFloat(beta), sum64(res.Clusters)),
 		verdict, // WriteTable splits multi-line comments
@@ -248,7 +295,7 @@ func boundLine(b cluster.ThresholdBound, beta float64) string {
 	return fmt.Sprintf("sufficient-temperature bound (cluster-expansion criterion, term-overlap degree %d): beta < %.3g; this beta is %s it, so trust rests on the measured convergence", b.Degree, b.Beta, rel)
 }
 
-func predictExact(env *runEnv, m *model.Model, beta float64, vectors int, seed uint64, budget time.Duration) (*fit.Table, error) {
+func predictExact(env *runEnv, m *model.Model, beta float64, vectors int, seed uint64, budget time.Duration, meta map[string]any) (*fit.Table, error) {
 	n := m.Lattice.NumSites()
 	if n > validate.MaxTypicalityQubits {
 		return nil, fmt.Errorf("--method exact handles at most %d qubits (dense up to %d, thermal typicality beyond); this model has %d: use --method expansion",
@@ -288,6 +335,8 @@ func predictExact(env *runEnv, m *model.Model, beta float64, vectors int, seed u
 		for k, term := range m.Terms {
 			t.Rows = append(t.Rows, fit.Row{Pauli: term.Pauli, Sites: term.Sites, Value: vals[k]})
 		}
+		meta["exact_method"] = "dense diagonalisation"
+		meta["qubits"] = n
 		t.Comments = []string{fmt.Sprintf("warmfit predict: dense exact diagonalisation of %d qubits, beta %s", n, fmtFloat(beta))}
 		fmt.Fprintf(env.Stderr, "exact: dense diagonalisation of %d qubits, %.2fs\n", n, time.Since(start).Seconds())
 		return t, nil
@@ -300,6 +349,15 @@ func predictExact(env *runEnv, m *model.Model, beta float64, vectors int, seed u
 	for k, term := range m.Terms {
 		t.Rows = append(t.Rows, fit.Row{Pauli: term.Pauli, Sites: term.Sites, Value: est[k].Value, Stderr: est[k].Stderr, HasStderr: true})
 	}
+	meta["exact_method"] = "thermal typicality"
+	meta["qubits"] = n
+	meta["vectors"] = opt.Vectors
+	if opt.Vectors == 0 {
+		meta["vectors"] = 16 // validate.TypicalityOptions' default
+	}
+	meta["seed"] = seed
+	meta["log_z"] = logZ.Value
+	meta["log_z_stderr"] = logZ.Stderr
 	t.Comments = []string{fmt.Sprintf("warmfit predict: thermal typicality on %d qubits, beta %s, log Z = %s +- %s; stderr is statistical",
 		n, fmtFloat(beta), fmtFloat(logZ.Value), fmtFloat(logZ.Stderr))}
 	fmt.Fprintf(env.Stderr, "exact: %d qubits are past dense size (%d); thermal typicality, %.2fs\n", n, denseExactQubits, time.Since(start).Seconds())

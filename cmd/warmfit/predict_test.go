@@ -68,13 +68,25 @@ func TestExpectExpansionMatchesExact(t *testing.T) {
 // At a temperature far too low for the order, the output must say so in
 // the file and on stderr, not only in the trusted column.
 func TestExpectWarnsWhenNotConverged(t *testing.T) {
-	modelPath := writeTestModel(t, t.TempDir())
+	dir := t.TempDir()
+	modelPath := writeTestModel(t, dir)
 	code, out, stderr := runCmd("predict", "--model", modelPath, "--order", "3", "--beta", "1")
 	if code != 0 {
 		t.Fatalf("exit %d: %s", code, stderr)
 	}
-	if !strings.Contains(stderr, "WARNING") || !strings.Contains(out, "# WARNING") {
-		t.Errorf("no plain warning at beta = 1, order 3:\nstdout:\n%s\nstderr:\n%s", out, stderr)
+	if !strings.Contains(stderr, "WARNING") {
+		t.Errorf("no plain warning at beta = 1, order 3:\nstderr:\n%s", stderr)
+	}
+	// In the file: the sidecar's warnings, or a '#' line with --csv-comments.
+	table := filepath.Join(dir, "cold.csv")
+	if code, _, stderr := runCmd("predict", "--model", modelPath, "--order", "3", "--beta", "1", "-o", table); code != 0 {
+		t.Fatalf("exit %d: %s", code, stderr)
+	}
+	if meta := readSidecar(t, table+".meta.json"); len(meta["warnings"].([]any)) == 0 || meta["converged"] != false {
+		t.Errorf("the sidecar does not record the warning: %v", meta)
+	}
+	if _, commented, _ := runCmd("predict", "--model", modelPath, "--order", "3", "--beta", "1", "--csv-comments"); !strings.Contains(commented, "# WARNING") {
+		t.Errorf("--csv-comments: no '# WARNING' line:\n%s", commented)
 	}
 	if !strings.Contains(out, ",false\n") {
 		t.Errorf("no row marked untrusted:\n%s", out)
@@ -179,7 +191,7 @@ func TestThermoTable(t *testing.T) {
 		t.Fatalf("exit %d: %s", code, stderr)
 	}
 	lines := strings.Split(strings.TrimSpace(out), "\n")
-	if len(lines) != 6 || lines[1] != "beta,T,log_z,energy,entropy,heat_capacity,energy_error,heat_capacity_error,trusted" {
+	if len(lines) != 5 || lines[0] != "beta,T,log_z,energy,entropy,heat_capacity,energy_error,heat_capacity_error,trusted" {
 		t.Fatalf("unexpected table:\n%s", out)
 	}
 	// High-temperature expansion for orthonormal traceless Paulis:
@@ -195,7 +207,7 @@ func TestThermoTable(t *testing.T) {
 	}
 	n := float64(m.Lattice.NumSites())
 	want := math.Ln2 - 0.01*0.01*sum2/(2*n)
-	got, err := strconv.ParseFloat(strings.Split(lines[2], ",")[4], 64)
+	got, err := strconv.ParseFloat(strings.Split(lines[1], ",")[4], 64)
 	if err != nil || math.Abs(got-want) > 1e-5 {
 		t.Errorf("entropy per site at beta = 0.01: %v, high-temperature series %.8f", got, want)
 	}
