@@ -39,6 +39,9 @@ type PlanOptions struct {
 	// Budget, when positive, is the wall time the automatic order choice
 	// may spend (cluster.OrderPolicy.Budget).
 	Budget time.Duration
+	// Progress, when not nil, is called as the expansion's clusters are
+	// done (cluster.Options.Progress).
+	Progress func(done, total int)
 	// DenseLimit as in Options; default 1500.
 	DenseLimit int
 }
@@ -134,7 +137,7 @@ func PlanShots(lat *lattice.Lattice, terms []lattice.Term, beta float64, opt Pla
 	if L <= 0 {
 		policy := cluster.NewOrderPolicy(lat, terms)
 		policy.Budget = opt.Budget
-		_, choice, err := exp.ChooseOrder(coeffs, beta, 1e-3, policy, cluster.Options{Workers: opt.Workers})
+		_, choice, err := exp.ChooseOrder(coeffs, beta, 1e-3, policy, cluster.Options{Workers: opt.Workers, Progress: opt.Progress})
 		if err != nil {
 			return nil, err
 		}
@@ -172,7 +175,7 @@ func PlanShots(lat *lattice.Lattice, terms []lattice.Term, beta float64, opt Pla
 		return nil, fmt.Errorf("plan: no basis measures term(s) %v: the scheme cannot learn them", uncovered)
 	}
 
-	res, err := exp.Evaluate(coeffs, beta, cluster.Options{Order: L, Response: true, Workers: opt.Workers})
+	res, err := exp.Evaluate(coeffs, beta, cluster.Options{Order: L, Response: true, Workers: opt.Workers, Progress: opt.Progress})
 	if err != nil {
 		return nil, err
 	}

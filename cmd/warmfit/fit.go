@@ -210,11 +210,6 @@ func runFit(env *runEnv, args []string) error {
 	if done, err := fitMethodFirst(env, tmpl, beta); done {
 		return err
 	}
-	est, dataSummary, err := fit.LoadEstimates(o.data, tmpl.Lattice, tmpl.Terms, fit.CovarianceOptions{Distance: o.covDist})
-	if err != nil {
-		return err
-	}
-	kind := dataSummary.Kind
 	var truth *model.Model
 	if o.truth != "" {
 		if truth, err = model.ReadFile(o.truth); err != nil {
@@ -237,6 +232,12 @@ func runFit(env *runEnv, args []string) error {
 			return err
 		}
 	}
+
+	est, dataSummary, err := fit.LoadEstimates(o.data, tmpl.Lattice, tmpl.Terms, fit.CovarianceOptions{Distance: o.covDist})
+	if err != nil {
+		return err
+	}
+	kind := dataSummary.Kind
 
 	opt := fit.Options{
 		Order: order, MaxOrder: o.maxOrder, Budget: o.budget, Tol: o.tol, MaxIter: o.maxIter,

@@ -152,9 +152,12 @@ func runPlan(env *runEnv, args []string) error {
 	if err := admitExpansion(env, "plan", exp, n, order, policy, o.budget); err != nil {
 		return err
 	}
+	bar := newProgressBar(env, "expanding")
 	plan, err := fit.PlanShots(m.Lattice, m.Terms, beta, fit.PlanOptions{
 		Target: o.target, Norm: o.norm, Confidence: o.confidence, Bases: bases, Order: order, Workers: o.workers, Budget: o.budget,
+		Progress: bar.Update,
 	})
+	bar.Done()
 	if err != nil {
 		return err
 	}

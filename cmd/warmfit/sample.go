@@ -139,13 +139,17 @@ func sampleExact(env *runEnv, m *model.Model, beta float64, bases []string, shot
 		counts []validate.Count
 	}
 	var blocks []block
-	for _, basis := range bases {
+	bar := newProgressBar(env, "sampling")
+	for i, basis := range bases {
 		c, err := s.Sample(basis, int(shots), rng)
 		if err != nil {
+			bar.Done()
 			return err
 		}
 		blocks = append(blocks, block{basis, c})
+		bar.Update(i+1, len(bases))
 	}
+	bar.Done()
 	fmt.Fprintf(env.Stderr, "sample: exact Gibbs-state snapshots, %.2fs\n", time.Since(start).Seconds())
 	n := m.Lattice.NumSites()
 	meta.Contents = "snapshot file: one row per basis and outcome seen, with its count"
