@@ -25,7 +25,8 @@ var fitOptions struct {
 	model    string
 	data     string
 	beta     betaFlag
-	order    string
+	order    orderFlag
+	oldTol   float64 // the retired --tol, answered with a pointer
 	budget   time.Duration
 	truth    string
 	format   string
@@ -51,23 +52,25 @@ func init() {
 		Example: fitExample,
 		Flags: func(fs *pflag.FlagSet) {
 			o := &fitOptions
-			fs.StringVar(&o.model, "model", "", "template model `FILE`: lattice, terms, groups (coefficients are ignored unless --start template)")
+			addModelFlag(fs, &o.model, "template model `FILE`: lattice, terms, groups (coefficients are ignored unless --start template)")
 			fs.StringVar(&o.data, "data", "", "expectation table or snapshot `FILE` (told apart by the header)")
 			addBetaFlag(fs, &o.beta, "inverse temperature (overrides the template's; without either, beta*lambda is fitted)")
 			o.beta.omitted = betaOmittedFits
-			fs.StringVar(&o.order, "order", "auto", "expansion order L (largest cluster), or auto")
+			addOrderFlag(fs, &o.order, "expansion order (largest cluster), or auto")
 			fs.IntVar(&o.maxOrder, "max-order", 0, "highest order --order auto may use (default: sites, at most 12)")
 			addBudgetFlag(fs, &o.budget)
 			fs.StringVar(&o.truth, "truth", "", "true model `FILE`: report z-scores and L2/Linf errors against it")
 			fs.StringVar(&o.scale, "scale-from", "", "without beta: fix the energy scale from `TERM=VALUE` (a calibrated coefficient, e.g. \"ZZ 0 1=0.25\") or beta=B; VALUE may be V+-ERR")
 			fs.StringVar(&o.format, "format", "json", "output format: json (fitted model with report) or csv")
-			fs.StringVarP(&o.out, "output", "o", "", "write the fit to `FILE` instead of stdout")
-			fs.Float64Var(&o.tol, "tol", 1e-3, "stop when every gradient component is below tol x its data noise")
+			addOutputFlag(fs, &o.out, "the fit")
+			fs.Float64Var(&o.tol, "gradient-tol", 1e-3, "stop when every gradient component is below this times its data noise")
+			fs.Float64Var(&o.oldTol, "tol", 0, "replaced by --gradient-tol")
+			_ = fs.MarkHidden("tol")
 			fs.IntVar(&o.maxIter, "max-iter", 50, "Newton iterations per order")
 			fs.StringVar(&o.start, "start", "first-order", "starting point: first-order (lambda = -e/beta) or template")
 			fs.Float64Var(&o.fdr, "fdr", 0.05, "false-discovery rate of the significance flags (Benjamini-Hochberg)")
 			fs.IntVar(&o.covDist, "cov-distance", 1, "snapshots: keep covariances of terms within this graph distance")
-			fs.IntVar(&o.workers, "workers", 0, "parallel workers (default: all cores)")
+			addWorkersFlag(fs, &o.workers)
 			fs.BoolVarP(&o.verbose, "verbose", "v", false, "log every Newton iteration")
 			addCSVFlags(fs, &o.csv)
 			addFitMethodFlags(fs)
@@ -92,7 +95,7 @@ one equation per parameter, solved by damped Newton with a dense LU; error bars
 J^{-1} A_m^T Cov(e_m) A_m J^{-T}), and the report says how many. Other terms without
 data, and data terms missing from the template, are an error that lists them.
 
-Convergence: the fit stops when every component of the gradient is below --tol
+Convergence: the fit stops when every component of the gradient is below --gradient-tol
 times its data noise (for exact data, when the mean residual is below 1e-10). A fit
 that does not converge exits with status 1, says why, leaves -o untouched and
 writes its last iterate to OUT.unconverged.json.
@@ -152,28 +155,21 @@ func runFit(env *runEnv, args []string) error {
 			return err
 		}
 	}
-	order := 0
-	if o.order != "auto" {
-		n, err := strconv.Atoi(o.order)
-		if err != nil {
-			return usagef("--order %q: want auto or an integer from %d to %d", o.order, minExpansionOrder, cluster.MaxDenseQubits)
-		}
-		if err := checkOrder(o.order, n); err != nil {
-			return err
-		}
-		order = n
+	order := o.order.L
+	if o.oldTol != 0 {
+		return usagef("fit --tol was renamed --gradient-tol (a stopping rule on the gradient); elsewhere --tol is a truncation error: write --gradient-tol %v", o.oldTol)
 	}
 	if err := checkBudgetFlag(o.budget); err != nil {
 		return err
 	}
-	if o.workers < 0 {
-		return usagef("--workers %d: want a number of workers >= 1, or 0 for all cores", o.workers)
+	if err := checkWorkersFlag(o.workers); err != nil {
+		return err
 	}
 	if o.covDist < 0 {
 		return usagef("--cov-distance %d: want a graph distance >= 0 (0 keeps variances only)", o.covDist)
 	}
 	if !(o.tol > 0) || o.maxIter < 1 || !(o.fdr > 0 && o.fdr < 1) {
-		return usagef("--tol and --fdr must be in range (tol > 0, 0 < fdr < 1) and --max-iter at least 1")
+		return usagef("--gradient-tol and --fdr must be in range (tol > 0, 0 < fdr < 1) and --max-iter at least 1")
 	}
 	if o.start != "first-order" && o.start != "template" {
 		return usagef("--start %q: want first-order or template", o.start)

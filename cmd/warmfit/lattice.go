@@ -75,12 +75,12 @@ warmfit lattice --lattice testdata/graphs/house.json --clusters 5`,
 		Flags: func(fs *pflag.FlagSet) {
 			o := &latticeOptions
 			o.flags = fs
-			fs.StringVar(&o.lattice, "lattice", "", "lattice specification (square:4x4, chain:12:periodic, ...) or JSON `FILE`")
+			fs.StringVar(&o.lattice, "lattice", "", latticeFlagUsage)
 			fs.IntVar(&o.shells, "shells", 0, "neighbour shells in the interaction graph, 1 or 2 (default: the lattice's own)")
 			fs.IntVar(&o.clusters, "clusters", 0, "print the number of connected clusters of each size 1..`L` as CSV")
 			fs.StringVar(&o.format, "format", "text", "output format of the description: text or json")
 			fs.StringVar(&o.svg, "svg", "", "draw the lattice into `FILE` (SVG)")
-			fs.StringVarP(&o.out, "output", "o", "", "write the output to `FILE` instead of stdout")
+			addOutputFlag(fs, &o.out, "the output")
 			fs.Int64Var(&o.maxClusters, "max-clusters", 1e11, "refuse --clusters when the estimated count exceeds this (0: no limit)")
 			addBudgetFlag(fs, &o.budget)
 			addCSVFlags(fs, &o.csv)

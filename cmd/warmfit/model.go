@@ -42,7 +42,7 @@ func init() {
 		Flags: func(fs *pflag.FlagSet) {
 			o := &modelOptions
 			o.shells = modelIntFlag{}
-			fs.StringVar(&o.lattice, "lattice", "", "lattice specification (square:4x4, chain:12:periodic, ...) or JSON file")
+			fs.StringVar(&o.lattice, "lattice", "", latticeFlagUsage)
 			fs.StringVar(&o.preset, "preset", "", "model family: "+strings.Join(model.PresetNames(), ", "))
 			fs.StringSliceVar(&o.set, "set", nil, "coefficients, NAME=VALUE[,NAME=VALUE...] (repeatable)")
 			fs.Float64Var(&o.disorder, "disorder", 0, "add an independent uniform shift in [-W, W) to every coefficient")
@@ -52,7 +52,7 @@ func init() {
 			fs.Var(&o.shells, "shells", "neighbour shells of the interaction graph, 1 or 2 (overrides the lattice)")
 			fs.BoolVar(&o.tie, "tie", false, "give terms of one preset parameter a common group (uniform fit)")
 			fs.StringVar(&o.units, "units", "", "energy unit of the coefficients, recorded in the model")
-			fs.StringVarP(&o.out, "output", "o", "", "write the model to `FILE` instead of stdout")
+			addOutputFlag(fs, &o.out, "the model")
 			fs.StringVar(&o.check, "check", "", "validate the model `FILE` and summarise it")
 		},
 		Run: runModel,

@@ -21,19 +21,19 @@ func init() {
 		modelPath string
 		beta      betaFlag
 		method    string
-		order     int
+		order     orderFlag
+		workers   int
 		tol       float64
 		vectors   int
 		seed      uint64
 		budget    time.Duration
 		out       string
 		csvOut    csvFlags
-		flags     *pflag.FlagSet
 	)
 	register(&command{
 		Name:  "predict",
 		Short: "expectation of every term of a model in its Gibbs state",
-		Usage: "warmfit predict --model M.json [--beta B] [--method expansion|exact] [--order L] [-o FILE]",
+		Usage: "warmfit predict --model M.json [--beta B] [--method expansion|exact] [--order L|auto] [-o FILE]",
 		Long: `Predict computes <E_k> = tr(rho E_k) for every term E_k of the model, with
 rho = exp(-beta H)/Z, and writes the expectation table (pauli,sites,value,stderr).
 
@@ -60,23 +60,23 @@ case stderr holds the statistical error of each value.
 warmfit predict --model m.json --order 6 -o e.csv
 warmfit predict --model m.json --method exact`,
 		Flags: func(fs *pflag.FlagSet) {
-			flags = fs
-			fs.StringVar(&modelPath, "model", "", "model file (JSON)")
+			addModelFlag(fs, &modelPath, "")
 			addBetaFlag(fs, &beta)
 			fs.StringVar(&method, "method", "expansion", "expansion or exact")
-			fs.IntVar(&order, "order", 0, "largest cluster size for the expansion (default: chosen automatically, see above)")
+			addOrderFlag(fs, &order, "largest cluster size of the expansion, or auto (chosen automatically, see above)")
 			fs.Float64Var(&tol, "tol", 1e-3, "truncation error at which an expansion value counts as trusted")
 			fs.IntVar(&vectors, "vectors", 0, "random vectors for thermal typicality (exact method past dense size)")
 			fs.Uint64Var(&seed, "seed", 1, "seed of the random vectors")
 			addBudgetFlag(fs, &budget)
-			fs.StringVarP(&out, "output", "o", "", "write the table to `FILE` instead of stdout")
+			addWorkersFlag(fs, &workers)
+			addOutputFlag(fs, &out, "the table")
 			addCSVFlags(fs, &csvOut)
 		},
 		Run: func(env *runEnv, args []string) error {
 			if len(args) > 0 {
 				return usagef("unexpected argument %q", args[0])
 			}
-			if err := checkOrderFlag(flags, order); err != nil {
+			if err := checkWorkersFlag(workers); err != nil {
 				return err
 			}
 			if !(tol > 0) || math.IsInf(tol, 0) {
@@ -99,7 +99,7 @@ warmfit predict --model m.json --method exact`,
 			fields := map[string]any{}
 			switch method {
 			case "expansion":
-				table, err = predictByExpansion(env, m, b, order, tol, budget, fields)
+				table, err = predictByExpansion(env, m, b, order.L, tol, budget, workers, fields)
 			case "exact":
 				table, err = predictExact(env, m, b, vectors, seed, budget, fields)
 			default:
@@ -183,7 +183,7 @@ func modelCoeffs(m *model.Model) []float64 {
 
 // predictByExpansion returns the table of expansion predictions and
 // records the run's facts in meta.
-func predictByExpansion(env *runEnv, m *model.Model, beta float64, order int, tol float64, budget time.Duration, meta map[string]any) (*fit.Table, error) {
+func predictByExpansion(env *runEnv, m *model.Model, beta float64, order int, tol float64, budget time.Duration, workers int, meta map[string]any) (*fit.Table, error) {
 	exp, err := cluster.NewExpansion(m.Lattice, m.Terms)
 	if err != nil {
 		return nil, err
@@ -196,7 +196,7 @@ func predictByExpansion(env *runEnv, m *model.Model, beta float64, order int, to
 	coeffs := modelCoeffs(m)
 	start := time.Now()
 	bar := newProgressBar(env, "expanding")
-	opt := cluster.Options{Progress: bar.Update}
+	opt := cluster.Options{Progress: bar.Update, Workers: workers}
 	var res *cluster.Result
 	if order > 0 {
 		opt.Order = order

@@ -23,16 +23,16 @@ func init() {
 		bases     string
 		seed      uint64
 		generator string
-		order     int
+		order     orderFlag
+		workers   int
 		budget    time.Duration
 		out       string
 		csvOut    csvFlags
-		flags     *pflag.FlagSet
 	)
 	register(&command{
 		Name:  "sample",
 		Short: "synthetic measurement data from a model's Gibbs state",
-		Usage: "warmfit sample --model M.json [--beta B] --shots N [--bases covering|random:K] [--generator exact|binomial|auto] [--order L] [--seed S] [-o FILE]",
+		Usage: "warmfit sample --model M.json [--beta B] --shots N [--bases covering|random:K] [--generator exact|binomial|auto] [--order L|auto] [--seed S] [-o FILE]",
 		Long: `Sample simulates measuring the Gibbs state of a model in product bases, N shots per
 basis, for testing a fit or planning an experiment.
 
@@ -55,23 +55,23 @@ warmfit sample --model tfim.json --shots 20000 --seed 7 -o shots.csv
 warmfit model --lattice square:20x20 --preset xxz --disorder 0.1 --seed 3 --beta 0.3 -o big.json
 warmfit sample --model big.json --shots 100000 --generator binomial -o big-data.csv`,
 		Flags: func(fs *pflag.FlagSet) {
-			flags = fs
-			fs.StringVar(&modelPath, "model", "", "model file (JSON)")
+			addModelFlag(fs, &modelPath, "")
 			addBetaFlag(fs, &beta)
-			fs.Int64Var(&shots, "shots", 0, "shots per basis")
-			fs.StringVar(&bases, "bases", "covering", "bases scheme: covering, covering:3 (what fit --method stationary needs) or random:K")
+			fs.Int64Var(&shots, "shots", 0, "`N` shots per basis")
+			fs.StringVar(&bases, "bases", "covering", "measurement `SCHEME`: covering, covering:3 (what fit --method stationary needs) or random:K")
 			fs.Uint64Var(&seed, "seed", 1, "random seed")
 			fs.StringVar(&generator, "generator", "auto", "exact, binomial or auto")
-			fs.IntVar(&order, "order", 0, "expansion order for the binomial generator (default: chosen automatically, as in predict)")
+			addOrderFlag(fs, &order, "expansion order of the binomial generator, or auto (chosen as in predict)")
 			addBudgetFlag(fs, &budget)
-			fs.StringVarP(&out, "output", "o", "", "write the data to `FILE` instead of stdout")
+			addWorkersFlag(fs, &workers)
+			addOutputFlag(fs, &out, "the data")
 			addCSVFlags(fs, &csvOut)
 		},
 		Run: func(env *runEnv, args []string) error {
 			if len(args) > 0 {
 				return usagef("unexpected argument %q", args[0])
 			}
-			if err := checkOrderFlag(flags, order); err != nil {
+			if err := checkWorkersFlag(workers); err != nil {
 				return err
 			}
 			if shots <= 0 {
@@ -119,7 +119,7 @@ warmfit sample --model big.json --shots 100000 --generator binomial -o big-data.
 				}
 				return sampleExact(env, m, b, basisList, shots, seed, out, csvOut, meta)
 			}
-			return sampleBinomial(env, m, b, basisList, shots, seed, order, budget, out, csvOut, meta)
+			return sampleBinomial(env, m, b, basisList, shots, seed, order.L, budget, workers, out, csvOut, meta)
 		},
 	})
 }
@@ -188,7 +188,7 @@ func exactSampleEstimate(n, bases int, shots int64) workEstimate {
 // qubits, 21 s at load 4 on 2 cores, so about half that when quiet).
 const sampleSecondsPerRotation = 5e-9
 
-func sampleBinomial(env *runEnv, m *model.Model, beta float64, bases []string, shots int64, seed uint64, order int, budget time.Duration, out string, csvOut csvFlags, meta *csvMeta) error {
+func sampleBinomial(env *runEnv, m *model.Model, beta float64, bases []string, shots int64, seed uint64, order int, budget time.Duration, workers int, out string, csvOut csvFlags, meta *csvMeta) error {
 	exp, err := cluster.NewExpansion(m.Lattice, m.Terms)
 	if err != nil {
 		return err
@@ -199,7 +199,7 @@ func sampleBinomial(env *runEnv, m *model.Model, beta float64, bases []string, s
 		return err
 	}
 	bar := newProgressBar(env, "expanding")
-	opt := cluster.Options{Order: order, Progress: bar.Update}
+	opt := cluster.Options{Order: order, Progress: bar.Update, Workers: workers}
 	var res *cluster.Result
 	if order > 0 {
 		res, err = exp.Evaluate(modelCoeffs(m), beta, opt)

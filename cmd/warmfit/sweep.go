@@ -20,17 +20,17 @@ func init() {
 		modelPath string
 		betaGrid  string
 		oldRange  string // the retired --beta-range, answered with a pointer
-		order     int
+		orderOpt  orderFlag
+		workers   int
 		tol       float64
 		budget    time.Duration
 		out       string
 		csvOut    csvFlags
-		flags     *pflag.FlagSet
 	)
 	register(&command{
 		Name:  "sweep",
 		Short: "per-site thermodynamics over a temperature grid",
-		Usage: "warmfit sweep --model M.json --beta-grid from=A,to=B,points=N [--order L] [-o FILE]",
+		Usage: "warmfit sweep --model M.json --beta-grid from=A,to=B,points=N [--order L|auto] [-o FILE]",
 		Long: `Sweep sums the linked-cluster expansion of the model for N inverse temperatures
 evenly spaced from A to B (both included) and writes, per site: log Z, energy, entropy (nats) and heat
 capacity, with the estimated truncation error of energy and heat capacity and
@@ -44,15 +44,15 @@ gives the trusted range.
 		Example: `warmfit model --lattice square:12x12:periodic --preset heisenberg --set J=1 -o h.json
 warmfit sweep --model h.json --beta-grid from=0.05,to=1,points=20 --order 6`,
 		Flags: func(fs *pflag.FlagSet) {
-			flags = fs
-			fs.StringVar(&modelPath, "model", "", "model file (JSON)")
+			addModelFlag(fs, &modelPath, "")
 			fs.StringVar(&betaGrid, "beta-grid", "", "inverse temperatures: from=A,to=B,points=N (evenly spaced, both ends included)")
 			fs.StringVar(&oldRange, "beta-range", "", "replaced by --beta-grid")
 			_ = fs.MarkHidden("beta-range")
-			fs.IntVar(&order, "order", 0, "largest cluster size (default: the highest the automatic work limit affords)")
+			addOrderFlag(fs, &orderOpt, "largest cluster size, or auto (the highest the automatic work limit and --budget afford)")
+			addWorkersFlag(fs, &workers)
 			fs.Float64Var(&tol, "tol", 1e-3, "truncation error per site at which a row counts as trusted")
 			addBudgetFlag(fs, &budget)
-			fs.StringVarP(&out, "output", "o", "", "write the table to `FILE` instead of stdout")
+			addOutputFlag(fs, &out, "the table")
 			addCSVFlags(fs, &csvOut)
 		},
 		Run: func(env *runEnv, args []string) error {
@@ -62,7 +62,7 @@ warmfit sweep --model h.json --beta-grid from=0.05,to=1,points=20 --order 6`,
 			if modelPath == "" {
 				return usagef("--model is required")
 			}
-			if err := checkOrderFlag(flags, order); err != nil {
+			if err := checkWorkersFlag(workers); err != nil {
 				return err
 			}
 			if !(tol > 0) || math.IsInf(tol, 0) {
@@ -94,6 +94,7 @@ warmfit sweep --model h.json --beta-grid from=0.05,to=1,points=20 --order 6`,
 			if err != nil {
 				return err
 			}
+			order := orderOpt.L
 			if order == 0 {
 				// One diagonalisation per cluster serves every temperature,
 				// so the automatic order is the highest the policy affords.
@@ -108,7 +109,7 @@ warmfit sweep --model h.json --beta-grid from=0.05,to=1,points=20 --order 6`,
 			}
 			bar := newProgressBar(env, "expanding")
 			start := time.Now()
-			res, err := exp.Thermodynamics(modelCoeffs(m), betas, cluster.Options{Order: order, Progress: bar.Update})
+			res, err := exp.Thermodynamics(modelCoeffs(m), betas, cluster.Options{Order: order, Progress: bar.Update, Workers: workers})
 			bar.Done()
 			if err != nil {
 				return err
