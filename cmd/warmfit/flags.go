@@ -1,6 +1,8 @@
 package main
 
 import (
+	"fmt"
+	"reflect"
 	"strconv"
 
 	"github.com/spf13/pflag"
@@ -40,13 +42,50 @@ func (o *orderFlag) Set(s string) error {
 
 func (o *orderFlag) Type() string { return "L|auto" }
 
-// addOrderFlag registers --order on fs. It resets o first: the runner
-// registers flags afresh for every run, and an order left from an
-// earlier run in the same process must not leak into the next.
+func (o *orderFlag) reset() { *o = orderFlag{} }
+
+// addOrderFlag registers --order on fs, fresh (see addFreshVar).
 func addOrderFlag(fs *pflag.FlagSet, o *orderFlag, usage string) {
-	*o = orderFlag{}
-	fs.Var(o, "order", usage)
+	addFreshVar(fs, o, "order", usage)
 }
+
+// Fresh flag state. Commands run many times in one process (tests, the
+// demo), and every run registers its flags anew on a new FlagSet. pflag's
+// own kinds (StringVar, IntVar, ...) write their default into the
+// variable when registered, so they start fresh by themselves; a custom
+// Value does not, and its DefValue is taken from whatever it holds at
+// registration. So every custom value implements reset and is registered
+// through addFreshVar, and the runner refuses (panics: programmer misuse)
+// a flag set holding a custom value that is not a freshValue.
+
+// freshValue is a custom flag value that can return to its zero state.
+type freshValue interface {
+	pflag.Value
+	reset()
+}
+
+// addFreshVar resets v and registers it as flag name.
+func addFreshVar(fs *pflag.FlagSet, v freshValue, name, usage string) {
+	v.reset()
+	fs.Var(v, name, usage)
+}
+
+// checkFreshFlags panics when fs holds a custom flag value that cannot be
+// reset, so a new one cannot silently keep state between runs.
+func checkFreshFlags(fs *pflag.FlagSet) {
+	fs.VisitAll(func(f *pflag.Flag) {
+		if _, ok := f.Value.(freshValue); ok {
+			return
+		}
+		if t := reflect.TypeOf(f.Value); t.Kind() == reflect.Pointer && t.Elem().PkgPath() == pflagPackage {
+			return
+		}
+		panic(fmt.Sprintf("warmfit: flag --%s has a custom value type %T that is not reset between runs; register it with addFreshVar", f.Name, f.Value))
+	})
+}
+
+// pflagPackage is the import path of pflag's own value types.
+var pflagPackage = reflect.TypeOf(pflag.FlagSet{}).PkgPath()
 
 // addWorkersFlag registers --workers with one wording everywhere.
 func addWorkersFlag(fs *pflag.FlagSet, w *int) {
