@@ -200,6 +200,19 @@ func runFit(env *runEnv, args []string) error {
 	if o.beta.set {
 		beta, betaSource = o.beta.value, "from --beta"
 	}
+	if calibration != nil {
+		c, err := resolveScaleGroup(*calibration, tmpl.Terms, o.scale)
+		if err != nil {
+			return err
+		}
+		calibration = &c
+	}
+	switch mo := fitMethodOptions; {
+	case calibration != nil && mo.method == "stationary":
+		return usagef("--scale-from fixes the scale of the expansion fit at unknown temperature; --method stationary takes its known coefficients from --calibrate NAME=VALUE")
+	case mo.calibrate != "" && mo.method == "expansion":
+		return usagef("--calibrate is for --method stationary (or auto); the expansion fit at unknown temperature fixes its energy scale with --scale-from TERM=VALUE (one calibrated coefficient) or --scale-from beta=B")
+	}
 	if calibration != nil && beta > 0 {
 		return usagef("--scale-from fixes the energy scale of a fit without beta, but beta is %s (%s): drop --scale-from, or fit at unknown temperature (no --beta, no beta in the template)", fmtFloat(beta), betaSource)
 	}
