@@ -3,9 +3,9 @@ package model_test
 import (
 	"bytes"
 	"encoding/json"
-	"reflect"
 	"os"
 	"path/filepath"
+	"reflect"
 	"strings"
 	"testing"
 
