@@ -367,6 +367,7 @@ func (f *fitter) newtonProblem(L int, deadline time.Time) *newtonProblem {
 	}
 	if c < L {
 		np.exactEval = f.evaluator(L, L)
+		np.reuse = f.measured == nil
 	}
 	return np
 }

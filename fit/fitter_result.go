@@ -125,7 +125,7 @@ func (f *fitter) finish(main *orderFit, history []*orderFit, notes []string) (*R
 	// Error bars, only at a solution: the delta method linearises there.
 	if r.Converged && !f.exact {
 		t0 := time.Now()
-		se, method, err := f.paramStderr(out)
+		se, method, err := f.paramStderrAt(main)
 		if errors.Is(err, errCovarianceNotPSD) {
 			if _, diagonal := f.cov.(diagMatrix); !diagonal {
 				// An estimated covariance with dropped pairs need not be

@@ -204,7 +204,7 @@ func (np *newtonProblem) matchMoments(theta0 []float64) (*newtonOutcome, error) 
 				out.state = cur
 			}
 		}
-		out.jacobian, out.responseOrder = np.momentJacobian(cur), np.curvatureOrder
+		out.jacobian, out.responseOrder, out.curvatureTheta = np.momentJacobian(cur), np.curvatureOrder, cur.theta
 		if np.done(cur.resid) {
 			out.converged = true
 			return out, nil
@@ -273,7 +273,7 @@ func (np *newtonProblem) matchMoments(theta0 []float64) (*newtonOutcome, error) 
 		if np.beta*maxAbs(cur.lambda) > maxCoefficient {
 			out.reason = fmt.Sprintf("coefficients diverge (beta |lambda| reached %.3g): the measured data may lie outside the expectations any Gibbs state of this template can produce, or the temperature is too low for the expansion", np.beta*maxAbs(cur.lambda))
 			out.gradSigma, out.gradAbs = np.criterion(cur.resid)
-			out.jacobian, out.responseOrder = np.momentJacobian(cur), np.curvatureOrder
+			out.jacobian, out.responseOrder, out.curvatureTheta = np.momentJacobian(cur), np.curvatureOrder, cur.theta
 			return out, nil
 		}
 	}

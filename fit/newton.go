@@ -69,7 +69,12 @@ type newtonProblem struct {
 	exactEval      evaluator
 	order          int // the expansion order L
 	curvatureOrder int // the order of eval's response
-	logf           func(format string, args ...any)
+	// reuse keeps the lower-order response of the first iterate for the
+	// following steps (it costs about a forward pass at order L-1 on top
+	// of each evaluation) until a step stalls; the error bars then
+	// evaluate it again at the solution (fitter.errorBarCurvature).
+	reuse bool
+	logf  func(format string, args ...any)
 	// deadline, when not zero, stops the minimisation once passed.
 	deadline time.Time
 	// minIter forces that many Newton steps even when the start already
@@ -103,8 +108,11 @@ type newtonOutcome struct {
 	gradSigma   float64 // max |r_q| / sigma_q over noisy parameters
 	gradAbs     float64 // max |r_q| / |q| over exact parameters
 	hessian     *csr    // P = -A^T R A at state (positive semidefinite)
-	// responseOrder is the order of the response in hessian or jacobian.
-	responseOrder int
+	// responseOrder is the order of the response in hessian or jacobian
+	// and curvatureTheta the parameters it was evaluated at (the state's
+	// unless the response was reused).
+	responseOrder  int
+	curvatureTheta []float64
 	// jacobian is J = dr/dtheta = -A_m^T R A of moment matching (set
 	// instead of hessian when some terms have no data).
 	jacobian *mat.Dense
@@ -188,6 +196,15 @@ func (np *newtonProblem) progress(resid []float64) float64 {
 	return math.Max(sig/np.tol, abs/np.absTol)
 }
 
+// setCurvature takes the Hessian from the state when it carries a
+// response; otherwise the outcome keeps the one it has.
+func (np *newtonProblem) setCurvature(out *newtonOutcome, s *newtonState) {
+	if s.ev.response == nil {
+		return
+	}
+	out.hessian, out.responseOrder, out.curvatureTheta = np.hessian(s), np.curvatureOrder, s.theta
+}
+
 // approximate reports whether the current curvature is of a lower order.
 func (np *newtonProblem) approximate() bool { return np.exactEval != nil }
 
@@ -196,7 +213,7 @@ func (np *newtonProblem) approximate() bool { return np.exactEval != nil }
 func (np *newtonProblem) switchToExact(cur *newtonState, out *newtonOutcome, why string) (*newtonState, error) {
 	out.notes = append(out.notes, fmt.Sprintf("order %d: Newton steps switched from the order-%d response to the exact one (%s)", np.order, np.curvatureOrder, why))
 	np.eval, np.exactEval = np.exactEval, nil
-	np.curvatureOrder = np.order
+	np.curvatureOrder, np.reuse = np.order, false
 	next, err := np.state(cur.theta, true)
 	out.evaluations++
 	if err != nil {
@@ -251,14 +268,22 @@ func (np *newtonProblem) minimize(theta0 []float64) (*newtonOutcome, error) {
 		}
 		if np.approximate() && fullStep && lastProgress > 0 && np.progress(cur.resid) > stallRatio*lastProgress && !np.done(cur.resid) {
 			stalls++
-			if stalls >= maxStalls {
+			switch {
+			case stalls >= maxStalls:
 				if cur, err = np.switchToExact(cur, out, fmt.Sprintf("%d full steps reduced the gradient by less than a factor %g", stalls, 1/stallRatio)); err != nil {
 					return nil, err
 				}
 				out.state = cur
+			case cur.ev.response == nil:
+				// The first remedy: the lower-order response here.
+				if cur, err = np.state(cur.theta, true); err != nil {
+					return nil, err
+				}
+				out.evaluations++
+				out.state = cur
 			}
 		}
-		out.hessian, out.responseOrder = np.hessian(cur), np.curvatureOrder
+		np.setCurvature(out, cur)
 		// polishing: a step forced by minIter from an already converged
 		// point; if it cannot be taken, the point stands.
 		polishing := np.done(cur.resid)
@@ -355,7 +380,7 @@ func (np *newtonProblem) minimize(theta0 []float64) (*newtonOutcome, error) {
 		if np.beta*maxAbs(cur.lambda) > maxCoefficient {
 			out.reason = fmt.Sprintf("coefficients diverge (beta |lambda| reached %.3g): the data may lie outside the expectations any Gibbs state of this template can produce, or the temperature is too low for the expansion", np.beta*maxAbs(cur.lambda))
 			out.gradSigma, out.gradAbs = np.criterion(cur.resid)
-			out.hessian, out.responseOrder = np.hessian(cur), np.curvatureOrder
+			np.setCurvature(out, cur)
 			return out, nil
 		}
 	}
@@ -384,11 +409,11 @@ func (np *newtonProblem) backtrack(cur *newtonState, d []float64, scale float64,
 		for i := range theta {
 			theta[i] = cur.theta[i] + t*d[i]
 		}
-		withResponse := try == 0
+		withResponse := try == 0 && !np.reuse
 		next, err := np.state(theta, withResponse)
 		out.evaluations++
 		if err == nil && accept(next, t) {
-			if !withResponse {
+			if !withResponse && !np.reuse {
 				next, err = np.state(theta, true)
 				out.evaluations++
 				if err != nil {
