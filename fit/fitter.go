@@ -390,7 +390,8 @@ func (f *fitter) fitOrderUntil(L int, theta0 []float64, deadline time.Time, from
 	}
 	t0 := time.Now()
 	np := f.newtonProblem(L, deadline)
-	if fromOtherOrder {
+	if fromOtherOrder && f.measured == nil {
+		// (Moment matching stops as soon as the residual is small.)
 		np.minIter = 1
 	}
 	if f.opt.Log != nil {
