@@ -30,6 +30,10 @@ type Result struct {
 	// are the products beta*lambda.
 	Beta      float64
 	BetaKnown bool
+	// EnergyScale is set by ScaleEnergy, which fixes the scale of a fit
+	// of beta*lambda after the fact; Beta is then the recovered beta and
+	// the coefficients are lambda (CoefficientsAreLambda).
+	EnergyScale *EnergyScale
 	// Order is the expansion order of the answer.
 	Order int
 
@@ -79,7 +83,14 @@ type Result struct {
 	Warnings []string // things that could make the result mislead
 	Notes    []string // other facts worth knowing
 	Elapsed  time.Duration
+
+	// covColumn gives columns of Cov(Theta) (nil without error bars);
+	// ScaleEnergy needs the covariance of the calibrated parameter.
+	covColumn covColumnFunc
 }
+
+// betaUnknownNote is the note of a fit without beta.
+const betaUnknownNote = "beta not given: the coefficients are the products beta*lambda, reported with beta = 1"
 
 // exactSeriesTol is the tolerance on the expectation series for exact
 // data (there is no data noise to compare with).
@@ -119,19 +130,21 @@ func (f *fitter) finish(main *orderFit, history []*orderFit, notes []string) (*R
 	}
 	dataStderr, seriesStderr := f.termStderr()
 	if !r.BetaKnown {
-		r.Notes = append(r.Notes, "beta not given: the coefficients are the products beta*lambda, reported with beta = 1")
+		r.Notes = append(r.Notes, betaUnknownNote)
 	}
 
 	// Error bars, only at a solution: the delta method linearises there.
 	if r.Converged && !f.exact {
 		t0 := time.Now()
 		se, method, err := f.paramStderrAt(main)
+		usedCov := f.cov
 		if errors.Is(err, errCovarianceNotPSD) {
 			if _, diagonal := f.cov.(diagMatrix); !diagonal {
 				// An estimated covariance with dropped pairs need not be
 				// positive semidefinite; the variances alone always are.
 				r.Warnings = append(r.Warnings, "the estimated data covariance is not positive semidefinite here; error bars use the variances only (correlations between estimates ignored)")
-				se, method, err = f.paramStderrWith(out, diagMatrix(f.varDiag))
+				usedCov = diagMatrix(f.varDiag)
+				se, method, err = f.paramStderrWith(out, usedCov)
 			}
 		}
 		f.opt.logf("error bars of %d parameters (%s): %.2fs", f.params.NumParams(), method, time.Since(t0).Seconds())
@@ -139,6 +152,7 @@ func (f *fitter) finish(main *orderFit, history []*orderFit, notes []string) (*R
 			r.Warnings = append(r.Warnings, "error bars not available: "+err.Error())
 		} else {
 			r.ThetaStderr, r.ErrorMethod, r.ResponseOrder = se, method, out.responseOrder
+			r.covColumn = f.covColumn(out, usedCov)
 			if out.responseOrder < main.order {
 				r.Notes = append(r.Notes, fmt.Sprintf("error bars use the response at order %d, not %d (its evaluation costs several forward passes at this size; the difference is the truncation of the response series, typically well below 1%% where the expansion converges)", out.responseOrder, main.order))
 			}
@@ -146,6 +160,7 @@ func (f *fitter) finish(main *orderFit, history []*orderFit, notes []string) (*R
 	} else if r.Converged && f.exact {
 		r.ThetaStderr = make([]float64, f.params.NumParams())
 		r.ErrorMethod = "exact data"
+		r.covColumn = func(int) ([]float64, error) { return make([]float64, f.params.NumParams()), nil }
 	}
 
 	r.Terms = make([]lattice.Term, K)
