@@ -245,7 +245,7 @@ func newFitter(p *Problem, opt Options) (*fitter, error) {
 		if p.Data.Cov.Dim() != K {
 			return nil, fmt.Errorf("data covariance of dimension %d for %d terms", p.Data.Cov.Dim(), K)
 		}
-		f.cov = covMatrix{p.Data.Cov}
+		f.cov = p.Data.Cov
 	}
 	b := f.params.project(f.cov, 1)
 	f.sigma = make([]float64, f.params.NumParams())
@@ -342,7 +342,7 @@ func (f *fitter) evaluator(L, respOrder int) evaluator {
 			if res.Response == nil {
 				return nil, errors.New("expansion returned no response")
 			}
-			ev.response = responseMatrix{res.Response}
+			ev.response = res.Response
 		}
 		return ev, nil
 	}

@@ -131,7 +131,7 @@ func (np *newtonProblem) momentJacobian(s *newtonState) *mat.Dense {
 			if !np.measured[k] {
 				continue
 			}
-			s.ev.response.doRow(k, func(c int, v float64) {
+			s.ev.response.DoRow(k, func(c int, v float64) {
 				row[np.params.Of[c]] -= v
 			})
 		}
