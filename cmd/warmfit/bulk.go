@@ -10,7 +10,6 @@ import (
 
 	"github.com/spf13/pflag"
 
-	"warmfit/cluster"
 	"warmfit/fit/bulk"
 )
 
@@ -32,6 +31,7 @@ type bulkFlags struct {
 	curves      string
 	figures     string
 	demo        string
+	csv         csvFlags
 }
 
 // bulkOptions holds the flags of the current invocation; Flags resets
@@ -64,6 +64,7 @@ func init() {
 			fs.StringVar(&o.curves, "curves", "", "write data against model curves (CSV) to `FILE`")
 			fs.StringVar(&o.figures, "figures", "", "write one SVG figure per quantity into `DIR`")
 			fs.StringVar(&o.demo, "demo", "", "write the invented demo compound's curves into `DIR` and fit them (results go there too)")
+			addCSVFlags(fs, &o.csv)
 		},
 		Run: runBulk,
 	})
@@ -105,7 +106,9 @@ the JSON output has the parameters with standard errors, their covariance and
 correlation matrices, chi^2/dof and its p-value for each candidate over its own trusted
 range, and a ranking: candidates with p < --reject-below are rejected, the rest are
 ordered by AIC on the points every candidate trusts. Warnings go to stderr and into the
-JSON.`
+JSON.
+
+The --curves CSV: ` + csvOutputHelp
 
 const bulkExample = `# the invented demo compound: curves, fit, figures in ./orvanite
 warmfit bulk --demo orvanite
@@ -124,6 +127,9 @@ func runBulk(env *runEnv, args []string) error {
 	}
 	if len(args) == 0 {
 		return usagef("no input files (or --demo DIR)")
+	}
+	if err := checkOutputs([]outputFile{{"-o", o.out}, {"--curves", o.curves}}, args...); err != nil {
+		return err
 	}
 	job, err := newBulkJob(args)
 	if err != nil {
@@ -154,6 +160,11 @@ func newBulkJob(files []string) (*bulkJob, error) {
 		start: map[string]float64{}, fixed: map[string]bool{}}
 	if !(o.perFormula > 0) {
 		return nil, usagef("--sites-per-formula %v: must be positive", o.perFormula)
+	}
+	if o.curves == "" && o.demo == "" {
+		if err := o.csv.misuse("the fit (JSON); they go with --curves"); err != nil {
+			return nil, err
+		}
 	}
 	if !(o.rejectBelow > 0 && o.rejectBelow < 1) {
 		return nil, usagef("--reject-below %v: must be in (0, 1)", o.rejectBelow)
@@ -275,7 +286,18 @@ func (j *bulkJob) run(env *runEnv) error {
 	}
 	printBulkSummary(env.Stderr, res)
 	if j.curves != "" {
-		if err := writeOutput(env, j.curves, func(w io.Writer) error { return writeBulkCurves(w, res) }); err != nil {
+		meta := &csvMeta{Command: "bulk", Contents: "one row per data point and candidate model: data, model curve, pull"}
+		meta.set("data_files", j.files)
+		var names []string
+		for _, c := range res.cmp.Candidates {
+			names = append(names, c.Name)
+		}
+		meta.set("candidates", names)
+		meta.set("best", res.cmp.Candidates[res.cmp.Ranking[0]].Name)
+		for _, w := range res.warnings {
+			meta.line("WARNING: %s", w)
+		}
+		if err := writeCSVResult(env, j.curves, bulkOptions.csv, meta, func(w io.Writer) error { return writeBulkCurves(w, res) }); err != nil {
 			return err
 		}
 	}
@@ -336,7 +358,7 @@ func (j *bulkJob) fit(env *runEnv) (*bulkRun, error) {
 // candidate builds one candidate; J and g start from the Curie–Weiss
 // first look unless given.
 func (j *bulkJob) candidate(spec string, latExtra []string, cw *bulk.CurieWeiss) (*bulk.Candidate, error) {
-	fwd, err := newForwardModel(latExtra[0], slices.Contains(latExtra[1:], bulk.ParamJ2))
+	fwd, err := newForwardModel(latExtra[0], slices.Contains(latExtra[1:], bulk.ParamJ2), slices.Contains(latExtra[1:], bulk.ParamDelta))
 	if err != nil {
 		return nil, err
 	}
@@ -365,7 +387,7 @@ func (j *bulkJob) candidate(spec string, latExtra []string, cw *bulk.CurieWeiss)
 }
 
 // newForwardModel builds the forward model chosen by --engine.
-func newForwardModel(lattice string, withJ2 bool) (bulk.ForwardModel, error) {
+func newForwardModel(lattice string, withJ2, withDelta bool) (bulk.ForwardModel, error) {
 	o := &bulkOptions
 	if o.engine == "clusters" {
 		return bulk.NewPeriodicClusterModel(lattice, bulk.PeriodicClusterOptions{Tolerance: o.sizeTol})
@@ -377,7 +399,7 @@ func newForwardModel(lattice string, withJ2 bool) (bulk.ForwardModel, error) {
 			order = 10
 		}
 	}
-	return bulk.NewExpansionModel(lattice, order, withJ2, cluster.TrustOptions{})
+	return bulk.NewExpansionModel(lattice, order, bulk.ExpansionOptions{J2: withJ2, Anisotropic: withDelta})
 }
 
 // collectWarnings gathers the warnings of every fit and of the ranking.

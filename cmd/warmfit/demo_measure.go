@@ -55,7 +55,14 @@ func (d *demoRun) stepMeasure() error {
 		"--generator", "binomial", "--order", fmt.Sprint(choice.Order), "--seed", fmt.Sprint(sc.Seed), "-o", "data.csv")
 	d.say("binomial generator: expectations from the order-%d expansion of the truth (%s); each term drawn on its own (cross-term correlations are ignored)",
 		choice.Order, choice.Reason)
-	return d.write("data.csv", func(w io.Writer) error { return fit.WriteTable(w, t) })
+	meta := tableMeta("sample", "expectation table: one row per model term, with the shots it got", t.Comments)
+	t.Comments = nil
+	meta.set("model", "truth.json")
+	meta.set("generator", "binomial")
+	meta.set("order", choice.Order)
+	meta.set("beta", sc.Beta)
+	meta.set("seed", sc.Seed)
+	return d.writeCSV("data.csv", meta, func(w io.Writer) error { return fit.WriteTable(w, t) })
 }
 
 // sampleExact draws exact Gibbs-state snapshots of m in the bases and

@@ -104,6 +104,20 @@ func (d *demoRun) write(name string, fn func(w io.Writer) error) error {
 	return nil
 }
 
+// writeCSV writes a CSV through the commands' one CSV writer: a clean
+// CSV and its metadata sidecar NAME.meta.json.
+func (d *demoRun) writeCSV(name string, meta *csvMeta, body func(w io.Writer) error) error {
+	if err := writeCSVResult(d.env, d.path(name), csvFlags{}, meta, body); err != nil {
+		return err
+	}
+	for _, f := range []string{name, name + ".meta.json"} {
+		if !slices.Contains(d.files, f) {
+			d.files = append(d.files, f)
+		}
+	}
+	return nil
+}
+
 func (d *demoRun) writeModel(name string, m *model.Model) error {
 	return d.write(name, func(w io.Writer) error { return model.Write(w, m) })
 }

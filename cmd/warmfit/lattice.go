@@ -23,6 +23,7 @@ var latticeOptions struct {
 	svg         string
 	out         string
 	maxClusters int64
+	csv         csvFlags
 	flags       *pflag.FlagSet // to tell an explicit --clusters 0 from none
 }
 
@@ -51,6 +52,9 @@ a custom graph the NNN pairs are those at graph distance 2.
 clusters (connected induced subgraphs of the interaction graph) of each size
 1..L, the clusters a linked-cluster expansion of order L sums over. The
 count is refused beforehand when its estimate exceeds --max-clusters.
+Like every CSV of warmfit, it comes with a JSON sidecar FILE.meta.json beside
+-o FILE (the lattice and the bound); --csv-comments puts that in '#' lines
+instead, --meta M.json writes the sidecar anywhere.
 
 --format json prints the lattice object (as in model files) with its site
 coordinates and bonds. --svg FILE draws the lattice with numbered sites, NN
@@ -76,6 +80,7 @@ warmfit lattice --lattice testdata/graphs/house.json --clusters 5`,
 			fs.StringVar(&o.svg, "svg", "", "draw the lattice into `FILE` (SVG)")
 			fs.StringVarP(&o.out, "output", "o", "", "write the output to `FILE` instead of stdout")
 			fs.Int64Var(&o.maxClusters, "max-clusters", 1e11, "refuse --clusters when the estimated count exceeds this (0: no limit)")
+			addCSVFlags(fs, &o.csv)
 		},
 		Run: runLattice,
 	})
@@ -101,8 +106,16 @@ func runLattice(env *runEnv, args []string) error {
 	if o.clusters > 0 && o.format == "json" {
 		return usagef("--clusters prints CSV and does not combine with --format json")
 	}
+	if o.clusters == 0 {
+		if err := o.csv.misuse("the lattice description; they go with --clusters"); err != nil {
+			return err
+		}
+	}
 	if o.maxClusters < 0 {
 		return usagef("--max-clusters %d: want a count >= 0", o.maxClusters)
+	}
+	if err := checkOutputs([]outputFile{{"-o", o.out}, {"--svg", o.svg}}, o.lattice); err != nil {
+		return err
 	}
 	l, err := openLattice(o.lattice, o.shells)
 	if err != nil {
@@ -128,7 +141,13 @@ func runLattice(env *runEnv, args []string) error {
 	switch {
 	case o.clusters > 0:
 		counts := l.CountClusters(o.clusters)
-		return writeOutput(env, o.out, func(w io.Writer) error { return writeClusterCSV(w, counts) })
+		meta := &csvMeta{Command: "lattice", Contents: "one row per cluster size: the number of connected site clusters of that size"}
+		meta.line("warmfit lattice: connected clusters of %s (%d sites) up to %d sites", l.Spec, l.NumSites(), o.clusters)
+		meta.set("lattice", o.lattice)
+		meta.set("sites", l.NumSites())
+		meta.set("max_size", o.clusters)
+		meta.set("shells", l.Spec.Shells)
+		return writeCSVResult(env, o.out, o.csv, meta, func(w io.Writer) error { return writeClusterCSV(w, counts) })
 	case o.format == "json":
 		return writeOutput(env, o.out, l.WriteJSON)
 	default:

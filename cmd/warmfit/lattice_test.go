@@ -118,10 +118,10 @@ func TestLatticeSVGAndOutputFiles(t *testing.T) {
 	if data, err := os.ReadFile(csv); err != nil || string(data) != "size,count\n1,12\n" {
 		t.Errorf("CSV file: %q, %v", data, err)
 	}
-	// An unwritable SVG path fails without leaving a file behind.
+	// An unwritable SVG path is refused before the work, naming the directory.
 	bad := filepath.Join(dir, "missing", "x.svg")
-	if code, _, _ := runLatticeCmd("--lattice", "chain:3", "--svg", bad); code != exitFailure {
-		t.Errorf("unwritable --svg: exit %d, want %d", code, exitFailure)
+	if code, _, errs := runLatticeCmd("--lattice", "chain:3", "--svg", bad); code != exitUsage || !strings.Contains(errs, filepath.Join(dir, "missing")) {
+		t.Errorf("unwritable --svg: exit %d, want %d; stderr %q", code, exitUsage, errs)
 	}
 }
 

@@ -25,6 +25,7 @@ func init() {
 		generator string
 		order     int
 		out       string
+		csvOut    csvFlags
 		flags     *pflag.FlagSet
 	)
 	register(&command{
@@ -34,17 +35,20 @@ func init() {
 		Long: `Sample simulates measuring the Gibbs state of a model in product bases, N shots per
 basis, for testing a fit or planning an experiment.
 
---generator exact (the default up to 11 qubits; possible up to 12) draws whole snapshots from the exact
-Gibbs state and writes a snapshot file (basis,outcome,count), just as a device would.
+--generator exact (the default up to ` + fmt.Sprint(denseExactQubits) + ` qubits; possible up to ` + fmt.Sprint(cluster.MaxDenseQubits) + `) draws whole snapshots
+from the exact Gibbs state and writes a snapshot file (basis,outcome,count), just as a
+device would.
 
---generator binomial (the default above 11 qubits) is for arrays too large for that:
+--generator binomial (the default above ` + fmt.Sprint(denseExactQubits) + ` qubits) is for arrays too large for that:
 each term's estimate is drawn from the binomial law with the expansion's expectation
 value and as many shots as the bases give it, and the result is an expectation table.
 It ignores the correlations between terms that real shots share, and says so in the
 file and on stderr.
 
 --bases covering picks a small set of product bases in which every term of the model
-is measured at least once; random:K draws K bases with a random letter per qubit.`,
+is measured at least once; random:K draws K bases with a random letter per qubit.
+
+` + csvOutputHelp,
 		Example: `warmfit model --lattice chain:8 --preset tfim --set J=1,hx=0.7 --beta 0.5 -o tfim.json
 warmfit sample --model tfim.json --shots 20000 --seed 7 -o shots.csv
 warmfit model --lattice square:20x20 --preset xxz --disorder 0.1 --seed 3 --beta 0.3 -o big.json
@@ -54,11 +58,12 @@ warmfit sample --model big.json --shots 100000 --generator binomial -o big-data.
 			fs.StringVar(&modelPath, "model", "", "model file (JSON)")
 			addBetaFlag(fs, &beta)
 			fs.Int64Var(&shots, "shots", 0, "shots per basis")
-			fs.StringVar(&bases, "bases", "covering", "bases scheme: covering or random:K")
+			fs.StringVar(&bases, "bases", "covering", "bases scheme: covering, covering:3 (what fit --method stationary needs) or random:K")
 			fs.Uint64Var(&seed, "seed", 1, "random seed")
 			fs.StringVar(&generator, "generator", "auto", "exact, binomial or auto")
-			fs.IntVar(&order, "order", 0, "expansion order for the binomial generator (default: chosen automatically, as in expect)")
+			fs.IntVar(&order, "order", 0, "expansion order for the binomial generator (default: chosen automatically, as in predict)")
 			fs.StringVarP(&out, "output", "o", "", "write the data to `FILE` instead of stdout")
+			addCSVFlags(fs, &csvOut)
 		},
 		Run: func(env *runEnv, args []string) error {
 			if len(args) > 0 {
@@ -69,6 +74,9 @@ warmfit sample --model big.json --shots 100000 --generator binomial -o big-data.
 			}
 			if shots <= 0 {
 				return usagef("--shots N is required and must be positive")
+			}
+			if err := checkOutputs([]outputFile{{"-o", out}}, modelPath); err != nil {
+				return err
 			}
 			m, b, err := loadModelBeta(modelPath, beta)
 			if err != nil {
@@ -90,18 +98,25 @@ warmfit sample --model big.json --shots 100000 --generator binomial -o big-data.
 				return usagef("--generator %q: want exact, binomial or auto", generator)
 			}
 			fmt.Fprintf(env.Stderr, "sample: %d qubits, %d bases x %d shots, %s generator, seed %d\n", n, len(basisList), shots, generator, seed)
+			meta := &csvMeta{Command: "sample"}
+			meta.set("model", modelPath)
+			meta.set("beta", b)
+			meta.set("generator", generator)
+			meta.set("bases", basisList)
+			meta.set("shots_per_basis", shots)
+			meta.set("seed", seed)
 			if generator == "exact" {
 				if n > cluster.MaxDenseQubits {
 					return fmt.Errorf("exact snapshots need dense diagonalisation, at most %d qubits; this model has %d: use --generator binomial", cluster.MaxDenseQubits, n)
 				}
-				return sampleExact(env, m, b, basisList, shots, seed, out)
+				return sampleExact(env, m, b, basisList, shots, seed, out, csvOut, meta)
 			}
-			return sampleBinomial(env, m, b, basisList, shots, seed, order, out)
+			return sampleBinomial(env, m, b, basisList, shots, seed, order, out, csvOut, meta)
 		},
 	})
 }
 
-func sampleExact(env *runEnv, m *model.Model, beta float64, bases []string, shots int64, seed uint64, out string) error {
+func sampleExact(env *runEnv, m *model.Model, beta float64, bases []string, shots int64, seed uint64, out string, csvOut csvFlags, meta *csvMeta) error {
 	start := time.Now()
 	s, err := validate.NewSampler(m.Lattice.NumSites(), m.Terms, beta)
 	if err != nil {
@@ -125,7 +140,9 @@ func sampleExact(env *runEnv, m *model.Model, beta float64, bases []string, shot
 	}
 	fmt.Fprintf(env.Stderr, "sample: exact Gibbs-state snapshots, %.2fs\n", time.Since(start).Seconds())
 	n := m.Lattice.NumSites()
-	return writeOutput(env, out, func(w io.Writer) error {
+	meta.Contents = "snapshot file: one row per basis and outcome seen, with its count"
+	meta.line("warmfit sample: exact Gibbs-state snapshots of %d qubits, beta %s, %d bases x %d shots, seed %d", n, fmtFloat(beta), len(bases), shots, seed)
+	return writeCSVResult(env, out, csvOut, meta, func(w io.Writer) error {
 		sw := fit.NewSnapshotWriter(w, n)
 		for _, b := range blocks {
 			for _, c := range b.counts {
@@ -138,7 +155,7 @@ func sampleExact(env *runEnv, m *model.Model, beta float64, bases []string, shot
 	})
 }
 
-func sampleBinomial(env *runEnv, m *model.Model, beta float64, bases []string, shots int64, seed uint64, order int, out string) error {
+func sampleBinomial(env *runEnv, m *model.Model, beta float64, bases []string, shots int64, seed uint64, order int, out string, csvOut csvFlags, meta *csvMeta) error {
 	exp, err := cluster.NewExpansion(m.Lattice, m.Terms)
 	if err != nil {
 		return err
@@ -190,5 +207,11 @@ func sampleBinomial(env *runEnv, m *model.Model, beta float64, bases []string, s
 		fmt.Fprintln(env.Stderr, msg)
 		t.Comments = append(t.Comments, msg)
 	}
-	return writeOutput(env, out, func(w io.Writer) error { return fit.WriteTable(w, t) })
+	meta.Contents = "expectation table: one row per model term, with the shots it got"
+	meta.Lines = append(meta.Lines, t.Comments...)
+	t.Comments = nil
+	meta.set("order", order)
+	meta.set("terms_unconverged", untrusted)
+	meta.set("correlations", "ignored: each term drawn independently")
+	return writeCSVResult(env, out, csvOut, meta, func(w io.Writer) error { return fit.WriteTable(w, t) })
 }
