@@ -145,7 +145,7 @@ func Solve(sys *System, est *fit.Estimates, opt Options) (*Direction, error) {
 	}
 	theta := continueDirection(low, nil, opt)
 	d.Iterations = 1
-	ws.corr = residualCorrection
+	ws.corr = solveCorrection
 	for it := 1; it < opt.MaxIterations; it++ {
 		ws.reweight(theta)
 		low, err = eig(ws, low.vectors)
@@ -207,6 +207,10 @@ func Solve(sys *System, est *fit.Estimates, opt Options) (*Direction, error) {
 	}
 	orthonormalise(vs)
 	nameInvisible(sys, d)
+	if floor := -max(10, 0.1*float64(d.Rows)); d.Spectrum[0] < floor {
+		return d, fmt.Errorf("%w: the reweighting did not settle (lowest eigenvalue %.4g, below %.3g: at a settled direction it is near zero); the noise correction dominates the signal, or the data are not consistent with any stationary state of these terms",
+			ErrNoInformation, d.Spectrum[0], floor)
+	}
 	if chi2, dof := signalChi2(ws, est); chi2 < float64(dof)+5*math.Sqrt(2*float64(dof)) {
 		return d, fmt.Errorf("%w: the correlators the constraints use are consistent with zero (chi2 %.4g for %d values), as at infinite temperature; more shots or a lower temperature are needed",
 			ErrNoInformation, chi2, dof)
