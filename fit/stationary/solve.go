@@ -211,6 +211,10 @@ func Solve(sys *System, est *fit.Estimates, opt Options) (*Direction, error) {
 		return d, fmt.Errorf("%w: the reweighting did not settle (lowest eigenvalue %.4g, below %.3g: at a settled direction it is near zero); the noise correction dominates the signal, or the data are not consistent with any stationary state of these terms",
 			ErrNoInformation, d.Spectrum[0], floor)
 	}
+	if off, total := switchedOff(sys, theta); off > 0 {
+		return d, fmt.Errorf("%w: the direction all but vanishes on %d of %d sites (below 2%% of the median site weight): with this little signal the noise-weighted objective prefers switching regions off to fitting them; more shots or a lower temperature are needed",
+			ErrNoInformation, off, total)
+	}
 	if chi2, dof := signalChi2(ws, est); chi2 < float64(dof)+5*math.Sqrt(2*float64(dof)) {
 		return d, fmt.Errorf("%w: the correlators the constraints use are consistent with zero (chi2 %.4g for %d values), as at infinite temperature; more shots or a lower temperature are needed",
 			ErrNoInformation, chi2, dof)
@@ -220,6 +224,36 @@ func Solve(sys *System, est *fit.Estimates, opt Options) (*Direction, error) {
 			ErrNoInformation, len(low.values), d.StdErr[1])
 	}
 	return d, nil
+}
+
+// switchedOff counts the sites whose weight sum of theta_p² over the
+// parameters of their terms is below 2% of the median site weight (and
+// returns the number of sites with terms). A true Hamiltonian rarely
+// vanishes on a region; the weighted objective does, when the signal is
+// too weak, because rows where theta vanishes cost nothing.
+func switchedOff(sys *System, theta []float64) (off, total int) {
+	weight := map[int]float64{}
+	for k, t := range sys.terms {
+		x := theta[sys.params.Of[k]]
+		for _, s := range t.Sites {
+			weight[s] += x * x
+		}
+	}
+	vals := make([]float64, 0, len(weight))
+	for _, w := range weight {
+		vals = append(vals, w)
+	}
+	sort.Float64s(vals)
+	if len(vals) == 0 {
+		return 0, 0
+	}
+	median := vals[len(vals)/2]
+	for _, w := range vals {
+		if w < 0.02*median {
+			off++
+		}
+	}
+	return off, len(vals)
 }
 
 // signalChi2 returns sum_j m_j²/Var(m_j) over the strings the used rows
