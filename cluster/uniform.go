@@ -36,6 +36,9 @@ type UniformExpansion struct {
 	classes *lattice.ClassList
 	coef    [][]float64      // coef[c][o-1]: per-site multiplier of class c at order o
 	ops     [][][]weightedOp // ops[c][p]: coupling p's operator on class c
+	// exchange[c][p] is coupling p on class c as isotropic exchange
+	// (uniform_su2.go); nil unless every coupling is of that form.
+	exchange [][][]exchangeBond
 }
 
 // NewUniformExpansion enumerates the cluster classes of the model's
@@ -59,6 +62,15 @@ func NewUniformExpansion(m UniformModel, order int) (*UniformExpansion, error) {
 		cl := &classes.Classes[c]
 		u.coef[c] = classMultipliers(cl, order, classes.CellSites)
 		u.ops[c] = m.classOperators(cl)
+	}
+	u.exchange = make([][][]exchangeBond, len(classes.Classes))
+	for c := range classes.Classes {
+		bonds, ok := su2Exchange(&classes.Classes[c], u.ops[c])
+		if !ok {
+			u.exchange = nil
+			break
+		}
+		u.exchange[c] = bonds
 	}
 	return u, nil
 }
@@ -203,6 +215,7 @@ func (u *UniformExpansion) Evaluate(values []float64, opt UniformOptions) (*Unif
 		return nil, err
 	}
 	sym := u.model.symmetry(values)
+	sym.su2 = u.exchange != nil
 	stats, err := u.plan(&sym, opt.MaxBlock)
 	if err != nil {
 		return nil, err
@@ -262,6 +275,14 @@ func (u *UniformExpansion) plan(sym *uniformSymmetry, maxBlock int) (UniformStat
 		}
 		st.Classes++
 		n := cl.Size
+		if sym.su2 {
+			for _, b := range su2Blocks(n) {
+				d := su2Dim(b)
+				st.LargestBlock = max(st.LargestBlock, d)
+				st.Work += math.Pow(float64(d), 3)
+			}
+			continue
+		}
 		if !sym.conservesSz {
 			if n > MaxDenseQubits {
 				return st, fmt.Errorf("order %d: the model does not conserve S^z, and clusters above %d sites are beyond dense diagonalisation in the full space", u.order, MaxDenseQubits)
@@ -377,13 +398,24 @@ func (u *UniformExpansion) sumClasses(values, fields []float64, opt UniformOptio
 	}
 	for lo := 0; lo < len(todo); lo += chunk {
 		hi := min(lo+chunk, len(todo))
+		var solved [][]su2Solved
+		if sym.su2 {
+			var err error
+			if solved, err = u.su2Chunk(todo[lo:hi], values, g.derivs > 0, workers, free); err != nil {
+				return err
+			}
+		}
 		var eg errgroup.Group
 		eg.SetLimit(workers)
 		for k := lo; k < hi; k++ {
 			eg.Go(func() error {
 				w := <-free
 				defer func() { free <- w }()
-				return u.evaluateClass(w, todo[k], values, fields, opt.Temperatures, sym, g, slots[k-lo])
+				var blocks []su2Solved
+				if solved != nil {
+					blocks = solved[k-lo]
+				}
+				return u.evaluateClass(w, todo[k], values, fields, opt.Temperatures, sym, g, blocks, slots[k-lo])
 			})
 		}
 		if err := eg.Wait(); err != nil {
@@ -400,7 +432,8 @@ func (u *UniformExpansion) sumClasses(values, fields []float64, opt UniformOptio
 }
 
 // evaluateClass diagonalises one class and fills its slot.
-func (u *UniformExpansion) evaluateClass(w *uniformWork, c int, values, fields, temps []float64, sym *uniformSymmetry, g gridShape, slot []float64) error {
+// An isotropic model's blocks come solved in blocks (su2Chunk).
+func (u *UniformExpansion) evaluateClass(w *uniformWork, c int, values, fields, temps []float64, sym *uniformSymmetry, g gridShape, blocks []su2Solved, slot []float64) error {
 	cl := &u.classes.Classes[c]
 	ops := u.ops[c]
 	h0 := combine(ops, values)
@@ -412,13 +445,64 @@ func (u *UniformExpansion) evaluateClass(w *uniformWork, c int, values, fields, 
 		}
 		return nil
 	}
-	if err := w.sectors.u1Levels(&w.levels, cl.Size, h0, ops, values, sym, withD); err != nil {
+	if sym.su2 {
+		w.levels.reset(len(values), withD)
+		for _, b := range blocks {
+			appendMultiplets(&w.levels, b.block, b.values, b.d)
+		}
+	} else if err := w.sectors.u1Levels(&w.levels, cl.Size, h0, ops, values, sym, withD); err != nil {
 		return fmt.Errorf("cluster class of %d sites: %v", cl.Size, err)
 	}
 	w.weights = grow(w.weights, len(w.levels.e0))
 	w.energy = grow(w.energy, len(w.levels.e0))
 	u1Thermo(&w.levels, cl.Size, temps, fields, g, slot, w.weights, w.energy)
 	return nil
+}
+
+// su2Solved is one solved total-spin block of a class.
+type su2Solved struct {
+	block  su2Block
+	values []float64   // eigenvalues
+	d      [][]float64 // Hellmann–Feynman elements per coupling, or nil
+}
+
+// su2Chunk solves the total-spin blocks of the given classes, the blocks
+// of all of them as parallel tasks (largest first, so that one big
+// cluster, as on the chain, does not leave workers idle), each task
+// writing its own slot: out[k][b] is block b of classes[k].
+func (u *UniformExpansion) su2Chunk(classes []int, values []float64, withD bool, workers int, free chan *uniformWork) ([][]su2Solved, error) {
+	type task struct{ k, b, dim int }
+	var tasks []task
+	out := make([][]su2Solved, len(classes))
+	for k, c := range classes {
+		blocks := su2Blocks(u.classes.Classes[c].Size)
+		out[k] = make([]su2Solved, len(blocks))
+		for b, blk := range blocks {
+			out[k][b].block = blk
+			tasks = append(tasks, task{k, b, su2Dim(blk)})
+		}
+	}
+	slices.SortStableFunc(tasks, func(a, b task) int { return b.dim - a.dim })
+	var eg errgroup.Group
+	eg.SetLimit(workers)
+	for _, t := range tasks {
+		eg.Go(func() error {
+			w := <-free
+			defer func() { free <- w }()
+			c := classes[t.k]
+			slot := &out[t.k][t.b]
+			vals, dks, err := w.sectors.su2Block(slot.block, u.exchange[c], values, withD)
+			if err != nil {
+				return fmt.Errorf("cluster class of %d sites: %v", u.classes.Classes[c].Size, err)
+			}
+			slot.values = slices.Clone(vals)
+			for _, dk := range dks {
+				slot.d = append(slot.d, slices.Clone(dk))
+			}
+			return nil
+		})
+	}
+	return out, eg.Wait()
 }
 
 // addClass adds a class's slot, times its multipliers, to the curves.

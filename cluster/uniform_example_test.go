@@ -27,5 +27,5 @@ func ExampleUniformExpansion() {
 	// Output:
 	// T = 1 J: chi = 0.13654 (bare)
 	// T = 2 J: chi = 0.09447 (bare)
-	// blocks: total S^z sectors, m >= 0 with spin-flip images, m = 0 split by spin-flip parity
+	// blocks: total spin S (isotropic exchange), each level a multiplet of 2S+1
 }

@@ -177,3 +177,46 @@ func TestUniformHeisenbergChainSusceptibility(t *testing.T) {
 		t.Errorf("susceptibility maximum on the grid at T = %g, published 0.640851", temps[best])
 	}
 }
+
+// The square-lattice Heisenberg susceptibility has its maximum near
+// k T_max = 0.935 J (quantum Monte Carlo: Makivic and Ding, PRB 43, 3562
+// (1991); Kim and Troyer, PRL 80, 2705 (1998); from memory,
+// references.md). At order 11 the resummed curve is trusted to 2e-4 per
+// site across the maximum, which must lie within 0.03 J of it. The
+// remembered QMC value of the maximum, 0.0469 g^2 mu_B^2/J per spin, is
+// not checked: it cannot hold in this normalisation (the one of the chain
+// test above), since here chi(1.5 J) = 0.0859 already, where the bare sums
+// of the last three orders agree, and chi rises towards the maximum. The
+// expansion's maximum, 0.0938 at 0.93 J (logged), is twice the remembered
+// value to 0.1%, which suggests a factor 2 of normalisation in the
+// recollection; a 12-site periodic cluster (fit/bulk, an independent
+// diagonalisation) gives 0.0879 at 0.935 J, 6% lower, as a finite
+// cluster at T ~ J should.
+func TestUniformSquareSusceptibilityMaximum(t *testing.T) {
+	if testing.Short() {
+		t.Skip("order 11 on the square lattice: about 15 s")
+	}
+	var temps []float64
+	for T := 0.85; T < 1.055; T += 0.01 {
+		temps = append(temps, T)
+	}
+	temps = append(temps, 1.5)
+	r := mustUniform(t, cluster.HeisenbergModel("square"), 11, []float64{1}, cluster.UniformOptions{Temperatures: temps})
+	c := r.Curve(cluster.QuantitySusceptibility, 0, cluster.TrustOptions{Tolerance: 2e-4})
+	best := 0
+	for i := range temps[:len(temps)-1] {
+		if c.Trust[i] == cluster.Untrusted {
+			t.Errorf("chi(T = %.2f J) untrusted at order 11 (Wynn %.6f, Euler %.6f)", temps[i], c.Wynn[i], c.Euler[i])
+		}
+		if c.Value[i] > c.Value[best] {
+			best = i
+		}
+	}
+	t.Logf("maximum chi = %.5f at T = %.2f J; chi(1.5 J) = %.5f (%v)", c.Value[best], temps[best], c.Value[len(temps)-1], c.Trust[len(temps)-1])
+	if math.Abs(temps[best]-0.935) > 0.03 {
+		t.Errorf("susceptibility maximum at T = %.2f J, quantum Monte Carlo 0.935 J", temps[best])
+	}
+	if best == 0 || best == len(temps)-2 {
+		t.Errorf("maximum at the edge of the grid (T = %.2f J)", temps[best])
+	}
+}

@@ -54,6 +54,9 @@ type sectorWork struct {
 	vecs []float64
 	dk   []float64   // Hellmann–Feynman elements of the current block
 	dks  [][]float64 // the same, kept per coupling
+	// Scratch of the isotropic blocks (uniform_su2.go): a row, the
+	// matrix of one transposition, H_p and H_p V.
+	tmp, span, hp, hv []float64
 }
 
 // u1Block is one block: states with a fixed number of set bits, split by

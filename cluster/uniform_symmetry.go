@@ -23,6 +23,9 @@ type uniformSymmetry struct {
 	// diagonal: H0 holds only Z letters, so it is diagonal in the
 	// computational basis (classical models).
 	diagonal bool
+	// su2: every coupling is isotropic exchange, so the clusters are
+	// diagonalised by total spin (uniform_su2.go); set by Evaluate.
+	su2 bool
 }
 
 func (m *UniformModel) symmetry(values []float64) uniformSymmetry {
@@ -91,6 +94,8 @@ func (m *UniformModel) symmetry(values []float64) uniformSymmetry {
 // describe names the blocks used, for the result.
 func (s uniformSymmetry) describe() string {
 	switch {
+	case s.su2:
+		return "total spin S (isotropic exchange), each level a multiplet of 2S+1"
 	case s.conservesSz && s.diagonal:
 		return "diagonal (classical); total S^z sectors"
 	case s.conservesSz && s.flip:

@@ -31,7 +31,13 @@
 // why, and commands never write it over an existing file. Terms sharing a
 // Group share one coefficient (Params); terms without data are fitted
 // through their group by moment matching. Without beta the products
-// beta*lambda are fitted, and every output says so.
+// beta*lambda are fitted, and every output says so
+// (Result.CoefficientsAreLambda is false, the report's "coefficients" is
+// "beta*lambda"). ScaleEnergy fixes the energy scale after the fact from
+// one calibrated coefficient or a known beta (Calibration): beta =
+// theta_r/lambda_r with its error bar from the delta method on the fitted
+// covariance, every coefficient converted to lambda with error bars that
+// include the scale's.
 //
 // The expansion order is the fit's main approximation. The lower orders
 // L-1 and L-2 are refitted from the solution, and the change of the

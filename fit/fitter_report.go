@@ -36,6 +36,9 @@ type Report struct {
 	// Unmeasured counts terms without data fitted through their group.
 	Unmeasured  int    `json:"unmeasured_terms,omitempty"`
 	ErrorMethod string `json:"error_bars,omitempty"`
+	// ResponseOrder is the order of the response the error bars use
+	// (the fit's order, or one less when the exact one was too costly).
+	ResponseOrder int `json:"error_bars_response_order,omitempty"`
 
 	Truncation   ReportTruncation    `json:"truncation"`
 	Chi2         *ReportChi2         `json:"chi2,omitempty"`
@@ -164,6 +167,7 @@ func NewReport(r *Result, mode, dataKind, dataFile string, tol float64) *Report 
 		ExactData:     r.Exact,
 		Unmeasured:    len(r.Unmeasured),
 		ErrorMethod:   r.ErrorMethod,
+		ResponseOrder: r.ResponseOrder,
 		Warnings:      append([]string{}, r.Warnings...),
 		Notes:         r.Notes,
 	}

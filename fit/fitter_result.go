@@ -57,7 +57,11 @@ type Result struct {
 	// ErrorMethod says how the error bars were computed ("" when they
 	// were not).
 	ErrorMethod string
-	Truncation  Truncation
+	// ResponseOrder is the expansion order of the response R the error
+	// bars use: Order, or Order-1 when the exact response was too
+	// expensive to evaluate (Options.Curvature); 0 without error bars.
+	ResponseOrder int
+	Truncation    Truncation
 	// Chi2 and Dof: goodness of fit of tied parameters (diagonal
 	// approximation); Dof is 0 when the fit is not over-determined.
 	Chi2   float64
@@ -114,14 +118,7 @@ func (f *fitter) finish(main *orderFit, history []*orderFit, notes []string) (*R
 		Exact:         f.exact,
 		Notes:         append([]string(nil), notes...),
 	}
-	for _, h := range history {
-		r.Evaluations += h.out.evaluations
-		r.TotalIterations += h.out.iterations
-	}
-	if !containsFit(history, main) {
-		r.Evaluations += out.evaluations
-		r.TotalIterations += out.iterations
-	}
+	r.Evaluations, r.TotalIterations = f.evaluations, f.iterations
 	r.Notes = append(r.Notes, out.notes...)
 	if note := f.unmeasuredNote(); note != "" {
 		r.Notes = append(r.Notes, note)
@@ -154,8 +151,11 @@ func (f *fitter) finish(main *orderFit, history []*orderFit, notes []string) (*R
 		if err != nil {
 			r.Warnings = append(r.Warnings, "error bars not available: "+err.Error())
 		} else {
-			r.ThetaStderr, r.ErrorMethod = se, method
+			r.ThetaStderr, r.ErrorMethod, r.ResponseOrder = se, method, out.responseOrder
 			r.covColumn = f.covColumn(out, usedCov)
+			if out.responseOrder < main.order {
+				r.Notes = append(r.Notes, fmt.Sprintf("error bars use the response at order %d, not %d (its evaluation costs several forward passes at this size; the difference is the truncation of the response series, typically well below 1%% where the expansion converges)", out.responseOrder, main.order))
+			}
 		}
 	} else if r.Converged && f.exact {
 		r.ThetaStderr = make([]float64, f.params.NumParams())

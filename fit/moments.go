@@ -186,13 +186,25 @@ func (np *newtonProblem) matchMoments(theta0 []float64) (*newtonOutcome, error) 
 		x := 1e-13 * float64(len(m))
 		slack += w[q] * x * x
 	}
+	stalls := 0
+	fullStep := false
+	lastProgress := -1.0
 	for {
 		out.gradSigma, out.gradAbs = np.criterion(cur.resid)
 		if math.IsNaN(out.gradSigma) || math.IsNaN(out.gradAbs) {
 			out.reason = "the residual is not a number"
 			return out, nil
 		}
-		out.jacobian = np.momentJacobian(cur)
+		if np.approximate() && fullStep && lastProgress > 0 && np.progress(cur.resid) > stallRatio*lastProgress && !np.done(cur.resid) {
+			stalls++
+			if stalls >= maxStalls {
+				if cur, err = np.switchToExact(cur, out, fmt.Sprintf("%d full steps reduced the residual by less than a factor %g", stalls, 1/stallRatio)); err != nil {
+					return nil, err
+				}
+				out.state = cur
+			}
+		}
+		out.jacobian, out.responseOrder = np.momentJacobian(cur), np.curvatureOrder
 		if np.done(cur.resid) {
 			out.converged = true
 			return out, nil
@@ -209,7 +221,13 @@ func (np *newtonProblem) matchMoments(theta0 []float64) (*newtonOutcome, error) 
 
 		var lu mat.LU
 		lu.Factorize(out.jacobian)
-		if c := lu.Cond(); !(c <= 1e14) {
+		if c := lu.Cond(); !(c <= 1e14) && np.approximate() {
+			if cur, err = np.switchToExact(cur, out, fmt.Sprintf("iteration %d: the lower-order Jacobian is singular", out.iterations)); err != nil {
+				return nil, err
+			}
+			out.state, fullStep = cur, false
+			continue
+		} else if !(c <= 1e14) {
 			out.reason = fmt.Sprintf("iteration %d: the moment-matching Jacobian is singular (condition number %.2g): some parameters are not determined by the measured terms, or the order is too low for this temperature", out.iterations, c)
 			return out, nil
 		}
@@ -234,6 +252,13 @@ func (np *newtonProblem) matchMoments(theta0 []float64) (*newtonOutcome, error) 
 			scale = np.maxStep / big
 		}
 		next, t, err := np.momentLineSearch(cur, d, scale, w, slack, out)
+		if err != nil && np.approximate() {
+			if cur, err = np.switchToExact(cur, out, fmt.Sprintf("iteration %d: %v", out.iterations, err)); err != nil {
+				return nil, err
+			}
+			out.state, fullStep = cur, false
+			continue
+		}
 		if err != nil {
 			out.reason = fmt.Sprintf("iteration %d: %v", out.iterations, err)
 			return out, nil
@@ -242,12 +267,13 @@ func (np *newtonProblem) matchMoments(theta0 []float64) (*newtonOutcome, error) 
 			sig, abs := np.criterion(next.resid)
 			np.logf("iteration %d (moment matching): step %.3g, residual %s", out.iterations, t, formatGradient(sig, abs, np.hasNoise(), np.hasExact()))
 		}
+		lastProgress, fullStep = np.progress(cur.resid), t == 1
 		cur = next
 		out.state = cur
 		if np.beta*maxAbs(cur.lambda) > maxCoefficient {
 			out.reason = fmt.Sprintf("coefficients diverge (beta |lambda| reached %.3g): the measured data may lie outside the expectations any Gibbs state of this template can produce, or the temperature is too low for the expansion", np.beta*maxAbs(cur.lambda))
 			out.gradSigma, out.gradAbs = np.criterion(cur.resid)
-			out.jacobian = np.momentJacobian(cur)
+			out.jacobian, out.responseOrder = np.momentJacobian(cur), np.curvatureOrder
 			return out, nil
 		}
 	}

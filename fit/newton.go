@@ -24,6 +24,31 @@ type thermalEval struct {
 // evaluator computes the thermal quantities at term coefficients lambda.
 type evaluator func(lambda []float64, response bool) (*thermalEval, error)
 
+// Curvature at a lower order. The gradient of the dual at order L needs
+// only the expectations at order L; its Hessian needs the response, whose
+// Kubo–Mori sums cost several times the diagonalisations they start from.
+// The response of the order-(L-1) expansion, accumulated in the same pass
+// over the clusters (cluster.Options.ResponseOrder), differs from the
+// order-L one by the truncation of the response series, a few per cent
+// where the expansion converges. Newton with that curvature and the exact
+// gradient converges linearly at the rate ||I - P_{L-1}^{-1} P_L||, so a
+// fit that starts from the order-(L-1) solution needs two or three steps;
+// the line search on the exact G keeps every step a descent step
+// (Nocedal and Wright, Numerical Optimization, 2nd ed., Sec. 3.3 on
+// quasi-Newton directions). When the lower-order curvature is not
+// positive definite, its steps stall (the gradient falls by less than
+// stallRatio twice), or the line search fails, the minimisation switches
+// to the exact response for the rest of the order: never less robust
+// than exact Newton, only slower.
+
+// stallRatio: a full step with the lower-order curvature that does not
+// reduce the scaled gradient below this fraction of its value is a
+// stall.
+const stallRatio = 0.5
+
+// maxStalls is how many stalls switch to the exact curvature.
+const maxStalls = 2
+
 // newtonProblem is the minimisation of the dual
 // G(theta) = log Z(A theta) + beta theta . A^T e at one expansion order.
 type newtonProblem struct {
@@ -38,7 +63,13 @@ type newtonProblem struct {
 	maxIter int
 	maxStep float64 // largest beta |Delta lambda| per Newton step
 	eval    evaluator
-	logf    func(format string, args ...any)
+	// exactEval, when not nil, evaluates the same order with the exact
+	// response: eval then returns a lower-order response (curvatureOrder)
+	// and the minimisation falls back on exactEval when that fails.
+	exactEval      evaluator
+	order          int // the expansion order L
+	curvatureOrder int // the order of eval's response
+	logf           func(format string, args ...any)
 	// deadline, when not zero, stops the minimisation once passed.
 	deadline time.Time
 	// minIter forces that many Newton steps even when the start already
@@ -72,6 +103,8 @@ type newtonOutcome struct {
 	gradSigma   float64 // max |r_q| / sigma_q over noisy parameters
 	gradAbs     float64 // max |r_q| / |q| over exact parameters
 	hessian     *csr    // P = -A^T R A at state (positive semidefinite)
+	// responseOrder is the order of the response in hessian or jacobian.
+	responseOrder int
 	// jacobian is J = dr/dtheta = -A_m^T R A of moment matching (set
 	// instead of hessian when some terms have no data).
 	jacobian *mat.Dense
@@ -147,6 +180,34 @@ func (np *newtonProblem) done(resid []float64) bool {
 	return sig <= np.tol && abs <= np.absTol
 }
 
+// progress is the scaled gradient as one number: the larger of the
+// noisy and the exact criterion, each over its tolerance (<= 1 when
+// done).
+func (np *newtonProblem) progress(resid []float64) float64 {
+	sig, abs := np.criterion(resid)
+	return math.Max(sig/np.tol, abs/np.absTol)
+}
+
+// approximate reports whether the current curvature is of a lower order.
+func (np *newtonProblem) approximate() bool { return np.exactEval != nil }
+
+// switchToExact drops the lower-order curvature: it re-evaluates cur with
+// the exact response and notes why.
+func (np *newtonProblem) switchToExact(cur *newtonState, out *newtonOutcome, why string) (*newtonState, error) {
+	out.notes = append(out.notes, fmt.Sprintf("order %d: Newton steps switched from the order-%d response to the exact one (%s)", np.order, np.curvatureOrder, why))
+	np.eval, np.exactEval = np.exactEval, nil
+	np.curvatureOrder = np.order
+	next, err := np.state(cur.theta, true)
+	out.evaluations++
+	if err != nil {
+		return nil, err
+	}
+	if np.logf != nil {
+		np.logf("switched to the exact response: %s", why)
+	}
+	return next, nil
+}
+
 // hessian returns P = -A^T R A from the state's response.
 func (np *newtonProblem) hessian(s *newtonState) *csr {
 	return np.params.project(s.ev.response, -1)
@@ -165,8 +226,10 @@ func (np *newtonProblem) roundoff(s *newtonState) float64 {
 // minimize runs damped Newton from theta0: each step solves P d = -r by
 // Jacobi-preconditioned conjugate gradients on the sparse parameter-space
 // Hessian and backtracks on G until the Armijo condition holds (Nocedal
-// and Wright, Numerical Optimization, 2nd ed., Alg. 3.1 and 7.1). It stops
-// when every gradient component is negligible against the data's noise.
+// and Wright, Numerical Optimization, 2nd ed., Alg. 3.1 and 7.1). P may be
+// of a lower order than G (see "Curvature at a lower order" above). It
+// stops when every gradient component is negligible against the data's
+// noise.
 func (np *newtonProblem) minimize(theta0 []float64) (*newtonOutcome, error) {
 	out := &newtonOutcome{}
 	cur, err := np.state(theta0, true)
@@ -177,14 +240,25 @@ func (np *newtonProblem) minimize(theta0 []float64) (*newtonOutcome, error) {
 	out.state = cur
 	nParam := np.params.NumParams()
 	d := make([]float64, nParam)
-	nonConvex := 0
+	nonConvex, stalls := 0, 0
+	fullStep := false    // the last step was the whole Newton step
+	lastProgress := -1.0 // progress before the last step
 	for {
 		out.gradSigma, out.gradAbs = np.criterion(cur.resid)
 		if math.IsNaN(out.gradSigma) || math.IsNaN(out.gradAbs) {
 			out.reason = "the gradient is not a number"
 			return out, nil
 		}
-		out.hessian = np.hessian(cur)
+		if np.approximate() && fullStep && lastProgress > 0 && np.progress(cur.resid) > stallRatio*lastProgress && !np.done(cur.resid) {
+			stalls++
+			if stalls >= maxStalls {
+				if cur, err = np.switchToExact(cur, out, fmt.Sprintf("%d full steps reduced the gradient by less than a factor %g", stalls, 1/stallRatio)); err != nil {
+					return nil, err
+				}
+				out.state = cur
+			}
+		}
+		out.hessian, out.responseOrder = np.hessian(cur), np.curvatureOrder
 		// polishing: a step forced by minIter from an already converged
 		// point; if it cannot be taken, the point stands.
 		polishing := np.done(cur.resid)
@@ -208,6 +282,12 @@ func (np *newtonProblem) minimize(theta0 []float64) (*newtonOutcome, error) {
 			d[i] = -d[i]
 		}
 		switch {
+		case errors.Is(err, errNotPositive) && np.approximate():
+			if cur, err = np.switchToExact(cur, out, fmt.Sprintf("iteration %d: the lower-order Hessian is not positive definite", out.iterations)); err != nil {
+				return nil, err
+			}
+			out.state, fullStep = cur, false
+			continue
 		case errors.Is(err, errNotPositive):
 			// A truncated expansion need not be convex far from high
 			// temperature. Fall back to the preconditioned gradient, but
@@ -254,20 +334,28 @@ func (np *newtonProblem) minimize(theta0 []float64) (*newtonOutcome, error) {
 			out.converged = true
 			return out, nil
 		}
+		if err != nil && np.approximate() {
+			if cur, err = np.switchToExact(cur, out, fmt.Sprintf("iteration %d: %v", out.iterations, err)); err != nil {
+				return nil, err
+			}
+			out.state, fullStep = cur, false
+			continue
+		}
 		if err != nil {
 			out.reason = fmt.Sprintf("iteration %d: %v", out.iterations, err)
 			return out, nil
 		}
 		if np.logf != nil {
 			sig, abs := np.criterion(next.resid)
-			np.logf("iteration %d: step %.3g, CG %d steps, gradient %s", out.iterations, t, res.Iterations, formatGradient(sig, abs, np.hasNoise(), np.hasExact()))
+			np.logf("iteration %d: step %.3g, CG %d steps, curvature order %d, gradient %s", out.iterations, t, res.Iterations, np.curvatureOrder, formatGradient(sig, abs, np.hasNoise(), np.hasExact()))
 		}
+		lastProgress, fullStep = np.progress(cur.resid), t == 1
 		cur = next
 		out.state = cur
 		if np.beta*maxAbs(cur.lambda) > maxCoefficient {
 			out.reason = fmt.Sprintf("coefficients diverge (beta |lambda| reached %.3g): the data may lie outside the expectations any Gibbs state of this template can produce, or the temperature is too low for the expansion", np.beta*maxAbs(cur.lambda))
 			out.gradSigma, out.gradAbs = np.criterion(cur.resid)
-			out.hessian = np.hessian(cur)
+			out.hessian, out.responseOrder = np.hessian(cur), np.curvatureOrder
 			return out, nil
 		}
 	}

@@ -66,6 +66,9 @@ type Plan struct {
 	// Expect holds <E_k> at the model (the order-Order expansion).
 	Expect []float64
 	Notes  []string
+	// Warnings say where the plan could mislead (an unconverged series);
+	// each is one sentence without a "WARNING" prefix.
+	Warnings []string
 }
 
 // PlanShots predicts how many shots per basis learn the model's
@@ -219,7 +222,7 @@ func PlanShots(lat *lattice.Lattice, terms []lattice.Term, beta float64, opt Pla
 		}
 	}
 	if untrusted > 0 {
-		p.Notes = append(p.Notes, fmt.Sprintf("WARNING: the order-%d expansion has not converged for %d of %d term expectations at this beta: the plan is only indicative; raise the order or check the temperature", L, untrusted, len(terms)))
+		p.Warnings = append(p.Warnings, fmt.Sprintf("the order-%d expansion has not converged for %d of %d term expectations at this beta: the plan is only indicative; raise the order or check the temperature", L, untrusted, len(terms)))
 	}
 	if opt.Norm == NormLinf {
 		p.Notes = append(p.Notes, fmt.Sprintf("linf: Bonferroni union bound over %d parameters at %g confidence, z = %.4g", p.Params, opt.Confidence, p.Z))

@@ -13,6 +13,9 @@ import (
 type betaFlag struct {
 	value float64
 	set   bool
+	// omitted says what leaving --beta out does, for the error of a
+	// zero or non-numeric value ("auto", "unknown").
+	omitted string
 }
 
 func (b *betaFlag) String() string {
@@ -25,7 +28,15 @@ func (b *betaFlag) String() string {
 func (b *betaFlag) Set(s string) error {
 	v, err := strconv.ParseFloat(s, 64)
 	if err != nil || math.IsNaN(v) || math.IsInf(v, 0) || v <= 0 {
-		return fmt.Errorf("%q is not a positive finite number", s)
+		omitted := b.omitted
+		if omitted == "" {
+			omitted = "leave --beta out to use the model file's beta"
+		}
+		if err != nil || v == 0 {
+			// "0", "auto", "unknown": a way of saying "I do not know beta".
+			return fmt.Errorf("%q is not a positive finite number, so not an inverse temperature; %s", s, omitted)
+		}
+		return fmt.Errorf("%q is not a positive finite number; %s", s, omitted)
 	}
 	b.value, b.set = v, true
 	return nil
@@ -45,3 +56,6 @@ func addBetaFlag(fs *pflag.FlagSet, b *betaFlag, usage ...string) {
 	}
 	fs.Var(b, "beta", u)
 }
+
+// betaOmittedFits is what omitting --beta means to fit.
+const betaOmittedFits = "to fit at unknown temperature, leave --beta out (and give no beta in the template): the fit then learns the products beta*lambda, and --scale-from TERM=VALUE or --scale-from beta=B fixes the energy scale afterwards"

@@ -10,7 +10,6 @@ import (
 
 	"github.com/spf13/pflag"
 
-	"warmfit/cluster"
 	"warmfit/fit/bulk"
 )
 
@@ -161,6 +160,11 @@ func newBulkJob(files []string) (*bulkJob, error) {
 		start: map[string]float64{}, fixed: map[string]bool{}}
 	if !(o.perFormula > 0) {
 		return nil, usagef("--sites-per-formula %v: must be positive", o.perFormula)
+	}
+	if o.curves == "" && o.demo == "" {
+		if err := o.csv.misuse("the fit (JSON); they go with --curves"); err != nil {
+			return nil, err
+		}
 	}
 	if !(o.rejectBelow > 0 && o.rejectBelow < 1) {
 		return nil, usagef("--reject-below %v: must be in (0, 1)", o.rejectBelow)
@@ -354,7 +358,7 @@ func (j *bulkJob) fit(env *runEnv) (*bulkRun, error) {
 // candidate builds one candidate; J and g start from the Curie–Weiss
 // first look unless given.
 func (j *bulkJob) candidate(spec string, latExtra []string, cw *bulk.CurieWeiss) (*bulk.Candidate, error) {
-	fwd, err := newForwardModel(latExtra[0], slices.Contains(latExtra[1:], bulk.ParamJ2))
+	fwd, err := newForwardModel(latExtra[0], slices.Contains(latExtra[1:], bulk.ParamJ2), slices.Contains(latExtra[1:], bulk.ParamDelta))
 	if err != nil {
 		return nil, err
 	}
@@ -383,7 +387,7 @@ func (j *bulkJob) candidate(spec string, latExtra []string, cw *bulk.CurieWeiss)
 }
 
 // newForwardModel builds the forward model chosen by --engine.
-func newForwardModel(lattice string, withJ2 bool) (bulk.ForwardModel, error) {
+func newForwardModel(lattice string, withJ2, withDelta bool) (bulk.ForwardModel, error) {
 	o := &bulkOptions
 	if o.engine == "clusters" {
 		return bulk.NewPeriodicClusterModel(lattice, bulk.PeriodicClusterOptions{Tolerance: o.sizeTol})
@@ -395,7 +399,7 @@ func newForwardModel(lattice string, withJ2 bool) (bulk.ForwardModel, error) {
 			order = 10
 		}
 	}
-	return bulk.NewExpansionModel(lattice, order, withJ2, cluster.TrustOptions{})
+	return bulk.NewExpansionModel(lattice, order, bulk.ExpansionOptions{J2: withJ2, Anisotropic: withDelta})
 }
 
 // collectWarnings gathers the warnings of every fit and of the ranking.

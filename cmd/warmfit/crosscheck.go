@@ -30,6 +30,7 @@ type crosscheckFlags struct {
 	format     string
 	out        string
 	svg        string
+	csv        csvFlags
 	flags      *pflag.FlagSet
 }
 
@@ -57,14 +58,16 @@ The output has one row per order: how many values were compared, the largest and
 root-mean-square |expansion - exact|, the largest statistical error of the references,
 whether the order covers whole patches (the expansion is then exact by construction and
 says nothing about convergence), whether every value agrees within --tol, and how often
-the expansion's own truncation estimate bounded the true difference. Comment lines
-above the table give the lowest order from which the expansion agrees and a verdict on
+the expansion's own truncation estimate bounded the true difference. Its metadata
+(sidecar, see below) gives the lowest order from which the expansion agrees and a verdict on
 the model's temperature; a WARNING (also on stderr) says when the expansion cannot be
 trusted there or the patches are too small to show it. --format json adds every value
 of every patch. --svg draws the largest and rms difference against the order.
 
 Without --order the highest order is the patch size, lowered while the expansion of
-all patches would cost more than about a minute of computing.`,
+all patches would cost more than about a minute of computing.
+
+` + csvOutputHelp,
 		Example: `warmfit model --lattice square:6x6 --preset xxz --set Jxy=0.2,Jz=0.15,hz=0.4,hx=0.2 \
     --disorder 0.05 --seed 4 --beta 0.35 -o device.json
 warmfit crosscheck --model device.json --shape 3x3 --svg crosscheck.svg -o crosscheck.csv
@@ -85,6 +88,7 @@ warmfit crosscheck --model device.json --shape 4x4 --max-patches 2 --beta 0.6`,
 			fs.StringVar(&o.format, "format", "csv", "csv (the per-order table) or json (with every value)")
 			fs.StringVarP(&o.out, "output", "o", "", "write the result to `FILE` instead of stdout")
 			fs.StringVar(&o.svg, "svg", "", "draw the difference against the order into `FILE` (SVG)")
+			addCSVFlags(fs, &o.csv)
 		},
 		Run: func(env *runEnv, args []string) error { return runCrosscheck(env, &o, args) },
 	})
@@ -115,6 +119,11 @@ func runCrosscheck(env *runEnv, o *crosscheckFlags, args []string) error {
 	}
 	if o.format != "csv" && o.format != "json" {
 		return usagef("--format %q: want csv or json", o.format)
+	}
+	if o.format == "json" {
+		if err := o.csv.misuse("--format json"); err != nil {
+			return err
+		}
 	}
 	if o.shape != "" && len(o.sites) > 0 {
 		return usagef("give --shape or --sites, not both")
@@ -149,11 +158,14 @@ func runCrosscheck(env *runEnv, o *crosscheckFlags, args []string) error {
 	for _, v := range res.Verdict {
 		fmt.Fprintln(env.Stderr, v)
 	}
-	write := func(w io.Writer) error { return writeCrosscheckCSV(w, res, how) }
 	if o.format == "json" {
-		write = func(w io.Writer) error { return writeCrosscheckJSON(w, m, res, how) }
+		err = writeOutput(env, o.out, func(w io.Writer) error { return writeCrosscheckJSON(w, m, res, how) })
+	} else {
+		meta := crosscheckCSVMeta(res, how)
+		meta.set("model", o.modelPath)
+		err = writeCSVResult(env, o.out, o.csv, meta, func(w io.Writer) error { return writeCrosscheckCSV(w, res) })
 	}
-	if err := writeOutput(env, o.out, write); err != nil {
+	if err != nil {
 		return err
 	}
 	if o.svg != "" {

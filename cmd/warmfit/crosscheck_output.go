@@ -19,17 +19,32 @@ import (
 // crosscheckCSVHeader names the columns of the per-order table.
 const crosscheckCSVHeader = "order,values,max_diff,rms_diff,max_stderr,whole_patch,agrees,judged,bounded"
 
-func writeCrosscheckCSV(w io.Writer, r *validate.CrosscheckResult, how string) error {
-	bw := bufio.NewWriter(w)
-	fmt.Fprintf(bw, "# warmfit crosscheck: %s at beta = %s, tolerance %s; %s\n", how, fmtFloat(r.Beta), fmtG3(r.Tol), crosscheckMethods(r))
-	fmt.Fprintf(bw, "# agree_order: %d (0: none), trusted: %v\n", r.AgreeOrder, r.Trusted)
+// crosscheckCSVMeta is the metadata of the per-order table: the setting,
+// the lowest agreeing order and the verdict, warnings included.
+func crosscheckCSVMeta(r *validate.CrosscheckResult, how string) *csvMeta {
+	meta := &csvMeta{Command: "crosscheck", Contents: "one row per expansion order: the expansion against exact results on the patches"}
+	meta.line("warmfit crosscheck: %s at beta = %s, tolerance %s; %s", how, fmtFloat(r.Beta), fmtG3(r.Tol), crosscheckMethods(r))
+	meta.line("agree_order: %d (0: none), trusted: %v", r.AgreeOrder, r.Trusted)
 	for _, v := range r.Verdict {
 		if strings.HasPrefix(v, "WARNING") {
-			fmt.Fprintf(bw, "# %s\n", v)
+			meta.line("%s", v)
 		} else {
-			fmt.Fprintf(bw, "# verdict: %s\n", v)
+			meta.line("verdict: %s", v)
 		}
 	}
+	meta.set("patches", how)
+	meta.set("beta", r.Beta)
+	meta.set("tolerance", r.Tol)
+	meta.set("agree_order", r.AgreeOrder)
+	meta.set("trusted", r.Trusted)
+	meta.set("verdict", r.Verdict)
+	return meta
+}
+
+// writeCrosscheckCSV writes the per-order table (header first; the
+// metadata goes through writeCSVResult).
+func writeCrosscheckCSV(w io.Writer, r *validate.CrosscheckResult) error {
+	bw := bufio.NewWriter(w)
 	fmt.Fprintln(bw, crosscheckCSVHeader)
 	for _, oc := range r.Orders {
 		fmt.Fprintf(bw, "%d,%d,%s,%s,%s,%v,%v,%d,%d\n", oc.Order, oc.Values,

@@ -128,11 +128,13 @@ func TestCrosscheckShapeCSVAndFigure(t *testing.T) {
 		t.Fatal(err)
 	}
 	comments, rows := crosscheckRows(t, string(data))
-	if len(rows) != 6 {
-		t.Fatalf("%d rows, want orders 1..6", len(rows))
+	if len(rows) != 6 || len(comments) != 0 {
+		t.Fatalf("%d rows (want orders 1..6), %d comment lines (want none: the header comes first)", len(rows), len(comments))
 	}
-	if !strings.Contains(strings.Join(comments, "\n"), "# verdict: trusted:") {
-		t.Errorf("the file lacks the verdict:\n%s", strings.Join(comments, "\n"))
+	// The verdict is in the metadata sidecar.
+	meta := readSidecar(t, out+".meta.json")
+	if lines, _ := json.Marshal(meta["comments"]); !strings.Contains(string(lines), "verdict: trusted:") || meta["trusted"] != true {
+		t.Errorf("the sidecar lacks the verdict: %v", meta)
 	}
 	diffs := make([]float64, len(rows))
 	for i, r := range rows {
@@ -168,7 +170,7 @@ func TestCrosscheckWarnsAndTypicality(t *testing.T) {
 		"--set", "Jxy=0.5,Jz=1,hz=0.3,hx=0.2", "--beta", "3", "-o", modelPath); code != 0 {
 		t.Fatalf("model: exit %d: %s", code, stderr)
 	}
-	code, out, stderr := runCmd("crosscheck", "--model", modelPath, "--order", "5")
+	code, out, stderr := runCmd("crosscheck", "--model", modelPath, "--order", "5", "--csv-comments")
 	if code != exitOK {
 		t.Fatalf("exit %d: %s", code, stderr)
 	}

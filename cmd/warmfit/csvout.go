@@ -25,7 +25,8 @@ import (
 const csvOutputHelp = `CSV output: the first line is the header, so any CSV reader loads the file as it
 is. What the run was (command, order, beta, verdicts, every WARNING) goes to a JSON
 sidecar FILE.meta.json written next to -o FILE (atomically, like FILE); with the CSV
-on stdout the same facts are on stderr, and --meta M.json writes the sidecar anyway.
+on stdout there is no sidecar unless --meta M.json names one (WARNING lines are on
+stderr either way).
 --csv-comments writes them instead as '#' lines before the header (no sidecar unless
 --meta is given).`
 
@@ -41,6 +42,15 @@ func addCSVFlags(fs *pflag.FlagSet, f *csvFlags) {
 	*f = csvFlags{}
 	fs.BoolVar(&f.comments, "csv-comments", false, "put the metadata in '#' lines before the CSV header instead of a JSON sidecar")
 	fs.StringVar(&f.meta, "meta", "", "write the metadata sidecar to `FILE` (default: OUT.meta.json beside -o OUT; none for stdout)")
+}
+
+// misuse refuses --csv-comments and --meta when the run writes no CSV
+// (what names the output it writes instead, e.g. "--format json").
+func (f csvFlags) misuse(what string) error {
+	if f.comments || f.meta != "" {
+		return usagef("--csv-comments and --meta apply to CSV output, not to %s", what)
+	}
+	return nil
 }
 
 // csvMeta is what a CSV file's metadata says: the lines a person reads
@@ -106,6 +116,9 @@ func writeCSVResult(env *runEnv, out string, f csvFlags, meta *csvMeta, body fun
 		return fmt.Errorf("internal error: %s output is not a CSV: %v", meta.Command, err)
 	}
 	sidecar := f.meta
+	if sidecar != "" && out != "" && out != "-" && filepath.Clean(sidecar) == filepath.Clean(out) {
+		return usagef("--meta %s is the output file itself; name another file", sidecar)
+	}
 	if sidecar == "" && !f.comments {
 		sidecar = metaSidecarPath(out)
 	}
@@ -126,13 +139,40 @@ func writeCSVResult(env *runEnv, out string, f csvFlags, meta *csvMeta, body fun
 		_, err := w.Write(buf.Bytes())
 		return err
 	})
-	if err != nil || sidecar == "" {
+	if err != nil {
 		return err
+	}
+	if def := metaSidecarPath(out); def != "" && filepath.Clean(def) != filepath.Clean(sidecar) {
+		removeStaleSidecar(out)
+	}
+	if sidecar == "" {
+		return nil
 	}
 	if err := writeFileAtomic(sidecar, func(w io.Writer) error { _, err := w.Write(side); return err }); err != nil {
 		return fmt.Errorf("the CSV was written but its metadata was not: %w", err)
 	}
 	return nil
+}
+
+// removeStaleSidecar deletes the sidecar an earlier run left beside out
+// when this run wrote none there (--csv-comments, or --meta elsewhere): it
+// would describe another file. Only a sidecar warmfit wrote for that very file is removed.
+func removeStaleSidecar(out string) {
+	side := metaSidecarPath(out)
+	if side == "" {
+		return
+	}
+	b, err := os.ReadFile(side)
+	if err != nil {
+		return
+	}
+	var m struct {
+		Command string `json:"command"`
+		File    string `json:"file"`
+	}
+	if json.Unmarshal(b, &m) == nil && strings.HasPrefix(m.Command, "warmfit ") && m.File == filepath.Base(out) {
+		os.Remove(side)
+	}
 }
 
 // csvShape parses a whole CSV and returns its header and data-row count.

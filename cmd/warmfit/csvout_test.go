@@ -133,3 +133,38 @@ func TestCSVCommentsAndMetaFlag(t *testing.T) {
 		t.Errorf("--meta sidecar for stdout: %v", meta)
 	}
 }
+
+// The CSV flags are refused where no CSV is written, --meta may not name
+// the output itself, and --csv-comments removes the sidecar an earlier
+// run left beside the same file (it would describe another table).
+func TestCSVFlagsMisuseAndStaleSidecar(t *testing.T) {
+	dir := t.TempDir()
+	truth := filepath.Join(dir, "truth.json")
+	writeModelFile(t, fitTruth(t), truth)
+	out := filepath.Join(dir, "e.csv")
+	for _, args := range [][]string{
+		{"plan", "--model", truth, "--target", "0.1", "--meta", filepath.Join(dir, "x.json")},
+		{"plan", "--model", truth, "--target", "0.1", "--format", "json", "--csv-comments"},
+		{"lattice", "--lattice", "chain:4", "--csv-comments"},
+		{"predict", "--model", truth, "--order", "4", "-o", out, "--meta", out},
+	} {
+		if code, _, stderr := runCmd(args...); code != exitUsage {
+			t.Errorf("%v: exit %d, want 2\n%s", args, code, stderr)
+		}
+	}
+	if _, err := os.Stat(out); !os.IsNotExist(err) {
+		t.Fatalf("a refused run wrote %s", out)
+	}
+	if code, _, stderr := runCmd("predict", "--model", truth, "--order", "4", "-o", out); code != exitOK {
+		t.Fatalf("exit %d: %s", code, stderr)
+	}
+	if _, err := os.Stat(out + ".meta.json"); err != nil {
+		t.Fatalf("no sidecar: %v", err)
+	}
+	if code, _, stderr := runCmd("predict", "--model", truth, "--order", "4", "-o", out, "--csv-comments"); code != exitOK {
+		t.Fatalf("exit %d: %s", code, stderr)
+	}
+	if _, err := os.Stat(out + ".meta.json"); !os.IsNotExist(err) {
+		t.Errorf("the stale sidecar of the earlier run is still there (%v)", err)
+	}
+}

@@ -38,6 +38,7 @@ var fitOptions struct {
 	workers  int
 	verbose  bool
 	maxOrder int
+	scale    string
 	csv      csvFlags
 }
 
@@ -53,10 +54,12 @@ func init() {
 			fs.StringVar(&o.model, "model", "", "template model `FILE`: lattice, terms, groups (coefficients are ignored unless --start template)")
 			fs.StringVar(&o.data, "data", "", "expectation table or snapshot `FILE` (told apart by the header)")
 			addBetaFlag(fs, &o.beta, "inverse temperature (overrides the template's; without either, beta*lambda is fitted)")
+			o.beta.omitted = betaOmittedFits
 			fs.StringVar(&o.order, "order", "auto", "expansion order L (largest cluster), or auto")
 			fs.IntVar(&o.maxOrder, "max-order", 0, "highest order --order auto may use (default: sites, at most 12)")
 			fs.DurationVar(&o.budget, "budget", 60*time.Second, "wall time --order auto may spend (a higher order is not started, or is abandoned, past it)")
 			fs.StringVar(&o.truth, "truth", "", "true model `FILE`: report z-scores and L2/Linf errors against it")
+			fs.StringVar(&o.scale, "scale-from", "", "without beta: fix the energy scale from `TERM=VALUE` (a calibrated coefficient, e.g. \"ZZ 0 1=0.25\") or beta=B; VALUE may be V+-ERR")
 			fs.StringVar(&o.format, "format", "json", "output format: json (fitted model with report) or csv")
 			fs.StringVarP(&o.out, "output", "o", "", "write the fit to `FILE` instead of stdout")
 			fs.Float64Var(&o.tol, "tol", 1e-3, "stop when every gradient component is below tol x its data noise")
@@ -111,6 +114,8 @@ rate --fdr (default q = 0.05).
 Without beta (neither --beta nor the template's), the products beta*lambda are
 fitted and written with beta = 1; the report says so.
 
+` + scaleFromHelp + `
+
 Output: the fitted model as JSON with a per-term "stderr" and a "fit" report object
 (it feeds straight back into 'warmfit predict'), or with --format csv the table
 pauli,sites,coeff,stderr,significant. A plain-language summary goes to stderr, with
@@ -142,11 +147,19 @@ func runFit(env *runEnv, args []string) error {
 	if o.format != "json" && o.format != "csv" {
 		return usagef("--format %q: want json or csv", o.format)
 	}
+	if o.format != "csv" {
+		if err := o.csv.misuse("the fitted model (JSON); add --format csv"); err != nil {
+			return err
+		}
+	}
 	order := 0
 	if o.order != "auto" {
 		n, err := strconv.Atoi(o.order)
-		if err != nil || n < 1 || n > cluster.MaxDenseQubits {
-			return usagef("--order %q: want auto or an integer from 1 to %d (clusters are diagonalised exactly)", o.order, cluster.MaxDenseQubits)
+		if err != nil {
+			return usagef("--order %q: want auto or an integer from %d to %d", o.order, minExpansionOrder, cluster.MaxDenseQubits)
+		}
+		if err := checkOrder(o.order, n); err != nil {
+			return err
 		}
 		order = n
 	}
@@ -159,6 +172,14 @@ func runFit(env *runEnv, args []string) error {
 	if o.start != "first-order" && o.start != "template" {
 		return usagef("--start %q: want first-order or template", o.start)
 	}
+	var calibration *fit.Calibration
+	if o.scale != "" {
+		c, err := parseScaleFrom(o.scale)
+		if err != nil {
+			return err
+		}
+		calibration = &c
+	}
 
 	if err := checkOutputs([]outputFile{{"-o", o.out}}, o.model, o.data, o.truth); err != nil {
 		return err
@@ -169,8 +190,29 @@ func runFit(env *runEnv, args []string) error {
 	}
 	beta := tmpl.Beta
 	betaSource := "from " + o.model
+	if fittedWithoutScale(tmpl) && !o.beta.set {
+		// Its beta = 1 is a convention: the temperature is still unknown.
+		beta = 0
+		fmt.Fprintf(env.Stderr, "fit: %s holds a fit at unknown temperature (beta*lambda); its beta = 1 is not used\n", o.model)
+	}
 	if o.beta.set {
 		beta, betaSource = o.beta.value, "from --beta"
+	}
+	if calibration != nil {
+		c, err := resolveScaleGroup(*calibration, tmpl.Terms, o.scale)
+		if err != nil {
+			return err
+		}
+		calibration = &c
+	}
+	switch mo := fitMethodOptions; {
+	case calibration != nil && mo.method == "stationary":
+		return usagef("--scale-from fixes the scale of the expansion fit at unknown temperature; --method stationary takes its known coefficients from --calibrate NAME=VALUE")
+	case mo.calibrate != "" && mo.method == "expansion":
+		return usagef("--calibrate is for --method stationary (or auto); the expansion fit at unknown temperature fixes its energy scale with --scale-from TERM=VALUE (one calibrated coefficient) or --scale-from beta=B")
+	}
+	if calibration != nil && beta > 0 {
+		return usagef("--scale-from fixes the energy scale of a fit without beta, but beta is %s (%s): drop --scale-from, or fit at unknown temperature (no --beta, no beta in the template)", fmtFloat(beta), betaSource)
 	}
 	if done, err := fitMethodFirst(env, tmpl, beta); done {
 		return err
@@ -212,6 +254,9 @@ func runFit(env *runEnv, args []string) error {
 		fmt.Fprintf(env.Stderr, "fit: beta %s (%s)\n", fmtFloat(beta), betaSource)
 	} else {
 		fmt.Fprintln(env.Stderr, "fit: beta unknown (neither --beta nor the template gives one): fitting the products beta*lambda, written with beta = 1")
+		if calibration == nil {
+			fmt.Fprintln(env.Stderr, "fit: every coefficient below is beta*lambda; --scale-from TERM=VALUE (one calibrated coefficient) or --scale-from beta=B turns them into lambda")
+		}
 	}
 	res, err := fit.Fit(&fit.Problem{Lattice: tmpl.Lattice, Terms: tmpl.Terms, Data: est, Beta: beta}, opt)
 	bar.Done()
@@ -221,6 +266,11 @@ func runFit(env *runEnv, args []string) error {
 	if err != nil {
 		return fmt.Errorf("%s: %w", o.data, err)
 	}
+	if calibration != nil && res.Converged {
+		if res, err = applyEnergyScale(env.Stderr, res, *calibration); err != nil {
+			return err
+		}
+	}
 	mode := "auto"
 	if order > 0 {
 		mode = "fixed"
@@ -228,14 +278,16 @@ func runFit(env *runEnv, args []string) error {
 	rep := fit.NewReport(res, mode, kind, o.data, o.tol)
 	var cmp *fit.TruthComparison
 	if truth != nil {
-		scale := 1.0
-		if !res.BetaKnown && truth.Beta > 0 {
-			scale = truth.Beta
+		scale, why := truthScale(res, truth, o.truth)
+		if why != "" {
+			fmt.Fprintf(env.Stderr, "fit: %s\n", why)
+			rep.Notes = append(rep.Notes, why)
 		}
 		if cmp, err = fit.CompareTruth(res, truth.Terms, scale); err != nil {
 			return err
 		}
 		rep.SetTruth(cmp, res, o.truth)
+		betaAgainstTruth(env.Stderr, rep, res, truth)
 	}
 	fitSummary(env.Stderr, res, rep, cmp)
 
@@ -293,6 +345,9 @@ func fitWriteModel(w io.Writer, tmpl *model.Model, res *fit.Result, rep *fit.Rep
 		}
 	}
 	m := &model.Model{Lattice: tmpl.Lattice, Beta: res.Beta, Terms: terms, Units: tmpl.Units, Fit: raw}
+	if !res.CoefficientsAreLambda() {
+		m.Units = unscaledUnits
+	}
 	return model.Write(w, m)
 }
 
@@ -304,7 +359,10 @@ func fitCSVMeta(res *fit.Result, rep *fit.Report, template, data string) (*csvMe
 		return nil, fmt.Errorf("fit report: %v", err)
 	}
 	meta := &csvMeta{Command: "fit", Contents: "one row per template term: its fitted coefficient"}
-	meta.line("warmfit fit: converged %t, order %d, %s", res.Converged, res.Order, map[bool]string{true: "coefficients are lambda", false: "beta unknown: coefficients are beta*lambda"}[res.BetaKnown])
+	meta.line("warmfit fit: converged %t, order %d, %s", res.Converged, res.Order, map[bool]string{true: "coefficients are lambda", false: "beta unknown: coefficients are beta*lambda"}[res.CoefficientsAreLambda()])
+	if es := res.EnergyScale; es != nil {
+		meta.line("energy scale from %s: beta = %s (stderr %s)", es.Calibration, fmtFloat(es.Beta), fmtFloat(es.BetaStderr))
+	}
 	for _, warn := range rep.Warnings {
 		meta.line("WARNING: %s", warn)
 	}
@@ -314,6 +372,7 @@ func fitCSVMeta(res *fit.Result, rep *fit.Report, template, data string) (*csvMe
 	meta.set("order", res.Order)
 	meta.set("beta", res.Beta)
 	meta.set("beta_known", res.BetaKnown)
+	meta.set("beta_source", rep.BetaSource)
 	meta.set("coefficients", rep.CoeffMeaning)
 	meta.set("fit", raw)
 	return meta, nil
@@ -324,9 +383,13 @@ func fitCSVMeta(res *fit.Result, rep *fit.Report, template, data string) (*csvMe
 // pull z = (coeff - true)/stderr of every term (z blank without a stderr).
 func fitWriteCSV(w io.Writer, res *fit.Result, cmp *fit.TruthComparison) error {
 	cw := csv.NewWriter(w)
-	header := []string{"pauli", "sites", "coeff", "stderr", "significant"}
-	if cmp != nil {
-		header = append(header, "true", "z")
+	header := []string{"pauli", "sites", "coeff", "stderr", "significant", "true", "z"}
+	if !res.CoefficientsAreLambda() {
+		// Say it in the column names: these are not lambda.
+		header = []string{"pauli", "sites", "beta_coeff", "beta_coeff_stderr", "significant", "true_beta_coeff", "z"}
+	}
+	if cmp == nil {
+		header = header[:5]
 	}
 	if err := cw.Write(header); err != nil {
 		return err
@@ -358,6 +421,16 @@ func fitWriteCSV(w io.Writer, res *fit.Result, cmp *fit.TruthComparison) error {
 	return cw.Error()
 }
 
+// newtonIterations says how many Newton iterations a fit took, in all
+// and at its final order: the one wording of stderr, report.md and the
+// demo, so that no two of them count differently.
+func newtonIterations(total, atOrder, order int) string {
+	if total == atOrder {
+		return plural(total, "Newton iteration")
+	}
+	return fmt.Sprintf("%s (%d at order %d)", plural(total, "Newton iteration"), atOrder, order)
+}
+
 // fitSummary writes the plain-language summary to stderr.
 func fitSummary(w io.Writer, res *fit.Result, rep *fit.Report, cmp *fit.TruthComparison) {
 	p := func(format string, args ...any) { fmt.Fprintf(w, "fit: "+format+"\n", args...) }
@@ -369,8 +442,8 @@ func fitSummary(w io.Writer, res *fit.Result, rep *fit.Report, cmp *fit.TruthCom
 	if res.Exact {
 		grad = "mean residual " + fmtG3(res.GradientAbs) + " (exact data)"
 	}
-	p("%s at order %d (%s selection, orders %v) after %d Newton iterations (%d at order %d), %s, %.1fs",
-		status, res.Order, rep.OrderMode, rep.Truncation.Orders, res.TotalIterations, res.Iterations, res.Order, grad, res.Elapsed.Seconds())
+	p("%s at order %d (%s selection, orders %v) after %s, %s, %.1fs",
+		status, res.Order, rep.OrderMode, rep.Truncation.Orders, newtonIterations(res.TotalIterations, res.Iterations, res.Order), grad, res.Elapsed.Seconds())
 	p("%d terms, %d fitted parameters", len(res.Terms), res.Params.NumParams())
 	if n := len(res.Unmeasured); n > 0 {
 		p("%d terms had no data and were fitted through their group (moment matching on measured members)", n)
@@ -391,8 +464,12 @@ func fitSummary(w io.Writer, res *fit.Result, rep *fit.Report, cmp *fit.TruthCom
 		p("chi2/dof = %s over %d degrees of freedom (p = %s; diagonal approximation)", fmtG3(rep.Chi2.PerDof), rep.Chi2.Dof, fmtG3(rep.Chi2.P))
 	}
 	if b := rep.Threshold.Beta; b != nil {
+		betaText := fmtG3(res.Beta)
+		if !res.CoefficientsAreLambda() {
+			betaText = "1 by convention (the coefficients are beta*lambda)"
+		}
 		p("sufficient-temperature bound beta < %s (term-overlap degree %d); beta = %s; %d of %d expectations unconverged in the expansion",
-			fmtG3(*b), rep.Threshold.Degree, fmtG3(res.Beta), rep.Series.Untrusted, rep.Series.Terms)
+			fmtG3(*b), rep.Threshold.Degree, betaText, rep.Series.Untrusted, rep.Series.Terms)
 	}
 	if s := rep.Significance; s != nil {
 		p("significant (Benjamini-Hochberg, q = %g): %d of %d parameters", s.Q, s.Significant, s.Parameters)

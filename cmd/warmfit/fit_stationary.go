@@ -232,18 +232,22 @@ func runFitStationary(env *runEnv, tmpl *model.Model, beta float64) error {
 	}
 	m := &model.Model{Lattice: tmpl.Lattice, Beta: outBeta, Terms: terms, Units: tmpl.Units, Fit: raw}
 	if o.format == "csv" {
-		return writeOutput(env, o.out, func(w io.Writer) error { return stationaryWriteCSV(w, terms, rep) })
+		meta := &csvMeta{Command: "fit --method stationary", Contents: "one row per template term: its coefficient from the stationarity constraints"}
+		meta.line("warmfit fit --method stationary: scale fixed by %s", rep.Fixed)
+		for _, warn := range rep.Warnings {
+			meta.line("WARNING: %s", warn)
+		}
+		meta.set("template", o.model)
+		meta.set("data", o.data)
+		meta.set("fit", json.RawMessage(raw))
+		return writeCSVResult(env, o.out, o.csv, meta, func(w io.Writer) error { return stationaryWriteCSV(w, terms) })
 	}
 	return writeOutput(env, o.out, func(w io.Writer) error { return model.Write(w, m) })
 }
 
-// stationaryWriteCSV writes pauli,sites,coeff,stderr with the report's
-// headline and warnings as comment lines.
-func stationaryWriteCSV(w io.Writer, terms []lattice.Term, rep stationaryReport) error {
-	fmt.Fprintf(w, "# warmfit fit --method stationary: scale fixed by %s\n", rep.Fixed)
-	for _, warn := range rep.Warnings {
-		fmt.Fprintf(w, "# WARNING: %s\n", warn)
-	}
+// stationaryWriteCSV writes pauli,sites,coeff,stderr (the report's
+// headline and warnings go to the metadata).
+func stationaryWriteCSV(w io.Writer, terms []lattice.Term) error {
 	fmt.Fprintln(w, "pauli,sites,coeff,stderr")
 	for _, t := range terms {
 		se := ""

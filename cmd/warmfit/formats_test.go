@@ -49,14 +49,17 @@ func jsonTagNames(t reflect.Type, into map[string]bool) {
 	}
 }
 
+// termKeyPattern matches a term key ("ZZ 0 1"), which some JSON maps
+// use as member names (z_scores); those are data, not format.
+var termKeyPattern = regexp.MustCompile(`^[XYZ]+( [0-9]+)+$`)
+
 // jsonKeys collects every object key of a JSON document.
 func jsonKeys(v any, into map[string]bool) {
 	switch x := v.(type) {
 	case map[string]any:
 		for k, e := range x {
-			into[k] = true
-			if k == "z_scores" {
-				continue // keyed by term, not field names
+			if !termKeyPattern.MatchString(k) {
+				into[k] = true
 			}
 			jsonKeys(e, into)
 		}
@@ -106,6 +109,7 @@ func TestFormatsDocumentNamesEveryOutputField(t *testing.T) {
 		{"fit", "--model", p("m.json"), "--data", p("shots.csv"), "--truth", p("m.json"), "--order", "4", "-o", p("fitted.json")},
 		{"fit", "--model", p("tied.json"), "--data", p("shots.csv"), "--order", "4", "-o", p("fitted-tied.json")},
 		{"fit", "--model", p("m.json"), "--data", p("shots.csv"), "--order", "4", "--format", "csv", "-o", p("fitted.csv")},
+		{"fit", "--model", p("m.json"), "--data", p("shots.csv"), "--order", "4", "--truth", p("m.json"), "--format", "csv", "-o", p("fitted-truth.csv")},
 		{"plan", "--model", p("fitted.json"), "--target", "0.1", "--format", "csv", "-o", p("plan.csv")},
 		{"plan", "--model", p("fitted.json"), "--target", "0.1", "--format", "json", "-o", p("plan.json")},
 	}
@@ -121,12 +125,19 @@ func TestFormatsDocumentNamesEveryOutputField(t *testing.T) {
 		}
 		written[what][name] = true
 	}
-	for _, f := range []string{"clusters.csv", "predict.csv", "exact.csv", "sweep.csv", "shots.csv", "binomial.csv", "fitted.csv", "plan.csv"} {
+	csvs := []string{"clusters.csv", "predict.csv", "exact.csv", "sweep.csv", "shots.csv", "binomial.csv", "fitted.csv", "fitted-truth.csv", "plan.csv"}
+	for _, f := range csvs {
 		for _, c := range csvHeader(t, p(f)) {
 			add(f, c)
 		}
 	}
-	for _, f := range []string{"m.json", "lattice.json", "fitted.json", "fitted-tied.json", "plan.json"} {
+	jsons := []string{"m.json", "lattice.json", "fitted.json", "fitted-tied.json", "plan.json"}
+	for _, f := range csvs {
+		if _, err := os.Stat(p(f + ".meta.json")); err == nil {
+			jsons = append(jsons, f+".meta.json")
+		}
+	}
+	for _, f := range jsons {
 		raw, err := os.ReadFile(p(f))
 		if err != nil {
 			t.Fatal(err)
@@ -156,6 +167,24 @@ func TestFormatsDocumentNamesEveryOutputField(t *testing.T) {
 	for _, c := range bulkCurvesHeader {
 		add("bulk --curves", c)
 	}
+	for _, c := range strings.Split(crosscheckCSVHeader, ",") {
+		add("crosscheck csv", c)
+	}
+	// Sidecar members set in code, also those these runs do not reach.
+	sources, _ := filepath.Glob("*.go")
+	setCall := regexp.MustCompile(`\bmeta\.set\("([a-z_]+)"`)
+	for _, src := range sources {
+		if strings.HasSuffix(src, "_test.go") {
+			continue
+		}
+		b, err := os.ReadFile(src)
+		if err != nil {
+			t.Fatal(err)
+		}
+		for _, m := range setCall.FindAllStringSubmatch(string(b), -1) {
+			add(src+" sidecar", m[1])
+		}
+	}
 
 	doc := formatsNames()
 	var missing []string
@@ -182,7 +211,7 @@ func TestHelpFormats(t *testing.T) {
 	for _, s := range sections {
 		keys = append(keys, s.Key)
 	}
-	for _, want := range []string{"conventions", "lattice", "graph", "model", "table", "snapshots", "fit", "commands", "bulk"} {
+	for _, want := range []string{"conventions", "lattice", "graph", "model", "table", "snapshots", "fit", "sidecar", "commands", "bulk"} {
 		if !slices.Contains(keys, want) {
 			t.Errorf("formats.md has no section %q (has %v)", want, keys)
 		}
@@ -194,5 +223,21 @@ func TestHelpFormats(t *testing.T) {
 	code, _, stderr := runCmd("help", "formats", "nosuch")
 	if code != exitUsage || !strings.Contains(stderr, "snapshots") {
 		t.Errorf("help formats nosuch: exit %d, stderr %q (want 2 and the list of sections)", code, stderr)
+	}
+}
+
+// TestFormatsDocumentHasEveryCommand: the commands section of formats.md
+// says what each registered command writes.
+func TestFormatsDocumentHasEveryCommand(t *testing.T) {
+	var section string
+	for _, s := range formatsSections() {
+		if s.Key == "commands" {
+			section = s.Text
+		}
+	}
+	for name := range commands {
+		if !strings.Contains(section, "\n- `"+name+"`") {
+			t.Errorf("formats.md, section commands, has no entry \"- `%s`\"", name)
+		}
 	}
 }

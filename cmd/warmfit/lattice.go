@@ -106,6 +106,11 @@ func runLattice(env *runEnv, args []string) error {
 	if o.clusters > 0 && o.format == "json" {
 		return usagef("--clusters prints CSV and does not combine with --format json")
 	}
+	if o.clusters == 0 {
+		if err := o.csv.misuse("the lattice description; they go with --clusters"); err != nil {
+			return err
+		}
+	}
 	if o.maxClusters < 0 {
 		return usagef("--max-clusters %d: want a count >= 0", o.maxClusters)
 	}

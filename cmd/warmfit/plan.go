@@ -30,6 +30,7 @@ var planOptions struct {
 	out        string
 	workers    int
 	csv        csvFlags
+	flags      *pflag.FlagSet
 }
 
 func init() {
@@ -41,6 +42,7 @@ func init() {
 		Example: planExample,
 		Flags: func(fs *pflag.FlagSet) {
 			o := &planOptions
+			o.flags = fs
 			fs.StringVar(&o.model, "model", "", "model `FILE` whose coefficients are to be learned (a best guess)")
 			addBetaFlag(fs, &o.beta)
 			fs.Float64Var(&o.target, "target", 0, "target error eps of the coefficients")
@@ -99,11 +101,16 @@ func runPlan(env *runEnv, args []string) error {
 	if o.format != "text" && o.format != "csv" && o.format != "json" {
 		return usagef("--format %q: want text, csv or json", o.format)
 	}
+	if o.format != "csv" {
+		if err := o.csv.misuse("--format " + o.format + "; add --format csv"); err != nil {
+			return err
+		}
+	}
 	if !(o.confidence > 0 && o.confidence < 1) {
 		return usagef("--confidence %v: must lie in (0, 1)", o.confidence)
 	}
-	if o.order < 0 {
-		return usagef("--order %d: must be positive", o.order)
+	if err := checkOrderFlag(o.flags, o.order); err != nil {
+		return err
 	}
 	if err := checkOutputs([]outputFile{{"-o", o.out}}, o.model); err != nil {
 		return err
@@ -111,6 +118,11 @@ func runPlan(env *runEnv, args []string) error {
 	m, beta, err := loadModelBeta(o.model, o.beta)
 	if err != nil {
 		return err
+	}
+	var unscaled string
+	if fittedWithoutScale(m) {
+		unscaled = unscaledModelWarning(o.model, "the plan is for learning beta*lambda: --target and the predicted stderrs are in units of beta*lambda, not of lambda")
+		fmt.Fprintln(env.Stderr, unscaled)
 	}
 	n := m.Lattice.NumSites()
 	bases, scheme, err := fit.SchemeBases(o.bases, n, m.Terms, o.seed)
@@ -131,8 +143,14 @@ func runPlan(env *runEnv, args []string) error {
 		return err
 	}
 	fmt.Fprintf(env.Stderr, "plan: %s, %d sites, %d terms, beta %s, order-%d expansion\n", m.Lattice.Spec.Kind, n, len(m.Terms), fmtFloat(beta), plan.Order)
+	for _, warn := range plan.Warnings {
+		fmt.Fprintf(env.Stderr, "WARNING: %s\n", warn)
+	}
 	if o.format == "csv" {
 		meta := planCSVMeta(plan, scheme)
+		if unscaled != "" {
+			meta.line("%s", unscaled)
+		}
 		meta.set("model", o.model)
 		meta.set("beta", beta)
 		return writeCSVResult(env, o.out, o.csv, meta, func(w io.Writer) error { return planWriteCSV(w, m.Terms, plan) })
@@ -161,6 +179,9 @@ func planWriteText(w io.Writer, terms []lattice.Term, p *fit.Plan, scheme string
 	for _, n := range p.Notes {
 		fmt.Fprintf(w, "note            %s\n", n)
 	}
+	for _, warn := range p.Warnings {
+		fmt.Fprintf(w, "WARNING         %s\n", warn)
+	}
 	if len(p.Bases) <= 12 {
 		for i, b := range p.Bases {
 			fmt.Fprintf(w, "basis %-9d %s\n", i+1, b)
@@ -175,6 +196,9 @@ func planCSVMeta(p *fit.Plan, scheme string) *csvMeta {
 	meta.line("warmfit plan: %d bases x %d shots = %d shots, target %s (%s)", len(p.Bases), p.ShotsPerBasis, p.TotalShots, fmtFloat(p.Target), p.Norm)
 	for _, n := range p.Notes {
 		meta.line("%s", n)
+	}
+	for _, warn := range p.Warnings {
+		meta.line("WARNING: %s", warn)
 	}
 	meta.set("target", p.Target)
 	meta.set("norm", p.Norm)
@@ -222,6 +246,7 @@ type planJSON struct {
 	MaxStderr     float64        `json:"max_stderr"`
 	L2Stderr      float64        `json:"l2_stderr"`
 	Notes         []string       `json:"notes"`
+	Warnings      []string       `json:"warnings"`
 	Terms         []planTermJSON `json:"terms"`
 }
 
@@ -237,6 +262,7 @@ func planWriteJSON(w io.Writer, terms []lattice.Term, p *fit.Plan, scheme string
 		Target: p.Target, Norm: p.Norm, Scheme: scheme, Bases: p.Bases,
 		ShotsPerBasis: p.ShotsPerBasis, TotalShots: p.TotalShots, Order: p.Order, Parameters: p.Params,
 		MaxStderr: p.PredictedLinf(), L2Stderr: p.PredictedL2(), Notes: p.Notes,
+		Warnings: append([]string{}, p.Warnings...), // [] rather than null when there are none
 	}
 	if p.Norm == fit.NormLinf {
 		out.Confidence, out.Z = p.Confidence, p.Z

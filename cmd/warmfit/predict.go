@@ -50,9 +50,9 @@ a ceiling by lattice dimension (12 on a chain, 8 in two dimensions) and while th
 estimated work of the next order stays within about a minute of computing; stderr
 says which order was used and why.
 
---method exact diagonalises the whole system: densely up to 11 qubits (stderr
-empty), and by thermal typicality with random vectors up to 26 qubits, in which case
-stderr holds the statistical error of each value.
+--method exact diagonalises the whole system: densely up to ` + fmt.Sprint(denseExactQubits) + ` qubits (stderr
+"exact"), and by thermal typicality with random vectors up to ` + fmt.Sprint(validate.MaxTypicalityQubits) + ` qubits, in which
+case stderr holds the statistical error of each value.
 
 ` + csvOutputHelp,
 		Example: `warmfit model --lattice square:4x4 --preset xxz --set Jxy=0.5,Jz=1,hz=0.3 --beta 0.4 -o m.json
@@ -105,6 +105,12 @@ warmfit predict --model m.json --method exact`,
 			meta.set("model", modelPath)
 			meta.set("method", method)
 			meta.set("beta", b)
+			if fittedWithoutScale(m) {
+				note := "the model's coefficients are beta*lambda (fitted without beta): beta = 1 is the temperature of its data, by convention"
+				meta.line("%s", note)
+				meta.set("beta_meaning", "1 by convention: the coefficients are beta*lambda")
+				fmt.Fprintln(env.Stderr, "predict: "+note)
+			}
 			for k, v := range fields {
 				meta.set(k, v)
 			}
@@ -125,6 +131,9 @@ func loadModelBeta(path string, beta betaFlag) (*model.Model, float64, error) {
 	}
 	b := m.Beta
 	if beta.set {
+		if fittedWithoutScale(m) {
+			return nil, 0, usagef("%s was fitted without beta: its coefficients are beta*lambda (beta = 1 by convention), so --beta %s would count the temperature twice; drop --beta, or fix the energy scale with 'warmfit fit ... --scale-from TERM=VALUE'", path, beta.String())
+		}
 		b = beta.value
 	}
 	if b <= 0 {
@@ -133,11 +142,25 @@ func loadModelBeta(path string, beta betaFlag) (*model.Model, float64, error) {
 	return m, b, nil
 }
 
-// checkOrderFlag refuses an explicit --order outside 1..MaxDenseQubits
-// (clusters are diagonalised densely).
+// checkOrderFlag refuses an explicit --order outside
+// minExpansionOrder..MaxDenseQubits as a usage error.
 func checkOrderFlag(fs *pflag.FlagSet, order int) error {
-	if fs.Changed("order") && (order < 1 || order > cluster.MaxDenseQubits) {
-		return usagef("--order %d: must be from 1 to %d (clusters are diagonalised exactly)", order, cluster.MaxDenseQubits)
+	if fs.Changed("order") {
+		return checkOrder(strconv.Itoa(order), order)
+	}
+	return nil
+}
+
+// minExpansionOrder is the lowest --order any command takes: order 1
+// holds single sites only, no two-site term and no convergence estimate.
+const minExpansionOrder = 2
+
+// checkOrder is the one range check of an --order value (given is the
+// flag as written, for the message).
+func checkOrder(given string, order int) error {
+	if order < minExpansionOrder || order > cluster.MaxDenseQubits {
+		return usagef("--order %s: must be from %d to %d (order 1 holds single sites only; clusters are diagonalised exactly, at most %d sites)",
+			given, minExpansionOrder, cluster.MaxDenseQubits, cluster.MaxDenseQubits)
 	}
 	return nil
 }
@@ -302,6 +325,9 @@ func predictExact(env *runEnv, m *model.Model, beta float64, vectors int, seed u
 	meta["exact_method"] = "thermal typicality"
 	meta["qubits"] = n
 	meta["vectors"] = opt.Vectors
+	if opt.Vectors == 0 {
+		meta["vectors"] = 16 // validate.TypicalityOptions' default
+	}
 	meta["seed"] = seed
 	meta["log_z"] = logZ.Value
 	meta["log_z_stderr"] = logZ.Stderr

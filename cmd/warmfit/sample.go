@@ -35,10 +35,11 @@ func init() {
 		Long: `Sample simulates measuring the Gibbs state of a model in product bases, N shots per
 basis, for testing a fit or planning an experiment.
 
---generator exact (the default up to 11 qubits; possible up to 12) draws whole snapshots from the exact
-Gibbs state and writes a snapshot file (basis,outcome,count), just as a device would.
+--generator exact (the default up to ` + fmt.Sprint(denseExactQubits) + ` qubits; possible up to ` + fmt.Sprint(cluster.MaxDenseQubits) + `) draws whole snapshots
+from the exact Gibbs state and writes a snapshot file (basis,outcome,count), just as a
+device would.
 
---generator binomial (the default above 11 qubits) is for arrays too large for that:
+--generator binomial (the default above ` + fmt.Sprint(denseExactQubits) + ` qubits) is for arrays too large for that:
 each term's estimate is drawn from the binomial law with the expansion's expectation
 value and as many shots as the bases give it, and the result is an expectation table.
 It ignores the correlations between terms that real shots share, and says so in the

@@ -80,6 +80,11 @@ warmfit sweep --model h.json --beta-grid from=0.05,to=1,points=20 --order 6`,
 			if err != nil {
 				return err
 			}
+			var unscaled string
+			if fittedWithoutScale(m) {
+				unscaled = unscaledModelWarning(modelPath, "the grid's beta multiplies beta*lambda, so beta = 1 is the temperature of the data and the energies are in units of k_B T there")
+				fmt.Fprintln(env.Stderr, unscaled)
+			}
 			exp, err := cluster.NewExpansion(m.Lattice, m.Terms)
 			if err != nil {
 				return err
@@ -101,6 +106,9 @@ warmfit sweep --model h.json --beta-grid from=0.05,to=1,points=20 --order 6`,
 				m.Lattice.Spec, m.Lattice.NumSites(), order, len(betas), time.Since(start).Seconds())
 			meta := &csvMeta{Command: "sweep", Contents: "one row per inverse temperature of the grid; values per site"}
 			meta.set("model", modelPath)
+			if unscaled != "" {
+				meta.line("%s", unscaled)
+			}
 			return writeCSVResult(env, out, csvOut, meta, func(w io.Writer) error {
 				return writeSweep(w, env, res, tol, meta)
 			})
@@ -189,12 +197,75 @@ func retiredBetaRange(old string) error {
 // cluster spectra and a row of output.
 const maxGridPoints = 100000
 
+// sweepTrust is the trust verdict of a sweep, per temperature and for the
+// grid; "warmfit sweep" and the demo state it in the same words
+// (sweepVerdict).
+type sweepTrust struct {
+	Energy, HeatCapacity []cluster.Convergence // per site, per temperature
+	Trusted              []bool                // both within tol
+	// LastGood is the last trusted beta before the first untrusted one
+	// (0 when the first is untrusted), Edge that first untrusted beta (0
+	// when every point is trusted).
+	LastGood, Edge float64
+	Tol            float64
+}
+
+// judgeSweep judges energy and heat capacity per site at every
+// temperature of r against tol.
+func judgeSweep(r *cluster.ThermoResult, tol float64) *sweepTrust {
+	n := float64(r.NumSites)
+	perSite := func(series []float64) []float64 {
+		out := make([]float64, len(series))
+		for o, v := range series {
+			out[o] = v / n
+		}
+		return out
+	}
+	t := &sweepTrust{Tol: tol}
+	for i, beta := range r.Betas {
+		e := cluster.Converge(perSite(r.Energy[i]), 1, tol)
+		c := cluster.Converge(perSite(r.HeatCapacity[i]), 1, tol)
+		ok := e.Trusted && c.Trusted
+		t.Energy, t.HeatCapacity, t.Trusted = append(t.Energy, e), append(t.HeatCapacity, c), append(t.Trusted, ok)
+		if t.Edge == 0 {
+			if ok {
+				t.LastGood = beta
+			} else {
+				t.Edge = beta
+			}
+		}
+	}
+	return t
+}
+
+// sweepVerdict is the one sentence on the trusted range of a sweep; it
+// starts with "WARNING: " when part of the grid is untrusted.
+func (t *sweepTrust) sweepVerdict() string {
+	switch {
+	case t.Edge == 0:
+		return fmt.Sprintf("converged at every temperature of the grid (tolerance %.2g per site)", t.Tol)
+	case t.LastGood == 0:
+		return fmt.Sprintf("WARNING: NOT converged at any temperature of the grid (tolerance %.2g per site): every row is untrusted; raise --order or go to higher temperature", t.Tol)
+	}
+	return fmt.Sprintf("WARNING: %s; rows from beta %s on are marked trusted=false and should not be used",
+		t.rangeText(), fmtFloat(t.Edge))
+}
+
+// rangeText says how far the series converge, e.g. "converged (tolerance
+// 0.001 per site) up to beta 0.6 (T = 1.67), the last trusted point of the
+// grid"; only meaningful when LastGood > 0.
+func (t *sweepTrust) rangeText() string {
+	return fmt.Sprintf("converged (tolerance %.2g per site) up to beta %s (T = %s), the last trusted point of the grid",
+		t.Tol, fmtFloat(t.LastGood), fmtFloat(1/t.LastGood))
+}
+
 // writeSweep writes the sweep table and records its facts and verdict in
 // meta (the verdict also goes to stderr).
 func writeSweep(w io.Writer, env *runEnv, r *cluster.ThermoResult, tol float64, meta *csvMeta) error {
 	bw := bufio.NewWriter(w)
 	n := float64(r.NumSites)
 	L := r.Order
+	trust := judgeSweep(r, tol)
 	meta.line("warmfit sweep: linked-cluster expansion, order %d, %d sites; values per site, entropy in nats", L, r.NumSites)
 	meta.set("order", L)
 	meta.set("sites", r.NumSites)
@@ -202,24 +273,8 @@ func writeSweep(w io.Writer, env *runEnv, r *cluster.ThermoResult, tol float64, 
 	meta.set("entropy_unit", "nats")
 	meta.set("tolerance", tol)
 	fmt.Fprintln(bw, "beta,T,log_z,energy,entropy,heat_capacity,energy_error,heat_capacity_error,trusted")
-	lastTrusted := -1
-	firstUntrusted := -1
 	for i, beta := range r.Betas {
-		perSite := func(series []float64) []float64 {
-			out := make([]float64, len(series))
-			for o, v := range series {
-				out[o] = v / n
-			}
-			return out
-		}
-		e := cluster.Converge(perSite(r.Energy[i]), 1, tol)
-		c := cluster.Converge(perSite(r.HeatCapacity[i]), 1, tol)
-		trusted := e.Trusted && c.Trusted
-		if trusted {
-			lastTrusted = i
-		} else if firstUntrusted < 0 {
-			firstUntrusted = i
-		}
+		e, c := trust.Energy[i], trust.HeatCapacity[i]
 		logZ := r.LogZ[i][L-1]/n + math.Ln2
 		vals := []float64{beta, 1 / beta, logZ, e.Value, r.Entropy(i, L) / n, c.Value}
 		for _, v := range vals {
@@ -229,20 +284,16 @@ func writeSweep(w io.Writer, env *runEnv, r *cluster.ThermoResult, tol float64, 
 			bw.WriteString(strconv.FormatFloat(v, 'g', 10, 64))
 			bw.WriteByte(',')
 		}
-		fmt.Fprintf(bw, "%s,%s,%t\n", fmtFloat(e.Error), fmtFloat(c.Error), trusted)
+		fmt.Fprintf(bw, "%s,%s,%t\n", fmtFloat(e.Error), fmtFloat(c.Error), trust.Trusted[i])
 	}
-	var verdict string
-	switch {
-	case firstUntrusted < 0:
-		verdict = fmt.Sprintf("converged at every temperature of the grid (tolerance %.2g per site)", tol)
-	case lastTrusted < 0:
-		verdict = fmt.Sprintf("WARNING: NOT converged at any temperature of the grid (tolerance %.2g per site): every row is untrusted; raise --order or go to higher temperature", tol)
-	default:
-		verdict = fmt.Sprintf("WARNING: converged only for beta < %s (T > %s); rows beyond are marked trusted=false and should not be used",
-			fmtFloat(r.Betas[firstUntrusted]), fmtFloat(1/r.Betas[firstUntrusted]))
-		meta.set("untrusted_from_beta", r.Betas[firstUntrusted])
+	if trust.Edge > 0 {
+		meta.set("untrusted_from_beta", trust.Edge)
+		if trust.LastGood > 0 {
+			meta.set("trusted_up_to_beta", trust.LastGood)
+		}
 	}
-	meta.set("converged_everywhere", firstUntrusted < 0)
+	meta.set("converged_everywhere", trust.Edge == 0)
+	verdict := trust.sweepVerdict()
 	meta.line("%s", verdict)
 	fmt.Fprintln(env.Stderr, verdict)
 	return bw.Flush()

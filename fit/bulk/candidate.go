@@ -53,6 +53,9 @@ func NewCandidate(name string, fwd ForwardModel, data []*Series, extra []string,
 				return nil, fmt.Errorf("candidate %s: %s offers no next-nearest coupling J2", name, fwd.Describe())
 			}
 		case ParamDelta:
+			if slices.Contains(fwd.Couplings(), CouplingJ) {
+				return nil, fmt.Errorf("candidate %s: %s is isotropic and offers no anisotropy Delta", name, fwd.Describe())
+			}
 		default:
 			return nil, fmt.Errorf("candidate %s: unknown extra coupling %q (want J2 or Delta)", name, e)
 		}
@@ -116,7 +119,14 @@ type prediction struct {
 // parameters that are not couplings).
 func (c *Candidate) couplingTangents(p []float64) ([]float64, [][]float64, error) {
 	j, delta, j2 := c.value(p, ParamJ, 0), c.value(p, ParamDelta, 1), c.value(p, ParamJ2, 0)
+	isotropic := slices.Contains(c.Forward.Couplings(), CouplingJ)
+	if isotropic && delta != 1 {
+		return nil, nil, fmt.Errorf("candidate %s: Delta = %g, but %s is isotropic", c.Name, delta, c.Forward.Describe())
+	}
 	vec := func(jxy, jz, jj2 float64) ([]float64, error) {
+		if isotropic { // jxy = jz here: Delta = 1, or the J tangent
+			return CouplingVector(c.Forward, map[string]float64{CouplingJ: jxy, CouplingJ2: jj2})
+		}
 		return CouplingVector(c.Forward, map[string]float64{CouplingJxy: jxy, CouplingJz: jz, CouplingJ2: jj2})
 	}
 	cv, err := vec(j, delta*j, j2)

@@ -36,33 +36,59 @@ var expansionCoordination = map[string]int{"chain": 2, "ladder": 3, "square": 4,
 // the susceptibility near its maximum, below the errors of good data.
 const DefaultExpansionTolerance = 1e-4
 
+// ExpansionOptions chooses the couplings and the trust of an
+// ExpansionModel.
+type ExpansionOptions struct {
+	// J2 adds the next-nearest Heisenberg coupling CouplingJ2.
+	J2 bool
+	// Anisotropic offers CouplingJxy and CouplingJz (an XXZ anisotropy
+	// Delta = Jz/Jxy) instead of the one Heisenberg coupling CouplingJ.
+	// Isotropic models are diagonalised by total spin, with far smaller
+	// blocks (cluster.UniformExpansion), so they reach higher orders.
+	Anisotropic bool
+	// Trust judges the curves; a zero Tolerance means
+	// DefaultExpansionTolerance.
+	Trust cluster.TrustOptions
+}
+
 // NewExpansionModel prepares the expansion of a lattice to the given
-// order (largest cluster), with the next-nearest coupling J2 when withJ2.
-func NewExpansionModel(lattice string, order int, withJ2 bool, trust cluster.TrustOptions) (*ExpansionModel, error) {
+// order (largest cluster).
+func NewExpansionModel(lattice string, order int, opt ExpansionOptions) (*ExpansionModel, error) {
 	z, ok := expansionCoordination[lattice]
 	if !ok {
 		return nil, fmt.Errorf("bulk: the expansion offers no lattice %q", lattice)
 	}
-	um := cluster.UniformModel{Lattice: lattice, Couplings: []cluster.Coupling{
-		{Name: CouplingJxy, Terms: []cluster.TemplateTerm{{Pauli: "XX", Weight: 0.25}, {Pauli: "YY", Weight: 0.25}}},
-		{Name: CouplingJz, Terms: []cluster.TemplateTerm{{Pauli: "ZZ", Weight: 0.25}}},
-	}}
-	names := []string{CouplingJxy, CouplingJz}
-	if withJ2 {
+	heisenberg := func(kind int) []cluster.TemplateTerm {
+		return []cluster.TemplateTerm{{Pauli: "XX", Kind: kind, Weight: 0.25}, {Pauli: "YY", Kind: kind, Weight: 0.25}, {Pauli: "ZZ", Kind: kind, Weight: 0.25}}
+	}
+	um := cluster.UniformModel{Lattice: lattice, Couplings: []cluster.Coupling{{Name: CouplingJ, Terms: heisenberg(0)}}}
+	if opt.Anisotropic {
+		um.Couplings = []cluster.Coupling{
+			{Name: CouplingJxy, Terms: []cluster.TemplateTerm{{Pauli: "XX", Weight: 0.25}, {Pauli: "YY", Weight: 0.25}}},
+			{Name: CouplingJz, Terms: []cluster.TemplateTerm{{Pauli: "ZZ", Weight: 0.25}}},
+		}
+	}
+	if opt.J2 {
 		um.Shells = 2
-		um.Couplings = append(um.Couplings, cluster.Coupling{Name: CouplingJ2, Terms: []cluster.TemplateTerm{
-			{Pauli: "XX", Kind: 1, Weight: 0.25}, {Pauli: "YY", Kind: 1, Weight: 0.25}, {Pauli: "ZZ", Kind: 1, Weight: 0.25}}})
-		names = append(names, CouplingJ2)
+		um.Couplings = append(um.Couplings, cluster.Coupling{Name: CouplingJ2, Terms: heisenberg(1)})
+	}
+	var names []string
+	for _, c := range um.Couplings {
+		names = append(names, c.Name)
 	}
 	exp, err := cluster.NewUniformExpansion(um, order)
 	if err != nil {
 		return nil, err
 	}
+	trust := opt.Trust
 	if trust.Tolerance == 0 {
 		trust.Tolerance = DefaultExpansionTolerance
 	}
 	return &ExpansionModel{lattice: lattice, z: z, exp: exp, couplings: names, trust: trust}, nil
 }
+
+// Order returns the expansion order (the largest cluster).
+func (m *ExpansionModel) Order() int { return m.exp.Order() }
 
 // Lattice implements ForwardModel.
 func (m *ExpansionModel) Lattice() string { return m.lattice }

@@ -4,24 +4,37 @@ import (
 	"math"
 	"testing"
 	"time"
-
-	"warmfit/cluster"
 )
 
 // The expansion adapter against the 12-site Heisenberg ring, an
 // independent exact diagonalisation that equals the infinite chain to
 // 1e-6 at T >= J (references.md, ring checks): values and derivatives
-// must agree wherever the expansion says it is trusted.
+// must agree wherever the expansion says it is trusted, for the isotropic
+// model (one coupling J, total-spin blocks) and the anisotropic one at
+// Delta = 1 (Jxy = Jz, S^z blocks).
 func TestExpansionModelMatchesRing(t *testing.T) {
-	exp, err := NewExpansionModel("chain", 12, false, cluster.TrustOptions{})
-	if err != nil {
-		t.Fatal(err)
+	for _, anisotropic := range []bool{false, true} {
+		if anisotropic && testing.Short() {
+			continue // 30 s: derivatives need eigenvectors in the S^z blocks
+		}
+		exp, err := NewExpansionModel("chain", 12, ExpansionOptions{Anisotropic: anisotropic})
+		if err != nil {
+			t.Fatal(err)
+		}
+		req := Request{Couplings: []float64{20}, Temps: logGrid(20, 200, 12), Tangents: [][]float64{{1}}}
+		if anisotropic {
+			req.Couplings, req.Tangents = []float64{20, 20}, [][]float64{{1, 1}}
+		}
+		compareWithRing(t, exp, req)
 	}
+}
+
+func compareWithRing(t *testing.T, exp *ExpansionModel, req Request) {
+	t.Helper()
 	ring, err := NewPeriodicClusterModel("chain", PeriodicClusterOptions{})
 	if err != nil {
 		t.Fatal(err)
 	}
-	req := Request{Couplings: []float64{20, 20}, Temps: logGrid(20, 200, 12), Tangents: [][]float64{{1, 1}}}
 	start := time.Now()
 	a, err := exp.Curves(req)
 	if err != nil {

@@ -19,6 +19,7 @@ import (
 
 // Coupling names of the linear couplings a forward model may accept.
 const (
+	CouplingJ   = "J"   // nearest-neighbour Heisenberg exchange, K (isotropic models)
 	CouplingJxy = "Jxy" // nearest-neighbour XY exchange, K
 	CouplingJz  = "Jz"  // nearest-neighbour ZZ exchange, K
 	CouplingJ2  = "J2"  // next-nearest-neighbour Heisenberg exchange, K
@@ -32,7 +33,8 @@ type ForwardModel interface {
 	// Coordination is the number of nearest neighbours of a site.
 	Coordination() int
 	// Couplings lists the linear couplings the model accepts, in the order
-	// of Request.Couplings: a subset of CouplingJxy, CouplingJz, CouplingJ2.
+	// of Request.Couplings: CouplingJ of an isotropic model, or
+	// CouplingJxy and CouplingJz; CouplingJ2 in addition when offered.
 	Couplings() []string
 	// Curves evaluates the model; see Request and Curves.
 	Curves(req Request) (*Curves, error)
