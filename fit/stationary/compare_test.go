@@ -191,4 +191,3 @@ func firstWords(s string, n int) string {
 	}
 	return strings.Join(w, " ")
 }
-
