@@ -75,6 +75,11 @@ type Direction struct {
 	// string had no data).
 	Chi2          float64
 	Rows, Dropped int
+	// Misfit is set when Chi2 is more than five standard deviations above
+	// its degrees of freedom (Rows - parameters + 1): the data fit no
+	// stationary state of these terms well (terms missing from the
+	// template, systematic errors, a state that is not stationary).
+	Misfit bool
 	// Method is "dense" or "lanczos"; Iterations counts reweightings.
 	Method     string
 	Iterations int
@@ -174,6 +179,9 @@ func Solve(sys *System, est *fit.Estimates, opt Options) (*Direction, error) {
 	}
 	ws.reweight(theta)
 	d.Chi2 = ws.chi2()
+	if dof := float64(max(d.Rows-np+1, 1)); d.Chi2 > dof+5*math.Sqrt(2*dof) {
+		d.Misfit = true
+	}
 	d.Theta, d.low, d.Method = theta, low, low.method
 	d.Spectrum = low.values
 	nlow, err := eig(ws.noiseOnly(theta), nil)
@@ -387,6 +395,10 @@ func (d *Direction) Summary() string {
 		nvals[j] = fmt.Sprintf("%.4g", v)
 	}
 	fmt.Fprintf(&b, "the same for noise alone: %s\n", strings.Join(nvals, " "))
+	if d.Misfit {
+		fmt.Fprintf(&b, "WARNING: constraint chi2 %.4g far above its %d degrees of freedom: the data fit no stationary state of these terms well (a term missing from the template, systematic errors, or a non-stationary state)\n",
+			d.Chi2, max(d.Rows-len(d.Theta)+1, 1))
+	}
 	if len(d.Invisible) == 0 {
 		fmt.Fprintf(&b, "every other direction is resolved (largest standard error %.3g)\n", maxFinite(d.StdErr))
 	}
