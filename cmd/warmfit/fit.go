@@ -28,11 +28,11 @@ type fitFlags struct {
 	oldTol   float64 // the retired --tol, answered with a pointer
 	budget   time.Duration
 	truth    string
-	format   string
+	format   outputFormat
 	out      string
 	tol      float64
 	maxIter  int
-	start    string
+	start    fitStart
 	fdr      float64
 	covDist  int
 	workers  int
@@ -45,6 +45,14 @@ type fitFlags struct {
 // fitOptions holds the flags of "warmfit fit"; Flags resets them on every
 // invocation.
 var fitOptions fitFlags
+
+// fitStart is the value of fit --start: where the Newton iteration starts.
+type fitStart string
+
+const (
+	startFirstOrder fitStart = "first-order" // lambda = -e/beta
+	startTemplate   fitStart = "template"    // the template's coefficients
+)
 
 func init() {
 	register(&command{
@@ -64,13 +72,13 @@ func init() {
 			addBudgetFlag(fs, &o.budget)
 			fs.StringVar(&o.truth, "truth", "", "true model `FILE`: report z-scores and L2/Linf errors against it")
 			fs.StringVar(&o.scale, "scale-from", "", "without beta: fix the energy scale from `TERM=VALUE` (a calibrated coefficient, e.g. \"ZZ 0 1=0.25\") or beta=B; VALUE may be V+-ERR")
-			fs.StringVar(&o.format, "format", "json", "output format: json (fitted model with report) or csv")
+			fs.StringVar((*string)(&o.format), "format", string(formatJSON), "output format: json (fitted model with report) or csv")
 			addOutputFlag(fs, &o.out, "the fit")
 			fs.Float64Var(&o.tol, "gradient-tol", 1e-3, "stop when every gradient component is below this times its data noise")
 			fs.Float64Var(&o.oldTol, "tol", 0, "replaced by --gradient-tol")
 			_ = fs.MarkHidden("tol")
 			fs.IntVar(&o.maxIter, "max-iter", 50, "Newton iterations per order")
-			fs.StringVar(&o.start, "start", "first-order", "starting point: first-order (lambda = -e/beta) or template")
+			fs.StringVar((*string)(&o.start), "start", string(startFirstOrder), "starting point: first-order (lambda = -e/beta) or template")
 			fs.Float64Var(&o.fdr, "fdr", 0.05, "false-discovery rate of the significance flags (Benjamini-Hochberg)")
 			fs.IntVar(&o.covDist, "cov-distance", 1, "snapshots: keep covariances of terms within this graph distance")
 			addWorkersFlag(fs, &o.workers)
@@ -213,10 +221,10 @@ func checkFitFlags(o *fitFlags, args []string) (*fit.Calibration, error) {
 	if o.data == "" {
 		return nil, usagef("--data is required")
 	}
-	if o.format != "json" && o.format != "csv" {
-		return nil, usagef("--format %q: want json or csv", o.format)
+	if _, err := parseChoice("--format", string(o.format), formatJSON, formatCSV); err != nil {
+		return nil, err
 	}
-	if o.format != "csv" {
+	if o.format != formatCSV {
 		if err := o.csv.misuse("the fitted model (JSON); add --format csv"); err != nil {
 			return nil, err
 		}
@@ -236,8 +244,8 @@ func checkFitFlags(o *fitFlags, args []string) (*fit.Calibration, error) {
 	if !(o.tol > 0) || o.maxIter < 1 || !(o.fdr > 0 && o.fdr < 1) {
 		return nil, usagef("--gradient-tol and --fdr must be in range (tol > 0, 0 < fdr < 1) and --max-iter at least 1")
 	}
-	if o.start != "first-order" && o.start != "template" {
-		return nil, usagef("--start %q: want first-order or template", o.start)
+	if _, err := parseChoice("--start", string(o.start), startFirstOrder, startTemplate); err != nil {
+		return nil, err
 	}
 	if o.scale == "" {
 		return nil, nil
@@ -329,7 +337,7 @@ func fitRunOptions(env *runEnv, o *fitFlags, tmpl *model.Model, order int) (fit.
 		Order: order, MaxOrder: o.maxOrder, Budget: o.budget, Tol: o.tol, MaxIter: o.maxIter,
 		FDR: o.fdr, Workers: o.workers,
 	}
-	if o.start == "template" {
+	if o.start == startTemplate {
 		opt.Start = make([]float64, len(tmpl.Terms))
 		for k, t := range tmpl.Terms {
 			opt.Start[k] = t.Coeff
@@ -398,7 +406,7 @@ func writeFitResult(env *runEnv, o *fitFlags, tmpl *model.Model, res *fit.Result
 		}
 		return fmt.Errorf("the fit did not converge: %s; the last iterate is in %s (not an estimate)", res.Reason, path)
 	}
-	if o.format == "csv" {
+	if o.format == formatCSV {
 		meta, err := fitCSVMeta(res, rep, o.model, o.data)
 		if err != nil {
 			return err
