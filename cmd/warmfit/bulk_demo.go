@@ -89,7 +89,7 @@ func runBulkDemo(env *runEnv, dir string) error {
 	// The curves were made with the periodic clusters, which are also fast
 	// on the M(H) sweeps (one expansion run per field point); fit them
 	// with --engine expansion by hand to see the production model.
-	o.engine = "clusters"
+	o.engine = engineClusters
 	if o.out == "" {
 		o.out = filepath.Join(dir, "fit.json")
 	}
