@@ -26,20 +26,17 @@ func parseModelOutput(t *testing.T, out string) *model.Model {
 	return m
 }
 
-func TestModelCommandPresets(t *testing.T) {
-	tests := []struct {
-		args  []string
-		terms int // closed-form count
-	}{
-		// open 5-chain: 4 ZZ + 5 X (hz = 0 is left out)
-		{[]string{"--lattice", "chain:5", "--preset", "tfim"}, 9},
-		// hz set: + 5 Z
-		{[]string{"--lattice", "chain:5", "--preset", "tfim", "--set", "J=2,hx=0.5", "--set", "hz=0.1"}, 14},
-		// 3x3 open square with two shells: 3 x (12 + 8) bonds
-		{[]string{"--lattice", "square:3x3", "--preset", "j1j2", "--shells", "2"}, 60},
-		// all2local on open 3x3: 9*12 + 3*9
-		{[]string{"--lattice", "square:3x3", "--preset", "all2local"}, 135},
-	}
+// modelTermCount is a "warmfit model" command line (without "model") and
+// the number of terms its model must have.
+type modelTermCount struct {
+	args  []string
+	terms int // closed-form count
+}
+
+// checkModelTermCounts runs each command line and checks its model's
+// number of terms.
+func checkModelTermCounts(t *testing.T, tests []modelTermCount) {
+	t.Helper()
 	for _, tc := range tests {
 		code, out, errs := runModelCmd(append([]string{"model"}, tc.args...)...)
 		if code != exitOK {
@@ -51,6 +48,20 @@ func TestModelCommandPresets(t *testing.T) {
 	}
 }
 
+func TestModelCommandPresets(t *testing.T) {
+	tests := []modelTermCount{
+		// open 5-chain: 4 ZZ + 5 X (hz = 0 is left out)
+		{[]string{"--lattice", "chain:5", "--preset", "tfim"}, 9},
+		// hz set: + 5 Z
+		{[]string{"--lattice", "chain:5", "--preset", "tfim", "--set", "J=2,hx=0.5", "--set", "hz=0.1"}, 14},
+		// 3x3 open square with two shells: 3 x (12 + 8) bonds
+		{[]string{"--lattice", "square:3x3", "--preset", "j1j2", "--shells", "2"}, 60},
+		// all2local on open 3x3: 9*12 + 3*9
+		{[]string{"--lattice", "square:3x3", "--preset", "all2local"}, 135},
+	}
+	checkModelTermCounts(t, tests)
+}
+
 func TestModelCommandLatticeFiles(t *testing.T) {
 	dir := t.TempDir()
 	graph := filepath.Join(dir, "path4.json")
@@ -60,10 +71,7 @@ func TestModelCommandLatticeFiles(t *testing.T) {
 		t.Fatal(err)
 	}
 	sample := filepath.Join("..", "..", "testdata", "models", "square3x3_tfim.json")
-	tests := []struct {
-		args  []string
-		terms int
-	}{
+	tests := []modelTermCount{
 		{[]string{"--lattice", graph, "--preset", "j1j2", "--shells", "2"}, 3 * (3 + 2)},
 		{[]string{"--lattice", graph, "--preset", "tfim"}, 3 + 4},
 		// --shells 1 takes the diagonals of a two-shell specification away:
@@ -72,15 +80,7 @@ func TestModelCommandLatticeFiles(t *testing.T) {
 		// The lattice of a model file: open 3x3 square, 12 bonds x 3 + 0 fields.
 		{[]string{"--lattice", sample, "--preset", "heisenberg"}, 36},
 	}
-	for _, tc := range tests {
-		code, out, errs := runModelCmd(append([]string{"model"}, tc.args...)...)
-		if code != exitOK {
-			t.Fatalf("%v: exit %d: %s", tc.args, code, errs)
-		}
-		if m := parseModelOutput(t, out); len(m.Terms) != tc.terms {
-			t.Errorf("%v: %d terms, want %d", tc.args, len(m.Terms), tc.terms)
-		}
-	}
+	checkModelTermCounts(t, tests)
 	// A broken lattice file is a failure (exit 1), not a usage error.
 	bad := filepath.Join(dir, "bad.json")
 	if err := os.WriteFile(bad, []byte(`{"kind": "graph", "sites": [[0, 0]], "bonds": [[0, 5]]}`), 0o644); err != nil {
