@@ -22,12 +22,10 @@ type Report struct {
 	OrderMode     OrderMode `json:"order_selection"`
 	Beta          float64   `json:"beta"`
 	BetaKnown     bool      `json:"beta_known"`
-	// BetaSource says where Beta comes from: "given", "energy scale"
-	// (recovered by ScaleEnergy; see EnergyScale) or "unknown" (Beta is
-	// 1 by convention and the coefficients are beta*lambda).
-	BetaSource   string             `json:"beta_source"`
+	// BetaSource says where Beta comes from.
+	BetaSource   BetaSource         `json:"beta_source"`
 	EnergyScale  *ReportEnergyScale `json:"energy_scale,omitempty"`
-	CoeffMeaning string             `json:"coefficients"` // "lambda" or "beta*lambda"
+	CoeffMeaning CoeffMeaning       `json:"coefficients"`
 	Terms        int                `json:"terms"`
 	Parameters   int                `json:"parameters"`
 	DataKind     DataKind           `json:"data,omitempty"`
@@ -145,6 +143,25 @@ func finitePtr(v float64) *float64 {
 	return &v
 }
 
+// BetaSource says where the beta of a Report comes from.
+type BetaSource string
+
+// Sources of a Report's beta.
+const (
+	BetaGiven           BetaSource = "given"        // by the caller (Problem.Beta)
+	BetaFromEnergyScale BetaSource = "energy scale" // recovered by ScaleEnergy; see EnergyScale
+	BetaUnknown         BetaSource = "unknown"      // 1 by convention: the coefficients are beta*lambda
+)
+
+// CoeffMeaning says what a Report's coefficients are.
+type CoeffMeaning string
+
+// Meanings of a Report's coefficients.
+const (
+	CoeffLambda     CoeffMeaning = "lambda"
+	CoeffBetaLambda CoeffMeaning = "beta*lambda"
+)
+
 // OrderMode says how the order of a fit was chosen.
 type OrderMode string
 
@@ -168,7 +185,7 @@ func NewReport(r *Result, mode OrderMode, dataKind DataKind, dataFile string, to
 		OrderMode:     mode,
 		Beta:          r.Beta,
 		BetaKnown:     r.BetaKnown,
-		CoeffMeaning:  "lambda",
+		CoeffMeaning:  CoeffLambda,
 		Terms:         len(r.Terms),
 		Parameters:    r.Params.NumParams(),
 		DataKind:      dataKind,
@@ -181,16 +198,16 @@ func NewReport(r *Result, mode OrderMode, dataKind DataKind, dataFile string, to
 		Notes:         r.Notes,
 	}
 	rep.ElapsedSeconds = math.Round(r.Elapsed.Seconds()*1000) / 1000
-	rep.BetaSource = "given"
+	rep.BetaSource = BetaGiven
 	if es := r.EnergyScale; es != nil {
-		rep.BetaSource = "energy scale"
+		rep.BetaSource = BetaFromEnergyScale
 		rep.EnergyScale = &ReportEnergyScale{
 			From: es.Calibration.String(), Term: es.Calibration.Term, Value: es.Calibration.Value,
 			Beta: es.Beta, BetaStderr: finitePtr(es.BetaStderr), Method: es.Method,
 		}
 	} else if !r.BetaKnown {
-		rep.BetaSource = "unknown"
-		rep.CoeffMeaning = "beta*lambda"
+		rep.BetaSource = BetaUnknown
+		rep.CoeffMeaning = CoeffBetaLambda
 	}
 	if r.Exact {
 		rep.GradientAbs = finitePtr(r.GradientAbs)
