@@ -189,7 +189,7 @@ func PlanShots(lat *lattice.Lattice, terms []lattice.Term, beta float64, opt Pla
 		}
 		d[k] = (1 - e*e) / float64(p.Coverage[k])
 	}
-	hess := params.project(responseMatrix{res.Response}, -1)
+	hess := params.project(res.Response, -1)
 	vars, _, err := paramVariances(hess, params.project(diagMatrix(d), 1), opt.DenseLimit, opt.Workers, params.spatialOrder(terms))
 	if err != nil {
 		return nil, fmt.Errorf("plan: %v", err)

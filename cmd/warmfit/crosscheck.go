@@ -59,7 +59,8 @@ The output has one row per order: how many values were compared, the largest and
 root-mean-square |expansion - exact|, the largest statistical error of the references,
 whether the order covers whole patches (the expansion is then exact by construction and
 says nothing about convergence), whether every value agrees within --tol, and how often
-the expansion's own truncation estimate bounded the true difference. Its metadata
+the expansion's own truncation estimate bounded the true difference (and the median of
+estimate / true difference: how tight it is). Its metadata
 (sidecar, see below) gives the lowest order from which the expansion agrees and a verdict on
 the model's temperature; a WARNING (also on stderr) says when the expansion cannot be
 trusted there or the patches are too small to show it. --format json adds every value

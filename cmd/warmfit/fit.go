@@ -83,7 +83,10 @@ const fitLong = `Fit finds the coefficients lambda of H = sum_k lambda_k E_k who
 exp(-beta H)/Z reproduces the measured expectation values e_k, by minimising the
 convex maximum-entropy dual G(lambda) = log Z(lambda) + beta sum_k lambda_k e_k with
 log Z from the numerical linked-cluster expansion. Newton steps are solved by
-conjugate gradients on the sparse Hessian and damped by a line search on G.
+conjugate gradients on the sparse Hessian and damped by a line search on G. On
+large lattices the steps take the exact gradient at order L with the Hessian of
+order L-1 (the order-L one costs about four forward passes); a step that stalls
+falls back on the exact Hessian.
 
 The template (--model) gives the lattice and the terms; terms sharing a "group" share
 one coefficient. The data (--data) are an expectation table (pauli,sites,value,stderr;
@@ -101,8 +104,10 @@ that does not converge exits with status 1, says why, leaves -o untouched and
 writes its last iterate to OUT.unconverged.json.
 
 Error bars: delta method, Cov(theta) = M Cov(e) M^T with M = (A^T R A)^{-1} A^T,
-R = d<E>/d lambda at the solution; the lower orders L-1 and L-2 are refitted from
-the solution to measure the truncation error (the larger of the last two changes
+R = d<E>/d lambda at the solution, of order L or, on large lattices, L-1 (the
+report's "error_bars_response_order"; the two differ by about 1%). The lower
+orders L-2 and L-1 are fitted first, each from the solution below, and measure
+the truncation error (the larger of the last two changes
 of any coefficient: partial sums can stall for one order). With --order auto (the
 default), the order rises until that error is at most 0.1 x the median statistical
 error, or --budget runs out (the next order's cost is predicted before it is
