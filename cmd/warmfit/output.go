@@ -183,7 +183,7 @@ func isDirectTarget(path, resolved string) bool {
 		}
 	}
 	fi, err := os.Stat(resolved)
-	return err == nil && !fi.Mode().IsRegular()
+	return err == nil && !fi.Mode().IsRegular() && !fi.IsDir()
 }
 
 // writeOutput sends what write produces to stdout when path is "" or "-",
