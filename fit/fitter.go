@@ -509,7 +509,7 @@ func (f *fitter) autoOrder(theta0 []float64, start time.Time) (*Result, error) {
 				statErr = f.statisticalScale(of)
 			}
 			tr := f.truncation(history, statErr)
-			f.opt.logf("order %d: truncation error %s against target %.3g", L, fmtMaybe(tr.Error, tr.Known), tr.Target)
+			f.opt.logf("order %d: truncation error %s against target %.3g (this order took %s)", L, fmtMaybe(tr.Error, tr.Known), tr.Target, of.elapsed.Round(10*time.Millisecond))
 			if tr.Known && tr.OK {
 				break
 			}
@@ -541,6 +541,7 @@ func (f *fitter) autoOrder(theta0 []float64, start time.Time) (*Result, error) {
 		evals := max(of.out.evaluations, 1)
 		perEval := float64(of.elapsed) / float64(evals)
 		predicted := time.Duration(perEval * float64(max(evals, 2)) * wNext / math.Max(wNow, 1))
+		f.opt.logf("order %d: predicted to take about %s (from order %d's %s)", L+1, predicted.Round(10*time.Millisecond), L, of.elapsed.Round(10*time.Millisecond))
 		if rest := f.opt.Budget - time.Since(start); predicted > rest {
 			notes = append(notes, fmt.Sprintf("stopped at order %d by the time budget: order %d would take about %s, more than the %s left of --budget (this stop depends on the machine's speed)",
 				L, L+1, predicted.Round(time.Second), rest.Round(time.Second)))
