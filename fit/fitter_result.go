@@ -225,15 +225,6 @@ func (f *fitter) finish(main *orderFit, history []*orderFit, notes []string) (*R
 	return r, nil
 }
 
-func containsFit(h []*orderFit, x *orderFit) bool {
-	for _, y := range h {
-		if y == x {
-			return true
-		}
-	}
-	return false
-}
-
 // addWarnings states plainly everything that could make the numbers
 // mislead.
 func (f *fitter) addWarnings(r *Result) {

@@ -27,17 +27,19 @@ type evaluator func(lambda []float64, response bool) (*thermalEval, error)
 // Curvature at a lower order. The gradient of the dual at order L needs
 // only the expectations at order L; its Hessian needs the response, whose
 // Kubo–Mori sums cost several times the diagonalisations they start from.
-// The response of the order-(L-1) expansion, accumulated in the same pass
-// over the clusters (cluster.Options.ResponseOrder), differs from the
-// order-L one by the truncation of the response series, a few per cent
-// where the expansion converges. Newton with that curvature and the exact
+// The response of the order-(L-1) expansion, accumulated in the first
+// iterate's pass over the clusters (cluster.Options.ResponseOrder) and
+// kept for the order's later steps, differs from the order-L one by the
+// truncation of the response series, a few per cent where the expansion
+// converges. Newton with that curvature and the exact
 // gradient converges linearly at the rate ||I - P_{L-1}^{-1} P_L||, so a
 // fit that starts from the order-(L-1) solution needs two or three steps;
 // the line search on the exact G keeps every step a descent step
 // (Nocedal and Wright, Numerical Optimization, 2nd ed., Sec. 3.3 on
 // quasi-Newton directions). When the lower-order curvature is not
-// positive definite, its steps stall (the gradient falls by less than
-// stallRatio twice), or the line search fails, the minimisation switches
+// positive definite, its steps stall (a full step shrinks the gradient by
+// less than stallRatio: the first time the response is evaluated afresh,
+// the second time), or the line search fails, the minimisation switches
 // to the exact response for the rest of the order: never less robust
 // than exact Newton, only slower.
 
@@ -107,7 +109,7 @@ type newtonOutcome struct {
 	evaluations int
 	gradSigma   float64 // max |r_q| / sigma_q over noisy parameters
 	gradAbs     float64 // max |r_q| / |q| over exact parameters
-	hessian     *csr    // P = -A^T R A at state (positive semidefinite)
+	hessian     *csr    // P = -A^T R A at curvatureTheta (positive semidefinite)
 	// responseOrder is the order of the response in hessian or jacobian
 	// and curvatureTheta the parameters it was evaluated at (the state's
 	// unless the response was reused).
