@@ -143,6 +143,9 @@ func ScaleEnergy(r *Result, c Calibration) (*Result, error) {
 		}
 		var col []float64
 		if haveErr {
+			if r.covColumn == nil {
+				return nil, fmt.Errorf("calibration %s: the fit's covariance is not available (a Result not made by Fit)", c)
+			}
 			var err error
 			if col, err = r.covColumn(ref); err != nil {
 				return nil, fmt.Errorf("calibration %s: covariance of the fitted coefficients: %v", c, err)

@@ -39,7 +39,7 @@ func readReference(t *testing.T) map[string]map[string][2]float64 {
 }
 
 // The fitted coefficients do not depend on the curvature Newton steps
-// use: with the exact response, the automatic choice and the
+// use: with the automatic choice (here the exact response) and with the
 // order-(L-1) response everywhere, every coefficient equals the one the
 // exact-Newton fitter found before the lower-order curvature existed
 // (testdata/fit_reference.csv, written by TestWriteFitReference at
@@ -60,7 +60,9 @@ func TestFitMatchesReference(t *testing.T) {
 			t.Fatalf("%s: not in %s", c.name, referenceFile)
 		}
 		prob := referenceProblem(t, c)
-		for _, curv := range []fit.Curvature{fit.CurvatureAuto, fit.CurvatureExact, fit.CurvatureLower} {
+		// On these small lattices CurvatureAuto keeps the exact response
+		// (it is cheap), so it stands for CurvatureExact too.
+		for _, curv := range []fit.Curvature{fit.CurvatureAuto, fit.CurvatureLower} {
 			res, err := fit.Fit(prob, fit.Options{Order: c.order, Curvature: curv})
 			if err != nil || !res.Converged {
 				t.Fatalf("%s, %v: %v %+v", c.name, curv, err, res)

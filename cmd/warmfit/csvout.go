@@ -25,7 +25,8 @@ import (
 const csvOutputHelp = `CSV output: the first line is the header, so any CSV reader loads the file as it
 is. What the run was (command, order, beta, verdicts, every WARNING) goes to a JSON
 sidecar FILE.meta.json written next to -o FILE (atomically, like FILE); with the CSV
-on stdout the same facts are on stderr, and --meta M.json writes the sidecar anyway.
+on stdout there is no sidecar unless --meta M.json names one (WARNING lines are on
+stderr either way).
 --csv-comments writes them instead as '#' lines before the header (no sidecar unless
 --meta is given).`
 
@@ -141,8 +142,10 @@ func writeCSVResult(env *runEnv, out string, f csvFlags, meta *csvMeta, body fun
 	if err != nil {
 		return err
 	}
-	if sidecar == "" {
+	if def := metaSidecarPath(out); def != "" && filepath.Clean(def) != filepath.Clean(sidecar) {
 		removeStaleSidecar(out)
+	}
+	if sidecar == "" {
 		return nil
 	}
 	if err := writeFileAtomic(sidecar, func(w io.Writer) error { _, err := w.Write(side); return err }); err != nil {
@@ -152,8 +155,8 @@ func writeCSVResult(env *runEnv, out string, f csvFlags, meta *csvMeta, body fun
 }
 
 // removeStaleSidecar deletes the sidecar an earlier run left beside out
-// when this run wrote none (--csv-comments): it would describe another
-// file. Only a sidecar warmfit wrote for that very file is removed.
+// when this run wrote none there (--csv-comments, or --meta elsewhere): it
+// would describe another file. Only a sidecar warmfit wrote for that very file is removed.
 func removeStaleSidecar(out string) {
 	side := metaSidecarPath(out)
 	if side == "" {

@@ -82,10 +82,11 @@ and the shot plan); --quick runs a 4x4 array in a few seconds.`
 
 // demoCPUTime is what the default demo costs, as the demo help and the
 // README quote it: measured as the user CPU time of "time warmfit demo"
-// (49 s on the 2-core machine, under shared load, on 2 December 2026).
+// (16 s on the 2-core machine, under shared load, on 2 December 2026, after
+// the lower-order curvature and the one-response plan ladder; 49 s before).
 // CPU time rather than wall time: it depends far less on what else the
 // machine runs.
-const demoCPUTime = "about 50 s of CPU time"
+const demoCPUTime = "about 16 s of CPU time"
 
 const demoExample = `warmfit demo
 warmfit demo --quick --out /tmp/first-look

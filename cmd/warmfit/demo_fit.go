@@ -94,9 +94,9 @@ func (d *demoRun) fitData(step int, j fitJob) (*demoFit, error) {
 // (fitted - true)/stderr) the report and the figures show.
 type demoRecovery struct {
 	*fit.TruthComparison
-	Terms []lattice.Term // the fitted terms
-	Truth []float64      // the true coefficient of each
-	Worst string         // the term of Linf
+	Terms        []lattice.Term // the fitted terms
+	Truth        []float64      // the true coefficient of each
+	LargestError string         // the term of Linf (largest |fit - truth|)
 	// PullMean and Within2 (the fraction of |pull| <= 2) complete the
 	// comparison's rms and largest |pull|.
 	PullMean, Within2    float64
@@ -124,7 +124,7 @@ func newDemoRecovery(res *fit.Result, cmp *fit.TruthComparison, truth []lattice.
 	}
 	r := &demoRecovery{TruthComparison: cmp, Terms: res.Terms, Truth: make([]float64, len(res.Terms))}
 	if cmp.LargestErrorTerm >= 0 {
-		r.Worst = res.Terms[cmp.LargestErrorTerm].Key()
+		r.LargestError = res.Terms[cmp.LargestErrorTerm].Key()
 	}
 	stderrs := make([]float64, len(res.Terms))
 	within := 0

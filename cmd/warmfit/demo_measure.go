@@ -80,7 +80,14 @@ func (d *demoRun) sampleExact(m *model.Model, bases []string, name string) error
 			return err
 		}
 	}
-	return d.write(name, func(w io.Writer) error {
+	meta := &csvMeta{Command: "sample", Contents: "snapshot file: one row per basis and outcome seen, with its count"}
+	meta.line("warmfit sample: exact Gibbs-state snapshots of %d qubits, beta %s, %d bases x %d shots, seed %d", m.Lattice.NumSites(), fmtFloat(m.Beta), len(bases), d.sc.Shots, d.sc.Seed)
+	meta.set("generator", "exact")
+	meta.set("beta", m.Beta)
+	meta.set("bases", bases)
+	meta.set("shots_per_basis", d.sc.Shots)
+	meta.set("seed", d.sc.Seed)
+	return d.writeCSV(name, meta, func(w io.Writer) error {
 		sw := fit.NewSnapshotWriter(w, m.Lattice.NumSites())
 		for i, b := range bases {
 			for _, c := range counts[i] {

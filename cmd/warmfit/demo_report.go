@@ -163,7 +163,7 @@ func (d *demoRun) reportRecovery(m *mdWriter) {
 		return fmt.Sprintf("%d (%s)", f.Report.Order, f.Report.OrderMode)
 	})
 	row("L2 error", func(_ *demoFit, r *demoRecovery) string { return fmtG3(r.L2) })
-	row("Linf error (term)", func(_ *demoFit, r *demoRecovery) string { return fmtG3(r.Linf) + " (" + r.Worst + ")" })
+	row("Linf error (term)", func(_ *demoFit, r *demoRecovery) string { return fmtG3(r.Linf) + " (" + r.LargestError + ")" })
 	row("median / largest stderr", func(_ *demoFit, r *demoRecovery) string { return fmtG3(r.MedStderr) + " / " + fmtG3(r.MaxStderr) })
 	row("pull mean", func(_ *demoFit, r *demoRecovery) string { return fmt.Sprintf("%+.3f", r.PullMean) })
 	row("pull rms", func(_ *demoFit, r *demoRecovery) string { return fmt.Sprintf("%.3f", r.RMSZ) })

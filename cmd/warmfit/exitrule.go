@@ -25,7 +25,7 @@ func addStrictFlag(fs *pflag.FlagSet, strict *bool) {
 }
 
 // warningCounter passes stderr through and counts the lines that start
-// with "WARNING", so that --strict follows every warning a command
+// with "WARNING" (after indentation), so that --strict follows every warning a command
 // prints, whichever code prints it.
 type warningCounter struct {
 	w        io.Writer
@@ -41,6 +41,9 @@ func (c *warningCounter) Write(p []byte) (int, error) {
 		if b == '\n' || b == '\r' {
 			c.col, c.mismatch = 0, false
 			continue
+		}
+		if c.col == 0 && (b == ' ' || b == '\t') {
+			continue // indentation (the demo indents its step lines)
 		}
 		if c.col < len(warningPrefix) && !c.mismatch {
 			if b != warningPrefix[c.col] {

@@ -12,11 +12,11 @@ func TestWarningCounterCountsLinesStartingWithWarning(t *testing.T) {
 	var sb strings.Builder
 	c := &warningCounter{w: &sb}
 	// Written in pieces, as fmt does; only line starts count.
-	for _, p := range []string{"fit: ok\nWARN", "ING: one\n", "note: a WARNING inside\n", "WARNING: two\r\nWARNING", "\n", "WARNIN\n"} {
+	for _, p := range []string{"fit: ok\nWARN", "ING: one\n", "note: a WARNING inside\n", "WARNING: two\r\nWARNING", "\n", "WARNIN\n", "      WARNING: indented\n"} {
 		c.Write([]byte(p))
 	}
-	if c.count != 3 {
-		t.Errorf("counted %d WARNING lines, want 3", c.count)
+	if c.count != 4 {
+		t.Errorf("counted %d WARNING lines, want 4", c.count)
 	}
 	if !strings.Contains(sb.String(), "note: a WARNING inside") {
 		t.Errorf("the counter changed what it passed on: %q", sb.String())
@@ -162,5 +162,24 @@ func TestExitRuleStatedInReadmeAndHelp(t *testing.T) {
 	}
 	if code, out, _ := runCmd("--version"); code != exitOK || !strings.HasPrefix(out, "warmfit "+version) {
 		t.Errorf("warmfit --version: exit %d, %q", code, out)
+	}
+}
+
+// TestSweepVerdictNamesTheLastTrustedBeta: sweep and the demo state a
+// trusted range in one wording, by the last trusted grid point ("up to
+// beta 0.625") and the first untrusted one, never by a bound in between.
+func TestSweepVerdictNamesTheLastTrustedBeta(t *testing.T) {
+	tr := &sweepTrust{LastGood: 0.625, Edge: 0.65, Tol: 1e-3}
+	v := tr.sweepVerdict()
+	for _, want := range []string{"WARNING: ", "up to beta 0.625", "from beta 0.65 on", "trusted=false"} {
+		if !strings.Contains(v, want) {
+			t.Errorf("verdict %q lacks %q", v, want)
+		}
+	}
+	if !strings.Contains(v, tr.rangeText()) {
+		t.Errorf("verdict %q does not use rangeText, the demo's wording", v)
+	}
+	if v := (&sweepTrust{Tol: 1e-3}).sweepVerdict(); strings.Contains(v, "WARNING") {
+		t.Errorf("a fully trusted sweep warns: %q", v)
 	}
 }

@@ -24,7 +24,7 @@ are written as such: the report says "coefficients": "beta*lambda" and "beta_sou
 so, and beta = 1 in the file is a convention, not a measured temperature (plan and
 model --check warn about it; --beta on such a model is refused). --scale-from fixes the
 energy scale after the fit: TERM=VALUE gives one coefficient known from elsewhere
-(a calibrated coupling, e.g. "ZZ 0 1=0.25" or ZZ:0,1=0.25), beta=B a known inverse
+(a calibrated coupling, e.g. "ZZ 0 1=0.25", ZZ:0:1=0.25, or a group name: J=0.25), beta=B a known inverse
 temperature; either may carry an uncertainty, as VALUE+-ERR. Then beta = theta_r/VALUE
 is reported with its error bar (delta method with the fitted covariance of beta*lambda),
 every coefficient is lambda with error bars that include the scale's, and the model
@@ -56,8 +56,16 @@ func parseScaleFrom(s string) (fit.Calibration, error) {
 		return c, nil
 	}
 	parts := strings.Fields(strings.NewReplacer(":", " ", ",", " ", ";", " ").Replace(left))
+	if len(parts) == 1 && left != "" {
+		// A group name: resolved against the template (resolveScaleGroup).
+		if v == 0 {
+			return c, usagef("--scale-from %q: a zero coefficient cannot set a scale", s)
+		}
+		c.Term, c.Value, c.ValueStderr = groupPrefix+left, v, sv
+		return c, nil
+	}
 	if len(parts) < 2 {
-		return c, usagef("--scale-from %q: %q is not a term (a Pauli string and its sites) or beta; for example %s", s, left, example)
+		return c, usagef("--scale-from %q: %q is not a term (a Pauli string and its sites), a group or beta; for example %s", s, left, example)
 	}
 	sites := make([]int, len(parts)-1)
 	for j, p := range parts[1:] {
@@ -76,6 +84,26 @@ func parseScaleFrom(s string) (fit.Calibration, error) {
 	}
 	c.Term, c.Value, c.ValueStderr = lattice.TermKey(pauli, cs), v, sv
 	return c, nil
+}
+
+// groupPrefix marks a calibration by group name until the template
+// resolves it to a member term.
+const groupPrefix = "group "
+
+// resolveScaleGroup turns a calibration by group name into one by a
+// member term (all members share the coefficient).
+func resolveScaleGroup(c fit.Calibration, terms []lattice.Term, spec string) (fit.Calibration, error) {
+	name, ok := strings.CutPrefix(c.Term, groupPrefix)
+	if !ok {
+		return c, nil
+	}
+	for _, t := range terms {
+		if t.Group == name {
+			c.Term = t.Key()
+			return c, nil
+		}
+	}
+	return c, usagef("--scale-from %q: %q is neither a term (a Pauli string and its sites, like \"ZZ 0 1\") nor a group of the template", spec, name)
 }
 
 // parsePlusMinus reads "V", "V+-E" or "V±E".

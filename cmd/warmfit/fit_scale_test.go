@@ -8,6 +8,7 @@ import (
 	"strings"
 	"testing"
 
+	"warmfit/lattice"
 	"warmfit/lattice/model"
 )
 
@@ -191,6 +192,9 @@ func TestFitScaleFromErrors(t *testing.T) {
 		{[]string{"--model", tmpl, "--scale-from", "beta=-1"}, exitUsage, "beta must be positive"},
 		{[]string{"--model", tmpl, "--scale-from", "ZZ 0 1=-0.9"}, exitFailure, "would not be positive"},
 		{[]string{"--model", tmpl, "--scale-from", "ZZ 0 2=0.9"}, exitFailure, "not a term of the template"},
+		{[]string{"--model", tmpl, "--scale-from", "J=1"}, exitUsage, `"J" is neither a term`},
+		{[]string{"--model", tmpl, "--scale-from", "beta=0.3", "--method", "stationary"}, exitUsage, "--method stationary takes its known coefficients from --calibrate"},
+		{[]string{"--model", tmpl, "--calibrate", "ZZ:0:1=0.9"}, exitUsage, "--calibrate is for --method stationary"},
 	} {
 		args := append([]string{"fit", "--data", data, "--order", "4", "-o", out}, tc.args...)
 		code, _, errs := runCmd(args...)
@@ -200,5 +204,24 @@ func TestFitScaleFromErrors(t *testing.T) {
 	}
 	if _, err := os.Stat(out); !os.IsNotExist(err) {
 		t.Errorf("a refused fit wrote %s", out)
+	}
+}
+
+// A group name calibrates through any member (they share one coefficient).
+func TestResolveScaleGroup(t *testing.T) {
+	c, err := parseScaleFrom("J=0.5+-0.01")
+	if err != nil {
+		t.Fatal(err)
+	}
+	terms := []lattice.Term{{Pauli: "X", Sites: []int{0}, Group: "h"}, {Pauli: "ZZ", Sites: []int{0, 1}, Group: "J"}, {Pauli: "ZZ", Sites: []int{1, 2}, Group: "J"}}
+	got, err := resolveScaleGroup(c, terms, "J=0.5+-0.01")
+	if err != nil || got.Term != "ZZ 0 1" || got.Value != 0.5 || got.ValueStderr != 0.01 {
+		t.Errorf("resolved %+v, %v; want ZZ 0 1 = 0.5 +- 0.01", got, err)
+	}
+	for spec, want := range map[string]string{"ZZ:0:1=0.25": "ZZ 0 1", "zz 1 0=0.25": "ZZ 0 1", "XZ:1,0=0.25": "ZX 0 1", "Z 3=1±0.1": "Z 3"} {
+		c, err := parseScaleFrom(spec)
+		if err != nil || c.Term != want {
+			t.Errorf("%q: term %q (%v), want %q", spec, c.Term, err, want)
+		}
 	}
 }

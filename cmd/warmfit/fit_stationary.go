@@ -45,7 +45,11 @@ expectations (exact for up to 12 qubits, the expansion at --order otherwise). Th
 report lists the lowest eigenvalues of the constraint system and every direction
 the data do not resolve; at infinite temperature it says there is no information.
 auto runs the expansion fit and keeps it when it converged with every series
-trusted; otherwise it uses stationary, and says which it used.`
+trusted; otherwise it uses stationary, and says which it used. For example:
+
+  warmfit sample --model device.json --shots 50000 --bases covering:3 -o shots.csv
+  warmfit fit --model device.json --data shots.csv --method stationary -o fitted.json
+  warmfit fit --model template.json --data shots.csv --method stationary --calibrate ZZ:0:1=0.2`
 
 // addFitMethodFlags registers the method flags on the fit command.
 func addFitMethodFlags(fs *pflag.FlagSet) {
@@ -150,6 +154,9 @@ func runFitStationary(env *runEnv, tmpl *model.Model, beta float64) error {
 	d, err := stationary.Solve(sys, est, stationary.Options{})
 	if d != nil {
 		for _, line := range strings.Split(strings.TrimSpace(d.Summary()), "\n") {
+			if strings.HasPrefix(line, "WARNING") {
+				continue // recorded and printed with the other warnings
+			}
 			fmt.Fprintln(env.Stderr, "fit: "+line)
 		}
 	}
@@ -157,6 +164,9 @@ func runFitStationary(env *runEnv, tmpl *model.Model, beta float64) error {
 		return fmt.Errorf("%s: %w", o.data, err)
 	}
 	var warnings []string
+	if d.Misfit {
+		warnings = append(warnings, fmt.Sprintf("constraint chi2 %s far above its degrees of freedom: the data fit no stationary state of these terms well (a term missing from the template, systematic errors, or a non-stationary state)", fmtG3(d.Chi2)))
+	}
 	if d.Dropped > 0 {
 		warnings = append(warnings, fmt.Sprintf("%d of %d constraints left out: their correlators have no data (measure in the bases of --bases covering:3)", d.Dropped, d.Dropped+d.Rows))
 	}
@@ -232,18 +242,22 @@ func runFitStationary(env *runEnv, tmpl *model.Model, beta float64) error {
 	}
 	m := &model.Model{Lattice: tmpl.Lattice, Beta: outBeta, Terms: terms, Units: tmpl.Units, Fit: raw}
 	if o.format == "csv" {
-		return writeOutput(env, o.out, func(w io.Writer) error { return stationaryWriteCSV(w, terms, rep) })
+		meta := &csvMeta{Command: "fit --method stationary", Contents: "one row per template term: its coefficient from the stationarity constraints"}
+		meta.line("warmfit fit --method stationary: scale fixed by %s", rep.Fixed)
+		for _, warn := range rep.Warnings {
+			meta.line("WARNING: %s", warn)
+		}
+		meta.set("template", o.model)
+		meta.set("data", o.data)
+		meta.set("fit", json.RawMessage(raw))
+		return writeCSVResult(env, o.out, o.csv, meta, func(w io.Writer) error { return stationaryWriteCSV(w, terms) })
 	}
 	return writeOutput(env, o.out, func(w io.Writer) error { return model.Write(w, m) })
 }
 
-// stationaryWriteCSV writes pauli,sites,coeff,stderr with the report's
-// headline and warnings as comment lines.
-func stationaryWriteCSV(w io.Writer, terms []lattice.Term, rep stationaryReport) error {
-	fmt.Fprintf(w, "# warmfit fit --method stationary: scale fixed by %s\n", rep.Fixed)
-	for _, warn := range rep.Warnings {
-		fmt.Fprintf(w, "# WARNING: %s\n", warn)
-	}
+// stationaryWriteCSV writes pauli,sites,coeff,stderr (the report's
+// headline and warnings go to the metadata).
+func stationaryWriteCSV(w io.Writer, terms []lattice.Term) error {
 	fmt.Fprintln(w, "pauli,sites,coeff,stderr")
 	for _, t := range terms {
 		se := ""
@@ -301,8 +315,8 @@ func stationaryEvaluator(tmpl *model.Model) (stationary.Evaluator, string, error
 		}, "exact diagonalisation of the whole system", nil
 	}
 	order := 5
-	if v, err := strconv.Atoi(fitOptions.order); err == nil {
-		order = v
+	if fitOptions.order.L > 0 {
+		order = fitOptions.order.L
 	}
 	exp, err := cluster.NewExpansion(tmpl.Lattice, terms)
 	if err != nil {

@@ -55,7 +55,7 @@ func TestFitMethodStationary(t *testing.T) {
 	}
 	// A calibrated coupling instead of the known beta.
 	tmpl := filepath.Join(dir, "template.json")
-	if code, _, stderr := runCmd("model", "--lattice", "chain:6", "--preset", "tfim", "-o", tmpl); code != 0 {
+	if code, _, stderr := runCmd("model", "--lattice", "chain:6", "--preset", "tfim", "--set", "J=1,hx=1,hz=1", "-o", tmpl); code != 0 {
 		t.Fatal(stderr)
 	}
 	code, _, stderr = runCmd("fit", "--model", tmpl, "--data", shots, "--method", "stationary", "--calibrate", "ZZ:0:1=1", "-o", out)

@@ -225,3 +225,19 @@ func TestHelpFormats(t *testing.T) {
 		t.Errorf("help formats nosuch: exit %d, stderr %q (want 2 and the list of sections)", code, stderr)
 	}
 }
+
+// TestFormatsDocumentHasEveryCommand: the commands section of formats.md
+// says what each registered command writes.
+func TestFormatsDocumentHasEveryCommand(t *testing.T) {
+	var section string
+	for _, s := range formatsSections() {
+		if s.Key == "commands" {
+			section = s.Text
+		}
+	}
+	for name := range commands {
+		if !strings.Contains(section, "\n- `"+name+"`") {
+			t.Errorf("formats.md, section commands, has no entry \"- `%s`\"", name)
+		}
+	}
+}

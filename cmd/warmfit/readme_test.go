@@ -153,6 +153,12 @@ func TestReadmeNumbersAgreeWithCode(t *testing.T) {
 	} else if v, _ := strconv.ParseFloat(m[1], 64); v != tol {
 		t.Errorf("README.md says the default tolerance is %s; predict --tol defaults to %v", m[1], tol)
 	}
+	// The crosscheck row quotes its --dense-qubits default and size limit.
+	cfs := pflag.NewFlagSet("crosscheck", pflag.ContinueOnError)
+	commands["crosscheck"].Flags(cfs)
+	if want := fmt.Sprintf("dense to %s qubits, typicality to %d", cfs.Lookup("dense-qubits").DefValue, maxCrosscheckQubits); !strings.Contains(readme, want) {
+		t.Errorf("README.md does not say %q (crosscheck's defaults)", want)
+	}
 	// Any other "N qubits" in the README must be one of the code's limits.
 	limits := map[string]bool{}
 	for _, n := range []int{denseExactQubits, cluster.MaxDenseQubits, validate.MaxTypicalityQubits, maxCrosscheckQubits} {
@@ -206,5 +212,24 @@ func TestNewtonIterationsOneWording(t *testing.T) {
 	want := "after " + newtonIterations(r.AllIterations, r.Iterations, r.Order) + ","
 	if !strings.Contains(errs, want) {
 		t.Errorf("stderr does not say %q (the report's counts):\n%s", want, errs)
+	}
+}
+
+// TestReadmeCommandTableListsEveryCommand: the README's command table has
+// a row for every registered command, and no row for one that is gone.
+func TestReadmeCommandTableListsEveryCommand(t *testing.T) {
+	rows := map[string]bool{}
+	for _, m := range regexp.MustCompile(`(?m)^\| ([a-z]+) +\|`).FindAllStringSubmatch(readmeText(t), -1) {
+		rows[m[1]] = true
+	}
+	for name := range commands {
+		if !rows[name] {
+			t.Errorf("README.md's command table has no row for %q", name)
+		}
+	}
+	for name := range rows {
+		if _, ok := commands[name]; !ok && name != "command" && name != "job" {
+			t.Errorf("README.md's command table lists %q, which is not a command", name)
+		}
 	}
 }

@@ -75,6 +75,11 @@ type Direction struct {
 	// string had no data).
 	Chi2          float64
 	Rows, Dropped int
+	// Misfit is set when Chi2 is more than five standard deviations above
+	// its degrees of freedom (Rows - parameters + 1): the data fit no
+	// stationary state of these terms well (terms missing from the
+	// template, systematic errors, a state that is not stationary).
+	Misfit bool
 	// Method is "dense" or "lanczos"; Iterations counts reweightings.
 	Method     string
 	Iterations int
@@ -145,7 +150,7 @@ func Solve(sys *System, est *fit.Estimates, opt Options) (*Direction, error) {
 	}
 	theta := continueDirection(low, nil, opt)
 	d.Iterations = 1
-	ws.corr = residualCorrection
+	ws.corr = solveCorrection
 	for it := 1; it < opt.MaxIterations; it++ {
 		ws.reweight(theta)
 		low, err = eig(ws, low.vectors)
@@ -174,6 +179,9 @@ func Solve(sys *System, est *fit.Estimates, opt Options) (*Direction, error) {
 	}
 	ws.reweight(theta)
 	d.Chi2 = ws.chi2()
+	if dof := float64(max(d.Rows-np+1, 1)); d.Chi2 > dof+5*math.Sqrt(2*dof) {
+		d.Misfit = true
+	}
 	d.Theta, d.low, d.Method = theta, low, low.method
 	d.Spectrum = low.values
 	nlow, err := eig(ws.noiseOnly(theta), nil)
@@ -207,6 +215,14 @@ func Solve(sys *System, est *fit.Estimates, opt Options) (*Direction, error) {
 	}
 	orthonormalise(vs)
 	nameInvisible(sys, d)
+	if floor := -max(10, 0.1*float64(d.Rows)); d.Spectrum[0] < floor {
+		return d, fmt.Errorf("%w: the reweighting did not settle (lowest eigenvalue %.4g, below %.3g: at a settled direction it is near zero); the noise correction dominates the signal, or the data are not consistent with any stationary state of these terms",
+			ErrNoInformation, d.Spectrum[0], floor)
+	}
+	if off, total := switchedOff(sys, theta); off > 0 {
+		return d, fmt.Errorf("%w: the direction all but vanishes on %d of %d sites (below 2%% of the median site weight): with this little signal the noise-weighted objective prefers switching regions off to fitting them; more shots or a lower temperature are needed",
+			ErrNoInformation, off, total)
+	}
 	if chi2, dof := signalChi2(ws, est); chi2 < float64(dof)+5*math.Sqrt(2*float64(dof)) {
 		return d, fmt.Errorf("%w: the correlators the constraints use are consistent with zero (chi2 %.4g for %d values), as at infinite temperature; more shots or a lower temperature are needed",
 			ErrNoInformation, chi2, dof)
@@ -216,6 +232,36 @@ func Solve(sys *System, est *fit.Estimates, opt Options) (*Direction, error) {
 			ErrNoInformation, len(low.values), d.StdErr[1])
 	}
 	return d, nil
+}
+
+// switchedOff counts the sites whose weight sum of theta_p² over the
+// parameters of their terms is below 2% of the median site weight (and
+// returns the number of sites with terms). A true Hamiltonian rarely
+// vanishes on a region; the weighted objective does, when the signal is
+// too weak, because rows where theta vanishes cost nothing.
+func switchedOff(sys *System, theta []float64) (off, total int) {
+	weight := map[int]float64{}
+	for k, t := range sys.terms {
+		x := theta[sys.params.Of[k]]
+		for _, s := range t.Sites {
+			weight[s] += x * x
+		}
+	}
+	vals := make([]float64, 0, len(weight))
+	for _, w := range weight {
+		vals = append(vals, w)
+	}
+	sort.Float64s(vals)
+	if len(vals) == 0 {
+		return 0, 0
+	}
+	median := vals[len(vals)/2]
+	for _, w := range vals {
+		if w < 0.02*median {
+			off++
+		}
+	}
+	return off, len(vals)
 }
 
 // signalChi2 returns sum_j m_j²/Var(m_j) over the strings the used rows
@@ -349,6 +395,10 @@ func (d *Direction) Summary() string {
 		nvals[j] = fmt.Sprintf("%.4g", v)
 	}
 	fmt.Fprintf(&b, "the same for noise alone: %s\n", strings.Join(nvals, " "))
+	if d.Misfit {
+		fmt.Fprintf(&b, "WARNING: constraint chi2 %.4g far above its %d degrees of freedom: the data fit no stationary state of these terms well (a term missing from the template, systematic errors, or a non-stationary state)\n",
+			d.Chi2, max(d.Rows-len(d.Theta)+1, 1))
+	}
 	if len(d.Invisible) == 0 {
 		fmt.Fprintf(&b, "every other direction is resolved (largest standard error %.3g)\n", maxFinite(d.StdErr))
 	}

@@ -3,6 +3,7 @@ package stationary
 import (
 	"fmt"
 	"math"
+	"os"
 
 	"gonum.org/v1/gonum/floats"
 
@@ -54,8 +55,15 @@ func (ws *weighted) biasOf(a int) float64 {
 	case expectedCorrection:
 		return ws.w[a]
 	}
-	return ws.w[a] * ws.w[a] * ws.r[a] * ws.r[a]
+	// w² r² = w (r²/Var): capped at residualCap so that rows the
+	// model does not fit (systematic errors, r² far above its noise) do
+	// not turn the correction into a runaway.
+	return ws.w[a] * min(ws.w[a]*ws.r[a]*ws.r[a], residualCap)
 }
+
+// residualCap bounds r²/Var(r) in the noise correction (a 2-sigma
+// residual; common practice for robust weights, from memory).
+const residualCap = 4
 
 // newWeighted fills sys with estimates, leaving out rows that use a
 // missing string.
@@ -254,3 +262,14 @@ func (ws *weighted) penaltyWeight() float64 {
 	}
 	return penaltyScale * max(floats.Max(diag), 1)
 }
+
+// solveCorrection is the noise correction Solve iterates with.
+var solveCorrection = func() correction {
+	switch os.Getenv("WARMFIT_STATIONARY_CORRECTION") {
+	case "expected":
+		return expectedCorrection
+	case "none":
+		return noCorrection
+	}
+	return residualCorrection
+}()
