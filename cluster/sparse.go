@@ -42,5 +42,16 @@ func (s *SparseSym) Diag() []float64 {
 	return d
 }
 
+// Dim returns the number of rows (and columns).
+func (s *SparseSym) Dim() int { return s.N }
+
+// DoRow calls fn for every stored element of row i, in increasing column
+// order.
+func (s *SparseSym) DoRow(i int, fn func(j int, v float64)) {
+	for p := s.RowPtr[i]; p < s.RowPtr[i+1]; p++ {
+		fn(int(s.Col[p]), s.Val[p])
+	}
+}
+
 // NNZ returns the number of stored elements.
 func (s *SparseSym) NNZ() int { return len(s.Val) }

@@ -1,6 +1,9 @@
 package fit
 
-import "fmt"
+import (
+	"fmt"
+	"slices"
+)
 
 // Curvature chooses the response that Newton steps and error bars use
 // (see "Curvature at a lower order" in newton.go).
@@ -62,4 +65,24 @@ func (f *fitter) curvatureOrder(L int) int {
 func (f *fitter) cheapResponse(L int) bool {
 	_, work := f.exp.EstimateWork(L)
 	return work <= exactResponseWork
+}
+
+// errorBarCurvature makes the Hessian of an order's outcome the response
+// at its solution: a response reused from an earlier iterate is evaluated
+// again there, at its own order (the expectations of that order come
+// along at little cost).
+func (f *fitter) errorBarCurvature(of *orderFit) error {
+	out := of.out
+	if !out.converged || out.hessian == nil || slices.Equal(out.curvatureTheta, out.state.theta) {
+		return nil
+	}
+	c := out.responseOrder
+	ev, err := f.evaluator(c, c)(out.state.lambda, true)
+	f.evaluations++
+	if err != nil {
+		return fmt.Errorf("order %d: the response at the solution: %v", c, err)
+	}
+	out.hessian = f.params.project(ev.response, -1)
+	out.curvatureTheta = out.state.theta
+	return nil
 }

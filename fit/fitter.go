@@ -245,7 +245,7 @@ func newFitter(p *Problem, opt Options) (*fitter, error) {
 		if p.Data.Cov.Dim() != K {
 			return nil, fmt.Errorf("data covariance of dimension %d for %d terms", p.Data.Cov.Dim(), K)
 		}
-		f.cov = covMatrix{p.Data.Cov}
+		f.cov = p.Data.Cov
 	}
 	b := f.params.project(f.cov, 1)
 	f.sigma = make([]float64, f.params.NumParams())
@@ -342,7 +342,7 @@ func (f *fitter) evaluator(L, respOrder int) evaluator {
 			if res.Response == nil {
 				return nil, errors.New("expansion returned no response")
 			}
-			ev.response = responseMatrix{res.Response}
+			ev.response = res.Response
 		}
 		return ev, nil
 	}
@@ -367,6 +367,7 @@ func (f *fitter) newtonProblem(L int, deadline time.Time) *newtonProblem {
 	}
 	if c < L {
 		np.exactEval = f.evaluator(L, L)
+		np.reuse = f.measured == nil
 	}
 	return np
 }
@@ -389,7 +390,8 @@ func (f *fitter) fitOrderUntil(L int, theta0 []float64, deadline time.Time, from
 	}
 	t0 := time.Now()
 	np := f.newtonProblem(L, deadline)
-	if fromOtherOrder {
+	if fromOtherOrder && f.measured == nil {
+		// (Moment matching stops as soon as the residual is small.)
 		np.minIter = 1
 	}
 	if f.opt.Log != nil {
@@ -421,14 +423,24 @@ func (f *fitter) exactOrder(L int) bool { return L >= f.sites }
 // fixedOrder fits at order L. Unless SkipTruncation, the orders L-2 and
 // L-1 are fitted first, each from the solution below it: they measure the
 // truncation error, and each hands the next a start whose gradient is
-// small enough for the lower-order curvature to finish in a few steps.
+// small enough for the lower-order curvature to finish in a few steps
+// (with SkipTruncation, only L-1 and only for that).
 // Only an unbroken run of converged orders ending at L enters the
 // truncation estimate.
 func (f *fitter) fixedOrder(L int, theta0 []float64) (*Result, error) {
 	var lower []*orderFit
 	theta := theta0
-	if !f.exactOrder(L) && !f.opt.SkipTruncation {
-		for low := max(f.minL, L-2); low < L; low++ {
+	first := max(f.minL, L-2)
+	if f.opt.SkipTruncation {
+		// No truncation estimate, but a start for the lower-order
+		// curvature: the order-(L-1) solution, at a tenth of the cost.
+		first = L
+		if f.curvatureOrder(L) < L {
+			first = L - 1
+		}
+	}
+	if !f.exactOrder(L) {
+		for low := first; low < L; low++ {
 			lf, err := f.fitOrderUntil(low, theta, time.Time{}, len(lower) > 0)
 			if err != nil {
 				return nil, err
@@ -446,7 +458,7 @@ func (f *fitter) fixedOrder(L int, theta0 []float64) (*Result, error) {
 		return nil, err
 	}
 	history := []*orderFit{main}
-	if main.out.converged {
+	if main.out.converged && !f.opt.SkipTruncation {
 		history = append(lower, main)
 	}
 	return f.finish(main, history, nil)

@@ -136,7 +136,7 @@ func (f *fitter) finish(main *orderFit, history []*orderFit, notes []string) (*R
 	// Error bars, only at a solution: the delta method linearises there.
 	if r.Converged && !f.exact {
 		t0 := time.Now()
-		se, method, err := f.paramStderr(out)
+		se, method, err := f.paramStderrAt(main)
 		usedCov := f.cov
 		if errors.Is(err, errCovarianceNotPSD) {
 			if _, diagonal := f.cov.(diagMatrix); !diagonal {
@@ -154,7 +154,7 @@ func (f *fitter) finish(main *orderFit, history []*orderFit, notes []string) (*R
 			r.ThetaStderr, r.ErrorMethod, r.ResponseOrder = se, method, out.responseOrder
 			r.covColumn = f.covColumn(out, usedCov)
 			if out.responseOrder < main.order {
-				r.Notes = append(r.Notes, fmt.Sprintf("error bars use the response at order %d, not %d (its evaluation costs several forward passes at this size; the difference is the truncation of the response series, typically well below 1%% where the expansion converges)", out.responseOrder, main.order))
+				r.Notes = append(r.Notes, fmt.Sprintf("error bars use the response at order %d, not %d (its evaluation costs several forward passes at this size; the difference is the truncation of the response series, under 1%% in the tests where the expansion converges, 1.4%% for tied parameters)", out.responseOrder, main.order))
 			}
 		}
 	} else if r.Converged && f.exact {

@@ -121,11 +121,12 @@ func (m *csr) diag() []float64 {
 	return d
 }
 
-// termMatrix is the read interface of a symmetric term-space matrix
-// (the expansion's response, or a data covariance).
+// termMatrix is the read interface of a symmetric term-space matrix:
+// the expansion's response (*cluster.SparseSym), a data covariance
+// (*SparseSym), or a diagonal one (diagMatrix).
 type termMatrix interface {
-	dim() int
-	doRow(i int, fn func(j int, v float64))
+	Dim() int
+	DoRow(i int, fn func(j int, v float64))
 }
 
 // Project returns s A^T M A in parameter space for a symmetric term-space
@@ -141,7 +142,7 @@ func (p *Params) project(m termMatrix, s float64) *csr {
 	for q, members := range p.Members {
 		cols = cols[:0]
 		for _, k := range members {
-			m.doRow(k, func(j int, v float64) {
+			m.DoRow(k, func(j int, v float64) {
 				c := p.Of[j]
 				if !seen[c] {
 					seen[c] = true

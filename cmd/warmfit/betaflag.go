@@ -44,17 +44,16 @@ func (b *betaFlag) Set(s string) error {
 
 func (b *betaFlag) Type() string { return "B" }
 
+func (b *betaFlag) reset() { *b = betaFlag{} }
+
 // addBetaFlag registers --beta with the given usage (default: it
-// overrides the model file's beta). It clears b first: the command runner
-// registers flags afresh for every run, and a value left from an earlier
-// run in the same process must not leak into the next.
+// overrides the model file's beta), fresh (see addFreshVar).
 func addBetaFlag(fs *pflag.FlagSet, b *betaFlag, usage ...string) {
-	*b = betaFlag{}
 	u := "inverse temperature (overrides the model's beta)"
 	if len(usage) > 0 {
 		u = usage[0]
 	}
-	fs.Var(b, "beta", u)
+	addFreshVar(fs, b, "beta", u)
 }
 
 // betaOmittedFits is what omitting --beta means to fit.

@@ -60,7 +60,7 @@ func init() {
 			fs.StringVar(&o.engine, "engine", "expansion", "forward model: expansion (linked-cluster expansion of the infinite lattice) or clusters (exact diagonalisation of 12-site periodic clusters; faster, trusted only higher)")
 			fs.IntVar(&o.order, "order", 0, "expansion order, the largest cluster (default 10 for the chain, 8 otherwise)")
 			fs.Float64Var(&o.sizeTol, "finite-size-tol", bulk.DefaultFiniteSizeTolerance, "relative agreement of the two periodic clusters that marks a curve trusted")
-			fs.StringVarP(&o.out, "output", "o", "", "write the fit (JSON) to `FILE` instead of stdout")
+			addOutputFlag(fs, &o.out, "the fit (JSON)")
 			fs.StringVar(&o.curves, "curves", "", "write data against model curves (CSV) to `FILE`")
 			fs.StringVar(&o.figures, "figures", "", "write one SVG figure per quantity into `DIR`")
 			fs.StringVar(&o.demo, "demo", "", "write the invented demo compound's curves into `DIR` and fit them (results go there too)")
@@ -128,7 +128,7 @@ func runBulk(env *runEnv, args []string) error {
 	if len(args) == 0 {
 		return usagef("no input files (or --demo DIR)")
 	}
-	if err := checkOutputs([]outputFile{{"-o", o.out}, {"--curves", o.curves}}, args...); err != nil {
+	if err := checkOutputs(withCSV("--curves", o.curves, o.csv, outputFile{"-o", o.out}), args...); err != nil {
 		return err
 	}
 	job, err := newBulkJob(args)

@@ -27,6 +27,7 @@ type crosscheckFlags struct {
 	dense      int
 	vectors    int
 	seed       uint64
+	workers    int
 	format     string
 	out        string
 	svg        string
@@ -58,7 +59,8 @@ The output has one row per order: how many values were compared, the largest and
 root-mean-square |expansion - exact|, the largest statistical error of the references,
 whether the order covers whole patches (the expansion is then exact by construction and
 says nothing about convergence), whether every value agrees within --tol, and how often
-the expansion's own truncation estimate bounded the true difference. Its metadata
+the expansion's own truncation estimate bounded the true difference (and the median of
+estimate / true difference: how tight it is). Its metadata
 (sidecar, see below) gives the lowest order from which the expansion agrees and a verdict on
 the model's temperature; a WARNING (also on stderr) says when the expansion cannot be
 trusted there or the patches are too small to show it. --format json adds every value
@@ -75,7 +77,7 @@ warmfit crosscheck --model device.json --sites 14-16,20-22,26-28 --tol 1e-4 --fo
 warmfit crosscheck --model device.json --shape 4x4 --max-patches 2 --beta 0.6`,
 		Flags: func(fs *pflag.FlagSet) {
 			o = crosscheckFlags{flags: fs}
-			fs.StringVar(&o.modelPath, "model", "", "model file (JSON)")
+			addModelFlag(fs, &o.modelPath, "")
 			addBetaFlag(fs, &o.beta)
 			fs.StringVar(&o.shape, "shape", "", "check every patch of `WxH` unit cells (one size per lattice axis)")
 			fs.StringArrayVar(&o.sites, "sites", nil, "check the patch on these `SITES` (like 0,1,2,6-8); repeat for more patches")
@@ -85,8 +87,9 @@ warmfit crosscheck --model device.json --shape 4x4 --max-patches 2 --beta 0.6`,
 			fs.IntVar(&o.dense, "dense-qubits", 11, "largest patch diagonalised densely; larger ones use thermal typicality")
 			fs.IntVar(&o.vectors, "vectors", 0, "random vectors for thermal typicality (default 16)")
 			fs.Uint64Var(&o.seed, "seed", 1, "seed of the random vectors")
+			addWorkersFlag(fs, &o.workers)
 			fs.StringVar(&o.format, "format", "csv", "csv (the per-order table) or json (with every value)")
-			fs.StringVarP(&o.out, "output", "o", "", "write the result to `FILE` instead of stdout")
+			addOutputFlag(fs, &o.out, "the result")
 			fs.StringVar(&o.svg, "svg", "", "draw the difference against the order into `FILE` (SVG)")
 			addCSVFlags(fs, &o.csv)
 		},
@@ -128,6 +131,12 @@ func runCrosscheck(env *runEnv, o *crosscheckFlags, args []string) error {
 	if o.shape != "" && len(o.sites) > 0 {
 		return usagef("give --shape or --sites, not both")
 	}
+	if err := checkWorkersFlag(o.workers); err != nil {
+		return err
+	}
+	if err := checkOutputs(withCSV("-o", o.out, o.csv, outputFile{"--svg", o.svg}), o.modelPath); err != nil {
+		return err
+	}
 	m, beta, err := loadModelBeta(o.modelPath, o.beta)
 	if err != nil {
 		return err
@@ -142,7 +151,7 @@ func runCrosscheck(env *runEnv, o *crosscheckFlags, args []string) error {
 		}
 	}
 	opt := validate.CrosscheckOptions{
-		Tol: o.tol, MaxOrder: o.order, DenseQubits: o.dense,
+		Tol: o.tol, MaxOrder: o.order, DenseQubits: o.dense, Workers: o.workers,
 		Typicality: validate.TypicalityOptions{Vectors: o.vectors, Seed: o.seed},
 	}
 	fmt.Fprintf(env.Stderr, "crosscheck: %s of %s at beta = %s, tolerance %s\n", how, o.modelPath, fmtFloat(beta), fmtG3(o.tol))

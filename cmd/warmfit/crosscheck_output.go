@@ -17,7 +17,7 @@ import (
 // included, so that a file read later says what stderr said.
 
 // crosscheckCSVHeader names the columns of the per-order table.
-const crosscheckCSVHeader = "order,values,max_diff,rms_diff,max_stderr,whole_patch,agrees,judged,bounded"
+const crosscheckCSVHeader = "order,values,max_diff,rms_diff,max_stderr,whole_patch,agrees,judged,bounded,median_estimate_ratio"
 
 // crosscheckCSVMeta is the metadata of the per-order table: the setting,
 // the lowest agreeing order and the verdict, warnings included.
@@ -47,8 +47,8 @@ func writeCrosscheckCSV(w io.Writer, r *validate.CrosscheckResult) error {
 	bw := bufio.NewWriter(w)
 	fmt.Fprintln(bw, crosscheckCSVHeader)
 	for _, oc := range r.Orders {
-		fmt.Fprintf(bw, "%d,%d,%s,%s,%s,%v,%v,%d,%d\n", oc.Order, oc.Values,
-			csvFloat(oc.MaxDiff), csvFloat(oc.RMSDiff), csvFloat(oc.Noise), oc.Exact, oc.Agrees, oc.Judged, oc.Covered)
+		fmt.Fprintf(bw, "%d,%d,%s,%s,%s,%v,%v,%d,%d,%s\n", oc.Order, oc.Values,
+			csvFloat(oc.MaxDiff), csvFloat(oc.RMSDiff), csvFloat(oc.Noise), oc.Exact, oc.Agrees, oc.Judged, oc.Covered, csvFloat(oc.MedianRatio))
 	}
 	return bw.Flush()
 }
@@ -100,6 +100,9 @@ type crosscheckOrderJSON struct {
 	Agrees     bool    `json:"agrees"`
 	Judged     int     `json:"judged"`
 	Bounded    int     `json:"bounded"`
+	// MedianRatio is the median of the truncation estimate over the true
+	// difference (0: none judged).
+	MedianRatio float64 `json:"median_estimate_ratio"`
 	// WorstPatch and WorstTerm locate the largest difference.
 	WorstPatch int    `json:"worst_patch"`
 	WorstTerm  string `json:"worst_term"`
@@ -132,7 +135,7 @@ func writeCrosscheckJSON(w io.Writer, m *model.Model, r *validate.CrosscheckResu
 	}
 	for _, oc := range r.Orders {
 		oj := crosscheckOrderJSON{Order: oc.Order, Values: oc.Values, MaxDiff: oc.MaxDiff, RMSDiff: oc.RMSDiff,
-			MaxStderr: oc.Noise, WholePatch: oc.Exact, Agrees: oc.Agrees, Judged: oc.Judged, Bounded: oc.Covered, WorstPatch: oc.WorstPatch}
+			MaxStderr: oc.Noise, WholePatch: oc.Exact, Agrees: oc.Agrees, Judged: oc.Judged, Bounded: oc.Covered, MedianRatio: oc.MedianRatio, WorstPatch: oc.WorstPatch}
 		if oc.WorstPatch >= 0 {
 			p := &r.Patches[oc.WorstPatch]
 			oj.WorstTerm = m.Terms[p.Patch.Parent[oc.WorstTerm]].Key()

@@ -173,8 +173,17 @@ func (d *demoRun) stepPlan() error {
 	sc, f := &d.sc, d.array
 	bar := newProgressBar(d.env, "planning")
 	defer bar.Done()
+	// One response serves every target: shots scale as 1/target^2.
+	var first *fit.Plan
 	for i, eps := range sc.PlanTargets {
-		p, err := fit.PlanShots(f.Model.Lattice, f.Model.Terms, sc.Beta, fit.PlanOptions{Target: eps, Norm: fit.NormLinf, Bases: d.bases, Order: f.Result.Order})
+		var p *fit.Plan
+		var err error
+		if first == nil {
+			p, err = fit.PlanShots(f.Model.Lattice, f.Model.Terms, sc.Beta, fit.PlanOptions{Target: eps, Norm: fit.NormLinf, Bases: d.bases, Order: f.Result.Order})
+			first = p
+		} else {
+			p, err = first.Retarget(eps)
+		}
 		if err != nil {
 			return err
 		}

@@ -25,7 +25,8 @@ var fitOptions struct {
 	model    string
 	data     string
 	beta     betaFlag
-	order    string
+	order    orderFlag
+	oldTol   float64 // the retired --tol, answered with a pointer
 	budget   time.Duration
 	truth    string
 	format   string
@@ -51,23 +52,25 @@ func init() {
 		Example: fitExample,
 		Flags: func(fs *pflag.FlagSet) {
 			o := &fitOptions
-			fs.StringVar(&o.model, "model", "", "template model `FILE`: lattice, terms, groups (coefficients are ignored unless --start template)")
+			addModelFlag(fs, &o.model, "template model `FILE`: lattice, terms, groups (coefficients are ignored unless --start template)")
 			fs.StringVar(&o.data, "data", "", "expectation table or snapshot `FILE` (told apart by the header)")
 			addBetaFlag(fs, &o.beta, "inverse temperature (overrides the template's; without either, beta*lambda is fitted)")
 			o.beta.omitted = betaOmittedFits
-			fs.StringVar(&o.order, "order", "auto", "expansion order L (largest cluster), or auto")
+			addOrderFlag(fs, &o.order, "expansion order (largest cluster), or auto")
 			fs.IntVar(&o.maxOrder, "max-order", 0, "highest order --order auto may use (default: sites, at most 12)")
-			fs.DurationVar(&o.budget, "budget", 60*time.Second, "wall time --order auto may spend (a higher order is not started, or is abandoned, past it)")
+			addBudgetFlag(fs, &o.budget)
 			fs.StringVar(&o.truth, "truth", "", "true model `FILE`: report z-scores and L2/Linf errors against it")
 			fs.StringVar(&o.scale, "scale-from", "", "without beta: fix the energy scale from `TERM=VALUE` (a calibrated coefficient, e.g. \"ZZ 0 1=0.25\") or beta=B; VALUE may be V+-ERR")
 			fs.StringVar(&o.format, "format", "json", "output format: json (fitted model with report) or csv")
-			fs.StringVarP(&o.out, "output", "o", "", "write the fit to `FILE` instead of stdout")
-			fs.Float64Var(&o.tol, "tol", 1e-3, "stop when every gradient component is below tol x its data noise")
+			addOutputFlag(fs, &o.out, "the fit")
+			fs.Float64Var(&o.tol, "gradient-tol", 1e-3, "stop when every gradient component is below this times its data noise")
+			fs.Float64Var(&o.oldTol, "tol", 0, "replaced by --gradient-tol")
+			_ = fs.MarkHidden("tol")
 			fs.IntVar(&o.maxIter, "max-iter", 50, "Newton iterations per order")
 			fs.StringVar(&o.start, "start", "first-order", "starting point: first-order (lambda = -e/beta) or template")
 			fs.Float64Var(&o.fdr, "fdr", 0.05, "false-discovery rate of the significance flags (Benjamini-Hochberg)")
 			fs.IntVar(&o.covDist, "cov-distance", 1, "snapshots: keep covariances of terms within this graph distance")
-			fs.IntVar(&o.workers, "workers", 0, "parallel workers (default: all cores)")
+			addWorkersFlag(fs, &o.workers)
 			fs.BoolVarP(&o.verbose, "verbose", "v", false, "log every Newton iteration")
 			addCSVFlags(fs, &o.csv)
 			addFitMethodFlags(fs)
@@ -80,7 +83,10 @@ const fitLong = `Fit finds the coefficients lambda of H = sum_k lambda_k E_k who
 exp(-beta H)/Z reproduces the measured expectation values e_k, by minimising the
 convex maximum-entropy dual G(lambda) = log Z(lambda) + beta sum_k lambda_k e_k with
 log Z from the numerical linked-cluster expansion. Newton steps are solved by
-conjugate gradients on the sparse Hessian and damped by a line search on G.
+conjugate gradients on the sparse Hessian and damped by a line search on G. On
+large lattices the steps take the exact gradient at order L with the Hessian of
+order L-1 (the order-L one costs about four forward passes); a step that stalls
+falls back on the exact Hessian.
 
 The template (--model) gives the lattice and the terms; terms sharing a "group" share
 one coefficient. The data (--data) are an expectation table (pauli,sites,value,stderr;
@@ -92,14 +98,16 @@ one equation per parameter, solved by damped Newton with a dense LU; error bars
 J^{-1} A_m^T Cov(e_m) A_m J^{-T}), and the report says how many. Other terms without
 data, and data terms missing from the template, are an error that lists them.
 
-Convergence: the fit stops when every component of the gradient is below --tol
+Convergence: the fit stops when every component of the gradient is below --gradient-tol
 times its data noise (for exact data, when the mean residual is below 1e-10). A fit
 that does not converge exits with status 1, says why, leaves -o untouched and
 writes its last iterate to OUT.unconverged.json.
 
 Error bars: delta method, Cov(theta) = M Cov(e) M^T with M = (A^T R A)^{-1} A^T,
-R = d<E>/d lambda at the solution; the lower orders L-1 and L-2 are refitted from
-the solution to measure the truncation error (the larger of the last two changes
+R = d<E>/d lambda at the solution, of order L or, on large lattices, L-1 (the
+report's "error_bars_response_order"; the two differ by about 1%). The lower
+orders L-2 and L-1 are fitted first, each from the solution below, and measure
+the truncation error (the larger of the last two changes
 of any coefficient: partial sums can stall for one order). With --order auto (the
 default), the order rises until that error is at most 0.1 x the median statistical
 error, or --budget runs out (the next order's cost is predicted before it is
@@ -152,22 +160,21 @@ func runFit(env *runEnv, args []string) error {
 			return err
 		}
 	}
-	order := 0
-	if o.order != "auto" {
-		n, err := strconv.Atoi(o.order)
-		if err != nil {
-			return usagef("--order %q: want auto or an integer from %d to %d", o.order, minExpansionOrder, cluster.MaxDenseQubits)
-		}
-		if err := checkOrder(o.order, n); err != nil {
-			return err
-		}
-		order = n
+	order := o.order.L
+	if o.oldTol != 0 {
+		return usagef("fit --tol was renamed --gradient-tol (a stopping rule on the gradient); elsewhere --tol is a truncation error: write --gradient-tol %v", o.oldTol)
 	}
-	if o.budget <= 0 {
-		return usagef("--budget %v: must be positive", o.budget)
+	if err := checkBudgetFlag(o.budget); err != nil {
+		return err
+	}
+	if err := checkWorkersFlag(o.workers); err != nil {
+		return err
+	}
+	if o.covDist < 0 {
+		return usagef("--cov-distance %d: want a graph distance >= 0 (0 keeps variances only)", o.covDist)
 	}
 	if !(o.tol > 0) || o.maxIter < 1 || !(o.fdr > 0 && o.fdr < 1) {
-		return usagef("--tol and --fdr must be in range (tol > 0, 0 < fdr < 1) and --max-iter at least 1")
+		return usagef("--gradient-tol and --fdr must be in range (tol > 0, 0 < fdr < 1) and --max-iter at least 1")
 	}
 	if o.start != "first-order" && o.start != "template" {
 		return usagef("--start %q: want first-order or template", o.start)
@@ -181,7 +188,7 @@ func runFit(env *runEnv, args []string) error {
 		calibration = &c
 	}
 
-	if err := checkOutputs([]outputFile{{"-o", o.out}}, o.model, o.data, o.truth); err != nil {
+	if err := checkOutputs(withCSV("-o", o.out, o.csv), o.model, o.data, o.truth); err != nil {
 		return err
 	}
 	tmpl, err := model.ReadFile(o.model)
@@ -217,17 +224,34 @@ func runFit(env *runEnv, args []string) error {
 	if done, err := fitMethodFirst(env, tmpl, beta); done {
 		return err
 	}
-	est, dataSummary, err := fit.LoadEstimates(o.data, tmpl.Lattice, tmpl.Terms, fit.CovarianceOptions{Distance: o.covDist})
-	if err != nil {
-		return err
-	}
-	kind := dataSummary.Kind
 	var truth *model.Model
 	if o.truth != "" {
 		if truth, err = model.ReadFile(o.truth); err != nil {
 			return err
 		}
+		if !truth.Lattice.SameGraph(tmpl.Lattice) {
+			return usagef("--truth %s is a model on %s (%d sites), but the template %s is on %s (%d sites): their terms cannot be compared; give the true model of this lattice",
+				o.truth, truth.Lattice.Spec, truth.Lattice.NumSites(), o.model, tmpl.Lattice.Spec, tmpl.Lattice.NumSites())
+		}
 	}
+	if exp, err := cluster.NewExpansion(tmpl.Lattice, tmpl.Terms); err == nil {
+		policy := cluster.NewOrderPolicy(tmpl.Lattice, tmpl.Terms)
+		if order > 0 {
+			e := expansionEstimate(exp, tmpl.Lattice.NumSites(), order, "--order")
+			e.What = "one evaluation of the " + e.What + " (a fit makes several)"
+			if err := admit(env.Stderr, "fit", e, o.budget); err != nil {
+				return err
+			}
+		} else if err := admitExpansion(env, "fit", exp, tmpl.Lattice.NumSites(), 0, policy, o.budget); err != nil {
+			return err
+		}
+	}
+
+	est, dataSummary, err := fit.LoadEstimates(o.data, tmpl.Lattice, tmpl.Terms, fit.CovarianceOptions{Distance: o.covDist})
+	if err != nil {
+		return err
+	}
+	kind := dataSummary.Kind
 
 	opt := fit.Options{
 		Order: order, MaxOrder: o.maxOrder, Budget: o.budget, Tol: o.tol, MaxIter: o.maxIter,

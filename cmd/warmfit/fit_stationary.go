@@ -318,8 +318,8 @@ func stationaryEvaluator(tmpl *model.Model) (stationary.Evaluator, string, error
 		}, "exact diagonalisation of the whole system", nil
 	}
 	order := 5
-	if v, err := strconv.Atoi(fitOptions.order); err == nil {
-		order = v
+	if fitOptions.order.L > 0 {
+		order = fitOptions.order.L
 	}
 	exp, err := cluster.NewExpansion(tmpl.Lattice, terms)
 	if err != nil {

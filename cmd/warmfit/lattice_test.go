@@ -61,7 +61,7 @@ func TestLatticeExitCodes(t *testing.T) {
 		{[]string{"--lattice", "square:4x4", "--bogus"}, exitUsage, "unknown flag"},
 		{[]string{"--lattice", "../../testdata/graphs/bad_bond_out_of_range.json"}, exitFailure, "bonds[3]: site 17 out of range [0,12)"},
 		{[]string{"--lattice", "no-such-file.json"}, exitFailure, "no-such-file.json"},
-		{[]string{"--lattice", "square:100x100", "--clusters", "12", "--max-clusters", "1000"}, exitFailure, "more than --max-clusters 1000"},
+		{[]string{"--lattice", "square:100x100", "--clusters", "12", "--max-clusters", "1000"}, exitUsage, "more than --max-clusters 1000"},
 	}
 	for _, tt := range tests {
 		code, _, errs := runLatticeCmd(tt.args...)

@@ -103,6 +103,7 @@ func run(env *runEnv, args []string) int {
 	}
 	var strict bool
 	addStrictFlag(fs, &strict)
+	checkFreshFlags(fs)
 	if err := fs.Parse(args[1:]); err != nil {
 		if errors.Is(err, pflag.ErrHelp) {
 			printCommandHelp(env.Stdout, c, fs)

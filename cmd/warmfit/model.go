@@ -41,18 +41,17 @@ func init() {
 		Example: modelExample,
 		Flags: func(fs *pflag.FlagSet) {
 			o := &modelOptions
-			o.shells = modelIntFlag{}
-			fs.StringVar(&o.lattice, "lattice", "", "lattice specification (square:4x4, chain:12:periodic, ...) or JSON file")
+			fs.StringVar(&o.lattice, "lattice", "", latticeFlagUsage)
 			fs.StringVar(&o.preset, "preset", "", "model family: "+strings.Join(model.PresetNames(), ", "))
 			fs.StringSliceVar(&o.set, "set", nil, "coefficients, NAME=VALUE[,NAME=VALUE...] (repeatable)")
 			fs.Float64Var(&o.disorder, "disorder", 0, "add an independent uniform shift in [-W, W) to every coefficient")
 			fs.Uint64Var(&o.seed, "seed", 1, "seed of the disorder")
 			addBetaFlag(fs, &o.beta, "inverse temperature to record in the model (> 0)")
 			o.beta.omitted = "leave --beta out to write a model without beta (commands then need --beta, and fit learns beta*lambda)"
-			fs.Var(&o.shells, "shells", "neighbour shells of the interaction graph, 1 or 2 (overrides the lattice)")
+			addFreshVar(fs, &o.shells, "shells", "neighbour shells of the interaction graph, 1 or 2 (overrides the lattice)")
 			fs.BoolVar(&o.tie, "tie", false, "give terms of one preset parameter a common group (uniform fit)")
 			fs.StringVar(&o.units, "units", "", "energy unit of the coefficients, recorded in the model")
-			fs.StringVarP(&o.out, "output", "o", "", "write the model to `FILE` instead of stdout")
+			addOutputFlag(fs, &o.out, "the model")
 			fs.StringVar(&o.check, "check", "", "validate the model `FILE` and summarise it")
 		},
 		Run: runModel,
@@ -372,3 +371,5 @@ func (f *modelIntFlag) Set(s string) error {
 }
 
 func (f *modelIntFlag) Type() string { return "int" }
+
+func (f *modelIntFlag) reset() { *f = modelIntFlag{} }

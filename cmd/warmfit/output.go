@@ -41,6 +41,20 @@ type outputFile struct {
 	flag, path string
 }
 
+// withCSV lists the outputs of a command whose CSV goes to out (given by
+// flag): out itself, its metadata file (--meta, or the default sidecar
+// OUT.meta.json), and the command's other outputs.
+func withCSV(flag, out string, f csvFlags, outputs ...outputFile) []outputFile {
+	all := append([]outputFile{{flag, out}}, outputs...)
+	if f.meta != "" {
+		return append(all, outputFile{"--meta", f.meta})
+	}
+	if side := metaSidecarPath(out); side != "" && !f.comments {
+		all = append(all, outputFile{"the sidecar of -o", side})
+	}
+	return all
+}
+
 // checkOutputs refuses, as usage errors, outputs that would overwrite an
 // input of the run or cannot be written. inputs are paths of files the run
 // reads (empty strings and strings that name no file, such as lattice

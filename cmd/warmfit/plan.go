@@ -7,9 +7,11 @@ import (
 	"io"
 	"math"
 	"strconv"
+	"time"
 
 	"github.com/spf13/pflag"
 
+	"warmfit/cluster"
 	"warmfit/fit"
 	"warmfit/lattice"
 	"warmfit/lattice/model"
@@ -24,11 +26,12 @@ var planOptions struct {
 	norm       string
 	bases      string
 	seed       uint64
-	order      int
+	order      orderFlag
 	confidence float64
 	format     string
 	out        string
 	workers    int
+	budget     time.Duration
 	csv        csvFlags
 	flags      *pflag.FlagSet
 }
@@ -37,23 +40,24 @@ func init() {
 	register(&command{
 		Name:    "plan",
 		Short:   "how many shots learn a model's coefficients to a target precision",
-		Usage:   "warmfit plan --model M.json [--beta B] --target EPS [--norm linf|l2] [--bases covering|random:N] [--format text|csv|json] [-o FILE]",
+		Usage:   "warmfit plan --model M.json [--beta B] --target EPS [--norm linf|l2] [--bases covering|random:K] [--format text|csv|json] [-o FILE]",
 		Long:    planLong,
 		Example: planExample,
 		Flags: func(fs *pflag.FlagSet) {
 			o := &planOptions
 			o.flags = fs
-			fs.StringVar(&o.model, "model", "", "model `FILE` whose coefficients are to be learned (a best guess)")
+			addModelFlag(fs, &o.model, "model `FILE` whose coefficients are to be learned (a best guess)")
 			addBetaFlag(fs, &o.beta)
-			fs.Float64Var(&o.target, "target", 0, "target error eps of the coefficients")
+			fs.Float64Var(&o.target, "target", 0, "target error `EPS` of the coefficients")
 			fs.StringVar(&o.norm, "norm", fit.NormLinf, "linf: every coefficient within eps at 95% (Bonferroni); l2: expected squared L2 error <= eps^2")
-			fs.StringVar(&o.bases, "bases", "covering", "measurement scheme: covering (few bases serving every term) or random:N")
-			fs.Uint64Var(&o.seed, "seed", 1, "seed of random:N bases")
-			fs.IntVar(&o.order, "order", 0, "expansion order for the prediction (default 4)")
+			fs.StringVar(&o.bases, "bases", "covering", "measurement `SCHEME`: covering (few bases serving every term) or random:K")
+			fs.Uint64Var(&o.seed, "seed", 1, "seed of random:K bases")
+			addOrderFlag(fs, &o.order, "expansion order of the prediction, or auto (the order stored in a fitted model, else chosen as in predict)")
 			fs.Float64Var(&o.confidence, "confidence", 0.95, "confidence of the linf guarantee")
 			fs.StringVar(&o.format, "format", "text", "text (summary), csv (per term) or json")
-			fs.StringVarP(&o.out, "output", "o", "", "write to `FILE` instead of stdout")
-			fs.IntVar(&o.workers, "workers", 0, "parallel workers (default: all cores)")
+			addOutputFlag(fs, &o.out, "the plan")
+			addWorkersFlag(fs, &o.workers)
+			addBudgetFlag(fs, &o.budget)
 			addCSVFlags(fs, &o.csv)
 		},
 		Run: runPlan,
@@ -109,10 +113,13 @@ func runPlan(env *runEnv, args []string) error {
 	if !(o.confidence > 0 && o.confidence < 1) {
 		return usagef("--confidence %v: must lie in (0, 1)", o.confidence)
 	}
-	if err := checkOrderFlag(o.flags, o.order); err != nil {
+	if err := checkWorkersFlag(o.workers); err != nil {
 		return err
 	}
-	if err := checkOutputs([]outputFile{{"-o", o.out}}, o.model); err != nil {
+	if err := checkBudgetFlag(o.budget); err != nil {
+		return err
+	}
+	if err := checkOutputs(withCSV("-o", o.out, o.csv), o.model); err != nil {
 		return err
 	}
 	m, beta, err := loadModelBeta(o.model, o.beta)
@@ -129,16 +136,28 @@ func runPlan(env *runEnv, args []string) error {
 	if err != nil {
 		return usagef("--%v", err)
 	}
-	order := o.order
+	order := o.order.L
 	if order == 0 {
 		order = fittedOrder(m)
 		if order > 0 {
 			fmt.Fprintf(env.Stderr, "plan: order %d, the order the model was fitted at\n", order)
 		}
 	}
+	exp, err := cluster.NewExpansion(m.Lattice, m.Terms)
+	if err != nil {
+		return err
+	}
+	policy := cluster.NewOrderPolicy(m.Lattice, m.Terms)
+	policy.Budget = o.budget
+	if err := admitExpansion(env, "plan", exp, n, order, policy, o.budget); err != nil {
+		return err
+	}
+	bar := newProgressBar(env, "expanding")
 	plan, err := fit.PlanShots(m.Lattice, m.Terms, beta, fit.PlanOptions{
-		Target: o.target, Norm: o.norm, Confidence: o.confidence, Bases: bases, Order: order, Workers: o.workers,
+		Target: o.target, Norm: o.norm, Confidence: o.confidence, Bases: bases, Order: order, Workers: o.workers, Budget: o.budget,
+		Progress: bar.Update,
 	})
+	bar.Done()
 	if err != nil {
 		return err
 	}

@@ -21,18 +21,19 @@ func init() {
 		modelPath string
 		beta      betaFlag
 		method    string
-		order     int
+		order     orderFlag
+		workers   int
 		tol       float64
 		vectors   int
 		seed      uint64
+		budget    time.Duration
 		out       string
 		csvOut    csvFlags
-		flags     *pflag.FlagSet
 	)
 	register(&command{
 		Name:  "predict",
 		Short: "expectation of every term of a model in its Gibbs state",
-		Usage: "warmfit predict --model M.json [--beta B] [--method expansion|exact] [--order L] [-o FILE]",
+		Usage: "warmfit predict --model M.json [--beta B] [--method expansion|exact] [--order L|auto] [-o FILE]",
 		Long: `Predict computes <E_k> = tr(rho E_k) for every term E_k of the model, with
 rho = exp(-beta H)/Z, and writes the expectation table (pauli,sites,value,stderr).
 
@@ -59,28 +60,35 @@ case stderr holds the statistical error of each value.
 warmfit predict --model m.json --order 6 -o e.csv
 warmfit predict --model m.json --method exact`,
 		Flags: func(fs *pflag.FlagSet) {
-			flags = fs
-			fs.StringVar(&modelPath, "model", "", "model file (JSON)")
+			addModelFlag(fs, &modelPath, "")
 			addBetaFlag(fs, &beta)
 			fs.StringVar(&method, "method", "expansion", "expansion or exact")
-			fs.IntVar(&order, "order", 0, "largest cluster size for the expansion (default: chosen automatically, see above)")
+			addOrderFlag(fs, &order, "largest cluster size of the expansion, or auto (chosen automatically, see above)")
 			fs.Float64Var(&tol, "tol", 1e-3, "truncation error at which an expansion value counts as trusted")
 			fs.IntVar(&vectors, "vectors", 0, "random vectors for thermal typicality (exact method past dense size)")
 			fs.Uint64Var(&seed, "seed", 1, "seed of the random vectors")
-			fs.StringVarP(&out, "output", "o", "", "write the table to `FILE` instead of stdout")
+			addBudgetFlag(fs, &budget)
+			addWorkersFlag(fs, &workers)
+			addOutputFlag(fs, &out, "the table")
 			addCSVFlags(fs, &csvOut)
 		},
 		Run: func(env *runEnv, args []string) error {
 			if len(args) > 0 {
 				return usagef("unexpected argument %q", args[0])
 			}
-			if err := checkOrderFlag(flags, order); err != nil {
+			if err := checkWorkersFlag(workers); err != nil {
 				return err
 			}
 			if !(tol > 0) || math.IsInf(tol, 0) {
 				return usagef("--tol %v: must be a positive number", tol)
 			}
-			if err := checkOutputs([]outputFile{{"-o", out}}, modelPath); err != nil {
+			if vectors < 0 || vectors == 1 {
+				return usagef("--vectors %d: want at least 2 random vectors (0: the default 16)", vectors)
+			}
+			if err := checkBudgetFlag(budget); err != nil {
+				return err
+			}
+			if err := checkOutputs(withCSV("-o", out, csvOut), modelPath); err != nil {
 				return err
 			}
 			m, b, err := loadModelBeta(modelPath, beta)
@@ -91,9 +99,9 @@ warmfit predict --model m.json --method exact`,
 			fields := map[string]any{}
 			switch method {
 			case "expansion":
-				table, err = predictByExpansion(env, m, b, order, tol, fields)
+				table, err = predictByExpansion(env, m, b, order.L, tol, budget, workers, fields)
 			case "exact":
-				table, err = predictExact(env, m, b, vectors, seed, fields)
+				table, err = predictExact(env, m, b, vectors, seed, budget, fields)
 			default:
 				return usagef("--method %q: want expansion or exact", method)
 			}
@@ -175,22 +183,27 @@ func modelCoeffs(m *model.Model) []float64 {
 
 // predictByExpansion returns the table of expansion predictions and
 // records the run's facts in meta.
-func predictByExpansion(env *runEnv, m *model.Model, beta float64, order int, tol float64, meta map[string]any) (*fit.Table, error) {
+func predictByExpansion(env *runEnv, m *model.Model, beta float64, order int, tol float64, budget time.Duration, workers int, meta map[string]any) (*fit.Table, error) {
 	exp, err := cluster.NewExpansion(m.Lattice, m.Terms)
 	if err != nil {
+		return nil, err
+	}
+	policy := cluster.NewOrderPolicy(m.Lattice, m.Terms)
+	policy.Budget = budget
+	if err := admitExpansion(env, "predict", exp, m.Lattice.NumSites(), order, policy, budget); err != nil {
 		return nil, err
 	}
 	coeffs := modelCoeffs(m)
 	start := time.Now()
 	bar := newProgressBar(env, "expanding")
-	opt := cluster.Options{Progress: bar.Update}
+	opt := cluster.Options{Progress: bar.Update, Workers: workers}
 	var res *cluster.Result
 	if order > 0 {
 		opt.Order = order
 		res, err = exp.Evaluate(coeffs, beta, opt)
 	} else {
 		var choice cluster.OrderChoice
-		res, choice, err = exp.ChooseOrder(coeffs, beta, tol, cluster.NewOrderPolicy(m.Lattice, m.Terms), opt)
+		res, choice, err = exp.ChooseOrder(coeffs, beta, tol, policy, opt)
 		if err == nil {
 			order = choice.Order
 			for _, st := range choice.Steps {
@@ -282,11 +295,25 @@ func boundLine(b cluster.ThresholdBound, beta float64) string {
 	return fmt.Sprintf("sufficient-temperature bound (cluster-expansion criterion, term-overlap degree %d): beta < %.3g; this beta is %s it, so trust rests on the measured convergence", b.Degree, b.Beta, rel)
 }
 
-func predictExact(env *runEnv, m *model.Model, beta float64, vectors int, seed uint64, meta map[string]any) (*fit.Table, error) {
+func predictExact(env *runEnv, m *model.Model, beta float64, vectors int, seed uint64, budget time.Duration, meta map[string]any) (*fit.Table, error) {
 	n := m.Lattice.NumSites()
 	if n > validate.MaxTypicalityQubits {
 		return nil, fmt.Errorf("--method exact handles at most %d qubits (dense up to %d, thermal typicality beyond); this model has %d: use --method expansion",
 			validate.MaxTypicalityQubits, denseExactQubits, n)
+	}
+	cost := denseEstimate(n, "the number of qubits (or use --method expansion)")
+	if n > denseExactQubits {
+		if vectors == 0 {
+			vectors = defaultTypicalityVectors
+		}
+		norm1 := 0.0
+		for _, t := range m.Terms {
+			norm1 += math.Abs(t.Coeff)
+		}
+		cost = typicalityEstimate(n, vectors, len(m.Terms), norm1, beta)
+	}
+	if err := admit(env.Stderr, "predict", cost, budget); err != nil {
+		return nil, err
 	}
 	ops := make([]cluster.PauliString, len(m.Terms))
 	for k, t := range m.Terms {
@@ -335,6 +362,24 @@ func predictExact(env *runEnv, m *model.Model, beta float64, vectors int, seed u
 		n, fmtFloat(beta), fmtFloat(logZ.Value), fmtFloat(logZ.Stderr))}
 	fmt.Fprintf(env.Stderr, "exact: %d qubits are past dense size (%d); thermal typicality, %.2fs\n", n, denseExactQubits, time.Since(start).Seconds())
 	return t, nil
+}
+
+// defaultTypicalityVectors is the number of random vectors of thermal
+// typicality when --vectors is not given (validate's default).
+const defaultTypicalityVectors = 16
+
+// admitExpansion predicts an expansion run before it starts: an explicit
+// order is estimated and refused past the memory or --budget; an
+// automatic choice says where it starts and that each further order is
+// predicted before it is started.
+func admitExpansion(env *runEnv, cmd string, exp *cluster.Expansion, sites, order int, policy cluster.OrderPolicy, budget time.Duration) error {
+	if order > 0 {
+		return admit(env.Stderr, cmd, expansionEstimate(exp, sites, order, "--order"), budget)
+	}
+	e := expansionEstimate(exp, sites, policy.Start, "--order")
+	fmt.Fprintf(env.Stderr, "%s: estimate: %s, about %s to start --order auto; each higher order is predicted before it starts and not begun past --budget %v\n",
+		cmd, e.What, describeTime(e.Duration), budget)
+	return nil
 }
 
 // denseExactQubits is the largest system `predict --method exact` and the

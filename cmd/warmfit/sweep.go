@@ -20,16 +20,17 @@ func init() {
 		modelPath string
 		betaGrid  string
 		oldRange  string // the retired --beta-range, answered with a pointer
-		order     int
+		orderOpt  orderFlag
+		workers   int
 		tol       float64
+		budget    time.Duration
 		out       string
 		csvOut    csvFlags
-		flags     *pflag.FlagSet
 	)
 	register(&command{
 		Name:  "sweep",
 		Short: "per-site thermodynamics over a temperature grid",
-		Usage: "warmfit sweep --model M.json --beta-grid from=A,to=B,points=N [--order L] [-o FILE]",
+		Usage: "warmfit sweep --model M.json --beta-grid from=A,to=B,points=N [--order L|auto] [-o FILE]",
 		Long: `Sweep sums the linked-cluster expansion of the model for N inverse temperatures
 evenly spaced from A to B (both included) and writes, per site: log Z, energy, entropy (nats) and heat
 capacity, with the estimated truncation error of energy and heat capacity and
@@ -43,14 +44,15 @@ gives the trusted range.
 		Example: `warmfit model --lattice square:12x12:periodic --preset heisenberg --set J=1 -o h.json
 warmfit sweep --model h.json --beta-grid from=0.05,to=1,points=20 --order 6`,
 		Flags: func(fs *pflag.FlagSet) {
-			flags = fs
-			fs.StringVar(&modelPath, "model", "", "model file (JSON)")
+			addModelFlag(fs, &modelPath, "")
 			fs.StringVar(&betaGrid, "beta-grid", "", "inverse temperatures: from=A,to=B,points=N (evenly spaced, both ends included)")
 			fs.StringVar(&oldRange, "beta-range", "", "replaced by --beta-grid")
 			_ = fs.MarkHidden("beta-range")
-			fs.IntVar(&order, "order", 0, "largest cluster size (default: the highest the automatic work limit affords)")
+			addOrderFlag(fs, &orderOpt, "largest cluster size, or auto (the highest the automatic work limit and --budget afford)")
+			addWorkersFlag(fs, &workers)
 			fs.Float64Var(&tol, "tol", 1e-3, "truncation error per site at which a row counts as trusted")
-			fs.StringVarP(&out, "output", "o", "", "write the table to `FILE` instead of stdout")
+			addBudgetFlag(fs, &budget)
+			addOutputFlag(fs, &out, "the table")
 			addCSVFlags(fs, &csvOut)
 		},
 		Run: func(env *runEnv, args []string) error {
@@ -60,11 +62,14 @@ warmfit sweep --model h.json --beta-grid from=0.05,to=1,points=20 --order 6`,
 			if modelPath == "" {
 				return usagef("--model is required")
 			}
-			if err := checkOrderFlag(flags, order); err != nil {
+			if err := checkWorkersFlag(workers); err != nil {
 				return err
 			}
 			if !(tol > 0) || math.IsInf(tol, 0) {
 				return usagef("--tol %v: must be a positive number", tol)
+			}
+			if err := checkBudgetFlag(budget); err != nil {
+				return err
 			}
 			if oldRange != "" {
 				return retiredBetaRange(oldRange)
@@ -73,7 +78,7 @@ warmfit sweep --model h.json --beta-grid from=0.05,to=1,points=20 --order 6`,
 			if err != nil {
 				return err
 			}
-			if err := checkOutputs([]outputFile{{"-o", out}}, modelPath); err != nil {
+			if err := checkOutputs(withCSV("-o", out, csvOut), modelPath); err != nil {
 				return err
 			}
 			m, err := model.ReadFile(modelPath)
@@ -89,15 +94,22 @@ warmfit sweep --model h.json --beta-grid from=0.05,to=1,points=20 --order 6`,
 			if err != nil {
 				return err
 			}
+			order := orderOpt.L
 			if order == 0 {
 				// One diagonalisation per cluster serves every temperature,
 				// so the automatic order is the highest the policy affords.
 				order = cluster.NewOrderPolicy(m.Lattice, m.Terms).Highest(exp)
-				fmt.Fprintf(env.Stderr, "sweep: expansion order %d chosen automatically (the highest within the automatic work limit)\n", order)
+				for order > 1 && expansionEstimate(exp, m.Lattice.NumSites(), order, "").Duration > budget {
+					order--
+				}
+				fmt.Fprintf(env.Stderr, "sweep: expansion order %d chosen automatically (the highest within the automatic work limit and --budget)\n", order)
+			}
+			if err := admit(env.Stderr, "sweep", expansionEstimate(exp, m.Lattice.NumSites(), order, "--order"), budget); err != nil {
+				return err
 			}
 			bar := newProgressBar(env, "expanding")
 			start := time.Now()
-			res, err := exp.Thermodynamics(modelCoeffs(m), betas, cluster.Options{Order: order, Progress: bar.Update})
+			res, err := exp.Thermodynamics(modelCoeffs(m), betas, cluster.Options{Order: order, Progress: bar.Update, Workers: workers})
 			bar.Done()
 			if err != nil {
 				return err

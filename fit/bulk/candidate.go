@@ -183,6 +183,10 @@ func (c *Candidate) predict(series []*Series, p []float64) (*prediction, error) 
 			return nil, err
 		}
 	}
+	mag, err := c.magnetizationGrid(series, cv, req, p)
+	if err != nil {
+		return nil, err
+	}
 	for si, s := range series {
 		pr.value[si] = make([]float64, len(s.Points))
 		pr.jac[si] = make([][]float64, len(s.Points))
@@ -197,9 +201,7 @@ func (c *Candidate) predict(series []*Series, p []float64) (*prediction, error) 
 				ok = c.zeroFieldPoint(s.Quantity, zero, i, p, tIdx, &pr.value[si][k], pr.jac[si][k])
 				pr.trustedFrom[si] = curveOf(zero, s.Quantity).TrustedFrom
 			case Magnetization:
-				if ok, err = c.magnetizationPoint(pt, cv, req, p, tIdx, &pr.value[si][k], pr.jac[si][k]); err != nil {
-					return nil, err
-				}
+				ok = c.magnetizationPoint(pt, mag.at(pt, c.value(p, ParamG, 2)), p, tIdx, &pr.value[si][k], pr.jac[si][k])
 			}
 			pr.trusted[si][k] = ok
 		}
@@ -249,29 +251,73 @@ func (c *Candidate) zeroFieldPoint(q Quantity, cv *Curves, i int, p []float64, t
 	return cur.Trusted(t)
 }
 
-// magnetizationPoint evaluates M at one (T, H) point.
-func (c *Candidate) magnetizationPoint(pt Point, cv []float64, tangents [][]float64, p []float64, tIdx []int, val *float64, jac []float64) (bool, error) {
+// fieldGrid holds the forward model at every field and temperature of
+// the M(H) points, from one request (curvesAtFields).
+type fieldGrid struct {
+	fields, temps []float64
+	curves        []*Curves // [field index]
+}
+
+// magnetizationGrid evaluates the forward model at the fields g mu_B B
+// and temperatures of every M(H) point of the series, or returns nil
+// when there are none.
+func (c *Candidate) magnetizationGrid(series []*Series, cv []float64, tangents [][]float64, p []float64) (*fieldGrid, error) {
+	g := c.value(p, ParamG, 2)
+	grid := &fieldGrid{}
+	for _, s := range series {
+		if s.Quantity != Magnetization {
+			continue
+		}
+		for _, pt := range s.Points {
+			grid.fields = append(grid.fields, g*KelvinPerTesla*pt.H)
+			grid.temps = append(grid.temps, pt.T)
+		}
+	}
+	if len(grid.temps) == 0 {
+		return nil, nil
+	}
+	slices.Sort(grid.fields)
+	grid.fields = slices.Compact(grid.fields)
+	slices.Sort(grid.temps)
+	grid.temps = slices.Compact(grid.temps)
+	var err error
+	grid.curves, err = curvesAtFields(c.Forward, Request{Couplings: cv, Temps: grid.temps, Tangents: tangents}, grid.fields)
+	return grid, err
+}
+
+// fieldPoint is the forward model at one (T, h) point of a fieldGrid.
+type fieldPoint struct {
+	c *Curves
+	i int // temperature index
+}
+
+func (g *fieldGrid) at(pt Point, gFactor float64) fieldPoint {
+	f, _ := slices.BinarySearch(g.fields, gFactor*KelvinPerTesla*pt.H)
+	i, _ := slices.BinarySearch(g.temps, pt.T)
+	return fieldPoint{g.curves[f], i}
+}
+
+// magnetizationPoint evaluates M at one (T, H) point from the forward
+// model there and reports whether the model trusts it.
+func (c *Candidate) magnetizationPoint(pt Point, at fieldPoint, p []float64, tIdx []int, val *float64, jac []float64) bool {
 	n := c.SitesPerFormula
 	g, rho := c.value(p, ParamG, 2), c.value(p, ParamImpurity, 0)
 	hPerG := KelvinPerTesla * pt.H // dh/dg
-	cur, err := c.Forward.Curves(Request{Couplings: cv, Field: g * hPerG, Temps: []float64{pt.T}, Tangents: tangents})
-	if err != nil {
-		return false, err
-	}
-	m, chi := cur.Magnetization.Value[0], cur.Susceptibility.Value[0]
+	cur, i := at.c, at.i
+	m, chi := cur.Magnetization.Value[i], cur.Susceptibility.Value[i]
 	x := g * hPerG / (2 * pt.T)
 	free := math.Tanh(x) / 2
 	sech2 := 1 - math.Tanh(x)*math.Tanh(x)
 	vanVleck := 1e4 * pt.H / MuBPerFormulaUnitEmu // chi0 [emu/mol] -> M [mu_B/f.u.]; 1 T = 1e4 Oe
 	*val = n*g*((1-rho)*m+rho*free) + c.value(p, ParamChi0, 0)*vanVleck
 	for k, pi := range tIdx {
-		jac[pi] = n * g * (1 - rho) * cur.Magnetization.Deriv[k][0]
+		jac[pi] = n * g * (1 - rho) * cur.Magnetization.Deriv[k][i]
 	}
 	dFree := sech2 / 2 * hPerG / (2 * pt.T)
 	c.setJac(jac, ParamG, n*((1-rho)*(m+g*chi*hPerG)+rho*(free+g*dFree)))
 	c.setJac(jac, ParamChi0, vanVleck)
 	c.setJac(jac, ParamImpurity, n*g*(free-m))
-	return cur.Magnetization.Trusted(pt.T), nil
+	return cur.Magnetization.Trusted(pt.T)
 }
 
 func (c *Candidate) setJac(jac []float64, name string, v float64) {

@@ -106,6 +106,16 @@ func (m *ExpansionModel) Describe() string {
 
 // Curves implements ForwardModel.
 func (m *ExpansionModel) Curves(req Request) (*Curves, error) {
+	out, err := m.CurvesAtFields(req, []float64{req.Field})
+	if err != nil {
+		return nil, err
+	}
+	return out[0], nil
+}
+
+// CurvesAtFields implements MultiFieldModel: the models conserve S^z, so
+// one diagonalisation of every cluster serves all fields.
+func (m *ExpansionModel) CurvesAtFields(req Request, fields []float64) ([]*Curves, error) {
 	if err := checkRequest(req, len(m.couplings)); err != nil {
 		return nil, err
 	}
@@ -127,11 +137,30 @@ func (m *ExpansionModel) Curves(req Request) (*Curves, error) {
 		}
 		return out
 	}
+	for _, h := range fields {
+		if math.IsNaN(h) || math.IsInf(h, 0) {
+			return nil, fmt.Errorf("bulk: field %v is not finite", h)
+		}
+	}
 	res, err := m.exp.Evaluate(scaled(req.Couplings), cluster.UniformOptions{
-		Temperatures: scaled(req.Temps), Fields: []float64{req.Field / s}, Derivatives: len(req.Tangents) > 0})
+		Temperatures: scaled(req.Temps), Fields: scaled(fields), Derivatives: len(req.Tangents) > 0})
 	if err != nil {
 		return nil, err
 	}
+	all := make([]*Curves, len(fields))
+	for f := range fields {
+		out, err := m.curvesOf(res, f, s, req)
+		if err != nil {
+			return nil, err
+		}
+		all[f] = out
+	}
+	return all, nil
+}
+
+// curvesOf converts the expansion's curves at field index f back to
+// kelvin.
+func (m *ExpansionModel) curvesOf(res *cluster.UniformResult, f int, s float64, req Request) (*Curves, error) {
 	unit := map[cluster.Quantity]float64{cluster.QuantityEnergy: s, cluster.QuantitySusceptibility: 1 / s}
 	out := &Curves{Temps: slices.Clone(req.Temps)}
 	for q, dst := range map[cluster.Quantity]*Curve{
@@ -139,7 +168,7 @@ func (m *ExpansionModel) Curves(req Request) (*Curves, error) {
 		cluster.QuantityHeatCapacity: &out.HeatCapacity, cluster.QuantityMagnetization: &out.Magnetization,
 		cluster.QuantitySusceptibility: &out.Susceptibility,
 	} {
-		cv := res.Curve(q, 0, m.trust)
+		cv := res.Curve(q, f, m.trust)
 		u := unit[q]
 		if u == 0 {
 			u = 1

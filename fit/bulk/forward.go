@@ -42,6 +42,34 @@ type ForwardModel interface {
 	Describe() string
 }
 
+// MultiFieldModel is a ForwardModel that evaluates many fields at once,
+// as M(H) curves need: CurvesAtFields returns the curves of req at each
+// of fields (req.Field is ignored), out[f] as Curves(req) would with
+// Field = fields[f]. Models conserving S^z diagonalise once for all.
+type MultiFieldModel interface {
+	ForwardModel
+	CurvesAtFields(req Request, fields []float64) ([]*Curves, error)
+}
+
+// curvesAtFields evaluates a request at several fields, in one call when
+// the model offers it.
+func curvesAtFields(m ForwardModel, req Request, fields []float64) ([]*Curves, error) {
+	if mf, ok := m.(MultiFieldModel); ok {
+		return mf.CurvesAtFields(req, fields)
+	}
+	out := make([]*Curves, len(fields))
+	for f, h := range fields {
+		r := req
+		r.Field = h
+		c, err := m.Curves(r)
+		if err != nil {
+			return nil, err
+		}
+		out[f] = c
+	}
+	return out, nil
+}
+
 // Request asks a forward model for curves.
 type Request struct {
 	Couplings []float64 // kelvin, in the order of ForwardModel.Couplings
