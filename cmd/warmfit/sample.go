@@ -57,6 +57,8 @@ file and on stderr.
 
 --bases covering picks a small set of product bases in which every term of the model
 is measured at least once; random:K draws K bases with a random letter per qubit.
+covering:3 also measures the 2- and 3-local correlators that fit --method stationary
+needs; it needs whole snapshots, so it is refused with the binomial generator.
 
 ` + csvOutputHelp,
 		Example: `warmfit model --lattice chain:8 --preset tfim --set J=1,hx=0.7 --beta 0.5 -o tfim.json
@@ -110,6 +112,17 @@ warmfit sample --model big.json --shots 100000 --generator binomial -o big-data.
 				if n <= denseExactQubits {
 					gen = generatorExact
 				}
+			}
+			if gen == generatorBinomial && bases == "covering:3" {
+				// The binomial generator writes one row per model term; the
+				// stationarity constraints need the 2- and 3-local
+				// correlators of whole snapshots, which it cannot produce.
+				why := "--generator binomial"
+				if generator == string(generatorAuto) {
+					why = fmt.Sprintf("above %d qubits the default generator is binomial", denseExactQubits)
+				}
+				return usagef("--bases covering:3 is for fit --method stationary, which needs whole snapshots (2- and 3-local correlators), but %s: it writes only the model's own %d term expectations, never those correlators. Use --generator exact (at most %d qubits; this model has %d), or sample a patch of the model that small",
+					why, len(m.Terms), cluster.MaxDenseQubits, n)
 			}
 			fmt.Fprintf(env.Stderr, "sample: %d qubits, %d bases x %d shots, %s generator, seed %d\n", n, len(basisList), shots, gen, seed)
 			meta := &csvMeta{Command: "sample"}
