@@ -190,8 +190,17 @@ func runFit(env *runEnv, args []string) error {
 	announceFit(env, &o, tmpl, kind, beta, betaSource, calibration)
 	res, err := fit.Fit(&fit.Problem{Lattice: tmpl.Lattice, Terms: tmpl.Terms, Data: est, Beta: beta}, opt)
 	bar.Done()
-	if done, ferr := fitMethodAfter(env, tmpl, beta, res, err); done {
-		return ferr
+	refit := func(order int) (*fit.Result, error) {
+		if err := admitFit(env, &o, tmpl, order); err != nil {
+			return nil, err
+		}
+		ropt, rbar := fitRunOptions(env, &o, tmpl, order)
+		defer rbar.Done()
+		return fit.Fit(&fit.Problem{Lattice: tmpl.Lattice, Terms: tmpl.Terms, Data: est, Beta: beta}, ropt)
+	}
+	var done bool
+	if done, res, err = fitMethodAfter(env, tmpl, beta, res, err, refit); done {
+		return err
 	}
 	if err != nil {
 		return fmt.Errorf("%s: %w", o.data, err)

@@ -44,8 +44,18 @@ matching the Gibbs state of the learned direction to the measured term
 expectations (exact for up to 12 qubits, the expansion at --order otherwise). The
 report lists the lowest eigenvalues of the constraint system and every direction
 the data do not resolve; at infinite temperature it says there is no information.
+Real models (no term with an odd number of Y, such as XXZ or Ising) also probe
+pairs of sites at distance two: their state is real, so only probes with an odd
+number of Y carry signal, and nearest pairs alone leave directions unresolved.
+The thermal match's chi2 counts the noise of the learned direction as well as
+that of the data; a failed match, an unresolved direction or error bars that
+cannot be computed give WARNING lines (and checks_passed false in the report).
 auto runs the expansion fit and keeps it when it converged with every series
-trusted; otherwise it uses stationary, and says which it used. For example:
+trusted; on lattices of at most 12 sites it refits at the order of the lattice,
+where the expansion is exact, and keeps that. Otherwise it runs stationary and
+uses it only when its checks pass (resolved spectrum, consistent thermal match,
+finite error bars), else the converged expansion; stderr says which and why.
+For example:
 
   warmfit sample --model device.json --shots 50000 --bases covering:3 -o shots.csv
   warmfit fit --model device.json --data shots.csv --method stationary -o fitted.json
@@ -56,7 +66,7 @@ func addFitMethodFlags(fs *pflag.FlagSet) {
 	o := &fitMethodOptions
 	fs.StringVar(&o.method, "method", "expansion", "estimator: expansion, stationary or auto")
 	fs.StringVar(&o.calibrate, "calibrate", "", "stationary: known coefficients `NAME=VALUE,...` (NAME a term key like ZZ:0:1, or a group)")
-	fs.BoolVar(&o.farPairs, "far-pairs", false, "stationary: also probe pairs of sites at distance two (symmetric models)")
+	fs.BoolVar(&o.farPairs, "far-pairs", false, "stationary: also probe pairs of sites at distance two (always on for real models, whose terms have an even number of Y)")
 }
 
 // fitMethodFirst runs the stationarity method when --method stationary
@@ -73,11 +83,37 @@ func fitMethodFirst(env *runEnv, tmpl *model.Model, beta float64) (done bool, er
 }
 
 // fitMethodAfter decides, for --method auto, whether the expansion fit
-// (res, err) is trusted; when it is not, it runs the stationarity method
-// and reports done.
-func fitMethodAfter(env *runEnv, tmpl *model.Model, beta float64, res *fit.Result, fitErr error) (done bool, err error) {
+// (res, err) is kept. The expansion is kept when it converged with every
+// series trusted, or when its order covers the whole lattice (then it is
+// exact). Otherwise the stationarity method runs, and its result is used
+// only when its own checks pass (stationaryRun.problems); when they do
+// not, the expansion fit is kept if it converged, and the choice and its
+// reasons go to stderr either way.
+//
+// On lattices of at most cluster.MaxDenseQubits sites an expansion that
+// stopped short of the whole lattice is first refitted at the order of
+// the lattice, where it is exact (the fit at order 9 of review finding
+// 1's 3x3 model has largest error 0.0037, stationarity 0.1).
+//
+// When done is false the caller goes on with the returned expansion
+// result res and its error fitErr (the refit's when there was one); when
+// done is true err is the outcome of the stationarity method.
+func fitMethodAfter(env *runEnv, tmpl *model.Model, beta float64, res *fit.Result, fitErr error, refit func(order int) (*fit.Result, error)) (done bool, _ *fit.Result, _ error) {
 	if fitMethodOptions.method != "auto" {
-		return false, nil
+		return false, res, fitErr
+	}
+	n := tmpl.Lattice.NumSites()
+	if n <= cluster.MaxDenseQubits && refit != nil && fitOptions.order.L == 0 && (fitErr != nil || res.Order < n) &&
+		(fitErr != nil || !res.Converged || len(res.Untrusted) > 0) {
+		fmt.Fprintf(env.Stderr, "fit: method auto: %d sites: refitting the expansion at order %d, where it covers the whole lattice and is exact\n", n, n)
+		if r, err := refit(n); err == nil && r.Converged {
+			fmt.Fprintf(env.Stderr, "fit: method auto chose the expansion: order %d covers all %d sites, so it is exact here\n", n, n)
+			return false, r, nil
+		} else if err != nil {
+			fmt.Fprintf(env.Stderr, "fit: method auto: the exact-order refit failed (%v)\n", err)
+		} else {
+			fmt.Fprintf(env.Stderr, "fit: method auto: the exact-order refit did not converge (%s)\n", r.Reason)
+		}
 	}
 	why := ""
 	switch {
@@ -85,72 +121,124 @@ func fitMethodAfter(env *runEnv, tmpl *model.Model, beta float64, res *fit.Resul
 		why = "the expansion fit failed: " + fitErr.Error()
 	case !res.Converged:
 		why = "the expansion fit did not converge: " + res.Reason
+	case res.Order >= n:
+		fmt.Fprintf(env.Stderr, "fit: method auto chose the expansion: order %d covers all %d sites, so the expansion is exact here\n", res.Order, n)
+		return false, res, nil
 	case len(res.Untrusted) > 0:
 		why = fmt.Sprintf("%d term expectations of the expansion have not converged at order %d", len(res.Untrusted), res.Order)
 	}
 	if why == "" {
 		fmt.Fprintf(env.Stderr, "fit: method auto chose the expansion (converged, every series trusted at order %d)\n", res.Order)
-		return false, nil
+		return false, res, nil
 	}
-	fmt.Fprintf(env.Stderr, "fit: method auto chose stationary: %s\n", why)
-	return true, runFitStationary(env, tmpl, beta)
+	fmt.Fprintf(env.Stderr, "fit: method auto tries stationary: %s\n", why)
+	run, serr := computeStationary(env, tmpl, beta)
+	expansionUsable := fitErr == nil && res.Converged
+	switch {
+	case serr != nil && expansionUsable:
+		fmt.Fprintf(env.Stderr, "fit: method auto chose the expansion after all: the stationarity method failed (%v)\n", serr)
+		return false, res, nil
+	case serr != nil:
+		return true, nil, fmt.Errorf("%s; the stationarity method failed too: %w", why, serr)
+	case len(run.problems) > 0 && expansionUsable:
+		fmt.Fprintf(env.Stderr, "fit: method auto chose the expansion after all: the stationarity result fails its own checks (%s)\n", strings.Join(run.problems, "; "))
+		return false, res, nil
+	case len(run.problems) > 0:
+		fmt.Fprintf(env.Stderr, "fit: method auto chose stationary although it fails its own checks (%s): %s\n", strings.Join(run.problems, "; "), why)
+	default:
+		fmt.Fprintf(env.Stderr, "fit: method auto chose stationary: %s, and the stationarity result passes its checks (resolved spectrum, consistent thermal match, finite error bars)\n", why)
+	}
+	return true, nil, writeStationary(env, tmpl, beta, run)
 }
 
 // stationaryReport is the "fit" object of a model written by the
 // stationarity method.
 type stationaryReport struct {
-	Method      string    `json:"method"`
-	Source      string    `json:"source"`
-	Data        string    `json:"data"`
-	Constraints int       `json:"constraints"`
-	LeftOut     int       `json:"constraints_left_out"`
-	Chi2        float64   `json:"constraint_chi2"`
-	Spectrum    []float64 `json:"lowest_eigenvalues"`
-	Invisible   []string  `json:"invisible_directions"`
-	Fixed       string    `json:"scale_fixed_by"`
-	MatchChi2   *float64  `json:"thermal_match_chi2,omitempty"`
-	MatchDOF    int       `json:"thermal_match_dof,omitempty"`
-	NotThermal  bool      `json:"not_thermal,omitempty"`
-	Warnings    []string  `json:"warnings"`
+	Method             string    `json:"method"`
+	Source             string    `json:"source"`
+	Data               string    `json:"data"`
+	Constraints        int       `json:"constraints"`
+	LeftOut            int       `json:"constraints_left_out"`
+	Chi2               float64   `json:"constraint_chi2"`
+	Spectrum           []float64 `json:"lowest_eigenvalues"`
+	Invisible          []string  `json:"invisible_directions"`
+	Fixed              string    `json:"scale_fixed_by"`
+	FarPairs           bool      `json:"far_pairs"`
+	Checks             bool      `json:"checks_passed"`
+	ErrorScale         float64   `json:"error_bars_scaled_by,omitempty"`
+	MatchChi2          *float64  `json:"thermal_match_chi2,omitempty"`
+	MatchChi2Direction *float64  `json:"thermal_match_chi2_with_direction_noise,omitempty"`
+	MatchDOF           int       `json:"thermal_match_dof,omitempty"`
+	NotThermal         bool      `json:"not_thermal,omitempty"`
+	Warnings           []string  `json:"warnings"`
 }
 
 func runFitStationary(env *runEnv, tmpl *model.Model, beta float64) error {
+	run, err := computeStationary(env, tmpl, beta)
+	if err != nil {
+		return err
+	}
+	return writeStationary(env, tmpl, beta, run)
+}
+
+// stationaryRun is a computed stationarity fit, not yet written.
+type stationaryRun struct {
+	sys      *stationary.System
+	d        *stationary.Direction
+	res      *stationary.Result
+	warnings []string
+	// problems are the failed checks that make the result untrustworthy
+	// (also in warnings): --method auto does not choose such a result.
+	problems []string
+}
+
+// computeStationary runs the stationarity method and its checks,
+// printing its progress lines to stderr (warnings are printed by
+// writeStationary).
+func computeStationary(env *runEnv, tmpl *model.Model, beta float64) (*stationaryRun, error) {
 	o, mo := fitOptions, fitMethodOptions
 	n := tmpl.Lattice.NumSites()
 	sys, err := stationary.NewSystemWith(n, tmpl.Terms, stationary.SystemOptions{FarPairs: mo.farPairs})
 	if err != nil {
-		return err
+		return nil, err
 	}
 	cal, err := parseCalibrations(mo.calibrate)
 	if err != nil {
-		return err
+		return nil, err
 	}
 	kind, err := fit.DetectDataKind(o.data)
 	if err != nil {
-		return err
+		return nil, err
 	}
 	var est *fit.Estimates
 	if kind == fit.KindSnapshots {
 		f, err := os.Open(o.data)
 		if err != nil {
-			return err
+			return nil, err
 		}
 		est, err = stationary.EstimateSnapshots(f, o.data, sys, fit.CovarianceOptions{Distance: o.covDist})
 		f.Close()
 		if err != nil {
-			return err
+			return nil, err
 		}
 	} else {
 		t, err := fit.ReadTableFile(o.data)
 		if err != nil {
-			return err
+			return nil, err
 		}
 		if est, err = stationary.EstimatesFromTable(t, sys); err != nil {
-			return fmt.Errorf("%s: %w", o.data, err)
+			return nil, fmt.Errorf("%s: %w", o.data, err)
 		}
 	}
-	fmt.Fprintf(env.Stderr, "fit: stationarity: %d probes, %d correlators needed (%d without data), %d terms\n",
-		sys.NumRows(), len(sys.Strings), len(est.Missing), len(tmpl.Terms))
+	probes := "single sites and pairs of sites sharing a term"
+	if sys.FarPairs {
+		probes += ", and pairs at distance two"
+		if !mo.farPairs {
+			probes += " (on for real models: their Gibbs state is real, so only probes with an odd number of Y carry signal)"
+		}
+	}
+	fmt.Fprintf(env.Stderr, "fit: stationarity: %d probes (%s), %d correlators needed (%d without data), %d terms\n",
+		sys.NumRows(), probes, len(sys.Strings), len(est.Missing), len(tmpl.Terms))
 	d, err := stationary.Solve(sys, est, stationary.Options{})
 	if d != nil {
 		for _, line := range strings.Split(strings.TrimSpace(d.Summary()), "\n") {
@@ -161,17 +249,24 @@ func runFitStationary(env *runEnv, tmpl *model.Model, beta float64) error {
 		}
 	}
 	if err != nil {
-		return fmt.Errorf("%s: %w", o.data, err)
+		if len(est.Missing) > 0 {
+			err = fmt.Errorf("%w; %s", err, missingStringsMessage(sys, est))
+		}
+		return nil, fmt.Errorf("%s: %w", o.data, err)
 	}
-	var warnings []string
+	run := &stationaryRun{sys: sys, d: d}
+	problem := func(short, long string) {
+		run.problems = append(run.problems, short)
+		run.warnings = append(run.warnings, long)
+	}
 	if d.Misfit {
-		warnings = append(warnings, fmt.Sprintf("constraint chi2 %s far above its degrees of freedom: the data fit no stationary state of these terms well (a term missing from the template, systematic errors, or a non-stationary state)", fmtG3(d.Chi2)))
+		problem("constraint chi2 too large", fmt.Sprintf("constraint chi2 %s far above its degrees of freedom: the data fit no stationary state of these terms well (a term missing from the template, systematic errors, or a non-stationary state)", fmtG3(d.Chi2)))
 	}
 	if d.Weak {
-		warnings = append(warnings, fmt.Sprintf("weak signal: a resolved direction has a standard error of %s of the unit direction; error bars may be too small (seeded repetitions at beta x max|coeff| = 0.1 gave pull rms 2.2)", fmtG3(maxResolvedStdErr(d))))
+		problem("weak signal", fmt.Sprintf("weak signal: a resolved direction has a standard error of %s of the unit direction; the direction error is not in its linear regime and error bars may be too small (seeded repetitions at beta x max|coeff| = 0.1 gave pull rms 2.2): use more shots", fmtG3(maxResolvedStdErr(d))))
 	}
 	if d.Dropped > 0 {
-		warnings = append(warnings, fmt.Sprintf("%d of %d constraints left out: their correlators have no data (measure in the bases of --bases covering:3)", d.Dropped, d.Dropped+d.Rows))
+		run.warnings = append(run.warnings, fmt.Sprintf("%d of %d constraints left out: %s", d.Dropped, d.Dropped+d.Rows, missingStringsMessage(sys, est)))
 	}
 	g := stationary.Gauge{Calibrated: cal}
 	source := ""
@@ -179,27 +274,65 @@ func runFitStationary(env *runEnv, tmpl *model.Model, beta float64) error {
 		g.Beta = beta
 		g.Evaluate, source, err = stationaryEvaluator(tmpl)
 		if err != nil {
-			return err
+			return nil, err
 		}
 	}
 	res, err := stationary.Fix(sys, est, d, g, stationary.Options{})
 	if err != nil {
-		return err
+		return nil, err
 	}
-	warnings = append(warnings, res.Warnings...)
-	if res.Match != nil {
-		if res.Match.NotThermal() {
-			warnings = append(warnings, fmt.Sprintf("the thermal match fails (chi2 %.4g for %d dof): no Gibbs state of the learned direction at beta %s reproduces the data; the state may be stationary but not thermal, or beta is wrong",
-				res.Match.Chi2, res.Match.DOF, fmtFloat(beta)))
+	run.res = res
+	for _, w := range res.Warnings {
+		problem("error bars not computed", w)
+	}
+	if m := res.Match; m != nil {
+		dof := max(m.DOF, 1)
+		switch {
+		case m.NotThermal() && m.Inconclusive():
+			problem("thermal match inconclusive", fmt.Sprintf("the thermal match at beta %s has chi2 %.4g for %d dof, but the time budget let only %d of the learned direction's error directions be propagated into it, so this does not show that the state is not thermal; the direction may be wrong by more than its error bars",
+				fmtFloat(beta), m.Chi2Direction, m.DOF, m.DirectionRank))
+		case m.NotThermal():
+			problem("thermal match fails", fmt.Sprintf("the thermal match fails (chi2 %.4g for %d dof, the learned direction's noise included): no Gibbs state of the learned direction at beta %s reproduces the data: the learned direction may be wrong by more than its error bars (too little signal for these shots; the error bars are scaled up for it), the state may be stationary but not thermal, beta may be wrong, or the template lacks a term",
+				m.Chi2Direction, m.DOF, fmtFloat(beta)))
+		case m.DirectionRank == 0 && m.Chi2 > 3*float64(dof):
+			problem("thermal match unchecked", fmt.Sprintf("the thermal match has chi2 %.4g for %d dof counting shot noise only (the direction's noise could not be propagated), so its consistency is unchecked", m.Chi2, m.DOF))
 		}
 		if source != "" && !strings.HasPrefix(source, "exact") {
-			warnings = append(warnings, "the thermal match uses "+source+"; its convergence is not checked here, so the scale is only as good as the expansion at this temperature")
+			run.warnings = append(run.warnings, "the thermal match uses "+source+"; its convergence is not checked here, so the scale is only as good as the expansion at this temperature")
+		}
+	}
+	if res.ErrorScale > 1.5 {
+		run.warnings = append(run.warnings, fmt.Sprintf("error bars scaled up by %s = sqrt(chi2/dof) of the thermal match: the data and the learned direction agree less well than their noise says", fmtG3(res.ErrorScale)))
+	}
+	for q, se := range res.StdErr {
+		if math.IsNaN(se) || math.IsInf(se, 0) {
+			problem("error bars not finite", fmt.Sprintf("the error bar of %s is not finite: the direction error cannot be bounded", sys.Params().Names[q]))
+			break
 		}
 	}
 	for _, inv := range d.Invisible {
-		warnings = append(warnings, "invisible direction: "+inv.Name)
+		if strings.HasPrefix(inv.Name, "not resolved") {
+			problem("unresolved direction", "invisible direction: "+inv.Name+"; fixed only by "+res.Fixed)
+			continue
+		}
+		run.warnings = append(run.warnings, "invisible direction: "+inv.Name)
 	}
+	return run, nil
+}
+
+// writeStationary prints the scale, the comparison with --truth and the
+// warnings, and writes the learned model.
+func writeStationary(env *runEnv, tmpl *model.Model, beta float64, run *stationaryRun) error {
+	o := fitOptions
+	sys, d, res, warnings := run.sys, run.d, run.res, run.warnings
 	fmt.Fprintf(env.Stderr, "fit: scale fixed by %s\n", res.Fixed)
+	if res.ErrorScale > 1 {
+		fmt.Fprintf(env.Stderr, "fit: error bars scaled by %s = sqrt(chi2/dof) of the thermal match\n", fmtG3(res.ErrorScale))
+	}
+	if m := res.Match; m != nil && m.DirectionRank > 0 {
+		fmt.Fprintf(env.Stderr, "fit: thermal consistency: chi2 %s for %d dof with the learned direction's noise propagated (%d error directions, %.0f%% of its variance); %s counting shot noise only\n",
+			fmtG3(m.Chi2Direction), m.DOF, m.DirectionRank, 100*m.DirectionShare, fmtG3(m.Chi2))
+	}
 	if o.truth != "" {
 		truth, err := model.ReadFile(o.truth)
 		if err != nil {
@@ -217,7 +350,7 @@ func runFitStationary(env *runEnv, tmpl *model.Model, beta float64) error {
 	for k := range terms {
 		terms[k].Coeff = res.Lambda[k]
 		se := res.StdErr[p.Of[k]]
-		terms[k].Stderr, terms[k].HasStderr = se, !math.IsNaN(se)
+		terms[k].Stderr, terms[k].HasStderr = se, !math.IsNaN(se) && !math.IsInf(se, 0)
 		terms[k].Significant = nil
 		if math.IsNaN(terms[k].Coeff) || math.IsInf(terms[k].Coeff, 0) {
 			return fmt.Errorf("term %s: coefficient %v is not finite", terms[k].Key(), terms[k].Coeff)
@@ -226,14 +359,19 @@ func runFitStationary(env *runEnv, tmpl *model.Model, beta float64) error {
 	rep := stationaryReport{
 		Method: "stationary", Source: "Bairey, Arad, Lindner, PRL 122, 020504 (2019)", Data: o.data,
 		Constraints: d.Rows, LeftOut: d.Dropped, Chi2: d.Chi2, Spectrum: d.Spectrum, Fixed: res.Fixed,
+		FarPairs: sys.FarPairs, Checks: len(run.problems) == 0, ErrorScale: res.ErrorScale,
 		Warnings: append([]string{}, warnings...), Invisible: []string{},
 	}
 	for _, inv := range d.Invisible {
 		rep.Invisible = append(rep.Invisible, inv.Name)
 	}
-	if res.Match != nil {
-		c := res.Match.Chi2
-		rep.MatchChi2, rep.MatchDOF, rep.NotThermal = &c, res.Match.DOF, res.Match.NotThermal()
+	if m := res.Match; m != nil {
+		c := m.Chi2
+		rep.MatchChi2, rep.MatchDOF, rep.NotThermal = &c, m.DOF, m.NotThermal() && !m.Inconclusive()
+		if m.DirectionRank > 0 {
+			cd := m.Chi2Direction
+			rep.MatchChi2Direction = &cd
+		}
 	}
 	raw, err := json.Marshal(rep)
 	if err != nil {
@@ -256,6 +394,33 @@ func runFitStationary(env *runEnv, tmpl *model.Model, beta float64) error {
 		return writeCSVResult(env, o.out, o.csv, meta, func(w io.Writer) error { return stationaryWriteCSV(w, terms) })
 	}
 	return writeOutput(env, o.out, func(w io.Writer) error { return model.Write(w, m) })
+}
+
+// missingStringsMessage says which correlators the constraints need but
+// the data lack, and which bases provide them.
+func missingStringsMessage(sys *stationary.System, est *fit.Estimates) string {
+	const show = 4
+	var names []string
+	threeLocal := false
+	for _, j := range est.Missing {
+		s := sys.Strings[j]
+		if len(s.Sites) >= 3 {
+			threeLocal = true
+		}
+		if len(names) < show {
+			names = append(names, s.Key())
+		}
+	}
+	more := ""
+	if len(est.Missing) > show {
+		more = fmt.Sprintf(" and %d more", len(est.Missing)-show)
+	}
+	kind := "correlators"
+	if threeLocal {
+		kind = "correlators (among them 3-local ones)"
+	}
+	return fmt.Sprintf("the data have no values for %d of the %d %s the constraints need (%s%s); snapshots in the bases of 'warmfit sample --bases covering:3' measure all of them ('--bases covering' measures only the terms), or give a table that lists them",
+		len(est.Missing), len(sys.Strings), kind, strings.Join(names, ", "), more)
 }
 
 // stationaryWriteCSV writes pauli,sites,coeff,stderr (the report's

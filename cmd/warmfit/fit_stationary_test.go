@@ -71,3 +71,67 @@ func TestFitMethodStationary(t *testing.T) {
 		t.Errorf("--method bogus: exit %d, want 2", code)
 	}
 }
+
+// TestFitStationaryMissingCorrelators: snapshots in the plain covering
+// bases measure the terms but not the correlators of the stationarity
+// constraints; fit says which strings are missing and which --bases
+// scheme provides them (review finding 5).
+func TestFitStationaryMissingCorrelators(t *testing.T) {
+	dir := t.TempDir()
+	truth := filepath.Join(dir, "truth.json")
+	shots := filepath.Join(dir, "shots.csv")
+	for _, s := range [][]string{
+		{"model", "--lattice", "chain:6", "--preset", "tfim", "--set", "J=1,hx=0.8,hz=0.3", "--beta", "0.7", "-o", truth},
+		{"sample", "--model", truth, "--shots", "2000", "--bases", "covering", "--seed", "3", "-o", shots},
+	} {
+		if code, _, stderr := runCmd(s...); code != 0 {
+			t.Fatalf("%v: exit %d\n%s", s, code, stderr)
+		}
+	}
+	code, _, stderr := runCmd("fit", "--model", truth, "--data", shots, "--method", "stationary", "-o", filepath.Join(dir, "out.json"))
+	if code != 1 {
+		t.Errorf("exit %d, want 1\n%s", code, stderr)
+	}
+	for _, want := range []string{"the data have no values for", "3-local", "--bases covering:3", " more)"} {
+		if !strings.Contains(stderr, want) {
+			t.Errorf("stderr lacks %q:\n%s", want, stderr)
+		}
+	}
+}
+
+// TestFitAutoPrefersExactExpansion: on a lattice small enough for the
+// expansion to cover it whole, --method auto keeps the expansion (exact
+// at the lattice's order) and says why, instead of the stationarity
+// method whose errors are larger (review finding 1: order 9 on the 3x3
+// model, largest error 0.0037 against 0.1).
+func TestFitAutoPrefersExactExpansion(t *testing.T) {
+	dir := t.TempDir()
+	truth := filepath.Join(dir, "truth.json")
+	shots := filepath.Join(dir, "shots.csv")
+	out := filepath.Join(dir, "out.json")
+	for _, s := range [][]string{
+		{"model", "--lattice", "chain:6", "--preset", "xxz", "--set", "Jxy=0.4,Jz=0.3,hz=0.2,hx=0.1", "--disorder", "0.1", "--seed", "3", "--beta", "1", "-o", truth},
+		{"sample", "--model", truth, "--shots", "20000", "--bases", "covering:3", "--seed", "5", "-o", shots},
+	} {
+		if code, _, stderr := runCmd(s...); code != 0 {
+			t.Fatalf("%v: exit %d\n%s", s, code, stderr)
+		}
+	}
+	code, _, stderr := runCmd("fit", "--model", truth, "--data", shots, "--method", "auto", "--max-order", "4", "-o", out)
+	if code != 0 {
+		t.Fatalf("exit %d\n%s", code, stderr)
+	}
+	if !strings.Contains(stderr, "method auto chose the expansion: order 6 covers all 6 sites") {
+		t.Errorf("auto did not keep the exact expansion:\n%s", stderr)
+	}
+	m, err := model.ReadFile(out)
+	if err != nil {
+		t.Fatal(err)
+	}
+	var rep struct {
+		Method string `json:"method"`
+	}
+	if err := json.Unmarshal(m.Fit, &rep); err != nil || rep.Method == "stationary" {
+		t.Errorf("report %s: %v", m.Fit, err)
+	}
+}

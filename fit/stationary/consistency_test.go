@@ -50,7 +50,11 @@ func TestNonThermalStationaryState(t *testing.T) {
 		if err != nil {
 			t.Fatal(err)
 		}
-		t.Logf("%s: direction error %.4g, consistency chi2/dof %.4g (%d dof)", c.name, e, m.Chi2/float64(m.DOF), m.DOF)
+		t.Logf("%s: direction error %.4g, consistency chi2/dof %.4g, with the direction's noise %.4g (%d dof, %d error directions)",
+			c.name, e, m.Chi2/float64(m.DOF), m.Chi2Direction/float64(m.DOF), m.DOF, m.DirectionRank)
+		if m.DirectionRank == 0 {
+			t.Errorf("%s: the direction's noise was not propagated", c.name)
+		}
 		if e > 0.05 {
 			t.Errorf("%s: direction error %g", c.name, e)
 		}

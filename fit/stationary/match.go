@@ -4,6 +4,7 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"time"
 
 	"gonum.org/v1/gonum/floats"
 	"gonum.org/v1/gonum/mat"
@@ -24,9 +25,31 @@ type ThermalMatch struct {
 	DOF, Terms  int
 	Evaluations int
 
+	// Chi2Direction is Chi2 with the noise of the learned direction
+	// added to that of the data (directionNoise; zero when not computed):
+	// a direction off by its error bars moves the expectations of the
+	// Gibbs state by much more than their shot noise, so Chi2 alone
+	// rejects thermal data. DirectionRank is the number of error
+	// directions propagated.
+	Chi2Direction float64
+	DirectionRank int
+	// DirectionShare is the share of the direction's variance that the
+	// propagated error directions carry (1 when all of it).
+	DirectionShare float64
+
 	a    []float64
 	tCov *mat.SymDense
 	null [][]float64
+	// For directionNoise: the terms used, their standard errors, the
+	// whitened residuals and Jacobian (d model / d t) at the optimum.
+	use      []int
+	stderr   []float64
+	z        []float64
+	jac      [][]float64
+	evaluate Evaluator
+	evalTime time.Duration // spent in evaluate
+	// directionComplete: every error direction was propagated.
+	directionComplete bool
 }
 
 // thermalMatch minimises the chi² of the term expectations over the free
@@ -60,7 +83,9 @@ func thermalMatch(sys *System, est *fit.Estimates, g Gauge, aPart []float64, nul
 		return lam
 	}
 	resid := func(t []float64) ([]float64, error) {
+		start := time.Now()
 		f, err := g.Evaluate(lambdaOf(t), g.Beta)
+		m.evalTime += time.Since(start)
 		m.Evaluations++
 		if err != nil {
 			return nil, err
@@ -150,6 +175,11 @@ func thermalMatch(sys *System, est *fit.Estimates, g Gauge, aPart []float64, nul
 		}
 	}
 	m.a, m.Chi2 = aOf(t), chi2
+	m.use, m.z, m.jac, m.evaluate = use, z, jac, g.Evaluate
+	m.stderr = make([]float64, len(use))
+	for i, k := range use {
+		m.stderr[i] = est.Stderr[sys.TermString[k]]
+	}
 	// Covariance of t: (J^T J)^{-1} in stderr units.
 	jtj := mat.NewSymDense(nt, nil)
 	for i := range nt {

@@ -147,8 +147,21 @@ func (res *Result) errorBars(sys *System, est *fit.Estimates, calRows []int, bas
 			floats.AddScaled(dirs[j], nv[i], b)
 		}
 	}
+	// The direction's own noise moves the matched multipliers too
+	// (directionNoise): its largest error directions are replaced by
+	// their correlated versions.
+	var g, vs [][]float64
+	var sig []float64
+	if m.evaluate != nil {
+		if g, vs, sig, err = m.directionNoise(sys, theta, &cov, dirs); err != nil {
+			return fmt.Errorf("direction noise through the thermal match: %w", err)
+		}
+	}
 	for p := range np {
 		v := cov.At(p, p)
+		for j := range g {
+			v += g[j][p]*g[j][p] - sig[j]*sig[j]*vs[j][p]*vs[j][p]
+		}
 		for i := range dirs {
 			for j := range dirs {
 				v += dirs[i][p] * m.tCov.At(i, j) * dirs[j][p]
