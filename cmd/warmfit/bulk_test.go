@@ -83,7 +83,7 @@ func TestBulkFitsFileAndRefusesColdData(t *testing.T) {
 	}
 	warm := write("warm.csv", 30, 300)
 	curves := filepath.Join(dir, "curves.csv")
-	code, out, stderr := runCapture("bulk", "--start", "J=3meV", "--fix", "chi0=0", "--fix", "rho=0", "--curves", curves, warm)
+	code, out, stderr := runCapture("bulk", "--order", "10", "--start", "J=3meV", "--fix", "chi0=0", "--fix", "rho=0", "--curves", curves, warm)
 	if code != exitOK {
 		t.Fatalf("exit %d: %s", code, stderr)
 	}
@@ -117,7 +117,7 @@ func TestBulkFitsFileAndRefusesColdData(t *testing.T) {
 		t.Errorf("curves CSV header: %.80q, %v", head, err)
 	}
 	cold := write("cold.csv", 1, 8)
-	code, _, stderr = runCapture("bulk", "--start", "J=40K", cold)
+	code, _, stderr = runCapture("bulk", "--order", "10", "--start", "J=40K", cold)
 	if code != exitFailure || !strings.Contains(stderr, "lowest usable temperature") {
 		t.Errorf("cold data: exit %d, stderr %q", code, stderr)
 	}
