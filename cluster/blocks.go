@@ -198,6 +198,37 @@ func (bk *blocks) setup(h *Hamiltonian, sym Symmetry) (*Hamiltonian, error) {
 	return hf, nil
 }
 
+// blockSquares returns the sum over the sectors of sym on nq qubits of
+// the square of their dimensions (the size of the eigenvector blocks).
+func blockSquares(nq int, sym Symmetry) float64 {
+	switch sym.sectorKind() {
+	case byPopcount:
+		var w, binom float64 = 0, 1
+		for k := 0; k <= nq; k++ {
+			w += binom * binom
+			binom = binom * float64(nq-k) / float64(k+1)
+		}
+		return w
+	case byParity:
+		if nq == 0 {
+			return 1
+		}
+		return 2 * math.Pow(4, float64(nq-1))
+	}
+	return math.Pow(4, float64(nq))
+}
+
+// blockCount returns the number of sectors of sym on nq qubits.
+func blockCount(nq int, sym Symmetry) float64 {
+	switch sym.sectorKind() {
+	case byPopcount:
+		return float64(nq + 1)
+	case byParity:
+		return 2
+	}
+	return 1
+}
+
 // blockWork returns the cost of diagonalising nq qubits with the blocks
 // of sym, in units of one dense D^3 = 8^nq: the sum over sectors of the
 // cube of their dimensions.

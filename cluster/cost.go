@@ -3,6 +3,7 @@ package cluster
 import (
 	"fmt"
 	"math"
+	"strings"
 	"time"
 )
 
@@ -19,11 +20,40 @@ import (
 // 2-core machine.
 const DefaultMaxWork = 3e12
 
-// SecondsPerWorkUnit is the measured wall time per unit of work with two
-// workers on the reference 2-core machine (20x20 square lattice, order 6,
-// 1.8e10 units in 21 s). Predictions quote it; decisions that must be
-// reproducible use work units, never wall time.
-const SecondsPerWorkUnit = 1.2e-9
+// The calibration of the reference machine, a 2-core x86-64 machine with
+// two workers: wall seconds on a quiet machine, measured as CPU time per
+// core under shared load (BenchmarkCostCalibration in
+// cost_calibration_test.go prints predicted against measured for the
+// README tour, the demo and the issue benchmarks). A cluster costs
+//
+//	SecondsPerWorkUnit * sum_b d_b^3                 (the eigensolver)
+//	+ secondsPerTermSquare * m * sum_b d_b^2         (expectations of its m terms)
+//	+ secondsPerCluster + secondsPerBlock * blocks   (enumeration, set-up)
+//
+// over its symmetry blocks b of dimension d_b, the middle part twice for
+// complex Hermitian clusters, and everything responseFactor times when the
+// response matrix is accumulated. Predictions quote these constants;
+// decisions that must be reproducible use work units, never wall time.
+const (
+	// SecondsPerWorkUnit is the wall time per unit of work (one D^3 of
+	// the eigensolver): 2.0e-9 CPU seconds per core on the 6x6 tour
+	// model at orders 6 and 7, real and parity-blocked alike.
+	SecondsPerWorkUnit = 1.0e-9
+	// secondsPerTermSquare is the wall time per term and squared block
+	// dimension for the expectation values of a real cluster.
+	secondsPerTermSquare = 0.385e-9
+	// complexTermFactor multiplies it for complex Hermitian clusters
+	// (every two-site Pauli product, measured 1.57 against 0.77 ns).
+	complexTermFactor = 2
+	// secondsPerCluster is the fixed cost of one cluster,
+	// secondsPerBlock that of each of its symmetry blocks (measured on
+	// U(1) clusters, whose s+1 small blocks are dominated by it).
+	secondsPerCluster = 2.9e-6
+	secondsPerBlock   = 1.1e-6
+	// responseFactor is the cost of an evaluation with the Kubo-Mori
+	// response against one without (measured 4.3 to 4.5 at orders 3-6).
+	responseFactor = 4.5
+)
 
 // EstimateWork returns the expected number of clusters and the work of an
 // evaluation at the given order, from lattice.EstimateClusterSizes, with
@@ -49,10 +79,65 @@ func (e *Expansion) estimateWork(order int, sym Symmetry) (clusters int64, work 
 	return int64(math.Round(total)), work
 }
 
-// PredictDuration is the expected wall time of work units on the
-// reference machine.
+// PredictDuration is the expected wall time of the eigensolver part of
+// work units on the reference machine; PredictEvaluation adds the costs
+// that do not scale as D^3 and is the better prediction of a whole
+// evaluation.
 func PredictDuration(work float64) time.Duration {
-	return time.Duration(work * SecondsPerWorkUnit * float64(time.Second))
+	return seconds(work * SecondsPerWorkUnit)
+}
+
+// PredictEvaluation is the expected wall time of Evaluate at the given
+// order on the reference machine with two workers, with or without the
+// response, in the blocks of the Symmetry the model has with the
+// coefficients its terms carry. Fits cost several evaluations with the
+// response.
+func (e *Expansion) PredictEvaluation(order int, response bool) time.Duration {
+	coeffs := make([]float64, len(e.terms))
+	for k, t := range e.terms {
+		coeffs[k] = t.Coeff
+	}
+	return e.predict(order, e.Symmetry(coeffs), response)
+}
+
+// predict is PredictEvaluation in the blocks of sym.
+func (e *Expansion) predict(order int, sym Symmetry, response bool) time.Duration {
+	// Terms per cluster of s sites: the one-site terms of s sites and the
+	// longer ones of about s-1 bonds (most clusters are tree-like).
+	var single, multi float64
+	complexTerms := false
+	for _, t := range e.terms {
+		if len(t.Sites) == 1 {
+			single++
+		} else {
+			multi++
+		}
+		complexTerms = complexTerms || strings.Count(t.Pauli, "Y")%2 == 1
+	}
+	perSite := single / float64(e.lat.NumSites())
+	perBond := 0.0
+	if nb := len(e.lat.InteractionBonds()); nb > 0 {
+		perBond = multi / float64(nb)
+	}
+	termCost := secondsPerTermSquare
+	if complexTerms {
+		termCost *= complexTermFactor
+	}
+	var total float64
+	for i, c := range e.lat.EstimateClusterSizes(order) {
+		s := i + 1
+		m := perSite*float64(s) + perBond*float64(s-1)
+		total += c * (SecondsPerWorkUnit*blockWork(s, sym) + termCost*m*blockSquares(s, sym) +
+			secondsPerCluster + secondsPerBlock*blockCount(s, sym))
+	}
+	if response {
+		total *= responseFactor
+	}
+	return seconds(total)
+}
+
+func seconds(s float64) time.Duration {
+	return time.Duration(math.Min(s, 1e9) * float64(time.Second))
 }
 
 // checkWork refuses an evaluation at order L in the blocks of sym whose
@@ -67,7 +152,7 @@ func (e *Expansion) checkWork(L int, maxWork float64, sym Symmetry) error {
 		return nil
 	}
 	return fmt.Errorf("expansion order %d on %d sites: about %d clusters, roughly %s on a 2-core machine (%.3g units of work, over the limit %.3g); lower the order",
-		L, e.lat.NumSites(), nc, describeDuration(PredictDuration(work)), work, maxWork)
+		L, e.lat.NumSites(), nc, describeDuration(e.predict(L, sym, false)), work, maxWork)
 }
 
 // describeDuration writes a duration the way a person estimates one:
@@ -82,3 +167,4 @@ func describeDuration(d time.Duration) string {
 		return fmt.Sprintf("%.3g h", s/3600)
 	}
 }
+

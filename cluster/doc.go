@@ -50,6 +50,14 @@
 // non-conserving operators (XX and YY under TotalZ) meet in the pairs of
 // sectors both connect.
 //
+// Expansion.Evaluate with Options.Response sums the clusters' responses
+// into a sparse matrix (Result.Response); Options.ResponseOrder takes it
+// at a lower order than the expectations in the same pass, which a fitter
+// uses as a cheap curvature (the Kubo–Mori sums of the largest clusters
+// cost about four times their diagonalisation). The sum runs in a dense
+// matrix per worker and block (response_acc.go) in a fixed order, so it is
+// bit-identical for any number of workers.
+//
 // Where no eigenvector is needed, Levels computes the eigenvalues alone,
 // sector by sector (tridiagonal reduction without accumulated
 // transformations, then a root-free QL), with the label of each level's

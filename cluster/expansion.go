@@ -92,8 +92,14 @@ type Options struct {
 	// Order is the largest cluster size L (sites).
 	Order int
 	// Response also accumulates the sparse matrix d<E_k>/d lambda_j at
-	// the highest order.
+	// order ResponseOrder.
 	Response bool
+	// ResponseOrder is the order of the response when Response is set:
+	// 0 means Order; otherwise it must lie in 1..Order. Clusters larger
+	// than it skip the Kubo–Mori sums, so a lower order costs little on
+	// top of the expectations at Order: a fitter takes the exact
+	// gradient at Order and a cheaper curvature from one evaluation.
+	ResponseOrder int
 	// Workers bounds the parallelism; <= 0 means GOMAXPROCS. Results do
 	// not depend on it.
 	Workers int
@@ -132,8 +138,10 @@ type Result struct {
 	HeatCapacity []float64
 	// Expect[o][k] is <E_k> summed to order o+1.
 	Expect [][]float64
-	// Response is d<E_k>/d lambda_j at the highest order, when requested.
-	Response *SparseSym
+	// Response is d<E_k>/d lambda_j at order ResponseOrder, when
+	// requested.
+	Response      *SparseSym
+	ResponseOrder int
 }
 
 // LogZTotal returns log Z (with the 2^N) at the highest order.
@@ -160,17 +168,27 @@ func (e *Expansion) Evaluate(coeffs []float64, beta float64, opt Options) (*Resu
 	if err != nil {
 		return nil, err
 	}
+	respOrder := 0 // no response
+	if opt.Response {
+		respOrder = L
+		if opt.ResponseOrder != 0 {
+			if opt.ResponseOrder < 1 || opt.ResponseOrder > L {
+				return nil, fmt.Errorf("response order %d: must lie in 1..%d (the expansion order)", opt.ResponseOrder, L)
+			}
+			respOrder = opt.ResponseOrder
+		}
+	}
 	blocks := e.lat.AnchorBlocks()
 	accs := make([]*blockAcc, len(blocks))
 	err = e.runBlocks(blocks, workers, opt.Progress, func(w *clusterWork, b int) error {
-		acc, err := e.evaluateBlock(w, blocks[b], coeffs, beta, L, opt.Response, sym)
+		acc, err := e.evaluateBlock(w, blocks[b], coeffs, beta, L, respOrder, sym)
 		accs[b] = acc
 		return err
 	})
 	if err != nil {
 		return nil, err
 	}
-	r := e.merge(accs, L, beta, opt.Response)
+	r := e.merge(accs, L, beta, respOrder)
 	r.Symmetry = sym
 	return r, nil
 }
@@ -241,7 +259,7 @@ type blockAcc struct {
 	energy   []float64
 	heat     []float64
 	clusters []int64
-	resp     map[uint64]float64
+	resp     []respEntry // the response entries, sorted within each hand-over
 }
 
 func (a *blockAcc) grow(hi int) {
@@ -265,6 +283,7 @@ type clusterWork struct {
 	vals   []float64
 	resp   []float64
 	mult   []float64
+	lresp  *localResponse // the response of the current block
 }
 
 func newClusterWork(n int) *clusterWork {
@@ -275,7 +294,9 @@ func newClusterWork(n int) *clusterWork {
 	return w
 }
 
-func (e *Expansion) evaluateBlock(w *clusterWork, block [2]int, coeffs []float64, beta float64, L int, wantResp bool, sym Symmetry) (*blockAcc, error) {
+// evaluateBlock sums the clusters anchored in block; respOrder > 0 also
+// sums the response at that order.
+func (e *Expansion) evaluateBlock(w *clusterWork, block [2]int, coeffs []float64, beta float64, L, respOrder int, sym Symmetry) (*blockAcc, error) {
 	acc := &blockAcc{
 		lo:       int(e.bySite[block[0]]),
 		expect:   make([][]float64, L),
@@ -284,16 +305,23 @@ func (e *Expansion) evaluateBlock(w *clusterWork, block [2]int, coeffs []float64
 		heat:     make([]float64, L),
 		clusters: make([]int64, L),
 	}
-	if wantResp {
-		acc.resp = make(map[uint64]float64)
+	if respOrder > 0 {
+		if w.lresp == nil {
+			w.lresp = newLocalResponse(len(e.terms))
+		}
+		var discard []respEntry
+		w.lresp.flush(&discard) // left over by a block that failed
 	}
 	err := e.eachBlockCluster(w, block, coeffs, L, func(c *clusterView) error {
 		acc.clusters[c.size-1]++
 		if len(c.pos) == 0 {
 			return nil
 		}
-		return e.addCluster(w, acc, c, beta, L, wantResp, sym)
+		return e.addCluster(w, acc, c, beta, L, respOrder, sym)
 	})
+	if respOrder > 0 {
+		w.lresp.flush(&acc.resp)
+	}
 	return acc, err
 }
 
@@ -370,8 +398,9 @@ func (e *Expansion) loadCluster(w *clusterWork, sites []int, coeffs []float64) {
 }
 
 // addCluster diagonalises one cluster in the blocks of sym and adds its
-// multiplied properties to every order from its size up to L.
-func (e *Expansion) addCluster(w *clusterWork, acc *blockAcc, c *clusterView, beta float64, L int, wantResp bool, sym Symmetry) error {
+// multiplied properties to every order from its size up to L, and its
+// response to order respOrder (none when 0).
+func (e *Expansion) addCluster(w *clusterWork, acc *blockAcc, c *clusterView, beta float64, L, respOrder int, sym Symmetry) error {
 	size := c.size
 	if err := w.spec.FactorizeWith(&w.ham, sym); err != nil {
 		return fmt.Errorf("cluster %v: %v", c.sites, err)
@@ -407,8 +436,8 @@ func (e *Expansion) addCluster(w *clusterWork, acc *blockAcc, c *clusterView, be
 			ex[int(p)-acc.lo] += m * w.vals[i]
 		}
 	}
-	if wantResp {
-		m := c.mult[L-size]
+	if respOrder >= size {
+		m := c.mult[respOrder-size]
 		if m != 0 {
 			nt := len(w.pos)
 			if cap(w.resp) < nt*nt {
@@ -416,15 +445,7 @@ func (e *Expansion) addCluster(w *clusterWork, acc *blockAcc, c *clusterView, be
 			}
 			w.resp = w.resp[:nt*nt]
 			th.Response(w.ham.Ops, w.resp)
-			for a := 0; a < nt; a++ {
-				for b := a; b < nt; b++ {
-					pa, pb := w.pos[a], w.pos[b]
-					if pa > pb {
-						pa, pb = pb, pa
-					}
-					acc.resp[uint64(pa)<<32|uint64(pb)] += m * w.resp[a*nt+b]
-				}
-			}
+			w.lresp.add(w.pos, w.resp, m, &acc.resp)
 		}
 	}
 	return nil
@@ -473,7 +494,7 @@ func multipliers(dst []float64, size, perimeter, L int) []float64 {
 }
 
 // merge adds the block accumulators in block order.
-func (e *Expansion) merge(accs []*blockAcc, L int, beta float64, wantResp bool) *Result {
+func (e *Expansion) merge(accs []*blockAcc, L int, beta float64, respOrder int) *Result {
 	K := len(e.terms)
 	r := &Result{
 		Order:        L,
@@ -489,10 +510,6 @@ func (e *Expansion) merge(accs []*blockAcc, L int, beta float64, wantResp bool) 
 	for o := range bySorted {
 		bySorted[o] = make([]float64, K)
 	}
-	var resp map[uint64]float64
-	if wantResp {
-		resp = make(map[uint64]float64)
-	}
 	for _, a := range accs {
 		for o := 0; o < L; o++ {
 			r.Clusters[o] += a.clusters[o]
@@ -503,10 +520,6 @@ func (e *Expansion) merge(accs []*blockAcc, L int, beta float64, wantResp bool) 
 				bySorted[o][a.lo+i] += v
 			}
 		}
-		// Map order is random, but each key's sum runs in block order.
-		for key, v := range a.resp {
-			resp[key] += v
-		}
 	}
 	for o := 0; o < L; o++ {
 		r.Expect[o] = make([]float64, K)
@@ -514,8 +527,13 @@ func (e *Expansion) merge(accs []*blockAcc, L int, beta float64, wantResp bool) 
 			r.Expect[o][k] = bySorted[o][p]
 		}
 	}
-	if wantResp {
-		r.Response = newSparseSymFromPairs(K, resp, e.sorted)
+	if respOrder > 0 {
+		entries := make([][]respEntry, len(accs))
+		for b, a := range accs {
+			entries[b] = a.resp
+		}
+		r.Response = mergeResponse(K, entries, e.sorted)
+		r.ResponseOrder = respOrder
 	}
 	return r
 }

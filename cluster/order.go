@@ -24,6 +24,16 @@ type OrderPolicy struct {
 	// Budget, when positive, stops the rise once the predicted time of
 	// the next order exceeds what is left of it.
 	Budget time.Duration
+	// Clock reads the time for the Budget; nil means time.Now. Without a
+	// Budget the clock is never read: the choice cannot depend on it.
+	Clock func() time.Time
+}
+
+func (p OrderPolicy) now() time.Time {
+	if p.Clock != nil {
+		return p.Clock()
+	}
+	return time.Now()
 }
 
 // DefaultAutoWork is the automatic choice's work limit per evaluation:
@@ -62,7 +72,7 @@ func (p OrderPolicy) Allows(e *Expansion, L int) (bool, string) {
 	}
 	if _, work := e.EstimateWork(L); p.MaxWork > 0 && work > p.MaxWork {
 		return false, fmt.Sprintf("order %d would cost %.3g units of work (about %s on a 2-core machine), above the automatic limit %.3g (set --order %d to go further)",
-			L, work, describeDuration(PredictDuration(work)), p.MaxWork, L)
+			L, work, describeDuration(e.PredictEvaluation(L, false)), p.MaxWork, L)
 	}
 	return true, ""
 }
@@ -85,7 +95,10 @@ type OrderChoice struct {
 // Result.TermConvergence) and p allows the next order. It returns the
 // last evaluation. opt.Order is ignored.
 func (e *Expansion) ChooseOrder(coeffs []float64, beta, tol float64, p OrderPolicy, opt Options) (*Result, OrderChoice, error) {
-	t0 := time.Now()
+	var t0 time.Time
+	if p.Budget > 0 {
+		t0 = p.now()
+	}
 	var (
 		prev   *Result
 		choice OrderChoice
@@ -117,8 +130,7 @@ func (e *Expansion) ChooseOrder(coeffs []float64, beta, tol float64, p OrderPoli
 			return res, choice, nil
 		}
 		if p.Budget > 0 {
-			_, work := e.EstimateWork(L + 1)
-			if need, left := PredictDuration(work), p.Budget-time.Since(t0); need > left {
+			if need, left := e.PredictEvaluation(L+1, opt.Response), p.Budget-p.now().Sub(t0); need > left {
 				choice.Reason = fmt.Sprintf("%d values are still untrusted at order %d; order %d would take about %s, more than the %s left of the time budget (this stop depends on the machine)",
 					untrusted, L, L+1, describeDuration(need), describeDuration(max(left, 0)))
 				choice.ByBudget = true

@@ -75,3 +75,45 @@ func TestChooseOrderStopsByWorkAndBudget(t *testing.T) {
 		t.Errorf("budget choice %+v", c)
 	}
 }
+
+// The automatic order rests on the series and the work estimate only: a
+// clock running a thousand times slow (each reading an hour later) gives
+// the same order as the real one when no Budget is set, and the clock is
+// not even read; with a Budget it stops the rise and says that the stop
+// depends on the machine (common practice for reproducible defaults).
+func TestChooseOrderIndependentOfClock(t *testing.T) {
+	l := mustLattice(t, "square:5x5")
+	terms := transverseIsingTerms(l, 1)
+	exp, err := cluster.NewExpansion(l, terms)
+	if err != nil {
+		t.Fatal(err)
+	}
+	coeffs := coeffsOf(terms)
+	p := cluster.NewOrderPolicy(l, terms)
+	_, p.MaxWork = exp.EstimateWork(6)
+	_, quick, err := exp.ChooseOrder(coeffs, 0.4, 1e-5, p, cluster.Options{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	reads := 0
+	fake := time.Date(2026, 1, 1, 0, 0, 0, 0, time.UTC)
+	p.Clock = func() time.Time { reads++; fake = fake.Add(time.Hour); return fake }
+	_, slow, err := exp.ChooseOrder(coeffs, 0.4, 1e-5, p, cluster.Options{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if slow.Order != quick.Order || slow.Reason != quick.Reason || slow.ByBudget || reads != 0 {
+		t.Errorf("slow clock: order %d (%s), real clock: order %d (%s); clock read %d times", slow.Order, slow.Reason, quick.Order, quick.Reason, reads)
+	}
+	if quick.Order <= p.Start {
+		t.Fatalf("the test needs a rise: order %d from start %d (%s)", quick.Order, p.Start, quick.Reason)
+	}
+	p.Budget = 10 * time.Minute
+	_, guarded, err := exp.ChooseOrder(coeffs, 0.4, 1e-5, p, cluster.Options{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if guarded.Order != p.Start || !guarded.ByBudget || !strings.Contains(guarded.Reason, "depends on the machine") {
+		t.Errorf("budget with a slow clock: %+v", guarded)
+	}
+}

@@ -42,39 +42,16 @@ func (s *SparseSym) Diag() []float64 {
 	return d
 }
 
+// Dim returns the number of rows (and columns).
+func (s *SparseSym) Dim() int { return s.N }
+
+// DoRow calls fn for every stored element of row i, in increasing column
+// order.
+func (s *SparseSym) DoRow(i int, fn func(j int, v float64)) {
+	for p := s.RowPtr[i]; p < s.RowPtr[i+1]; p++ {
+		fn(int(s.Col[p]), s.Val[p])
+	}
+}
+
 // NNZ returns the number of stored elements.
 func (s *SparseSym) NNZ() int { return len(s.Val) }
-
-// newSparseSymFromPairs builds the matrix from upper-triangle entries keyed
-// by (position a)<<32 | (position b), a <= b, positions into sorted (which
-// maps a position to the caller's index).
-func newSparseSymFromPairs(n int, pairs map[uint64]float64, sorted []int32) *SparseSym {
-	type entry struct {
-		i, j int32
-		v    float64
-	}
-	entries := make([]entry, 0, 2*len(pairs))
-	for key, v := range pairs {
-		i, j := sorted[key>>32], sorted[key&0xffffffff]
-		entries = append(entries, entry{i, j, v})
-		if i != j {
-			entries = append(entries, entry{j, i, v})
-		}
-	}
-	sort.Slice(entries, func(a, b int) bool {
-		if entries[a].i != entries[b].i {
-			return entries[a].i < entries[b].i
-		}
-		return entries[a].j < entries[b].j
-	})
-	s := &SparseSym{N: n, RowPtr: make([]int, n+1), Col: make([]int32, len(entries)), Val: make([]float64, len(entries))}
-	for p, e := range entries {
-		s.RowPtr[e.i+1]++
-		s.Col[p] = e.j
-		s.Val[p] = e.v
-	}
-	for i := 0; i < n; i++ {
-		s.RowPtr[i+1] += s.RowPtr[i]
-	}
-	return s
-}

@@ -425,13 +425,18 @@ func ShotsPerTerm(bases []string, shotsPerBasis int64, terms []lattice.Term) []i
 }
 
 // SchemeBases turns a measurement-scheme name into product bases for
-// terms on n qubits: "covering" (CoveringBases) or "random:K" (K random
-// bases, RandomBases with seed). It also returns a description of the
-// scheme for reports.
+// terms on n qubits: "covering" (CoveringBases), "covering:3" (covering
+// bases for the terms and every Pauli string on connected sets of up to
+// three sites, LocalStrings: what the stationarity method of
+// fit/stationary needs) or "random:K" (K random bases, RandomBases with
+// seed). It also returns a description of the scheme for reports.
 func SchemeBases(scheme string, n int, terms []lattice.Term, seed uint64) ([]string, string, error) {
 	switch {
 	case scheme == "covering":
 		b, err := CoveringBases(n, terms)
+		return b, scheme, err
+	case scheme == "covering:3":
+		b, err := localCoveringBases(n, terms, 3)
 		return b, scheme, err
 	case strings.HasPrefix(scheme, "random:"):
 		k, err := strconv.Atoi(strings.TrimPrefix(scheme, "random:"))
@@ -444,7 +449,7 @@ func SchemeBases(scheme string, n int, terms []lattice.Term, seed uint64) ([]str
 		}
 		return RandomBases(n, k, seed), fmt.Sprintf("%s (seed %d)", scheme, seed), nil
 	}
-	return nil, "", fmt.Errorf("bases %q: want covering or random:K", scheme)
+	return nil, "", fmt.Errorf("bases %q: want covering, covering:3 or random:K", scheme)
 }
 
 // MaxBasisLetters bounds random:K before anything is allocated: K bases

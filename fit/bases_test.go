@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"math"
 	"reflect"
+	"slices"
 	"strings"
 	"testing"
 
@@ -209,5 +210,40 @@ func TestShotsPerTerm(t *testing.T) {
 	got := ShotsPerTerm(bases, 100, terms)
 	if fmt.Sprint(got) != "[100 200 100 100]" {
 		t.Errorf("got %v", got)
+	}
+}
+
+// TestLocalCoveringBases checks the covering:3 scheme: every Pauli
+// string on every connected set of up to three sites is served (checked
+// by brute force with Serves), and a three-site set asking all 27 letter
+// strings needs at least 27 bases (one string per basis on a site set;
+// counting argument as in CoveringLowerBound, common practice).
+func TestLocalCoveringBases(t *testing.T) {
+	for _, spec := range []string{"chain:12", "square:3x4"} {
+		l, err := lattice.Open(spec)
+		if err != nil {
+			t.Fatal(err)
+		}
+		var terms []lattice.Term
+		for _, b := range l.NN {
+			terms = append(terms, lattice.Term{Pauli: "ZZ", Sites: []int{b.I, b.J}})
+		}
+		bases, desc, err := SchemeBases("covering:3", l.NumSites(), terms, 1)
+		if err != nil || desc != "covering:3" {
+			t.Fatalf("%s: %v %q", spec, err, desc)
+		}
+		strs, err := LocalStrings(l.NumSites(), terms, 3)
+		if err != nil {
+			t.Fatal(err)
+		}
+		for _, s := range strs {
+			if !slices.ContainsFunc(bases, func(b string) bool { return Serves(b, s) }) {
+				t.Fatalf("%s: %s not served", spec, s.Key())
+			}
+		}
+		if len(bases) < 27 {
+			t.Errorf("%s: %d bases, below the lower bound 27", spec, len(bases))
+		}
+		t.Logf("%s: %d strings, %d bases", spec, len(strs), len(bases))
 	}
 }

@@ -84,7 +84,7 @@ func EstimatesFromTable(t *Table, terms []lattice.Term, allowMissing []int) (est
 		}
 		est.Cov.Set(k, k, est.Stderr[k]*est.Stderr[k])
 	}
-	if err := est.markMissing(terms, absent, allowMissing, func(int) string { return "not in the table" }); err != nil {
+	if err := est.markMissing(terms, absent, allowMissing, func(int) string { return "not in the table" }, "add rows for them to the table"); err != nil {
 		return nil, nil, err
 	}
 	for i, u := range used {
@@ -107,7 +107,7 @@ func newEstimates(n int) *Estimates {
 // markMissing sets the estimates of terms without data to NaN, or
 // returns an error listing the first ten such terms not allowed to be
 // missing, with why(k) saying what is wrong with term k.
-func (e *Estimates) markMissing(terms []lattice.Term, absent, allowMissing []int, why func(k int) string) error {
+func (e *Estimates) markMissing(terms []lattice.Term, absent, allowMissing []int, why func(k int) string, remedy string) error {
 	allowed := make(map[int]bool, len(allowMissing))
 	for _, k := range allowMissing {
 		allowed[k] = true
@@ -128,13 +128,39 @@ func (e *Estimates) markMissing(terms []lattice.Term, absent, allowMissing []int
 		if len(bad) > show {
 			msg += fmt.Sprintf("; and %d more", len(bad)-show)
 		}
-		return fmt.Errorf("%d of %d terms have no usable data: %s; measure them, drop them from the template, or give each a group shared with measured terms so the fit determines them through it", len(bad), len(terms), msg)
+		return fmt.Errorf("%d of %d terms (%s) have no usable data: %s. What to do: %s; or drop them from the template; or give each a \"group\" shared with measured terms, so that the fit determines them through it",
+			len(bad), len(terms), countByPauli(terms, bad), msg, remedy)
 	}
 	for _, k := range absent {
 		e.Values[k], e.Stderr[k], e.Shots[k] = math.NaN(), math.NaN(), 0
 	}
 	e.Missing = absent
 	return nil
+}
+
+// countByPauli says which kinds of term the listed ones are ("12 YY, 9 Y"),
+// longer strings first: a whole kind missing usually means a basis is.
+func countByPauli(terms []lattice.Term, list []int) string {
+	count := map[string]int{}
+	var order []string
+	for _, k := range list {
+		p := terms[k].Pauli
+		if count[p] == 0 {
+			order = append(order, p)
+		}
+		count[p]++
+	}
+	slices.SortStableFunc(order, func(a, b string) int {
+		if len(a) != len(b) {
+			return len(b) - len(a)
+		}
+		return strings.Compare(a, b)
+	})
+	parts := make([]string, len(order))
+	for i, p := range order {
+		parts[i] = fmt.Sprintf("%d %s", count[p], p)
+	}
+	return strings.Join(parts, ", ")
 }
 
 // DataSummary describes data read by LoadEstimates, for reports.
@@ -167,6 +193,11 @@ func LoadEstimates(path string, lat *lattice.Lattice, terms []lattice.Term, opt 
 	if kind == KindTable {
 		t, err := ReadTableFile(path)
 		if err != nil {
+			return nil, nil, err
+		}
+		// A site beyond the lattice is a mistake whatever else is wrong,
+		// and it explains terms "without data": say it first.
+		if err := sitesBeyondError(path, lat, t); err != nil {
 			return nil, nil, err
 		}
 		index := t.Index()
@@ -228,6 +259,42 @@ func GroupedMissing(terms []lattice.Term, hasData func(k int) bool) []int {
 		}
 	}
 	return allow
+}
+
+// sitesBeyondError names the first table row with a site beyond the
+// lattice, by file, line and field, with the lattice's size; nil when
+// every row fits.
+func sitesBeyondError(path string, lat *lattice.Lattice, t *Table) error {
+	n := lat.NumSites()
+	var lines []int
+	first := -1
+	for i, r := range t.Rows {
+		if r.Sites[len(r.Sites)-1] >= n {
+			if first < 0 {
+				first = i
+			}
+			lines = append(lines, r.Line)
+		}
+	}
+	if first < 0 {
+		return nil
+	}
+	r := t.Rows[first]
+	msg := fmt.Sprintf("term %s: site %d is beyond the lattice %s of the template, which has %d sites (0..%d)", r.Key(), r.Sites[len(r.Sites)-1], lat.Spec, n, n-1)
+	if len(lines) > 1 {
+		const show = 10
+		list := make([]string, 0, show)
+		for _, l := range lines[1:min(len(lines), show+1)] {
+			list = append(list, fmt.Sprint(l))
+		}
+		more := ""
+		if len(lines)-1 > show {
+			more = fmt.Sprintf(" and %d more", len(lines)-1-show)
+		}
+		msg += fmt.Sprintf("; %d more rows lie beyond it (lines %s%s)", len(lines)-1, strings.Join(list, ", "), more)
+	}
+	msg += "; the data may belong to a larger lattice than the template's (check --model), or the site numbers are off"
+	return dataErrorf(displayName(path), r.Line, "sites", "%s", msg)
 }
 
 // unusedRowsError names, with their lines, the first table rows that

@@ -1,6 +1,7 @@
 package fit
 
 import (
+	"errors"
 	"fmt"
 	"math"
 	"os"
@@ -40,7 +41,7 @@ func TestLoadEstimatesTable(t *testing.T) {
 		t.Errorf("missing %v", est.Missing)
 	}
 	_, _, err = LoadEstimates("../testdata/data/chain3_table.csv", chain, terms, CovarianceOptions{})
-	if err == nil || !strings.Contains(err.Error(), "chain3_table.csv: 1 of 6 terms have no usable data: Y 0 (not in the table); measure them") {
+	if err == nil || !strings.Contains(err.Error(), "chain3_table.csv: 1 of 6 terms (1 Y) have no usable data: Y 0 (not in the table). What to do: add rows for them to the table") {
 		t.Errorf("missing term: %v", err)
 	}
 	// Rows the template lacks are an error naming their lines (common
@@ -50,9 +51,14 @@ func TestLoadEstimatesTable(t *testing.T) {
 		!strings.Contains(err.Error(), "line 3: Z 0 is not a term of the template") || !strings.Contains(err.Error(), "line 6: ZZ 0 1") {
 		t.Errorf("unused rows: %v", err)
 	}
-	// A site beyond the lattice says so and gives the lattice's size.
+	// A site beyond the lattice says so, by file, line and field, gives
+	// the lattice's size, and comes before the terms it leaves without
+	// data.
 	_, _, err = LoadEstimates("../testdata/data/chain3_table.csv", mustLattice(t, "chain:2"), []lattice.Term{mustTerm(t, "Z", 0)}, CovarianceOptions{})
-	if err == nil || !strings.Contains(err.Error(), "site 2 is beyond the lattice chain:2, which has 2 sites (0..1)") {
+	var de *DataError
+	if !errors.As(err, &de) || de.Line != 5 || de.Field != "sites" ||
+		!strings.Contains(err.Error(), `chain3_table.csv:5: field "sites": term X 2: site 2 is beyond the lattice chain:2 of the template, which has 2 sites (0..1)`) ||
+		!strings.Contains(err.Error(), "1 more rows lie beyond it (lines 7)") {
 		t.Errorf("beyond the lattice: %v", err)
 	}
 }

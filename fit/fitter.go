@@ -96,6 +96,9 @@ type Options struct {
 	// solves already win at 3080 parameters (20x20 lattice: 2.6 s against
 	// 4.0 s for dense).
 	DenseLimit int
+	// Curvature chooses the response Newton steps and error bars use;
+	// the zero value is CurvatureAuto.
+	Curvature Curvature
 	// Log, when set, receives one line per step of progress (orders,
 	// Newton iterations, timings).
 	Log func(format string, args ...any)
@@ -151,6 +154,9 @@ type fitter struct {
 	exact   bool       // every stderr is zero
 	minL    int        // smallest order holding every term
 	sites   int
+	// evaluations and iterations count the expansion evaluations and
+	// Newton iterations of every order fitted.
+	evaluations, iterations int
 	// measured[k] is false for a term without data (Data.Missing); nil
 	// when every term has data. With unmeasured terms the fit matches
 	// moments on the measured members (moments.go).
@@ -239,7 +245,7 @@ func newFitter(p *Problem, opt Options) (*fitter, error) {
 		if p.Data.Cov.Dim() != K {
 			return nil, fmt.Errorf("data covariance of dimension %d for %d terms", p.Data.Cov.Dim(), K)
 		}
-		f.cov = covMatrix{p.Data.Cov}
+		f.cov = p.Data.Cov
 	}
 	b := f.params.project(f.cov, 1)
 	f.sigma = make([]float64, f.params.NumParams())
@@ -321,11 +327,12 @@ func (f *fitter) startingPoint() []float64 {
 	return theta
 }
 
-// evaluator returns the expansion at order L as an evaluator.
-func (f *fitter) evaluator(L int) evaluator {
+// evaluator returns the expansion at order L as an evaluator whose
+// response, when asked for, is of order respOrder.
+func (f *fitter) evaluator(L, respOrder int) evaluator {
 	return func(lambda []float64, response bool) (*thermalEval, error) {
 		res, err := f.exp.Evaluate(lambda, f.beta, cluster.Options{
-			Order: L, Response: response, Workers: f.opt.Workers, MaxWork: f.opt.MaxWork, Progress: f.opt.Progress,
+			Order: L, Response: response, ResponseOrder: respOrder, Workers: f.opt.Workers, MaxWork: f.opt.MaxWork, Progress: f.opt.Progress,
 		})
 		if err != nil {
 			return nil, err
@@ -335,7 +342,7 @@ func (f *fitter) evaluator(L int) evaluator {
 			if res.Response == nil {
 				return nil, errors.New("expansion returned no response")
 			}
-			ev.response = responseMatrix{res.Response}
+			ev.response = res.Response
 		}
 		return ev, nil
 	}
@@ -346,6 +353,23 @@ type orderFit struct {
 	order   int
 	out     *newtonOutcome
 	elapsed time.Duration
+}
+
+// newtonProblem sets up the minimisation at order L with the curvature
+// Options.Curvature chooses.
+func (f *fitter) newtonProblem(L int, deadline time.Time) *newtonProblem {
+	c := f.curvatureOrder(L)
+	np := &newtonProblem{
+		params: f.params, beta: f.beta, values: f.values, sigma: f.sigma,
+		tol: f.opt.Tol, absTol: f.opt.AbsTol, maxIter: f.opt.MaxIter, maxStep: f.opt.MaxStep,
+		eval: f.evaluator(L, c), deadline: deadline, measured: f.measured,
+		order: L, curvatureOrder: c,
+	}
+	if c < L {
+		np.exactEval = f.evaluator(L, L)
+		np.reuse = f.measured == nil
+	}
+	return np
 }
 
 func (f *fitter) fitOrder(L int, theta0 []float64) (*orderFit, error) {
@@ -365,12 +389,9 @@ func (f *fitter) fitOrderUntil(L int, theta0 []float64, deadline time.Time, from
 		return nil, fmt.Errorf("order %d: clusters above %d sites are beyond dense diagonalisation", L, cluster.MaxDenseQubits)
 	}
 	t0 := time.Now()
-	np := &newtonProblem{
-		params: f.params, beta: f.beta, values: f.values, sigma: f.sigma,
-		tol: f.opt.Tol, absTol: f.opt.AbsTol, maxIter: f.opt.MaxIter, maxStep: f.opt.MaxStep,
-		eval: f.evaluator(L), deadline: deadline, measured: f.measured,
-	}
-	if fromOtherOrder {
+	np := f.newtonProblem(L, deadline)
+	if fromOtherOrder && f.measured == nil {
+		// (Moment matching stops as soon as the residual is small.)
 		np.minIter = 1
 	}
 	if f.opt.Log != nil {
@@ -384,6 +405,8 @@ func (f *fitter) fitOrderUntil(L int, theta0 []float64, deadline time.Time, from
 	if err != nil {
 		return nil, fmt.Errorf("order %d: %v", L, err)
 	}
+	f.evaluations += out.evaluations
+	f.iterations += out.iterations
 	of := &orderFit{order: L, out: out, elapsed: time.Since(t0)}
 	status := "converged"
 	if !out.converged {
@@ -397,25 +420,46 @@ func (f *fitter) fitOrderUntil(L int, theta0 []float64, deadline time.Time, from
 // the expansion equals the exact log Z.
 func (f *fitter) exactOrder(L int) bool { return L >= f.sites }
 
-// fixedOrder fits at order L, then refits at L-1 and L-2 from the solution
-// to measure the truncation error.
+// fixedOrder fits at order L. Unless SkipTruncation, the orders L-2 and
+// L-1 are fitted first, each from the solution below it: they measure the
+// truncation error, and each hands the next a start whose gradient is
+// small enough for the lower-order curvature to finish in a few steps
+// (with SkipTruncation, only L-1 and only for that).
+// Only an unbroken run of converged orders ending at L enters the
+// truncation estimate.
 func (f *fitter) fixedOrder(L int, theta0 []float64) (*Result, error) {
-	main, err := f.fitOrder(L, theta0)
-	if err != nil {
-		return nil, err
+	var lower []*orderFit
+	theta := theta0
+	first := max(f.minL, L-2)
+	if f.opt.SkipTruncation {
+		// No truncation estimate, but a start for the lower-order
+		// curvature: the order-(L-1) solution, at a tenth of the cost.
+		first = L
+		if f.curvatureOrder(L) < L {
+			first = L - 1
+		}
 	}
-	history := []*orderFit{main}
-	if main.out.converged && !f.exactOrder(L) && !f.opt.SkipTruncation {
-		for low := L - 1; low >= max(f.minL, L-2); low-- {
-			lf, err := f.fitOrderUntil(low, main.out.state.theta, time.Time{}, true)
+	if !f.exactOrder(L) {
+		for low := first; low < L; low++ {
+			lf, err := f.fitOrderUntil(low, theta, time.Time{}, len(lower) > 0)
 			if err != nil {
 				return nil, err
 			}
 			if !lf.out.converged {
-				break
+				lower = lower[:0]
+				continue
 			}
-			history = append([]*orderFit{lf}, history...)
+			lower = append(lower, lf)
+			theta = lf.out.state.theta
 		}
+	}
+	main, err := f.fitOrderUntil(L, theta, time.Time{}, len(lower) > 0)
+	if err != nil {
+		return nil, err
+	}
+	history := []*orderFit{main}
+	if main.out.converged && !f.opt.SkipTruncation {
+		history = append(lower, main)
 	}
 	return f.finish(main, history, nil)
 }
@@ -465,7 +509,7 @@ func (f *fitter) autoOrder(theta0 []float64, start time.Time) (*Result, error) {
 				statErr = f.statisticalScale(of)
 			}
 			tr := f.truncation(history, statErr)
-			f.opt.logf("order %d: truncation error %s against target %.3g", L, fmtMaybe(tr.Error, tr.Known), tr.Target)
+			f.opt.logf("order %d: truncation error %s against target %.3g (this order took %s)", L, fmtMaybe(tr.Error, tr.Known), tr.Target, of.elapsed.Round(10*time.Millisecond))
 			if tr.Known && tr.OK {
 				break
 			}
@@ -487,12 +531,17 @@ func (f *fitter) autoOrder(theta0 []float64, start time.Time) (*Result, error) {
 		}
 		// The budget guards the wall time; the prediction scales the
 		// measured time of this order by the work ratio, so it depends on
-		// the machine, and the note says so.
+		// the machine, and the note says so. The next order starts from
+		// this order's solution and so needs about as many evaluations as
+		// this one did (at least 2: a step and its check). A floor of 4
+		// predicted twice the measured time of order 6 on the README's
+		// 6x6 tour, which then stopped at order 5.
 		_, wNow := f.exp.EstimateWork(L)
 		_, wNext := f.exp.EstimateWork(L + 1)
 		evals := max(of.out.evaluations, 1)
 		perEval := float64(of.elapsed) / float64(evals)
-		predicted := time.Duration(perEval * float64(max(evals, 4)) * wNext / math.Max(wNow, 1))
+		predicted := time.Duration(perEval * float64(max(evals, 2)) * wNext / math.Max(wNow, 1))
+		f.opt.logf("order %d: predicted to take about %s (from order %d's %s)", L+1, predicted.Round(10*time.Millisecond), L, of.elapsed.Round(10*time.Millisecond))
 		if rest := f.opt.Budget - time.Since(start); predicted > rest {
 			notes = append(notes, fmt.Sprintf("stopped at order %d by the time budget: order %d would take about %s, more than the %s left of --budget (this stop depends on the machine's speed)",
 				L, L+1, predicted.Round(time.Second), rest.Round(time.Second)))

@@ -61,9 +61,19 @@ func TestFitUnmeasuredGroupedTermsExact(t *testing.T) {
 	// ZZ bonds 0 (edge) and 3; X fields on sites 0, 4 and 7 (terms 7+i).
 	drop := []int{0, 3, 7, 11, 14}
 	dropTerms(est, drop)
-	res, err := fit.Fit(&fit.Problem{Lattice: lat, Terms: template(truth), Data: est, Beta: beta}, fit.Options{Order: 8})
+	prob := &fit.Problem{Lattice: lat, Terms: template(truth), Data: est, Beta: beta}
+	res, err := fit.Fit(prob, fit.Options{Order: 8})
 	if err != nil {
 		t.Fatal(err)
+	}
+	// The order-7 Jacobian as curvature (used on large lattices) reaches
+	// the same answer.
+	lower, err := fit.Fit(prob, fit.Options{Order: 8, Curvature: fit.CurvatureLower})
+	if err != nil || !lower.Converged {
+		t.Fatalf("order-7 curvature: %v %+v", err, lower)
+	}
+	if e := maxError(lower, truth); e > 1e-8 {
+		t.Errorf("order-7 curvature: max coefficient error %.3g, want <= 1e-8", e)
 	}
 	if !res.Converged {
 		t.Fatalf("not converged: %s", res.Reason)

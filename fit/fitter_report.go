@@ -22,15 +22,23 @@ type Report struct {
 	OrderMode     string   `json:"order_selection"` // "fixed" or "auto"
 	Beta          float64  `json:"beta"`
 	BetaKnown     bool     `json:"beta_known"`
-	CoeffMeaning  string   `json:"coefficients"` // "lambda" or "beta*lambda"
-	Terms         int      `json:"terms"`
-	Parameters    int      `json:"parameters"`
-	DataKind      string   `json:"data,omitempty"`
-	DataFile      string   `json:"data_file,omitempty"`
-	ExactData     bool     `json:"exact_data"`
+	// BetaSource says where Beta comes from: "given", "energy scale"
+	// (recovered by ScaleEnergy; see EnergyScale) or "unknown" (Beta is
+	// 1 by convention and the coefficients are beta*lambda).
+	BetaSource   string             `json:"beta_source"`
+	EnergyScale  *ReportEnergyScale `json:"energy_scale,omitempty"`
+	CoeffMeaning string             `json:"coefficients"` // "lambda" or "beta*lambda"
+	Terms        int                `json:"terms"`
+	Parameters   int                `json:"parameters"`
+	DataKind     string             `json:"data,omitempty"`
+	DataFile     string             `json:"data_file,omitempty"`
+	ExactData    bool               `json:"exact_data"`
 	// Unmeasured counts terms without data fitted through their group.
 	Unmeasured  int    `json:"unmeasured_terms,omitempty"`
 	ErrorMethod string `json:"error_bars,omitempty"`
+	// ResponseOrder is the order of the response the error bars use
+	// (the fit's order, or one less when the exact one was too costly).
+	ResponseOrder int `json:"error_bars_response_order,omitempty"`
 
 	Truncation   ReportTruncation    `json:"truncation"`
 	Chi2         *ReportChi2         `json:"chi2,omitempty"`
@@ -42,6 +50,19 @@ type Report struct {
 	Warnings       []string `json:"warnings"`
 	Notes          []string `json:"notes,omitempty"`
 	ElapsedSeconds float64  `json:"elapsed_seconds"`
+}
+
+// ReportEnergyScale is an EnergyScale in the report.
+type ReportEnergyScale struct {
+	From       string   `json:"from"` // the calibration, as a person writes it
+	Term       string   `json:"term,omitempty"`
+	Value      float64  `json:"value,omitempty"`
+	Beta       float64  `json:"beta"`
+	BetaStderr *float64 `json:"beta_stderr,omitempty"`
+	Method     string   `json:"method"`
+	// TrueBeta and BetaPull compare beta with the truth's (with --truth).
+	TrueBeta *float64 `json:"true_beta,omitempty"`
+	BetaPull *float64 `json:"beta_pull,omitempty"`
 }
 
 // ReportTruncation is Truncation in the report.
@@ -97,17 +118,24 @@ type ReportSignificance struct {
 
 // ReportTruth is a TruthComparison in the report.
 type ReportTruth struct {
-	File        string   `json:"file,omitempty"`
-	L2          float64  `json:"l2"`
-	Linf        float64  `json:"linf"`
-	WorstTerm   string   `json:"worst_term,omitempty"`
-	MaxAbsZ     *float64 `json:"max_abs_z,omitempty"`
-	RMSZ        *float64 `json:"rms_z,omitempty"`
-	Missing     int      `json:"missing_terms"`
-	MissingLinf float64  `json:"missing_linf,omitempty"`
-	// Z holds the per-term z-scores (fit - truth)/stderr in the order of
-	// the terms; null where the stderr is zero.
-	Z []*float64 `json:"z_scores,omitempty"`
+	File string  `json:"file,omitempty"`
+	L2   float64 `json:"l2"`
+	Linf float64 `json:"linf"`
+	// LargestErrorTerm has the largest |fit - truth| (Linf),
+	// LargestPullTerm the largest |z| (MaxAbsZ).
+	LargestErrorTerm string   `json:"largest_error_term,omitempty"`
+	LargestPullTerm  string   `json:"largest_pull_term,omitempty"`
+	MaxAbsZ          *float64 `json:"max_abs_z,omitempty"`
+	RMSZ             *float64 `json:"rms_z,omitempty"`
+	Missing          int      `json:"missing_terms"`
+	MissingLinf      float64  `json:"missing_linf,omitempty"`
+	// Z holds the z-scores (fit - truth)/stderr keyed by term
+	// (lattice.TermKey, as "ZZ 0 1"); null where the stderr is zero.
+	Z map[string]*float64 `json:"z_scores,omitempty"`
+	// Scale is the factor the true coefficients were multiplied by
+	// before the comparison (the truth's beta when the fit learnt
+	// beta*lambda), omitted when 1.
+	Scale float64 `json:"truth_scale,omitempty"`
 }
 
 func finitePtr(v float64) *float64 {
@@ -139,11 +167,20 @@ func NewReport(r *Result, mode, dataKind, dataFile string, tol float64) *Report 
 		ExactData:     r.Exact,
 		Unmeasured:    len(r.Unmeasured),
 		ErrorMethod:   r.ErrorMethod,
+		ResponseOrder: r.ResponseOrder,
 		Warnings:      append([]string{}, r.Warnings...),
 		Notes:         r.Notes,
 	}
 	rep.ElapsedSeconds = math.Round(r.Elapsed.Seconds()*1000) / 1000
-	if !r.BetaKnown {
+	rep.BetaSource = "given"
+	if es := r.EnergyScale; es != nil {
+		rep.BetaSource = "energy scale"
+		rep.EnergyScale = &ReportEnergyScale{
+			From: es.Calibration.String(), Term: es.Calibration.Term, Value: es.Calibration.Value,
+			Beta: es.Beta, BetaStderr: finitePtr(es.BetaStderr), Method: es.Method,
+		}
+	} else if !r.BetaKnown {
+		rep.BetaSource = "unknown"
 		rep.CoeffMeaning = "beta*lambda"
 	}
 	if r.Exact {
@@ -200,15 +237,21 @@ func NewReport(r *Result, mode, dataKind, dataFile string, tol float64) *Report 
 // SetTruth adds a comparison with the true model to the report.
 func (rep *Report) SetTruth(c *TruthComparison, r *Result, file string) {
 	t := &ReportTruth{File: file, L2: c.L2, Linf: c.Linf, Missing: c.Missing, MissingLinf: c.MissingLinf}
-	if c.WorstTerm >= 0 {
-		t.WorstTerm = r.Terms[c.WorstTerm].Key()
+	if c.Scale != 1 {
+		t.Scale = c.Scale
+	}
+	if c.LargestErrorTerm >= 0 {
+		t.LargestErrorTerm = r.Terms[c.LargestErrorTerm].Key()
+	}
+	if c.LargestPullTerm >= 0 {
+		t.LargestPullTerm = r.Terms[c.LargestPullTerm].Key()
 	}
 	if c.RMSZ > 0 {
 		t.MaxAbsZ = finitePtr(c.MaxAbsZ)
 		t.RMSZ = finitePtr(c.RMSZ)
-		t.Z = make([]*float64, len(c.Z))
+		t.Z = make(map[string]*float64, len(c.Z))
 		for k, z := range c.Z {
-			t.Z[k] = finitePtr(z)
+			t.Z[r.Terms[k].Key()] = finitePtr(z)
 		}
 	}
 	rep.Truth = t

@@ -30,6 +30,10 @@ type Result struct {
 	// are the products beta*lambda.
 	Beta      float64
 	BetaKnown bool
+	// EnergyScale is set by ScaleEnergy, which fixes the scale of a fit
+	// of beta*lambda after the fact; Beta is then the recovered beta and
+	// the coefficients are lambda (CoefficientsAreLambda).
+	EnergyScale *EnergyScale
 	// Order is the expansion order of the answer.
 	Order int
 
@@ -53,7 +57,11 @@ type Result struct {
 	// ErrorMethod says how the error bars were computed ("" when they
 	// were not).
 	ErrorMethod string
-	Truncation  Truncation
+	// ResponseOrder is the expansion order of the response R the error
+	// bars use: Order, or Order-1 when the exact response was too
+	// expensive to evaluate (Options.Curvature); 0 without error bars.
+	ResponseOrder int
+	Truncation    Truncation
 	// Chi2 and Dof: goodness of fit of tied parameters (diagonal
 	// approximation); Dof is 0 when the fit is not over-determined.
 	Chi2   float64
@@ -75,7 +83,14 @@ type Result struct {
 	Warnings []string // things that could make the result mislead
 	Notes    []string // other facts worth knowing
 	Elapsed  time.Duration
+
+	// covColumn gives columns of Cov(Theta) (nil without error bars);
+	// ScaleEnergy needs the covariance of the calibrated parameter.
+	covColumn covColumnFunc
 }
+
+// betaUnknownNote is the note of a fit without beta.
+const betaUnknownNote = "beta not given: the coefficients are the products beta*lambda, reported with beta = 1"
 
 // exactSeriesTol is the tolerance on the expectation series for exact
 // data (there is no data noise to compare with).
@@ -103,14 +118,7 @@ func (f *fitter) finish(main *orderFit, history []*orderFit, notes []string) (*R
 		Exact:         f.exact,
 		Notes:         append([]string(nil), notes...),
 	}
-	for _, h := range history {
-		r.Evaluations += h.out.evaluations
-		r.TotalIterations += h.out.iterations
-	}
-	if !containsFit(history, main) {
-		r.Evaluations += out.evaluations
-		r.TotalIterations += out.iterations
-	}
+	r.Evaluations, r.TotalIterations = f.evaluations, f.iterations
 	r.Notes = append(r.Notes, out.notes...)
 	if note := f.unmeasuredNote(); note != "" {
 		r.Notes = append(r.Notes, note)
@@ -122,30 +130,37 @@ func (f *fitter) finish(main *orderFit, history []*orderFit, notes []string) (*R
 	}
 	dataStderr, seriesStderr := f.termStderr()
 	if !r.BetaKnown {
-		r.Notes = append(r.Notes, "beta not given: the coefficients are the products beta*lambda, reported with beta = 1")
+		r.Notes = append(r.Notes, betaUnknownNote)
 	}
 
 	// Error bars, only at a solution: the delta method linearises there.
 	if r.Converged && !f.exact {
 		t0 := time.Now()
-		se, method, err := f.paramStderr(out)
+		se, method, err := f.paramStderrAt(main)
+		usedCov := f.cov
 		if errors.Is(err, errCovarianceNotPSD) {
 			if _, diagonal := f.cov.(diagMatrix); !diagonal {
 				// An estimated covariance with dropped pairs need not be
 				// positive semidefinite; the variances alone always are.
 				r.Warnings = append(r.Warnings, "the estimated data covariance is not positive semidefinite here; error bars use the variances only (correlations between estimates ignored)")
-				se, method, err = f.paramStderrWith(out, diagMatrix(f.varDiag))
+				usedCov = diagMatrix(f.varDiag)
+				se, method, err = f.paramStderrWith(out, usedCov)
 			}
 		}
 		f.opt.logf("error bars of %d parameters (%s): %.2fs", f.params.NumParams(), method, time.Since(t0).Seconds())
 		if err != nil {
 			r.Warnings = append(r.Warnings, "error bars not available: "+err.Error())
 		} else {
-			r.ThetaStderr, r.ErrorMethod = se, method
+			r.ThetaStderr, r.ErrorMethod, r.ResponseOrder = se, method, out.responseOrder
+			r.covColumn = f.covColumn(out, usedCov)
+			if out.responseOrder < main.order {
+				r.Notes = append(r.Notes, fmt.Sprintf("error bars use the response at order %d, not %d (its evaluation costs several forward passes at this size; the difference is the truncation of the response series, under 1%% in the tests where the expansion converges, 1.4%% for tied parameters)", out.responseOrder, main.order))
+			}
 		}
 	} else if r.Converged && f.exact {
 		r.ThetaStderr = make([]float64, f.params.NumParams())
 		r.ErrorMethod = "exact data"
+		r.covColumn = func(int) ([]float64, error) { return make([]float64, f.params.NumParams()), nil }
 	}
 
 	r.Terms = make([]lattice.Term, K)
@@ -208,15 +223,6 @@ func (f *fitter) finish(main *orderFit, history []*orderFit, notes []string) (*R
 	}
 	f.addWarnings(r)
 	return r, nil
-}
-
-func containsFit(h []*orderFit, x *orderFit) bool {
-	for _, y := range h {
-		if y == x {
-			return true
-		}
-	}
-	return false
 }
 
 // addWarnings states plainly everything that could make the numbers

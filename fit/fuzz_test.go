@@ -7,6 +7,7 @@ import (
 	"testing"
 
 	"warmfit/fit"
+	"warmfit/lattice"
 )
 
 // Whatever bytes arrive, ReadTable must return a table or an error, never
@@ -72,6 +73,56 @@ func FuzzScanSnapshots(f *testing.F) {
 		})
 		if err != nil && !strings.Contains(err.Error(), "fuzz.csv") {
 			t.Errorf("error does not name the file: %v", err)
+		}
+	})
+}
+
+// A --bases scheme of any spelling on any small system: an error, or
+// bases of one letter X, Y or Z per qubit, within MaxBasisLetters in all,
+// and (covering schemes) serving every term; the same seed gives the
+// same bases (reproducibility: common practice).
+func FuzzSchemeBases(f *testing.F) {
+	for _, s := range []string{"covering", "covering:3", "random:5", "random:0", "random:-1", "random:1000000000", "random:", "covering:2", "x"} {
+		f.Add(s, uint8(4), uint64(1))
+	}
+	f.Fuzz(func(t *testing.T, scheme string, size uint8, seed uint64) {
+		n := int(size%12) + 2
+		var terms []lattice.Term
+		for i := 0; i+1 < n; i++ {
+			terms = append(terms, lattice.Term{Pauli: "ZZ", Sites: []int{i, i + 1}, Coeff: 1}, lattice.Term{Pauli: "XX", Sites: []int{i, i + 1}, Coeff: 1})
+		}
+		bases, desc, err := fit.SchemeBases(scheme, n, terms, seed)
+		if err != nil {
+			if !strings.Contains(err.Error(), "bases") {
+				t.Errorf("error does not name the flag's subject: %v", err)
+			}
+			return
+		}
+		if desc == "" {
+			t.Error("no description")
+		}
+		if int64(len(bases))*int64(n) > fit.MaxBasisLetters {
+			t.Fatalf("%d bases of %d letters, above MaxBasisLetters", len(bases), n)
+		}
+		for _, b := range bases {
+			if len(b) != n || strings.Trim(b, "XYZ") != "" {
+				t.Fatalf("basis %q for %d qubits", b, n)
+			}
+		}
+		if strings.HasPrefix(scheme, "covering") {
+			for _, term := range terms {
+				served := false
+				for _, b := range bases {
+					served = served || fit.Serves(b, term)
+				}
+				if !served {
+					t.Fatalf("%s misses %s", scheme, term.Key())
+				}
+			}
+		}
+		again, _, _ := fit.SchemeBases(scheme, n, terms, seed)
+		if strings.Join(again, ",") != strings.Join(bases, ",") {
+			t.Fatal("the same seed gave other bases")
 		}
 	})
 }

@@ -6,7 +6,6 @@ import (
 	"math"
 	"slices"
 	"strings"
-	"time"
 
 	"gonum.org/v1/gonum/mat"
 )
@@ -132,7 +131,7 @@ func (np *newtonProblem) momentJacobian(s *newtonState) *mat.Dense {
 			if !np.measured[k] {
 				continue
 			}
-			s.ev.response.doRow(k, func(c int, v float64) {
+			s.ev.response.DoRow(k, func(c int, v float64) {
 				row[np.params.Of[c]] -= v
 			})
 		}
@@ -164,103 +163,76 @@ func weightedNorm2(w, r []float64) float64 {
 	return s
 }
 
-// matchMoments solves r(theta) = 0 by damped Newton from theta0: each
-// step solves J d = -r by LU and backtracks on phi = ||r||_W^2 until
-// phi(t) <= (1 - 2 c t) phi(0) (Armijo on phi, whose slope along the
-// Newton direction is -2 phi; Nocedal and Wright, Numerical Optimization,
-// 2nd ed., Sec. 11.2). It stops by the same rule as minimize.
+// matchMoments solves r(theta) = 0 by damped Newton from theta0 (the
+// driver run with momentMatching): each step solves J d = -r by LU and
+// backtracks on phi = ||r||_W^2 until phi(t) <= (1 - 2 c t) phi(0)
+// (Armijo on phi, whose slope along the Newton direction is -2 phi;
+// Nocedal and Wright, Numerical Optimization, 2nd ed., Sec. 11.2). It
+// stops by the same rule as minimize.
 func (np *newtonProblem) matchMoments(theta0 []float64) (*newtonOutcome, error) {
-	out := &newtonOutcome{}
-	cur, err := np.state(theta0, true)
-	out.evaluations++
-	if err != nil {
-		return nil, fmt.Errorf("at the starting point: %v", err)
-	}
-	out.state = cur
-	w := np.momentWeights()
-	n := np.params.NumParams()
+	m := &momentMatching{np: np, w: np.momentWeights()}
 	// Rounding noise of r_q is about 1e-13 |q| (sums of |q| expectations
 	// of order one); below it phi cannot decrease.
-	var slack float64
-	for q, m := range np.params.Members {
-		x := 1e-13 * float64(len(m))
-		slack += w[q] * x * x
+	for q, members := range np.params.Members {
+		x := 1e-13 * float64(len(members))
+		m.slack += m.w[q] * x * x
 	}
-	for {
-		out.gradSigma, out.gradAbs = np.criterion(cur.resid)
-		if math.IsNaN(out.gradSigma) || math.IsNaN(out.gradAbs) {
-			out.reason = "the residual is not a number"
-			return out, nil
-		}
-		out.jacobian = np.momentJacobian(cur)
-		if np.done(cur.resid) {
-			out.converged = true
-			return out, nil
-		}
-		if !np.deadline.IsZero() && time.Now().After(np.deadline) {
-			out.reason = fmt.Sprintf("time budget exhausted after %d Newton iterations (residual %s)", out.iterations, np.gradientText(out))
-			return out, nil
-		}
-		if out.iterations >= np.maxIter {
-			out.reason = fmt.Sprintf("no convergence in %d Newton iterations (residual %s)", np.maxIter, np.gradientText(out))
-			return out, nil
-		}
-		out.iterations++
-
-		var lu mat.LU
-		lu.Factorize(out.jacobian)
-		if c := lu.Cond(); !(c <= 1e14) {
-			out.reason = fmt.Sprintf("iteration %d: the moment-matching Jacobian is singular (condition number %.2g): some parameters are not determined by the measured terms, or the order is too low for this temperature", out.iterations, c)
-			return out, nil
-		}
-		rhs := mat.NewVecDense(n, nil)
-		for q, r := range cur.resid {
-			rhs.SetVec(q, -r)
-		}
-		var dv mat.VecDense
-		if err := lu.SolveVecTo(&dv, false, rhs); err != nil {
-			var cond mat.Condition
-			if !errors.As(err, &cond) {
-				out.reason = fmt.Sprintf("iteration %d: Newton system not solved: %v", out.iterations, err)
-				return out, nil
-			}
-		}
-		d := make([]float64, n)
-		for q := range d {
-			d[q] = dv.AtVec(q)
-		}
-		scale := 1.0
-		if big := np.beta * maxAbs(d); big > np.maxStep {
-			scale = np.maxStep / big
-		}
-		next, t, err := np.momentLineSearch(cur, d, scale, w, slack, out)
-		if err != nil {
-			out.reason = fmt.Sprintf("iteration %d: %v", out.iterations, err)
-			return out, nil
-		}
-		if np.logf != nil {
-			sig, abs := np.criterion(next.resid)
-			np.logf("iteration %d (moment matching): step %.3g, residual %s", out.iterations, t, formatGradient(sig, abs, np.hasNoise(), np.hasExact()))
-		}
-		cur = next
-		out.state = cur
-		if np.beta*maxAbs(cur.lambda) > maxCoefficient {
-			out.reason = fmt.Sprintf("coefficients diverge (beta |lambda| reached %.3g): the measured data may lie outside the expectations any Gibbs state of this template can produce, or the temperature is too low for the expansion", np.beta*maxAbs(cur.lambda))
-			out.gradSigma, out.gradAbs = np.criterion(cur.resid)
-			out.jacobian = np.momentJacobian(cur)
-			return out, nil
-		}
-	}
+	return np.run(theta0, m)
 }
 
-// momentLineSearch halves the step scale*d until the weighted residual
-// norm decreases enough; the response is evaluated at the accepted point.
-func (np *newtonProblem) momentLineSearch(cur *newtonState, d []float64, scale float64, w []float64, slack float64, out *newtonOutcome) (*newtonState, float64, error) {
+// momentMatching is moment matching: dense Jacobian steps, Armijo on the
+// weighted residual norm.
+type momentMatching struct {
+	np    *newtonProblem
+	w     []float64 // weights of the merit function
+	slack float64   // its rounding noise
+}
+
+func (m *momentMatching) curvature(out *newtonOutcome, s *newtonState) {
+	out.jacobian = m.np.momentJacobian(s)
+}
+
+func (m *momentMatching) direction(out *newtonOutcome, cur *newtonState, d []float64, polishing bool) (stepKind, string) {
+	np := m.np
+	n := len(d)
+	var lu mat.LU
+	lu.Factorize(out.jacobian)
+	if c := lu.Cond(); !(c <= 1e14) {
+		if polishing {
+			return stepDone, ""
+		}
+		if np.approximate() {
+			return stepSwitch, "the lower-order Jacobian is singular"
+		}
+		return stepStop, fmt.Sprintf("the moment-matching Jacobian is singular (condition number %.2g): some parameters are not determined by the measured terms, or the order is too low for this temperature", c)
+	}
+	rhs := mat.NewVecDense(n, nil)
+	for q, r := range cur.resid {
+		rhs.SetVec(q, -r)
+	}
+	var dv mat.VecDense
+	if err := lu.SolveVecTo(&dv, false, rhs); err != nil {
+		var cond mat.Condition
+		if !errors.As(err, &cond) {
+			return stepStop, fmt.Sprintf("Newton system not solved: %v", err)
+		}
+	}
+	for q := range d {
+		d[q] = dv.AtVec(q)
+	}
+	return stepOK, ""
+}
+
+// accept is the Armijo condition on the weighted residual norm.
+func (m *momentMatching) accept(cur, next *newtonState, t float64) bool {
 	const c1 = 1e-4
-	phi0 := weightedNorm2(w, cur.resid)
-	return np.backtrack(cur, d, scale, out,
-		func(next *newtonState, t float64) bool { return weightedNorm2(w, next.resid) <= (1-2*c1*t)*phi0+slack },
-		"no decrease of the residual: it is below the floating-point resolution of the expansion, or the expansion is not valid at this order and temperature")
+	return weightedNorm2(m.w, next.resid) <= (1-2*c1*t)*weightedNorm2(m.w, cur.resid)+m.slack
+}
+
+func (m *momentMatching) noun() string    { return "residual" }
+func (m *momentMatching) logWord() string { return " (moment matching)" }
+func (m *momentMatching) failure() string {
+	return "no decrease of the residual: it is below the floating-point resolution of the expansion, or the expansion is not valid at this order and temperature"
 }
 
 // momentVariances returns diag(J^{-1} B J^{-T}) for the moment-matching

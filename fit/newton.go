@@ -24,6 +24,33 @@ type thermalEval struct {
 // evaluator computes the thermal quantities at term coefficients lambda.
 type evaluator func(lambda []float64, response bool) (*thermalEval, error)
 
+// Curvature at a lower order. The gradient of the dual at order L needs
+// only the expectations at order L; its Hessian needs the response, whose
+// Kubo–Mori sums cost several times the diagonalisations they start from.
+// The response of the order-(L-1) expansion, accumulated in the first
+// iterate's pass over the clusters (cluster.Options.ResponseOrder) and
+// kept for the order's later steps, differs from the order-L one by the
+// truncation of the response series, a few per cent where the expansion
+// converges. Newton with that curvature and the exact
+// gradient converges linearly at the rate ||I - P_{L-1}^{-1} P_L||, so a
+// fit that starts from the order-(L-1) solution needs two or three steps;
+// the line search on the exact G keeps every step a descent step
+// (Nocedal and Wright, Numerical Optimization, 2nd ed., Sec. 3.3 on
+// quasi-Newton directions). When the lower-order curvature is not
+// positive definite, its steps stall (a full step shrinks the gradient by
+// less than stallRatio: the first time the response is evaluated afresh,
+// the second time), or the line search fails, the minimisation switches
+// to the exact response for the rest of the order: never less robust
+// than exact Newton, only slower.
+
+// stallRatio: a full step with the lower-order curvature that does not
+// reduce the scaled gradient below this fraction of its value is a
+// stall.
+const stallRatio = 0.5
+
+// maxStalls is how many stalls switch to the exact curvature.
+const maxStalls = 2
+
 // newtonProblem is the minimisation of the dual
 // G(theta) = log Z(A theta) + beta theta . A^T e at one expansion order.
 type newtonProblem struct {
@@ -38,7 +65,18 @@ type newtonProblem struct {
 	maxIter int
 	maxStep float64 // largest beta |Delta lambda| per Newton step
 	eval    evaluator
-	logf    func(format string, args ...any)
+	// exactEval, when not nil, evaluates the same order with the exact
+	// response: eval then returns a lower-order response (curvatureOrder)
+	// and the minimisation falls back on exactEval when that fails.
+	exactEval      evaluator
+	order          int // the expansion order L
+	curvatureOrder int // the order of eval's response
+	// reuse keeps the lower-order response of the first iterate for the
+	// following steps (it costs about a forward pass at order L-1 on top
+	// of each evaluation) until a step stalls; the error bars then
+	// evaluate it again at the solution (fitter.errorBarCurvature).
+	reuse bool
+	logf  func(format string, args ...any)
 	// deadline, when not zero, stops the minimisation once passed.
 	deadline time.Time
 	// minIter forces that many Newton steps even when the start already
@@ -71,7 +109,12 @@ type newtonOutcome struct {
 	evaluations int
 	gradSigma   float64 // max |r_q| / sigma_q over noisy parameters
 	gradAbs     float64 // max |r_q| / |q| over exact parameters
-	hessian     *csr    // P = -A^T R A at state (positive semidefinite)
+	hessian     *csr    // P = -A^T R A at curvatureTheta (positive semidefinite)
+	// responseOrder is the order of the response in hessian or jacobian
+	// and curvatureTheta the parameters it was evaluated at (the state's
+	// unless the response was reused).
+	responseOrder  int
+	curvatureTheta []float64
 	// jacobian is J = dr/dtheta = -A_m^T R A of moment matching (set
 	// instead of hessian when some terms have no data).
 	jacobian *mat.Dense
@@ -147,6 +190,34 @@ func (np *newtonProblem) done(resid []float64) bool {
 	return sig <= np.tol && abs <= np.absTol
 }
 
+// progress is the scaled gradient as one number: the larger of the
+// noisy and the exact criterion, each over its tolerance (<= 1 when
+// done).
+func (np *newtonProblem) progress(resid []float64) float64 {
+	sig, abs := np.criterion(resid)
+	return math.Max(sig/np.tol, abs/np.absTol)
+}
+
+// approximate reports whether the current curvature is of a lower order.
+func (np *newtonProblem) approximate() bool { return np.exactEval != nil }
+
+// switchToExact drops the lower-order curvature: it re-evaluates cur with
+// the exact response and notes why.
+func (np *newtonProblem) switchToExact(cur *newtonState, out *newtonOutcome, why string) (*newtonState, error) {
+	out.notes = append(out.notes, fmt.Sprintf("order %d: Newton steps switched from the order-%d response to the exact one (%s)", np.order, np.curvatureOrder, why))
+	np.eval, np.exactEval = np.exactEval, nil
+	np.curvatureOrder, np.reuse = np.order, false
+	next, err := np.state(cur.theta, true)
+	out.evaluations++
+	if err != nil {
+		return nil, err
+	}
+	if np.logf != nil {
+		np.logf("switched to the exact response: %s", why)
+	}
+	return next, nil
+}
+
 // hessian returns P = -A^T R A from the state's response.
 func (np *newtonProblem) hessian(s *newtonState) *csr {
 	return np.params.project(s.ev.response, -1)
@@ -162,126 +233,88 @@ func (np *newtonProblem) roundoff(s *newtonState) float64 {
 	return 1e-12 * (math.Abs(s.ev.logZ) + np.beta*sum + 1)
 }
 
-// minimize runs damped Newton from theta0: each step solves P d = -r by
-// Jacobi-preconditioned conjugate gradients on the sparse parameter-space
-// Hessian and backtracks on G until the Armijo condition holds (Nocedal
-// and Wright, Numerical Optimization, 2nd ed., Alg. 3.1 and 7.1). It stops
-// when every gradient component is negligible against the data's noise.
+// minimize runs damped Newton on the dual from theta0 (the driver run
+// with dualMethod): each step solves P d = -r by Jacobi-preconditioned
+// conjugate gradients on the sparse parameter-space Hessian and
+// backtracks on G until the Armijo condition holds (Nocedal and Wright,
+// Numerical Optimization, 2nd ed., Alg. 3.1 and 7.1). P may be of a lower
+// order than G (see "Curvature at a lower order" above). It stops when
+// every gradient component is negligible against the data's noise.
 func (np *newtonProblem) minimize(theta0 []float64) (*newtonOutcome, error) {
-	out := &newtonOutcome{}
-	cur, err := np.state(theta0, true)
-	out.evaluations++
-	if err != nil {
-		return nil, fmt.Errorf("at the starting point: %v", err)
-	}
-	out.state = cur
-	nParam := np.params.NumParams()
-	d := make([]float64, nParam)
-	nonConvex := 0
-	for {
-		out.gradSigma, out.gradAbs = np.criterion(cur.resid)
-		if math.IsNaN(out.gradSigma) || math.IsNaN(out.gradAbs) {
-			out.reason = "the gradient is not a number"
-			return out, nil
-		}
-		out.hessian = np.hessian(cur)
-		// polishing: a step forced by minIter from an already converged
-		// point; if it cannot be taken, the point stands.
-		polishing := np.done(cur.resid)
-		if polishing && (out.iterations >= np.minIter || maxAbs(cur.resid) == 0) {
-			out.converged = true
-			return out, nil
-		}
-		if !np.deadline.IsZero() && time.Now().After(np.deadline) {
-			out.reason = fmt.Sprintf("time budget exhausted after %d Newton iterations (gradient %s)", out.iterations, np.gradientText(out))
-			return out, nil
-		}
-		if out.iterations >= np.maxIter {
-			out.reason = fmt.Sprintf("no convergence in %d Newton iterations (gradient %s)", np.maxIter, np.gradientText(out))
-			return out, nil
-		}
-		out.iterations++
-
-		diag := out.hessian.diag()
-		res, err := solveCG(out.hessian, diag, cur.resid, d, 1e-10, 10*nParam+100)
-		for i := range d {
-			d[i] = -d[i]
-		}
-		switch {
-		case errors.Is(err, errNotPositive):
-			// A truncated expansion need not be convex far from high
-			// temperature. Fall back to the preconditioned gradient, but
-			// not for long: a dual that stays non-convex has no reliable
-			// minimum at this order.
-			nonConvex++
-			if nonConvex > maxNonConvex {
-				out.reason = fmt.Sprintf("the truncated expansion of log Z is not convex here (its Hessian was not positive definite at %d iterates): the temperature is too low for this order", nonConvex)
-				return out, nil
-			}
-			note := fmt.Sprintf("iteration %d: the Hessian of the order-truncated log Z is not positive definite here; took a preconditioned gradient step", out.iterations)
-			out.notes = append(out.notes, note)
-			for i, r := range cur.resid {
-				d[i] = -r
-				if diag[i] > 0 {
-					d[i] = -r / diag[i]
-				}
-			}
-		case err != nil && polishing:
-			out.converged = true
-			return out, nil
-		case err != nil:
-			if res.Residual > 1e-3 || math.IsNaN(res.Residual) {
-				out.reason = fmt.Sprintf("iteration %d: Newton system not solved (%v, relative residual %.2g): the Hessian is singular or badly conditioned; some parameters may not be determined by the data", out.iterations, err, res.Residual)
-				return out, nil
-			}
-		}
-		// Directional derivative of G along d: beta r . d (< 0 for a descent direction).
-		slope := np.beta * dot(cur.resid, d)
-		if polishing && !(slope < 0) {
-			out.converged = true
-			return out, nil
-		}
-		if !(slope < 0) {
-			out.reason = fmt.Sprintf("iteration %d: no descent direction (slope %v)", out.iterations, slope)
-			return out, nil
-		}
-		scale := 1.0
-		if big := np.beta * maxAbs(d); big > np.maxStep {
-			scale = np.maxStep / big
-		}
-		next, t, err := np.lineSearch(cur, d, scale, slope, out)
-		if err != nil && polishing {
-			out.converged = true
-			return out, nil
-		}
-		if err != nil {
-			out.reason = fmt.Sprintf("iteration %d: %v", out.iterations, err)
-			return out, nil
-		}
-		if np.logf != nil {
-			sig, abs := np.criterion(next.resid)
-			np.logf("iteration %d: step %.3g, CG %d steps, gradient %s", out.iterations, t, res.Iterations, formatGradient(sig, abs, np.hasNoise(), np.hasExact()))
-		}
-		cur = next
-		out.state = cur
-		if np.beta*maxAbs(cur.lambda) > maxCoefficient {
-			out.reason = fmt.Sprintf("coefficients diverge (beta |lambda| reached %.3g): the data may lie outside the expectations any Gibbs state of this template can produce, or the temperature is too low for the expansion", np.beta*maxAbs(cur.lambda))
-			out.gradSigma, out.gradAbs = np.criterion(cur.resid)
-			out.hessian = np.hessian(cur)
-			return out, nil
-		}
-	}
+	return np.run(theta0, &dualMethod{np: np})
 }
 
-// lineSearch backtracks from the step scale*d until G decreases enough
-// (Armijo, c = 1e-4), halving the step; it evaluates the response only at
-// the accepted point.
-func (np *newtonProblem) lineSearch(cur *newtonState, d []float64, scale, slope float64, out *newtonOutcome) (*newtonState, float64, error) {
+// dualMethod is the minimisation of G: Hessian steps, Armijo on G.
+type dualMethod struct {
+	np        *newtonProblem
+	nonConvex int     // iterates whose Hessian was not positive definite
+	slope     float64 // directional derivative of G along the last step
+}
+
+func (m *dualMethod) curvature(out *newtonOutcome, s *newtonState) {
+	out.hessian = m.np.hessian(s)
+}
+
+func (m *dualMethod) direction(out *newtonOutcome, cur *newtonState, d []float64, polishing bool) (stepKind, string) {
+	np := m.np
+	n := len(d)
+	diag := out.hessian.diag()
+	res, err := solveCG(out.hessian, diag, cur.resid, d, 1e-10, 10*n+100)
+	for i := range d {
+		d[i] = -d[i]
+	}
+	switch {
+	case errors.Is(err, errNotPositive) && np.approximate():
+		return stepSwitch, "the lower-order Hessian is not positive definite"
+	case errors.Is(err, errNotPositive):
+		// A truncated expansion need not be convex far from high
+		// temperature. Fall back to the preconditioned gradient, but not
+		// for long: a dual that stays non-convex has no reliable minimum
+		// at this order.
+		m.nonConvex++
+		if m.nonConvex > maxNonConvex {
+			return stepStop, fmt.Sprintf("the truncated expansion of log Z is not convex here (its Hessian was not positive definite at %d iterates): the temperature is too low for this order", m.nonConvex)
+		}
+		out.notes = append(out.notes, fmt.Sprintf("iteration %d: the Hessian of the order-truncated log Z is not positive definite here; took a preconditioned gradient step", out.iterations))
+		for i, r := range cur.resid {
+			d[i] = -r
+			if diag[i] > 0 {
+				d[i] = -r / diag[i]
+			}
+		}
+	case err != nil && polishing:
+		return stepDone, ""
+	case err != nil && (res.Residual > 1e-3 || math.IsNaN(res.Residual)):
+		if np.approximate() {
+			return stepSwitch, fmt.Sprintf("Newton system with the lower-order Hessian not solved (%v)", err)
+		}
+		return stepStop, fmt.Sprintf("Newton system not solved (%v, relative residual %.2g): the Hessian is singular or badly conditioned; some parameters may not be determined by the data", err, res.Residual)
+	}
+	// Directional derivative of G along d: beta r . d (< 0 for a descent
+	// direction).
+	m.slope = np.beta * dot(cur.resid, d)
+	switch {
+	case polishing && !(m.slope < 0):
+		return stepDone, ""
+	case !(m.slope < 0) && np.approximate():
+		return stepSwitch, fmt.Sprintf("no descent direction with the lower-order Hessian (slope %v)", m.slope)
+	case !(m.slope < 0):
+		return stepStop, fmt.Sprintf("no descent direction (slope %v)", m.slope)
+	}
+	return stepOK, ""
+}
+
+// accept is the Armijo condition on G (c = 1e-4) with the rounding slack
+// of G.
+func (m *dualMethod) accept(cur, next *newtonState, t float64) bool {
 	const c1 = 1e-4
-	slack := np.roundoff(cur)
-	return np.backtrack(cur, d, scale, out,
-		func(next *newtonState, t float64) bool { return next.g <= cur.g+c1*t*slope+slack },
-		"no decrease of the dual: the gradient is below the floating-point resolution of log Z, or the expansion is not a valid log Z at this order and temperature")
+	return next.g <= cur.g+c1*t*m.slope+m.np.roundoff(cur)
+}
+
+func (m *dualMethod) noun() string    { return "gradient" }
+func (m *dualMethod) logWord() string { return "" }
+func (m *dualMethod) failure() string {
+	return "no decrease of the dual: the gradient is below the floating-point resolution of log Z, or the expansion is not a valid log Z at this order and temperature"
 }
 
 // backtrack tries the steps t*d for t = scale, scale/2, ... until accept
@@ -296,11 +329,11 @@ func (np *newtonProblem) backtrack(cur *newtonState, d []float64, scale float64,
 		for i := range theta {
 			theta[i] = cur.theta[i] + t*d[i]
 		}
-		withResponse := try == 0
+		withResponse := try == 0 && !np.reuse
 		next, err := np.state(theta, withResponse)
 		out.evaluations++
 		if err == nil && accept(next, t) {
-			if !withResponse {
+			if !withResponse && !np.reuse {
 				next, err = np.state(theta, true)
 				out.evaluations++
 				if err != nil {

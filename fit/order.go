@@ -108,11 +108,20 @@ func (f *fitter) statisticalScale(of *orderFit) float64 {
 	if f.exact {
 		return 0
 	}
-	se, _, err := f.paramStderr(of.out)
+	se, _, err := f.paramStderrAt(of)
 	if err != nil {
 		return 0
 	}
 	return median(se)
+}
+
+// paramStderrAt is paramStderr at an order's solution, with the response
+// evaluated there (errorBarCurvature).
+func (f *fitter) paramStderrAt(of *orderFit) ([]float64, string, error) {
+	if err := f.errorBarCurvature(of); err != nil {
+		return nil, "", err
+	}
+	return f.paramStderr(of.out)
 }
 
 // median returns the median of the positive entries of v, 0 if none.

@@ -2,6 +2,7 @@ package fit
 
 import (
 	"fmt"
+	"slices"
 	"sort"
 
 	"warmfit/lattice"
@@ -120,36 +121,41 @@ func (m *csr) diag() []float64 {
 	return d
 }
 
-// termMatrix is the read interface of a symmetric term-space matrix
-// (the expansion's response, or a data covariance).
+// termMatrix is the read interface of a symmetric term-space matrix:
+// the expansion's response (*cluster.SparseSym), a data covariance
+// (*SparseSym), or a diagonal one (diagMatrix).
 type termMatrix interface {
-	dim() int
-	doRow(i int, fn func(j int, v float64))
+	Dim() int
+	DoRow(i int, fn func(j int, v float64))
 }
 
 // Project returns s A^T M A in parameter space for a symmetric term-space
-// matrix M given row by row. The sums run in a fixed order, so the result
-// is reproducible bit for bit.
+// matrix M given row by row. The sums run in a fixed order (the members
+// of each parameter in turn, each row as given), so the result is
+// reproducible bit for bit.
 func (p *Params) project(m termMatrix, s float64) *csr {
 	np := p.NumParams()
 	out := &csr{n: np, rowPtr: make([]int, np+1)}
-	acc := map[int]float64{}
-	var cols []int
+	acc := make([]float64, np) // dense row accumulator
+	seen := make([]bool, np)
+	var cols []int32
 	for q, members := range p.Members {
-		clear(acc)
+		cols = cols[:0]
 		for _, k := range members {
-			m.doRow(k, func(j int, v float64) {
-				acc[p.Of[j]] += v
+			m.DoRow(k, func(j int, v float64) {
+				c := p.Of[j]
+				if !seen[c] {
+					seen[c] = true
+					cols = append(cols, int32(c))
+				}
+				acc[c] += v
 			})
 		}
-		cols = cols[:0]
-		for c := range acc {
-			cols = append(cols, c)
-		}
-		sort.Ints(cols)
+		slices.Sort(cols)
 		for _, c := range cols {
-			out.col = append(out.col, int32(c))
+			out.col = append(out.col, c)
 			out.val = append(out.val, s*acc[c])
+			acc[c], seen[c] = 0, false
 		}
 		out.rowPtr[q+1] = len(out.col)
 	}

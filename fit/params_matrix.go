@@ -1,31 +1,18 @@
 package fit
 
-import "warmfit/cluster"
-
-// responseMatrix reads the expansion's response as a termMatrix.
-type responseMatrix struct{ s *cluster.SparseSym }
-
-func (m responseMatrix) dim() int { return m.s.N }
-
-func (m responseMatrix) doRow(i int, fn func(j int, v float64)) {
-	for p := m.s.RowPtr[i]; p < m.s.RowPtr[i+1]; p++ {
-		fn(int(m.s.Col[p]), m.s.Val[p])
-	}
-}
-
-// covMatrix reads a data covariance as a termMatrix.
-type covMatrix struct{ s *SparseSym }
-
-func (m covMatrix) dim() int { return m.s.Dim() }
-
-func (m covMatrix) doRow(i int, fn func(j int, v float64)) { m.s.DoRow(i, fn) }
+// Term-space matrices. The expansion's response (*cluster.SparseSym) and
+// a data covariance (*SparseSym) are read through termMatrix directly;
+// the two types here complete it for the diagonal covariance of
+// independent estimates and for dense references in tests.
 
 // diagMatrix is a diagonal termMatrix.
 type diagMatrix []float64
 
-func (m diagMatrix) dim() int { return len(m) }
+// Dim returns the dimension.
+func (m diagMatrix) Dim() int { return len(m) }
 
-func (m diagMatrix) doRow(i int, fn func(j int, v float64)) {
+// DoRow calls fn for the diagonal element of row i when it is not zero.
+func (m diagMatrix) DoRow(i int, fn func(j int, v float64)) {
 	if m[i] != 0 {
 		fn(i, m[i])
 	}
@@ -38,9 +25,11 @@ type denseTermMatrix struct {
 	a []float64
 }
 
-func (m denseTermMatrix) dim() int { return m.n }
+// Dim returns the dimension.
+func (m denseTermMatrix) Dim() int { return m.n }
 
-func (m denseTermMatrix) doRow(i int, fn func(j int, v float64)) {
+// DoRow calls fn for the non-zero elements of row i.
+func (m denseTermMatrix) DoRow(i int, fn func(j int, v float64)) {
 	for j, v := range m.a[i*m.n : (i+1)*m.n] {
 		if v != 0 {
 			fn(j, v)

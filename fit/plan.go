@@ -4,6 +4,7 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"time"
 
 	"gonum.org/v1/gonum/stat/distuv"
 
@@ -35,6 +36,12 @@ type PlanOptions struct {
 	// some expectation is untrusted at 1e-3, within the work limit).
 	Order   int
 	Workers int
+	// Budget, when positive, is the wall time the automatic order choice
+	// may spend (cluster.OrderPolicy.Budget).
+	Budget time.Duration
+	// Progress, when not nil, is called as the expansion's clusters are
+	// done (cluster.Options.Progress).
+	Progress func(done, total int)
 	// DenseLimit as in Options; default 1500.
 	DenseLimit int
 }
@@ -66,6 +73,9 @@ type Plan struct {
 	// Expect holds <E_k> at the model (the order-Order expansion).
 	Expect []float64
 	Notes  []string
+	// Warnings say where the plan could mislead (an unconverged series);
+	// each is one sentence without a "WARNING" prefix.
+	Warnings []string
 }
 
 // PlanShots predicts how many shots per basis learn the model's
@@ -125,7 +135,9 @@ func PlanShots(lat *lattice.Lattice, terms []lattice.Term, beta float64, opt Pla
 	L := opt.Order
 	orderReason := fmt.Sprintf("order %d as asked", L)
 	if L <= 0 {
-		_, choice, err := exp.ChooseOrder(coeffs, beta, 1e-3, cluster.NewOrderPolicy(lat, terms), cluster.Options{Workers: opt.Workers})
+		policy := cluster.NewOrderPolicy(lat, terms)
+		policy.Budget = opt.Budget
+		_, choice, err := exp.ChooseOrder(coeffs, beta, 1e-3, policy, cluster.Options{Workers: opt.Workers, Progress: opt.Progress})
 		if err != nil {
 			return nil, err
 		}
@@ -163,7 +175,7 @@ func PlanShots(lat *lattice.Lattice, terms []lattice.Term, beta float64, opt Pla
 		return nil, fmt.Errorf("plan: no basis measures term(s) %v: the scheme cannot learn them", uncovered)
 	}
 
-	res, err := exp.Evaluate(coeffs, beta, cluster.Options{Order: L, Response: true, Workers: opt.Workers})
+	res, err := exp.Evaluate(coeffs, beta, cluster.Options{Order: L, Response: true, Workers: opt.Workers, Progress: opt.Progress})
 	if err != nil {
 		return nil, err
 	}
@@ -177,7 +189,7 @@ func PlanShots(lat *lattice.Lattice, terms []lattice.Term, beta float64, opt Pla
 		}
 		d[k] = (1 - e*e) / float64(p.Coverage[k])
 	}
-	hess := params.project(responseMatrix{res.Response}, -1)
+	hess := params.project(res.Response, -1)
 	vars, _, err := paramVariances(hess, params.project(diagMatrix(d), 1), opt.DenseLimit, opt.Workers, params.spatialOrder(terms))
 	if err != nil {
 		return nil, fmt.Errorf("plan: %v", err)
@@ -219,7 +231,7 @@ func PlanShots(lat *lattice.Lattice, terms []lattice.Term, beta float64, opt Pla
 		}
 	}
 	if untrusted > 0 {
-		p.Notes = append(p.Notes, fmt.Sprintf("WARNING: the order-%d expansion has not converged for %d of %d term expectations at this beta: the plan is only indicative; raise the order or check the temperature", L, untrusted, len(terms)))
+		p.Warnings = append(p.Warnings, fmt.Sprintf("the order-%d expansion has not converged for %d of %d term expectations at this beta: the plan is only indicative; raise the order or check the temperature", L, untrusted, len(terms)))
 	}
 	if opt.Norm == NormLinf {
 		p.Notes = append(p.Notes, fmt.Sprintf("linf: Bonferroni union bound over %d parameters at %g confidence, z = %.4g", p.Params, opt.Confidence, p.Z))

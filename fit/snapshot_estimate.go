@@ -495,7 +495,7 @@ func (e *SnapshotEstimator) Result() (*Estimates, error) {
 		}
 		return fmt.Sprintf("%d shots", e.termN[k])
 	}
-	if err := est.markMissing(e.terms, absent, e.opt.AllowMissing, why); err != nil {
+	if err := est.markMissing(e.terms, absent, e.opt.AllowMissing, why, "measure them: at least two shots in a basis whose letters match each term on its sites ('warmfit plan --bases covering' lists such a set of bases, 'warmfit sample' shows the file format)"); err != nil {
 		return nil, err
 	}
 	for a, refs := range e.pairsOf {

@@ -124,7 +124,7 @@ func TestSnapshotEstimateHandCounted(t *testing.T) {
 
 	// Without AllowMissing the unmeasured Y0 is an error naming it.
 	_, err = EstimateSnapshots(strings.NewReader(handFile), "hand.csv", 3, terms, CovarianceOptions{})
-	if err == nil || !strings.Contains(err.Error(), "hand.csv: 1 of 8 terms have no usable data: Y 0 (no shot measured its letters)") {
+	if err == nil || !strings.Contains(err.Error(), "hand.csv: 1 of 8 terms (1 Y) have no usable data: Y 0 (no shot measured its letters). What to do: measure them") {
 		t.Errorf("missing term: got %v", err)
 	}
 }

@@ -70,7 +70,7 @@ func SyntheticTableFromShots(terms []lattice.Term, expect []float64, shots []int
 	}
 	if len(few) > 0 {
 		probe := newEstimates(len(terms))
-		err := probe.markMissing(terms, few, nil, func(k int) string { return fmt.Sprintf("%d shots", shots[k]) })
+		err := probe.markMissing(terms, few, nil, func(k int) string { return fmt.Sprintf("%d shots", shots[k]) }, "use more bases or a scheme that measures every term (covering)")
 		return nil, fmt.Errorf("bases scheme too thin: %w", err)
 	}
 	rng := rand.New(rand.NewPCG(seed, 0xda3e39cb94b95bdb))

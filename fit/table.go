@@ -135,6 +135,10 @@ func ReadTable(r io.Reader, name string) (*Table, error) {
 			continue
 		}
 		if len(fields) != ncol {
+			if sites, ok := commaSplitSites(fields, ncol); ok {
+				return nil, dataErrorf(name, line, "sites", "%q looks like sites separated by commas, which split the row into %d fields (the header has %d); separate sites by spaces, as in %q",
+					sites, len(fields), ncol, strings.ReplaceAll(sites, ",", " "))
+			}
 			return nil, dataErrorf(name, line, "", "row has %d fields, the header has %d", len(fields), ncol)
 		}
 		row, field, err := parseTableRow(fields)
@@ -156,6 +160,24 @@ func ReadTable(r io.Reader, name string) (*Table, error) {
 		return nil, dataErrorf(name, 0, "", "no header line (want %q)", strings.Join(tableHeader, ","))
 	}
 	return t, nil
+}
+
+// commaSplitSites recognises a row whose sites were written with commas
+// ("ZZ,0,1,0.5,0.01"): the extra fields all sit where the sites go, and
+// they and the sites field are site indices. It returns the sites as
+// written ("0,1").
+func commaSplitSites(fields []string, ncol int) (string, bool) {
+	extra := len(fields) - ncol
+	if extra <= 0 {
+		return "", false
+	}
+	sites := fields[1 : 2+extra]
+	for _, f := range sites {
+		if n, err := strconv.Atoi(f); err != nil || n < 0 {
+			return "", false
+		}
+	}
+	return strings.Join(sites, ","), true
 }
 
 // commentText returns the text of a '#' line without '#' and one space.

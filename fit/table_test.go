@@ -121,6 +121,9 @@ func TestReadTableErrors(t *testing.T) {
 		{"zero stderr", h + "Z,0,0.5,0\n", `e.csv:2: field "stderr": "0": a zero stderr is not read as an exact value; write "exact"`},
 		{"comma sites", h + "ZZ,\"0,1\",0.5,0.1\n", `e.csv:2: field "sites": "0,1": separate sites by spaces, as in "0 1"`},
 		{"semicolon sites", h + "ZZ,0;1,0.5,0.1\n", `e.csv:2: field "sites": "0;1": separate sites by spaces`},
+		// Unquoted commas split the sites into fields of their own.
+		{"unquoted comma sites", h + "ZZ,0,1,0.5,0.1\n", `e.csv:2: field "sites": "0,1" looks like sites separated by commas, which split the row into 5 fields (the header has 4); separate sites by spaces, as in "0 1"`},
+		{"unquoted comma sites, extra column", "pauli,sites,value,stderr,shots\nZZZ,0,1,2,0.5,0.1,100\n", `e.csv:2: field "sites": "0,1,2" looks like sites separated by commas`},
 		{"bad site", h + "ZZ,0 x,0.5,\n", `e.csv:2: field "sites": "x" is not a site index`},
 		{"negative site", h + "Z,-1,0.5,\n", `e.csv:2: field "sites": "-1" is not a site index`},
 		{"site count", h + "ZZ,0,0.5,\n", `e.csv:2: field "sites": 1 sites for the 2 letters of "ZZ"`},

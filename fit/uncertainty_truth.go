@@ -10,12 +10,20 @@ import (
 // TruthComparison compares fitted coefficients with known true ones (a
 // simulation's input model).
 type TruthComparison struct {
-	// Z[k] = (fit_k - truth_k) / stderr_k; NaN where the stderr is zero.
+	// True[k] is the true coefficient compared with term k (0 for a
+	// template term the truth lacks), after the scale.
+	True []float64
+	// Z[k] = (fit_k - truth_k) / stderr_k, the pull; NaN where the
+	// stderr is zero.
 	Z []float64
 	// Errors over the template terms: L2 = sqrt(sum (fit - truth)^2),
-	// Linf = max |fit - truth|; WorstTerm is the term of Linf.
-	L2, Linf  float64
-	WorstTerm int
+	// Linf = max |fit - truth|. LargestErrorTerm is the term of Linf (the
+	// largest |fit - truth|), LargestPullTerm the term of MaxAbsZ (the
+	// largest |pull|, -1 without error bars): the two differ whenever the
+	// error bars differ.
+	L2, Linf         float64
+	LargestErrorTerm int
+	LargestPullTerm  int
 	// MaxAbsZ and RMSZ summarise the z-scores over terms with a stderr;
 	// for honest error bars RMSZ is near 1.
 	MaxAbsZ, RMSZ float64
@@ -24,6 +32,8 @@ type TruthComparison struct {
 	// (included in L2, and MissingLinf in Linf).
 	Missing                int
 	MissingL2, MissingLinf float64
+	// Scale is the factor the true coefficients were multiplied by.
+	Scale float64
 }
 
 // CompareTruth compares the fit with the true terms. Template terms the
@@ -38,16 +48,17 @@ func CompareTruth(res *Result, truth []lattice.Term, scale float64) (*TruthCompa
 	for _, t := range truth {
 		want[t.Key()] = scale * t.Coeff
 	}
-	c := &TruthComparison{Z: make([]float64, len(res.Terms)), WorstTerm: -1}
+	c := &TruthComparison{True: make([]float64, len(res.Terms)), Z: make([]float64, len(res.Terms)), LargestErrorTerm: -1, LargestPullTerm: -1, Scale: scale}
 	var sum2, z2 float64
 	nz := 0
 	for k, t := range res.Terms {
 		tv := want[t.Key()]
 		delete(want, t.Key())
+		c.True[k] = tv
 		d := t.Coeff - tv
 		sum2 += d * d
-		if ad := math.Abs(d); c.WorstTerm < 0 || ad > c.Linf {
-			c.Linf, c.WorstTerm = ad, k
+		if ad := math.Abs(d); c.LargestErrorTerm < 0 || ad > c.Linf {
+			c.Linf, c.LargestErrorTerm = ad, k
 		}
 		c.Z[k] = math.NaN()
 		if t.HasStderr && t.Stderr > 0 {
@@ -55,7 +66,9 @@ func CompareTruth(res *Result, truth []lattice.Term, scale float64) (*TruthCompa
 			c.Z[k] = z
 			z2 += z * z
 			nz++
-			c.MaxAbsZ = math.Max(c.MaxAbsZ, math.Abs(z))
+			if az := math.Abs(z); c.LargestPullTerm < 0 || az > c.MaxAbsZ {
+				c.MaxAbsZ, c.LargestPullTerm = az, k
+			}
 		}
 	}
 	for _, v := range want {

@@ -28,9 +28,21 @@ func TestCompareTruth(t *testing.T) {
 	if math.Abs(c.L2-math.Sqrt(0.14)) > 1e-12 || math.Abs(c.Linf-0.3) > 1e-12 || c.Missing != 1 {
 		t.Errorf("L2 %v, Linf %v, missing %d", c.L2, c.Linf, c.Missing)
 	}
-	if math.Abs(c.Z[0]-2) > 1e-12 || math.Abs(c.Z[1]+2) > 1e-12 || math.Abs(c.RMSZ-2) > 1e-12 || c.WorstTerm != 1 {
-		t.Errorf("z %v, rms %v, worst %d", c.Z, c.RMSZ, c.WorstTerm)
+	if math.Abs(c.Z[0]-2) > 1e-12 || math.Abs(c.Z[1]+2) > 1e-12 || math.Abs(c.RMSZ-2) > 1e-12 || c.LargestErrorTerm != 1 {
+		t.Errorf("z %v, rms %v, largest error %d", c.Z, c.RMSZ, c.LargestErrorTerm)
 	}
+	if c.True[0] != 1 || c.True[1] != 0 {
+		t.Errorf("true values %v, want [1 0]", c.True)
+	}
+	// The largest error and the largest pull are different terms when
+	// the error bars differ: errors 0.1 (stderr 0.02, pull 5) and -0.2
+	// (stderr 0.1, pull -2).
+	res.Terms[0].Stderr = 0.02
+	c, _ = fit.CompareTruth(res, truth, 1)
+	if c.LargestErrorTerm != 1 || c.LargestPullTerm != 0 || math.Abs(c.MaxAbsZ-5) > 1e-9 {
+		t.Errorf("largest error term %d (want 1), largest pull term %d (want 0), max |z| %v", c.LargestErrorTerm, c.LargestPullTerm, c.MaxAbsZ)
+	}
+	res.Terms[0].Stderr = 0.05
 	// With beta unknown the truth is scaled by its beta.
 	c, _ = fit.CompareTruth(res, truth[:1], 1.1)
 	if math.Abs(c.Z[0]) > 1e-12 {

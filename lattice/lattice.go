@@ -65,9 +65,20 @@ type Lattice struct {
 	scratch *sync.Pool
 }
 
-// MaxSites bounds the number of sites of a lattice; cluster storage uses
-// 32-bit site indices.
-const MaxSites = 1 << 24
+// MaxSites bounds the number of sites of a lattice. Specifications and
+// graph files are refused above it before anything is built: a lattice
+// takes about 320 bytes a site (square:1024x1024, 2^20 sites, peaks at
+// 330 MB), so the ceiling keeps the largest lattice near a third of a
+// gigabyte, well below any machine the expansion runs on, and far above
+// any array an experiment holds. (Cluster storage uses 32-bit indices.)
+const MaxSites = 1 << 20
+
+// MaxFileBytes bounds the size of a lattice or model file read by
+// ReadFile (and by the model package): larger files, and unbounded
+// streams such as /dev/zero, are refused after reading this much, before
+// the document is held in memory whole (reading takes up to twice this
+// much while the buffer grows). 128 MiB holds some 1.5 million terms.
+const MaxFileBytes = 128 << 20
 
 // NumSites returns the number of sites.
 func (l *Lattice) NumSites() int { return len(l.Coords) }
@@ -269,4 +280,27 @@ func (l *Lattice) WithShells(shells int) (*Lattice, error) {
 	spec := l.Spec
 	spec.Shells = shells
 	return Build(spec)
+}
+
+// SameGraph reports whether l and o are the same lattice for a model:
+// the same number of sites and the same nearest- and next-nearest-
+// neighbour bonds in the same order (so the same site numbering), hence
+// the same interaction graph. Coordinates, which serve only for drawing,
+// are not compared. Two models may be compared term by term only when
+// their lattices are the same graph.
+func (l *Lattice) SameGraph(o *Lattice) bool {
+	if l.NumSites() != o.NumSites() || l.shells() != o.shells() || len(l.NN) != len(o.NN) || len(l.NNN) != len(o.NNN) {
+		return false
+	}
+	for k, b := range l.NN {
+		if o.NN[k] != b {
+			return false
+		}
+	}
+	for k, b := range l.NNN {
+		if o.NNN[k] != b {
+			return false
+		}
+	}
+	return true
 }

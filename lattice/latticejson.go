@@ -239,7 +239,12 @@ func decodeBonds(raw json.RawMessage) ([]Bond, error) {
 // DecodeLatticeJSON) or a model file with a "lattice" field. Errors name
 // the file, and the line and column of a syntax error.
 func ReadFile(path string) (*Lattice, error) {
-	data, err := os.ReadFile(path)
+	f, err := os.Open(path)
+	if err != nil {
+		return nil, err
+	}
+	defer f.Close()
+	data, err := ReadAllLimited(f, path)
 	if err != nil {
 		return nil, err
 	}

@@ -158,7 +158,7 @@ func (s Spec) checkSites() error {
 	n := len(uc.Basis)
 	for _, l := range s.Size {
 		if l > MaxSites || n > MaxSites/l {
-			return specErrorf(s.String(), "more than %d sites", MaxSites)
+			return specErrorf(s.String(), "more than %d sites (the ceiling lattice.MaxSites, about 330 MB of lattice)", MaxSites)
 		}
 		n *= l
 	}

@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"math"
 	"runtime"
+	"slices"
 	"sync"
 
 	"golang.org/x/sync/errgroup"
@@ -87,6 +88,10 @@ type OrderCheck struct {
 	// Judged counts the values whose own truncation estimate is finite;
 	// Covered those among them whose estimate is at least |diff|.
 	Judged, Covered int
+	// MedianRatio is the median over the judged values of estimate /
+	// |diff| (those with |diff| above rounding, 1e-12): how tight the
+	// expansion's own estimate is; 0 when there is none.
+	MedianRatio float64
 }
 
 // CrosscheckResult is the comparison of the expansion with exact
@@ -289,6 +294,7 @@ func (r *CrosscheckResult) summarise() {
 func (r *CrosscheckResult) orderCheck(o int) OrderCheck {
 	oc := OrderCheck{Order: o, Exact: true, Agrees: true, WorstPatch: -1, WorstTerm: -1}
 	var sum2 float64
+	var ratios []float64
 	for pi := range r.Patches {
 		pc := &r.Patches[pi]
 		if pc.Orders < o {
@@ -321,11 +327,18 @@ func (r *CrosscheckResult) orderCheck(o int) OrderCheck {
 				if e >= d {
 					oc.Covered++
 				}
+				if d > 1e-12 {
+					ratios = append(ratios, e/d)
+				}
 			}
 		}
 	}
 	if oc.Values > 0 {
 		oc.RMSDiff = math.Sqrt(sum2 / float64(oc.Values))
+	}
+	if len(ratios) > 0 {
+		slices.Sort(ratios)
+		oc.MedianRatio = ratios[len(ratios)/2]
 	}
 	return oc
 }

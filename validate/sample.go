@@ -28,7 +28,7 @@ const sampleBlock = 32
 // for concurrent use.
 type Sampler struct {
 	n       int
-	th      *cluster.Thermal
+	spec    *cluster.Spectrum
 	weights []float64
 	active  int
 	cache   map[string]basisDistribution
@@ -61,8 +61,14 @@ func NewSampler(n int, terms []lattice.Term, beta float64) (*Sampler, error) {
 
 // NewSamplerFromThermal samples from an existing Gibbs state.
 func NewSamplerFromThermal(th *cluster.Thermal) *Sampler {
-	s := &Sampler{n: th.Spectrum().NumQubits(), th: th, cache: make(map[string]basisDistribution)}
-	s.weights = th.Weights(nil)
+	return newSampler(th.Spectrum(), th.Weights(nil))
+}
+
+// newSampler samples the mixture sum_k weights[k] |v_k><v_k| of the
+// eigenvectors of spec (weights in the order of spec.Values(), summing
+// to one).
+func newSampler(spec *cluster.Spectrum, weights []float64) *Sampler {
+	s := &Sampler{n: spec.NumQubits(), spec: spec, weights: weights, cache: make(map[string]basisDistribution)}
 	// Weights below 1e-18/D change no probability by more than 1e-18.
 	cut := 1e-18 / float64(len(s.weights))
 	for k, w := range s.weights {
@@ -170,7 +176,7 @@ func (s *Sampler) distribution(basis string) (basisDistribution, error) {
 // probabilities computes sum_k w_k |U v_k|^2 over the thermally relevant
 // eigenvectors, in fixed blocks summed in order.
 func (s *Sampler) probabilities(basis string) ([]float64, error) {
-	spec := s.th.Spectrum()
+	spec := s.spec
 	d := spec.Dim()
 	nb := (s.active + sampleBlock - 1) / sampleBlock
 	partial := make([][]float64, nb)

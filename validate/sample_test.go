@@ -228,3 +228,36 @@ func ExampleSampler_Sample() {
 	// p = [0.1765 0.8235]
 	// 2 outcomes, 10000 shots, first "0"
 }
+
+// TestMixtureSamplerMatchesThermal: with Boltzmann weights the mixture
+// sampler is the Gibbs-state sampler (same distribution to rounding;
+// rho = sum_k w_k |v_k><v_k| is the definition of the Gibbs state).
+func TestMixtureSamplerMatchesThermal(t *testing.T) {
+	terms := []lattice.Term{
+		{Pauli: "ZZ", Sites: []int{0, 1}, Coeff: 1},
+		{Pauli: "ZZ", Sites: []int{1, 2}, Coeff: 0.7},
+		{Pauli: "X", Sites: []int{0}, Coeff: 0.5},
+		{Pauli: "X", Sites: []int{2}, Coeff: 0.4},
+	}
+	th, err := ExactThermal(3, terms, 0.9)
+	if err != nil {
+		t.Fatal(err)
+	}
+	mix, err := NewMixtureSampler(th.Spectrum(), th.Weights(nil))
+	if err != nil {
+		t.Fatal(err)
+	}
+	gibbs := NewSamplerFromThermal(th)
+	for _, b := range []string{"ZZZ", "XZY", "XXX"} {
+		p, _ := mix.Distribution(b)
+		q, _ := gibbs.Distribution(b)
+		for i := range p {
+			if math.Abs(p[i]-q[i]) > 1e-12 {
+				t.Fatalf("basis %s outcome %d: mixture %g, Gibbs %g", b, i, p[i], q[i])
+			}
+		}
+	}
+	if _, err := NewMixtureSampler(th.Spectrum(), []float64{1}); err == nil {
+		t.Error("wrong number of weights accepted")
+	}
+}

@@ -13,6 +13,9 @@ import (
 type betaFlag struct {
 	value float64
 	set   bool
+	// omitted says what leaving --beta out does, for the error of a
+	// zero or non-numeric value ("auto", "unknown").
+	omitted string
 }
 
 func (b *betaFlag) String() string {
@@ -25,7 +28,15 @@ func (b *betaFlag) String() string {
 func (b *betaFlag) Set(s string) error {
 	v, err := strconv.ParseFloat(s, 64)
 	if err != nil || math.IsNaN(v) || math.IsInf(v, 0) || v <= 0 {
-		return fmt.Errorf("%q is not a positive finite number", s)
+		omitted := b.omitted
+		if omitted == "" {
+			omitted = "leave --beta out to use the model file's beta"
+		}
+		if err != nil || v == 0 {
+			// "0", "auto", "unknown": a way of saying "I do not know beta".
+			return fmt.Errorf("%q is not a positive finite number, so not an inverse temperature; %s", s, omitted)
+		}
+		return fmt.Errorf("%q is not a positive finite number; %s", s, omitted)
 	}
 	b.value, b.set = v, true
 	return nil
@@ -33,15 +44,17 @@ func (b *betaFlag) Set(s string) error {
 
 func (b *betaFlag) Type() string { return "B" }
 
+func (b *betaFlag) reset() { *b = betaFlag{} }
+
 // addBetaFlag registers --beta with the given usage (default: it
-// overrides the model file's beta). It clears b first: the command runner
-// registers flags afresh for every run, and a value left from an earlier
-// run in the same process must not leak into the next.
+// overrides the model file's beta), fresh (see addFreshVar).
 func addBetaFlag(fs *pflag.FlagSet, b *betaFlag, usage ...string) {
-	*b = betaFlag{}
 	u := "inverse temperature (overrides the model's beta)"
 	if len(usage) > 0 {
 		u = usage[0]
 	}
-	fs.Var(b, "beta", u)
+	addFreshVar(fs, b, "beta", u)
 }
+
+// betaOmittedFits is what omitting --beta means to fit.
+const betaOmittedFits = "to fit at unknown temperature, leave --beta out (and give no beta in the template): the fit then learns the products beta*lambda, and --scale-from TERM=VALUE or --scale-from beta=B fixes the energy scale afterwards"

@@ -31,6 +31,7 @@ type bulkFlags struct {
 	curves      string
 	figures     string
 	demo        string
+	csv         csvFlags
 	// orders overrides defaultBulkOrder per lattice (set by the demo).
 	orders map[string]int
 }
@@ -61,10 +62,11 @@ func init() {
 			fs.StringVar(&o.engine, "engine", "expansion", "forward model: expansion (linked-cluster expansion of the infinite lattice) or clusters (exact diagonalisation of 12-site periodic clusters; faster, trusted only higher)")
 			fs.IntVar(&o.order, "order", 0, "expansion order, the largest cluster (default: chain 13, honeycomb 11, square 10, triangular 9; with +Delta chain 10, others 8)")
 			fs.Float64Var(&o.sizeTol, "finite-size-tol", bulk.DefaultFiniteSizeTolerance, "relative agreement of the two periodic clusters that marks a curve trusted")
-			fs.StringVarP(&o.out, "output", "o", "", "write the fit (JSON) to `FILE` instead of stdout")
+			addOutputFlag(fs, &o.out, "the fit (JSON)")
 			fs.StringVar(&o.curves, "curves", "", "write data against model curves (CSV) to `FILE`")
 			fs.StringVar(&o.figures, "figures", "", "write one SVG figure per quantity into `DIR`")
 			fs.StringVar(&o.demo, "demo", "", "write the invented demo compound's curves into `DIR` and fit them (results go there too)")
+			addCSVFlags(fs, &o.csv)
 		},
 		Run: runBulk,
 	})
@@ -106,7 +108,9 @@ the JSON output has the parameters with standard errors, their covariance and
 correlation matrices, chi^2/dof and its p-value for each candidate over its own trusted
 range, and a ranking: candidates with p < --reject-below are rejected, the rest are
 ordered by AIC on the points every candidate trusts. Warnings go to stderr and into the
-JSON.`
+JSON.
+
+The --curves CSV: ` + csvOutputHelp
 
 const bulkExample = `# the invented demo compound: curves, fit, figures in ./orvanite
 warmfit bulk --demo orvanite
@@ -125,6 +129,9 @@ func runBulk(env *runEnv, args []string) error {
 	}
 	if len(args) == 0 {
 		return usagef("no input files (or --demo DIR)")
+	}
+	if err := checkOutputs(withCSV("--curves", o.curves, o.csv, outputFile{"-o", o.out}), args...); err != nil {
+		return err
 	}
 	job, err := newBulkJob(args)
 	if err != nil {
@@ -155,6 +162,11 @@ func newBulkJob(files []string) (*bulkJob, error) {
 		start: map[string]float64{}, fixed: map[string]bool{}}
 	if !(o.perFormula > 0) {
 		return nil, usagef("--sites-per-formula %v: must be positive", o.perFormula)
+	}
+	if o.curves == "" && o.demo == "" {
+		if err := o.csv.misuse("the fit (JSON); they go with --curves"); err != nil {
+			return nil, err
+		}
 	}
 	if !(o.rejectBelow > 0 && o.rejectBelow < 1) {
 		return nil, usagef("--reject-below %v: must be in (0, 1)", o.rejectBelow)
@@ -276,7 +288,18 @@ func (j *bulkJob) run(env *runEnv) error {
 	}
 	printBulkSummary(env.Stderr, res)
 	if j.curves != "" {
-		if err := writeOutput(env, j.curves, func(w io.Writer) error { return writeBulkCurves(w, res) }); err != nil {
+		meta := &csvMeta{Command: "bulk", Contents: "one row per data point and candidate model: data, model curve, pull"}
+		meta.set("data_files", j.files)
+		var names []string
+		for _, c := range res.cmp.Candidates {
+			names = append(names, c.Name)
+		}
+		meta.set("candidates", names)
+		meta.set("best", res.cmp.Candidates[res.cmp.Ranking[0]].Name)
+		for _, w := range res.warnings {
+			meta.line("WARNING: %s", w)
+		}
+		if err := writeCSVResult(env, j.curves, bulkOptions.csv, meta, func(w io.Writer) error { return writeBulkCurves(w, res) }); err != nil {
 			return err
 		}
 	}

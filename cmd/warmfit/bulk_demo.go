@@ -79,7 +79,7 @@ func runBulkDemo(env *runEnv, dir string) error {
 	var files []string
 	for _, c := range orvaniteCurves() {
 		path := filepath.Join(dir, c.file)
-		if err := writeOrvaniteCurve(path, c, fwd, rng); err != nil {
+		if err := writeOrvaniteCurve(env, path, c, fwd, rng); err != nil {
 			return err
 		}
 		files = append(files, path)
@@ -120,7 +120,7 @@ func runBulkDemo(env *runEnv, dir string) error {
 
 // writeOrvaniteCurve evaluates the true model on the curve's points and
 // writes them with noise.
-func writeOrvaniteCurve(path string, c orvaniteCurve, fwd bulk.ForwardModel, rng *rand.Rand) error {
+func writeOrvaniteCurve(env *runEnv, path string, c orvaniteCurve, fwd bulk.ForwardModel, rng *rand.Rand) error {
 	s := &bulk.Series{Quantity: c.q}
 	if c.q == bulk.Magnetization {
 		for _, t := range c.temps {
@@ -141,9 +141,13 @@ func writeOrvaniteCurve(path string, c orvaniteCurve, fwd bulk.ForwardModel, rng
 	if err != nil {
 		return err
 	}
-	return writeFileAtomic(path, func(w io.Writer) error {
-		fmt.Fprintf(w, "# orvanite (invented compound, synthetic data from warmfit bulk --demo): %s\n", c.about)
-		fmt.Fprintf(w, "# noise: %.3g x |value| (+) %.3g, Gaussian, one standard error in the _err column\n", c.rel, c.floor)
+	meta := &csvMeta{Command: "bulk --demo", Contents: "one row per measured point of the invented compound orvanite"}
+	meta.line("orvanite (invented compound, synthetic data from warmfit bulk --demo): %s", c.about)
+	meta.line("noise: %.3g x |value| (+) %.3g, Gaussian, one standard error in the _err column", c.rel, c.floor)
+	meta.set("invented", true)
+	meta.set("noise_relative", c.rel)
+	meta.set("noise_floor", c.floor)
+	return writeCSVResult(env, path, bulkOptions.csv, meta, func(w io.Writer) error {
 		fmt.Fprintln(w, c.header)
 		for k, p := range s.Points {
 			v := vals[0][k]

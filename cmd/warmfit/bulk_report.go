@@ -236,11 +236,14 @@ func matrixJSON(m *mat.SymDense, n int) [][]jsonNumber {
 	return out
 }
 
+// bulkCurvesHeader is the header of --curves (formats.md, section bulk).
+var bulkCurvesHeader = []string{"candidate", "quantity", "unit", "file", "line", "T_K", "H_T", "data", "stderr", "stderr_source", "model", "pull", "trusted", "fitted"}
+
 // writeBulkCurves writes data against every candidate's model, one row
 // per point and candidate, under a plain header row.
 func writeBulkCurves(w io.Writer, r *bulkRun) error {
 	cw := csv.NewWriter(w)
-	cw.Write([]string{"candidate", "quantity", "unit", "file", "line", "T_K", "H_T", "data", "stderr", "stderr_source", "model", "pull", "trusted", "fitted"})
+	cw.Write(bulkCurvesHeader)
 	for i, c := range r.cmp.Candidates {
 		f := r.cmp.Own[i]
 		if f == nil {

@@ -116,6 +116,9 @@ func TestBulkFitsFileAndRefusesColdData(t *testing.T) {
 	if err != nil || !strings.HasPrefix(string(head), "candidate,quantity,unit,file,line,T_K,") {
 		t.Errorf("curves CSV header: %.80q, %v", head, err)
 	}
+	if meta := readSidecar(t, curves+".meta.json"); meta["best"] != "chain" || meta["candidates"] == nil {
+		t.Errorf("curves sidecar: %v", meta)
+	}
 	cold := write("cold.csv", 1, 8)
 	code, _, stderr = runCapture("bulk", "--order", "10", "--start", "J=40K", cold)
 	if code != exitFailure || !strings.Contains(stderr, "lowest usable temperature") {

@@ -85,7 +85,7 @@ func (d *demoRun) fitData(step int, j fitJob) (*demoFit, error) {
 		return nil, err
 	}
 	f.Model = &model.Model{Lattice: lat, Terms: res.Terms, Beta: res.Beta}
-	d.say("fit: order %d (%s), %s, %.1fs", res.Order, mode, plural(res.Iterations, "Newton iteration"), res.Elapsed.Seconds())
+	d.say("fit: order %d (%s), %s, %.1fs", res.Order, mode, newtonIterations(res.TotalIterations, res.Iterations, res.Order), res.Elapsed.Seconds())
 	return f, nil
 }
 
@@ -94,9 +94,9 @@ func (d *demoRun) fitData(step int, j fitJob) (*demoFit, error) {
 // (fitted - true)/stderr) the report and the figures show.
 type demoRecovery struct {
 	*fit.TruthComparison
-	Terms []lattice.Term // the fitted terms
-	Truth []float64      // the true coefficient of each
-	Worst string         // the term of Linf
+	Terms        []lattice.Term // the fitted terms
+	Truth        []float64      // the true coefficient of each
+	LargestError string         // the term of Linf (largest |fit - truth|)
 	// PullMean and Within2 (the fraction of |pull| <= 2) complete the
 	// comparison's rms and largest |pull|.
 	PullMean, Within2    float64
@@ -123,8 +123,8 @@ func newDemoRecovery(res *fit.Result, cmp *fit.TruthComparison, truth []lattice.
 		want[t.Key()] = t.Coeff
 	}
 	r := &demoRecovery{TruthComparison: cmp, Terms: res.Terms, Truth: make([]float64, len(res.Terms))}
-	if cmp.WorstTerm >= 0 {
-		r.Worst = res.Terms[cmp.WorstTerm].Key()
+	if cmp.LargestErrorTerm >= 0 {
+		r.LargestError = res.Terms[cmp.LargestErrorTerm].Key()
 	}
 	stderrs := make([]float64, len(res.Terms))
 	within := 0

@@ -55,7 +55,14 @@ func (d *demoRun) stepMeasure() error {
 		"--generator", "binomial", "--order", fmt.Sprint(choice.Order), "--seed", fmt.Sprint(sc.Seed), "-o", "data.csv")
 	d.say("binomial generator: expectations from the order-%d expansion of the truth (%s); each term drawn on its own (cross-term correlations are ignored)",
 		choice.Order, choice.Reason)
-	return d.write("data.csv", func(w io.Writer) error { return fit.WriteTable(w, t) })
+	meta := tableMeta("sample", "expectation table: one row per model term, with the shots it got", t.Comments)
+	t.Comments = nil
+	meta.set("model", "truth.json")
+	meta.set("generator", "binomial")
+	meta.set("order", choice.Order)
+	meta.set("beta", sc.Beta)
+	meta.set("seed", sc.Seed)
+	return d.writeCSV("data.csv", meta, func(w io.Writer) error { return fit.WriteTable(w, t) })
 }
 
 // sampleExact draws exact Gibbs-state snapshots of m in the bases and
@@ -73,7 +80,14 @@ func (d *demoRun) sampleExact(m *model.Model, bases []string, name string) error
 			return err
 		}
 	}
-	return d.write(name, func(w io.Writer) error {
+	meta := &csvMeta{Command: "sample", Contents: "snapshot file: one row per basis and outcome seen, with its count"}
+	meta.line("warmfit sample: exact Gibbs-state snapshots of %d qubits, beta %s, %d bases x %d shots, seed %d", m.Lattice.NumSites(), fmtFloat(m.Beta), len(bases), d.sc.Shots, d.sc.Seed)
+	meta.set("generator", "exact")
+	meta.set("beta", m.Beta)
+	meta.set("bases", bases)
+	meta.set("shots_per_basis", d.sc.Shots)
+	meta.set("seed", d.sc.Seed)
+	return d.writeCSV(name, meta, func(w io.Writer) error {
 		sw := fit.NewSnapshotWriter(w, m.Lattice.NumSites())
 		for i, b := range bases {
 			for _, c := range counts[i] {

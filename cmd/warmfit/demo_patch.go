@@ -2,9 +2,11 @@ package main
 
 import (
 	"fmt"
+	"strconv"
 	"time"
 
 	"warmfit/fit"
+	"warmfit/lattice/model"
 	"warmfit/validate"
 )
 
@@ -87,14 +89,14 @@ func (d *demoRun) crosscheckPatch() error {
 	sc, p := &d.sc, d.patch
 	t0 := time.Now()
 	bar := newProgressBar(d.env, "crosscheck")
-	res, err := validate.Crosscheck(d.device, sc.Beta, [][]int{p.Sites}, validate.CrosscheckOptions{Tol: sc.dataTol(), Progress: bar.Update})
+	res, err := sc.crosscheck(d.device, p.Sites, bar.Update)
 	bar.Done()
 	if err != nil {
 		return err
 	}
 	p.Check, p.CheckElapsed = res, time.Since(t0)
 	d.record(4, "the expansion against exact diagonalisation on the same patch, order by order",
-		"crosscheck", "--model", "truth.json", "--sites", siteList(p.Sites), "--tol", fmtG3(sc.dataTol()), "-o", "patch-crosscheck.csv")
+		append(sc.crosscheckArgs("truth.json", p.Sites), "-o", "patch-crosscheck.csv")...)
 	o := min(d.array.Result.Order, len(res.Orders))
 	d.say("expansion vs dense exact diagonalisation on the patch: max |difference| %s at order %d (the array's order), %s at order %d (all %d sites)",
 		fmtG3(res.Orders[o-1].MaxDiff), o, fmtG3(res.Orders[len(res.Orders)-1].MaxDiff), len(res.Orders), len(p.Sites))
@@ -102,6 +104,19 @@ func (d *demoRun) crosscheckPatch() error {
 		d.say("crosscheck: %s", v)
 	}
 	return nil
+}
+
+// crosscheck is the demo's exact check of the device on one patch, as
+// "warmfit crosscheck" with crosscheckArgs computes it.
+func (sc *demoScenario) crosscheck(device *model.Model, sites []int, progress func(done, total int)) (*validate.CrosscheckResult, error) {
+	return validate.Crosscheck(device, sc.Beta, [][]int{sites}, validate.CrosscheckOptions{Tol: sc.dataTol(), Progress: progress})
+}
+
+// crosscheckArgs is the command line that repeats the demo's crosscheck
+// on the device model written to truthFile; the tolerance is written in
+// full so that the command compares at the very same tolerance.
+func (sc *demoScenario) crosscheckArgs(truthFile string, sites []int) []string {
+	return []string{"crosscheck", "--model", truthFile, "--sites", siteList(sites), "--tol", strconv.FormatFloat(sc.dataTol(), 'g', -1, 64)}
 }
 
 // siteList writes sites the way "warmfit crosscheck --sites" reads them.

@@ -104,6 +104,20 @@ func (d *demoRun) write(name string, fn func(w io.Writer) error) error {
 	return nil
 }
 
+// writeCSV writes a CSV through the commands' one CSV writer: a clean
+// CSV and its metadata sidecar NAME.meta.json.
+func (d *demoRun) writeCSV(name string, meta *csvMeta, body func(w io.Writer) error) error {
+	if err := writeCSVResult(d.env, d.path(name), csvFlags{}, meta, body); err != nil {
+		return err
+	}
+	for _, f := range []string{name, name + ".meta.json"} {
+		if !slices.Contains(d.files, f) {
+			d.files = append(d.files, f)
+		}
+	}
+	return nil
+}
+
 func (d *demoRun) writeModel(name string, m *model.Model) error {
 	return d.write(name, func(w io.Writer) error { return model.Write(w, m) })
 }
@@ -149,7 +163,7 @@ func (d *demoRun) stepFitArray() error {
 	d.array = f
 	r := f.Recovery
 	d.say("against the truth: L2 %s, Linf %s (%s); pulls mean %+.3f, rms %.3f, %.1f%% within 2 sigma (normal: 95.4%%)",
-		fmtG3(r.L2), fmtG3(r.Linf), r.Worst, r.PullMean, r.RMSZ, 100*r.Within2)
+		fmtG3(r.L2), fmtG3(r.Linf), r.LargestError, r.PullMean, r.RMSZ, 100*r.Within2)
 	return nil
 }
 
@@ -159,8 +173,17 @@ func (d *demoRun) stepPlan() error {
 	sc, f := &d.sc, d.array
 	bar := newProgressBar(d.env, "planning")
 	defer bar.Done()
+	// One response serves every target: shots scale as 1/target^2.
+	var first *fit.Plan
 	for i, eps := range sc.PlanTargets {
-		p, err := fit.PlanShots(f.Model.Lattice, f.Model.Terms, sc.Beta, fit.PlanOptions{Target: eps, Norm: fit.NormLinf, Bases: d.bases, Order: f.Result.Order})
+		var p *fit.Plan
+		var err error
+		if first == nil {
+			p, err = fit.PlanShots(f.Model.Lattice, f.Model.Terms, sc.Beta, fit.PlanOptions{Target: eps, Norm: fit.NormLinf, Bases: d.bases, Order: f.Result.Order})
+			first = p
+		} else {
+			p, err = first.Retarget(eps)
+		}
 		if err != nil {
 			return err
 		}
@@ -168,6 +191,9 @@ func (d *demoRun) stepPlan() error {
 		d.plans = append(d.plans, p)
 		d.say("Linf %-5s (every coefficient within it at 95%%, z = %.2f): %d shots per basis, %d in all",
 			fmtFloat(eps), p.Z, p.ShotsPerBasis, p.TotalShots)
+		for _, w := range p.Warnings {
+			d.say("WARNING: plan for Linf %s: %s", fmtFloat(eps), w)
+		}
 		d.record(6, "", "plan", "--model", "fitted.json", "--target", fmtFloat(eps))
 	}
 	d.planAtRun = math.Sqrt(slices.Max(d.plans[0].VarPerShot) / float64(sc.Shots))

@@ -6,6 +6,8 @@ import (
 	"math"
 	"strings"
 	"time"
+
+	"warmfit/cluster"
 )
 
 // The demo's report, report.md: the scenario, what was done, the
@@ -108,7 +110,7 @@ func (d *demoRun) stepDetails(step int) []string {
 		if f := d.array; f != nil {
 			r := f.Report
 			out = append(out, fmt.Sprintf("fitted.json: %d coefficients with error bars (%s), expansion order %d chosen %s, %s, %.1f s.",
-				r.Terms, r.ErrorMethod, r.Order, map[string]string{"auto": "by the fitter", "fixed": "by --order"}[r.OrderMode], plural(r.Iterations, "Newton iteration"), r.ElapsedSeconds))
+				r.Terms, r.ErrorMethod, r.Order, map[string]string{"auto": "by the fitter", "fixed": "by --order"}[r.OrderMode], newtonIterations(r.AllIterations, r.Iterations, r.Order), r.ElapsedSeconds))
 		}
 	case 4:
 		if p := d.patch; p != nil && p.Fit != nil {
@@ -161,7 +163,7 @@ func (d *demoRun) reportRecovery(m *mdWriter) {
 		return fmt.Sprintf("%d (%s)", f.Report.Order, f.Report.OrderMode)
 	})
 	row("L2 error", func(_ *demoFit, r *demoRecovery) string { return fmtG3(r.L2) })
-	row("Linf error (term)", func(_ *demoFit, r *demoRecovery) string { return fmtG3(r.Linf) + " (" + r.Worst + ")" })
+	row("Linf error (term)", func(_ *demoFit, r *demoRecovery) string { return fmtG3(r.Linf) + " (" + r.LargestError + ")" })
 	row("median / largest stderr", func(_ *demoFit, r *demoRecovery) string { return fmtG3(r.MedStderr) + " / " + fmtG3(r.MaxStderr) })
 	row("pull mean", func(_ *demoFit, r *demoRecovery) string { return fmt.Sprintf("%+.3f", r.PullMean) })
 	row("pull rms", func(_ *demoFit, r *demoRecovery) string { return fmt.Sprintf("%.3f", r.RMSZ) })
@@ -273,7 +275,7 @@ func (d *demoRun) reportLimits(m *mdWriter) {
 	}
 	m.p("## What this run does and does not show\n\n")
 	m.p("- The array's data are drawn from the expansion of the truth at %s (exact snapshots need\n", order)
-	m.p("  dense diagonalisation, at most 12 qubits; the array has %d), accurate to a tenth of the\n", sc.numSites())
+	m.p("  dense diagonalisation, at most %d qubits; the array has %d), accurate to a tenth of the\n", cluster.MaxDenseQubits, sc.numSites())
 	m.p("  shot noise. The array comparison tests the statistics, the fitter and its error bars; the\n")
 	m.p("  %dx%d patch, with exact snapshots and dense diagonalisation, is the check against exact\n", sc.Patch, sc.Patch)
 	m.p("  results.\n")

@@ -27,6 +27,7 @@ type demoTemperature struct {
 	// last trusted one before it (0 when there is none).
 	Trusted          []bool
 	Edge, LastGood   float64
+	Judged           *sweepTrust
 	OperatingTrusted bool // the operating beta lies below Edge
 }
 
@@ -59,10 +60,12 @@ func (d *demoRun) stepTemperature() error {
 	t.trust(sc.SweepTol, sc.Beta)
 	lo, hi, n := sc.sweepGrid()
 	d.record(5, "the thermodynamic sweep of the fitted model at the fit's order",
-		"sweep", "--model", "fitted.json", "--beta-grid", fmtFloat(lo)+".."+fmtFloat(hi), "--points", fmt.Sprint(n),
+		"sweep", "--model", "fitted.json", "--beta-grid", fmt.Sprintf("from=%s,to=%s,points=%d", fmtFloat(lo), fmtFloat(hi), n),
 		"--order", fmt.Sprint(t.Order), "--tol", fmtG3(sc.SweepTol), "-o", "sweep.csv")
-	if err := d.write("sweep.csv", func(w io.Writer) error {
-		return writeThermo(w, &runEnv{Stderr: io.Discard}, res, sc.SweepTol)
+	meta := &csvMeta{Command: "sweep", Contents: "one row per inverse temperature of the grid; values per site"}
+	meta.set("model", "fitted.json")
+	if err := d.writeCSV("sweep.csv", meta, func(w io.Writer) error {
+		return writeSweep(w, &runEnv{Stderr: io.Discard}, res, sc.SweepTol, meta)
 	}); err != nil {
 		return err
 	}
@@ -72,37 +75,17 @@ func (d *demoRun) stepTemperature() error {
 	case t.LastGood == 0:
 		d.say("WARNING: sweep (order %d): not converged anywhere on the grid", t.Order)
 	default:
-		d.say("sweep (%d temperatures, order %d): energy and heat capacity per site converged (tolerance %g) up to beta %s; the operating beta %s is %.0f%% of that edge",
-			len(betas), t.Order, sc.SweepTol, fmtFloat(t.LastGood), fmtFloat(sc.Beta), 100*sc.Beta/t.LastGood)
+		d.say("sweep (%d temperatures, order %d): energy and heat capacity per site %s; the operating beta %s is %.0f%% of that edge",
+			len(betas), t.Order, t.Judged.rangeText(), fmtFloat(sc.Beta), 100*sc.Beta/t.LastGood)
 	}
 	return nil
 }
 
-// trust marks the temperatures of the sweep at which energy and heat
-// capacity per site have converged to tol, as "warmfit sweep" marks its
-// rows, and finds the edge of the trusted range.
+// trust marks the temperatures of the sweep as "warmfit sweep" marks its
+// rows (judgeSweep) and finds the edge of the trusted range.
 func (t *demoTemperature) trust(tol, operating float64) {
-	r := t.Sweep
-	perSite := func(series []float64) []float64 {
-		out := make([]float64, len(series))
-		for o, v := range series {
-			out[o] = v / float64(r.NumSites)
-		}
-		return out
-	}
-	t.Trusted = make([]bool, len(r.Betas))
-	for i, beta := range r.Betas {
-		e := cluster.Converge(perSite(r.Energy[i]), 1, tol)
-		c := cluster.Converge(perSite(r.HeatCapacity[i]), 1, tol)
-		t.Trusted[i] = e.Trusted && c.Trusted
-		if t.Edge == 0 {
-			if t.Trusted[i] {
-				t.LastGood = beta
-			} else {
-				t.Edge = beta
-			}
-		}
-	}
+	t.Judged = judgeSweep(t.Sweep, tol)
+	t.Trusted, t.Edge, t.LastGood = t.Judged.Trusted, t.Judged.Edge, t.Judged.LastGood
 	t.OperatingTrusted = t.Edge == 0 || operating < t.Edge
 }
 

@@ -57,6 +57,25 @@ func TestDemoQuick(t *testing.T) {
 		t.Errorf("planner predicts a largest stderr of %g at the shots used, the fit got %g", d.planAtRun, d.array.Recovery.MaxStderr)
 	}
 	t.Run("commands", func(t *testing.T) { checkDemoCommands(t, dir) })
+	t.Run("crosscheck", func(t *testing.T) {
+		// The crosscheck command the report records, run on the demo's
+		// truth.json, gives the demo's own table (to the last bit: JSON
+		// round-trips float64).
+		args := append(d.sc.crosscheckArgs(filepath.Join(dir, "truth.json"), d.patch.Sites), "--format", "json")
+		code, out, stderr := runCmd(args...)
+		if code != exitOK {
+			t.Fatalf("exit %d: %s", code, stderr)
+		}
+		got := crosscheckDoc(t, out)
+		if len(got.Orders) != len(c.Orders) || got.AgreeOrder != c.AgreeOrder {
+			t.Fatalf("%d orders agreeing from %d; the demo has %d from %d", len(got.Orders), got.AgreeOrder, len(c.Orders), c.AgreeOrder)
+		}
+		for i, w := range c.Orders {
+			if g := got.Orders[i]; g.MaxDiff != w.MaxDiff || g.RMSDiff != w.RMSDiff || g.Agrees != w.Agrees {
+				t.Errorf("order %d: max %g rms %g; the demo has %g, %g", w.Order, g.MaxDiff, g.RMSDiff, w.MaxDiff, w.RMSDiff)
+			}
+		}
+	})
 	t.Run("deterministic", func(t *testing.T) {
 		if testing.Short() {
 			t.Skip("runs the demo a second time")

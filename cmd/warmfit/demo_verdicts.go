@@ -9,7 +9,7 @@ import (
 )
 
 // The demo's conclusions in plain words. A verdict that is not OK is
-// written as a WARNING line, in the report and on stdout.
+// written as a WARNING line, in the report and on stderr.
 
 // demoVerdict is one plain-language conclusion.
 type demoVerdict struct {
@@ -40,7 +40,7 @@ func (d *demoRun) verdicts() []demoVerdict {
 
 // fitVerdicts judge the array fit's convergence and truncation.
 func fitVerdicts(rep *fit.Report) []demoVerdict {
-	v := []demoVerdict{{rep.Converged, fmt.Sprintf("Array fit: converged at expansion order %d (%s selection) after %s.", rep.Order, rep.OrderMode, plural(rep.Iterations, "Newton iteration"))}}
+	v := []demoVerdict{{rep.Converged, fmt.Sprintf("Array fit: converged at expansion order %d (%s selection) after %s.", rep.Order, rep.OrderMode, newtonIterations(rep.AllIterations, rep.Iterations, rep.Order))}}
 	switch tr := rep.Truncation; {
 	case tr.Exact:
 		v = append(v, demoVerdict{true, "Array fit: the order covers the whole array, so the expansion is exact."})
@@ -110,8 +110,8 @@ func (d *demoRun) temperatureVerdicts() []demoVerdict {
 		v = append(v, demoVerdict{true, fmt.Sprintf("Temperature: energy and heat capacity converge on the whole sweep, up to beta %s (%.1fx the operating beta).",
 			fmtFloat(top), top/sc.Beta)})
 	case t.OperatingTrusted && t.LastGood > 0:
-		v = append(v, demoVerdict{true, fmt.Sprintf("Temperature: the thermodynamic series converge (tolerance %g per site) up to beta %s; the operating beta %s sits at %.0f%% of that edge.",
-			sc.SweepTol, fmtFloat(t.LastGood), fmtFloat(sc.Beta), 100*sc.Beta/t.LastGood)})
+		v = append(v, demoVerdict{true, fmt.Sprintf("Temperature: the thermodynamic series %s; the operating beta %s sits at %.0f%% of that edge.",
+			t.Judged.rangeText(), fmtFloat(sc.Beta), 100*sc.Beta/t.LastGood)})
 	default:
 		v = append(v, demoVerdict{false, fmt.Sprintf("Temperature: the thermodynamic series stop converging at beta %s, below the operating beta %s: the device is too cold for order %d.",
 			fmtFloat(t.Edge), fmtFloat(sc.Beta), t.Order)})

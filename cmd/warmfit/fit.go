@@ -25,7 +25,8 @@ var fitOptions struct {
 	model    string
 	data     string
 	beta     betaFlag
-	order    string
+	order    orderFlag
+	oldTol   float64 // the retired --tol, answered with a pointer
 	budget   time.Duration
 	truth    string
 	format   string
@@ -38,6 +39,8 @@ var fitOptions struct {
 	workers  int
 	verbose  bool
 	maxOrder int
+	scale    string
+	csv      csvFlags
 }
 
 func init() {
@@ -45,26 +48,32 @@ func init() {
 		Name:    "fit",
 		Short:   "learn a Hamiltonian's coefficients from measurements of its Gibbs state",
 		Usage:   "warmfit fit --model TEMPLATE.json --data FILE [--beta B] [--order L|auto] [--budget 60s] [--truth M.json] [--format json|csv] [-o OUT.json]",
-		Long:    fitLong,
+		Long:    fitLong + fitMethodLong,
 		Example: fitExample,
 		Flags: func(fs *pflag.FlagSet) {
 			o := &fitOptions
-			fs.StringVar(&o.model, "model", "", "template model `FILE`: lattice, terms, groups (coefficients are ignored unless --start template)")
+			addModelFlag(fs, &o.model, "template model `FILE`: lattice, terms, groups (coefficients are ignored unless --start template)")
 			fs.StringVar(&o.data, "data", "", "expectation table or snapshot `FILE` (told apart by the header)")
 			addBetaFlag(fs, &o.beta, "inverse temperature (overrides the template's; without either, beta*lambda is fitted)")
-			fs.StringVar(&o.order, "order", "auto", "expansion order L (largest cluster), or auto")
+			o.beta.omitted = betaOmittedFits
+			addOrderFlag(fs, &o.order, "expansion order (largest cluster), or auto")
 			fs.IntVar(&o.maxOrder, "max-order", 0, "highest order --order auto may use (default: sites, at most 12)")
-			fs.DurationVar(&o.budget, "budget", 60*time.Second, "wall time --order auto may spend (a higher order is not started, or is abandoned, past it)")
+			addBudgetFlag(fs, &o.budget)
 			fs.StringVar(&o.truth, "truth", "", "true model `FILE`: report z-scores and L2/Linf errors against it")
+			fs.StringVar(&o.scale, "scale-from", "", "without beta: fix the energy scale from `TERM=VALUE` (a calibrated coefficient, e.g. \"ZZ 0 1=0.25\") or beta=B; VALUE may be V+-ERR")
 			fs.StringVar(&o.format, "format", "json", "output format: json (fitted model with report) or csv")
-			fs.StringVarP(&o.out, "output", "o", "", "write the fit to `FILE` instead of stdout")
-			fs.Float64Var(&o.tol, "tol", 1e-3, "stop when every gradient component is below tol x its data noise")
+			addOutputFlag(fs, &o.out, "the fit")
+			fs.Float64Var(&o.tol, "gradient-tol", 1e-3, "stop when every gradient component is below this times its data noise")
+			fs.Float64Var(&o.oldTol, "tol", 0, "replaced by --gradient-tol")
+			_ = fs.MarkHidden("tol")
 			fs.IntVar(&o.maxIter, "max-iter", 50, "Newton iterations per order")
 			fs.StringVar(&o.start, "start", "first-order", "starting point: first-order (lambda = -e/beta) or template")
 			fs.Float64Var(&o.fdr, "fdr", 0.05, "false-discovery rate of the significance flags (Benjamini-Hochberg)")
 			fs.IntVar(&o.covDist, "cov-distance", 1, "snapshots: keep covariances of terms within this graph distance")
-			fs.IntVar(&o.workers, "workers", 0, "parallel workers (default: all cores)")
+			addWorkersFlag(fs, &o.workers)
 			fs.BoolVarP(&o.verbose, "verbose", "v", false, "log every Newton iteration")
+			addCSVFlags(fs, &o.csv)
+			addFitMethodFlags(fs)
 		},
 		Run: runFit,
 	})
@@ -74,7 +83,10 @@ const fitLong = `Fit finds the coefficients lambda of H = sum_k lambda_k E_k who
 exp(-beta H)/Z reproduces the measured expectation values e_k, by minimising the
 convex maximum-entropy dual G(lambda) = log Z(lambda) + beta sum_k lambda_k e_k with
 log Z from the numerical linked-cluster expansion. Newton steps are solved by
-conjugate gradients on the sparse Hessian and damped by a line search on G.
+conjugate gradients on the sparse Hessian and damped by a line search on G. On
+large lattices the steps take the exact gradient at order L with the Hessian of
+order L-1 (the order-L one costs about four forward passes); a step that stalls
+falls back on the exact Hessian.
 
 The template (--model) gives the lattice and the terms; terms sharing a "group" share
 one coefficient. The data (--data) are an expectation table (pauli,sites,value,stderr;
@@ -86,14 +98,16 @@ one equation per parameter, solved by damped Newton with a dense LU; error bars
 J^{-1} A_m^T Cov(e_m) A_m J^{-T}), and the report says how many. Other terms without
 data, and data terms missing from the template, are an error that lists them.
 
-Convergence: the fit stops when every component of the gradient is below --tol
+Convergence: the fit stops when every component of the gradient is below --gradient-tol
 times its data noise (for exact data, when the mean residual is below 1e-10). A fit
 that does not converge exits with status 1, says why, leaves -o untouched and
 writes its last iterate to OUT.unconverged.json.
 
 Error bars: delta method, Cov(theta) = M Cov(e) M^T with M = (A^T R A)^{-1} A^T,
-R = d<E>/d lambda at the solution; the lower orders L-1 and L-2 are refitted from
-the solution to measure the truncation error (the larger of the last two changes
+R = d<E>/d lambda at the solution, of order L or, on large lattices, L-1 (the
+report's "error_bars_response_order"; the two differ by about 1%). The lower
+orders L-2 and L-1 are fitted first, each from the solution below, and measure
+the truncation error (the larger of the last two changes
 of any coefficient: partial sums can stall for one order). With --order auto (the
 default), the order rises until that error is at most 0.1 x the median statistical
 error, or --budget runs out (the next order's cost is predicted before it is
@@ -108,15 +122,20 @@ rate --fdr (default q = 0.05).
 Without beta (neither --beta nor the template's), the products beta*lambda are
 fitted and written with beta = 1; the report says so.
 
+` + scaleFromHelp + `
+
 Output: the fitted model as JSON with a per-term "stderr" and a "fit" report object
-(it feeds straight back into 'warmfit expect'), or with --format csv the table
+(it feeds straight back into 'warmfit predict'), or with --format csv the table
 pauli,sites,coeff,stderr,significant. A plain-language summary goes to stderr, with
-WARNING lines whenever the result could mislead.`
+WARNING lines whenever the result could mislead.
+
+` + csvOutputHelp + ` For --format csv the sidecar holds the whole
+fit report (the "fit" object of the JSON output) under "fit".`
 
 const fitExample = `# simulate, then learn back a disordered XXZ model on a 4x4 lattice
 warmfit model --lattice square:4x4 --preset xxz --set Jxy=0.4,Jz=0.3,hz=0.2 --disorder 0.1 --beta 0.5 -o truth.json
 warmfit model --lattice square:4x4 --preset xxz --set Jxy=1,Jz=1,hz=1 --beta 0.5 -o template.json
-warmfit expect --model truth.json --order 8 -o e.csv
+warmfit predict --model truth.json --order 8 -o e.csv
 warmfit fit --model template.json --data e.csv --truth truth.json -o fitted.json
 
 # snapshots, fixed order, coefficients as CSV
@@ -136,44 +155,103 @@ func runFit(env *runEnv, args []string) error {
 	if o.format != "json" && o.format != "csv" {
 		return usagef("--format %q: want json or csv", o.format)
 	}
-	order := 0
-	if o.order != "auto" {
-		n, err := strconv.Atoi(o.order)
-		if err != nil || n < 1 || n > cluster.MaxDenseQubits {
-			return usagef("--order %q: want auto or an integer from 1 to %d (clusters are diagonalised exactly)", o.order, cluster.MaxDenseQubits)
+	if o.format != "csv" {
+		if err := o.csv.misuse("the fitted model (JSON); add --format csv"); err != nil {
+			return err
 		}
-		order = n
 	}
-	if o.budget <= 0 {
-		return usagef("--budget %v: must be positive", o.budget)
+	order := o.order.L
+	if o.oldTol != 0 {
+		return usagef("fit --tol was renamed --gradient-tol (a stopping rule on the gradient); elsewhere --tol is a truncation error: write --gradient-tol %v", o.oldTol)
+	}
+	if err := checkBudgetFlag(o.budget); err != nil {
+		return err
+	}
+	if err := checkWorkersFlag(o.workers); err != nil {
+		return err
+	}
+	if o.covDist < 0 {
+		return usagef("--cov-distance %d: want a graph distance >= 0 (0 keeps variances only)", o.covDist)
 	}
 	if !(o.tol > 0) || o.maxIter < 1 || !(o.fdr > 0 && o.fdr < 1) {
-		return usagef("--tol and --fdr must be in range (tol > 0, 0 < fdr < 1) and --max-iter at least 1")
+		return usagef("--gradient-tol and --fdr must be in range (tol > 0, 0 < fdr < 1) and --max-iter at least 1")
 	}
 	if o.start != "first-order" && o.start != "template" {
 		return usagef("--start %q: want first-order or template", o.start)
 	}
+	var calibration *fit.Calibration
+	if o.scale != "" {
+		c, err := parseScaleFrom(o.scale)
+		if err != nil {
+			return err
+		}
+		calibration = &c
+	}
 
+	if err := checkOutputs(withCSV("-o", o.out, o.csv), o.model, o.data, o.truth); err != nil {
+		return err
+	}
 	tmpl, err := model.ReadFile(o.model)
 	if err != nil {
 		return err
 	}
 	beta := tmpl.Beta
 	betaSource := "from " + o.model
+	if fittedWithoutScale(tmpl) && !o.beta.set {
+		// Its beta = 1 is a convention: the temperature is still unknown.
+		beta = 0
+		fmt.Fprintf(env.Stderr, "fit: %s holds a fit at unknown temperature (beta*lambda); its beta = 1 is not used\n", o.model)
+	}
 	if o.beta.set {
 		beta, betaSource = o.beta.value, "from --beta"
 	}
-	est, dataSummary, err := fit.LoadEstimates(o.data, tmpl.Lattice, tmpl.Terms, fit.CovarianceOptions{Distance: o.covDist})
-	if err != nil {
+	if calibration != nil {
+		c, err := resolveScaleGroup(*calibration, tmpl.Terms, o.scale)
+		if err != nil {
+			return err
+		}
+		calibration = &c
+	}
+	switch mo := fitMethodOptions; {
+	case calibration != nil && mo.method == "stationary":
+		return usagef("--scale-from fixes the scale of the expansion fit at unknown temperature; --method stationary takes its known coefficients from --calibrate NAME=VALUE")
+	case mo.calibrate != "" && mo.method == "expansion":
+		return usagef("--calibrate is for --method stationary (or auto); the expansion fit at unknown temperature fixes its energy scale with --scale-from TERM=VALUE (one calibrated coefficient) or --scale-from beta=B")
+	}
+	if calibration != nil && beta > 0 {
+		return usagef("--scale-from fixes the energy scale of a fit without beta, but beta is %s (%s): drop --scale-from, or fit at unknown temperature (no --beta, no beta in the template)", fmtFloat(beta), betaSource)
+	}
+	if done, err := fitMethodFirst(env, tmpl, beta); done {
 		return err
 	}
-	kind := dataSummary.Kind
 	var truth *model.Model
 	if o.truth != "" {
 		if truth, err = model.ReadFile(o.truth); err != nil {
 			return err
 		}
+		if !truth.Lattice.SameGraph(tmpl.Lattice) {
+			return usagef("--truth %s is a model on %s (%d sites), but the template %s is on %s (%d sites): their terms cannot be compared; give the true model of this lattice",
+				o.truth, truth.Lattice.Spec, truth.Lattice.NumSites(), o.model, tmpl.Lattice.Spec, tmpl.Lattice.NumSites())
+		}
 	}
+	if exp, err := cluster.NewExpansion(tmpl.Lattice, tmpl.Terms); err == nil {
+		policy := cluster.NewOrderPolicy(tmpl.Lattice, tmpl.Terms)
+		if order > 0 {
+			e := expansionEstimate(exp, tmpl.Lattice.NumSites(), order, "--order")
+			e.What = "one evaluation of the " + e.What + " (a fit makes several)"
+			if err := admit(env.Stderr, "fit", e, o.budget); err != nil {
+				return err
+			}
+		} else if err := admitExpansion(env, "fit", exp, tmpl.Lattice.NumSites(), 0, policy, o.budget); err != nil {
+			return err
+		}
+	}
+
+	est, dataSummary, err := fit.LoadEstimates(o.data, tmpl.Lattice, tmpl.Terms, fit.CovarianceOptions{Distance: o.covDist})
+	if err != nil {
+		return err
+	}
+	kind := dataSummary.Kind
 
 	opt := fit.Options{
 		Order: order, MaxOrder: o.maxOrder, Budget: o.budget, Tol: o.tol, MaxIter: o.maxIter,
@@ -200,11 +278,22 @@ func runFit(env *runEnv, args []string) error {
 		fmt.Fprintf(env.Stderr, "fit: beta %s (%s)\n", fmtFloat(beta), betaSource)
 	} else {
 		fmt.Fprintln(env.Stderr, "fit: beta unknown (neither --beta nor the template gives one): fitting the products beta*lambda, written with beta = 1")
+		if calibration == nil {
+			fmt.Fprintln(env.Stderr, "fit: every coefficient below is beta*lambda; --scale-from TERM=VALUE (one calibrated coefficient) or --scale-from beta=B turns them into lambda")
+		}
 	}
 	res, err := fit.Fit(&fit.Problem{Lattice: tmpl.Lattice, Terms: tmpl.Terms, Data: est, Beta: beta}, opt)
 	bar.Done()
+	if done, ferr := fitMethodAfter(env, tmpl, beta, res, err); done {
+		return ferr
+	}
 	if err != nil {
 		return fmt.Errorf("%s: %w", o.data, err)
+	}
+	if calibration != nil && res.Converged {
+		if res, err = applyEnergyScale(env.Stderr, res, *calibration); err != nil {
+			return err
+		}
 	}
 	mode := "auto"
 	if order > 0 {
@@ -213,14 +302,16 @@ func runFit(env *runEnv, args []string) error {
 	rep := fit.NewReport(res, mode, kind, o.data, o.tol)
 	var cmp *fit.TruthComparison
 	if truth != nil {
-		scale := 1.0
-		if !res.BetaKnown && truth.Beta > 0 {
-			scale = truth.Beta
+		scale, why := truthScale(res, truth, o.truth)
+		if why != "" {
+			fmt.Fprintf(env.Stderr, "fit: %s\n", why)
+			rep.Notes = append(rep.Notes, why)
 		}
 		if cmp, err = fit.CompareTruth(res, truth.Terms, scale); err != nil {
 			return err
 		}
 		rep.SetTruth(cmp, res, o.truth)
+		betaAgainstTruth(env.Stderr, rep, res, truth)
 	}
 	fitSummary(env.Stderr, res, rep, cmp)
 
@@ -232,12 +323,14 @@ func runFit(env *runEnv, args []string) error {
 		}
 		return fmt.Errorf("the fit did not converge: %s; the last iterate is in %s (not an estimate)", res.Reason, path)
 	}
-	return writeOutput(env, o.out, func(w io.Writer) error {
-		if o.format == "csv" {
-			return fitWriteCSV(w, res, rep)
+	if o.format == "csv" {
+		meta, err := fitCSVMeta(res, rep, o.model, o.data)
+		if err != nil {
+			return err
 		}
-		return fitWriteModel(w, tmpl, res, rep)
-	})
+		return writeCSVResult(env, o.out, o.csv, meta, func(w io.Writer) error { return fitWriteCSV(w, res, cmp) })
+	}
+	return writeOutput(env, o.out, func(w io.Writer) error { return fitWriteModel(w, tmpl, res, rep) })
 }
 
 // fitUnconvergedPath names the file for the last iterate of a fit that
@@ -276,18 +369,53 @@ func fitWriteModel(w io.Writer, tmpl *model.Model, res *fit.Result, rep *fit.Rep
 		}
 	}
 	m := &model.Model{Lattice: tmpl.Lattice, Beta: res.Beta, Terms: terms, Units: tmpl.Units, Fit: raw}
+	if !res.CoefficientsAreLambda() {
+		m.Units = unscaledUnits
+	}
 	return model.Write(w, m)
 }
 
-// fitWriteCSV writes pauli,sites,coeff,stderr,significant with the
-// report's headline as comment lines.
-func fitWriteCSV(w io.Writer, res *fit.Result, rep *fit.Report) error {
-	fmt.Fprintf(w, "# warmfit fit: converged %t, order %d, %s\n", res.Converged, res.Order, map[bool]string{true: "coefficients are lambda", false: "beta unknown: coefficients are beta*lambda"}[res.BetaKnown])
-	for _, warn := range rep.Warnings {
-		fmt.Fprintf(w, "# WARNING: %s\n", warn)
+// fitCSVMeta is the metadata of the fit CSV: the report's headline and
+// warnings as lines, the whole report as the field "fit".
+func fitCSVMeta(res *fit.Result, rep *fit.Report, template, data string) (*csvMeta, error) {
+	raw, err := rep.JSON()
+	if err != nil {
+		return nil, fmt.Errorf("fit report: %v", err)
 	}
+	meta := &csvMeta{Command: "fit", Contents: "one row per template term: its fitted coefficient"}
+	meta.line("warmfit fit: converged %t, order %d, %s", res.Converged, res.Order, map[bool]string{true: "coefficients are lambda", false: "beta unknown: coefficients are beta*lambda"}[res.CoefficientsAreLambda()])
+	if es := res.EnergyScale; es != nil {
+		meta.line("energy scale from %s: beta = %s (stderr %s)", es.Calibration, fmtFloat(es.Beta), fmtFloat(es.BetaStderr))
+	}
+	for _, warn := range rep.Warnings {
+		meta.line("WARNING: %s", warn)
+	}
+	meta.set("template", template)
+	meta.set("data", data)
+	meta.set("converged", res.Converged)
+	meta.set("order", res.Order)
+	meta.set("beta", res.Beta)
+	meta.set("beta_known", res.BetaKnown)
+	meta.set("beta_source", rep.BetaSource)
+	meta.set("coefficients", rep.CoeffMeaning)
+	meta.set("fit", raw)
+	return meta, nil
+}
+
+// fitWriteCSV writes pauli,sites,coeff,stderr,significant, and with a
+// comparison against the truth (cmp non-nil) the true coefficient and the
+// pull z = (coeff - true)/stderr of every term (z blank without a stderr).
+func fitWriteCSV(w io.Writer, res *fit.Result, cmp *fit.TruthComparison) error {
 	cw := csv.NewWriter(w)
-	if err := cw.Write([]string{"pauli", "sites", "coeff", "stderr", "significant"}); err != nil {
+	header := []string{"pauli", "sites", "coeff", "stderr", "significant", "true", "z"}
+	if !res.CoefficientsAreLambda() {
+		// Say it in the column names: these are not lambda.
+		header = []string{"pauli", "sites", "beta_coeff", "beta_coeff_stderr", "significant", "true_beta_coeff", "z"}
+	}
+	if cmp == nil {
+		header = header[:5]
+	}
+	if err := cw.Write(header); err != nil {
 		return err
 	}
 	for k, t := range res.Terms {
@@ -301,12 +429,30 @@ func fitWriteCSV(w io.Writer, res *fit.Result, rep *fit.Report) error {
 		if res.Significance != nil {
 			sig = strconv.FormatBool(res.Significance.Significant[res.Params.Of[k]])
 		}
-		if err := cw.Write([]string{t.Pauli, lattice.SitesString(t.Sites), strconv.FormatFloat(t.Coeff, 'g', -1, 64), se, sig}); err != nil {
+		rec := []string{t.Pauli, lattice.SitesString(t.Sites), strconv.FormatFloat(t.Coeff, 'g', -1, 64), se, sig}
+		if cmp != nil {
+			z := ""
+			if v := cmp.Z[k]; !math.IsNaN(v) && !math.IsInf(v, 0) {
+				z = strconv.FormatFloat(v, 'g', 6, 64)
+			}
+			rec = append(rec, strconv.FormatFloat(cmp.True[k], 'g', -1, 64), z)
+		}
+		if err := cw.Write(rec); err != nil {
 			return err
 		}
 	}
 	cw.Flush()
 	return cw.Error()
+}
+
+// newtonIterations says how many Newton iterations a fit took, in all
+// and at its final order: the one wording of stderr, report.md and the
+// demo, so that no two of them count differently.
+func newtonIterations(total, atOrder, order int) string {
+	if total == atOrder {
+		return plural(total, "Newton iteration")
+	}
+	return fmt.Sprintf("%s (%d at order %d)", plural(total, "Newton iteration"), atOrder, order)
 }
 
 // fitSummary writes the plain-language summary to stderr.
@@ -320,8 +466,8 @@ func fitSummary(w io.Writer, res *fit.Result, rep *fit.Report, cmp *fit.TruthCom
 	if res.Exact {
 		grad = "mean residual " + fmtG3(res.GradientAbs) + " (exact data)"
 	}
-	p("%s at order %d (%s selection, orders %v) after %d Newton iterations (%d at order %d), %s, %.1fs",
-		status, res.Order, rep.OrderMode, rep.Truncation.Orders, res.TotalIterations, res.Iterations, res.Order, grad, res.Elapsed.Seconds())
+	p("%s at order %d (%s selection, orders %v) after %s, %s, %.1fs",
+		status, res.Order, rep.OrderMode, rep.Truncation.Orders, newtonIterations(res.TotalIterations, res.Iterations, res.Order), grad, res.Elapsed.Seconds())
 	p("%d terms, %d fitted parameters", len(res.Terms), res.Params.NumParams())
 	if n := len(res.Unmeasured); n > 0 {
 		p("%d terms had no data and were fitted through their group (moment matching on measured members)", n)
@@ -342,16 +488,20 @@ func fitSummary(w io.Writer, res *fit.Result, rep *fit.Report, cmp *fit.TruthCom
 		p("chi2/dof = %s over %d degrees of freedom (p = %s; diagonal approximation)", fmtG3(rep.Chi2.PerDof), rep.Chi2.Dof, fmtG3(rep.Chi2.P))
 	}
 	if b := rep.Threshold.Beta; b != nil {
+		betaText := fmtG3(res.Beta)
+		if !res.CoefficientsAreLambda() {
+			betaText = "1 by convention (the coefficients are beta*lambda)"
+		}
 		p("sufficient-temperature bound beta < %s (term-overlap degree %d); beta = %s; %d of %d expectations unconverged in the expansion",
-			fmtG3(*b), rep.Threshold.Degree, fmtG3(res.Beta), rep.Series.Untrusted, rep.Series.Terms)
+			fmtG3(*b), rep.Threshold.Degree, betaText, rep.Series.Untrusted, rep.Series.Terms)
 	}
 	if s := rep.Significance; s != nil {
 		p("significant (Benjamini-Hochberg, q = %g): %d of %d parameters", s.Q, s.Significant, s.Parameters)
 	}
 	if cmp != nil {
-		line := fmt.Sprintf("against the truth: L2 error %s, Linf error %s", fmtG3(cmp.L2), fmtG3(cmp.Linf))
+		line := fmt.Sprintf("against the truth: L2 error %s, largest error %s (%s)", fmtG3(cmp.L2), fmtG3(cmp.Linf), res.Terms[cmp.LargestErrorTerm].Key())
 		if cmp.RMSZ > 0 {
-			line += fmt.Sprintf(", z-scores rms %s, max |z| %s", fmtG3(cmp.RMSZ), fmtG3(cmp.MaxAbsZ))
+			line += fmt.Sprintf(", pulls rms %s, largest pull |z| %s (%s)", fmtG3(cmp.RMSZ), fmtG3(cmp.MaxAbsZ), res.Terms[cmp.LargestPullTerm].Key())
 		}
 		if cmp.Missing > 0 {
 			line += fmt.Sprintf(", %d true terms missing from the template", cmp.Missing)

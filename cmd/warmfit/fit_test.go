@@ -81,7 +81,7 @@ func writeModelFile(t *testing.T, m *model.Model, path string) {
 
 // Exact data, order 4 = the whole chain: the fit must return the true
 // coefficients (exact expansion, exact diagonalisation as reference), the
-// model must carry the report, and it must feed straight back into expect.
+// model must carry the report, and it must feed straight back into predict.
 func TestFitCommandExactRoundTrip(t *testing.T) {
 	dir := t.TempDir()
 	truth := fitTruth(t)
@@ -118,8 +118,8 @@ func TestFitCommandExactRoundTrip(t *testing.T) {
 	if err := json.Unmarshal(m.Fit, &rep); err != nil || !rep.Converged || rep.Order != 4 || rep.Truth == nil || rep.Truth.Linf > 1e-8 {
 		t.Errorf("report %s (err %v)", m.Fit, err)
 	}
-	if code, _, errs := runCmd("expect", "--model", out, "--method", "exact"); code != exitOK {
-		t.Errorf("expect on the fitted model: exit %d: %s", code, errs)
+	if code, _, errs := runCmd("predict", "--model", out, "--method", "exact"); code != exitOK {
+		t.Errorf("predict on the fitted model: exit %d: %s", code, errs)
 	}
 
 	// CSV output.

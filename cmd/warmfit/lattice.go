@@ -6,6 +6,7 @@ import (
 	"io"
 	"sort"
 	"strings"
+	"time"
 
 	"github.com/spf13/pflag"
 
@@ -23,6 +24,8 @@ var latticeOptions struct {
 	svg         string
 	out         string
 	maxClusters int64
+	budget      time.Duration
+	csv         csvFlags
 	flags       *pflag.FlagSet // to tell an explicit --clusters 0 from none
 }
 
@@ -51,6 +54,9 @@ a custom graph the NNN pairs are those at graph distance 2.
 clusters (connected induced subgraphs of the interaction graph) of each size
 1..L, the clusters a linked-cluster expansion of order L sums over. The
 count is refused beforehand when its estimate exceeds --max-clusters.
+Like every CSV of warmfit, it comes with a JSON sidecar FILE.meta.json beside
+-o FILE (the lattice and the bound); --csv-comments puts that in '#' lines
+instead, --meta M.json writes the sidecar anywhere.
 
 --format json prints the lattice object (as in model files) with its site
 coordinates and bonds. --svg FILE draws the lattice with numbered sites, NN
@@ -69,13 +75,15 @@ warmfit lattice --lattice testdata/graphs/house.json --clusters 5`,
 		Flags: func(fs *pflag.FlagSet) {
 			o := &latticeOptions
 			o.flags = fs
-			fs.StringVar(&o.lattice, "lattice", "", "lattice specification (square:4x4, chain:12:periodic, ...) or JSON `FILE`")
+			fs.StringVar(&o.lattice, "lattice", "", latticeFlagUsage)
 			fs.IntVar(&o.shells, "shells", 0, "neighbour shells in the interaction graph, 1 or 2 (default: the lattice's own)")
 			fs.IntVar(&o.clusters, "clusters", 0, "print the number of connected clusters of each size 1..`L` as CSV")
 			fs.StringVar(&o.format, "format", "text", "output format of the description: text or json")
 			fs.StringVar(&o.svg, "svg", "", "draw the lattice into `FILE` (SVG)")
-			fs.StringVarP(&o.out, "output", "o", "", "write the output to `FILE` instead of stdout")
+			addOutputFlag(fs, &o.out, "the output")
 			fs.Int64Var(&o.maxClusters, "max-clusters", 1e11, "refuse --clusters when the estimated count exceeds this (0: no limit)")
+			addBudgetFlag(fs, &o.budget)
+			addCSVFlags(fs, &o.csv)
 		},
 		Run: runLattice,
 	})
@@ -101,8 +109,19 @@ func runLattice(env *runEnv, args []string) error {
 	if o.clusters > 0 && o.format == "json" {
 		return usagef("--clusters prints CSV and does not combine with --format json")
 	}
+	if o.clusters == 0 {
+		if err := o.csv.misuse("the lattice description; they go with --clusters"); err != nil {
+			return err
+		}
+	}
 	if o.maxClusters < 0 {
 		return usagef("--max-clusters %d: want a count >= 0", o.maxClusters)
+	}
+	if err := checkBudgetFlag(o.budget); err != nil {
+		return err
+	}
+	if err := checkOutputs(withCSV("-o", o.out, o.csv, outputFile{"--svg", o.svg}), o.lattice); err != nil {
+		return err
 	}
 	l, err := openLattice(o.lattice, o.shells)
 	if err != nil {
@@ -113,11 +132,19 @@ func runLattice(env *runEnv, args []string) error {
 			o.lattice, len(comps))
 	}
 	// Refusals come before any file is written.
-	if o.clusters > 0 && o.maxClusters > 0 {
-		// Counting runs at some 10^7-10^8 clusters per second per core.
-		if est, _ := l.EstimateClusters(o.clusters); est > o.maxClusters {
-			return fmt.Errorf("%s has about %.3g connected clusters of up to %d sites, more than --max-clusters %d; lower --clusters or raise --max-clusters",
+	if o.clusters > 0 {
+		est, _ := l.EstimateClusters(o.clusters)
+		if o.maxClusters > 0 && est > o.maxClusters {
+			return usagef("%s has about %.3g connected clusters of up to %d sites, more than --max-clusters %d; lower --clusters or raise --max-clusters",
 				l.Spec, float64(est), o.clusters, o.maxClusters)
+		}
+		e := workEstimate{
+			What:     fmt.Sprintf("counting about %.3g connected clusters of up to %d sites on %s", float64(est), o.clusters, l.Spec),
+			Duration: seconds(float64(est) * countSecondsPerCluster),
+			Flag:     "--clusters",
+		}
+		if err := admit(env.Stderr, "lattice", e, o.budget); err != nil {
+			return err
 		}
 	}
 	if o.svg != "" {
@@ -128,7 +155,13 @@ func runLattice(env *runEnv, args []string) error {
 	switch {
 	case o.clusters > 0:
 		counts := l.CountClusters(o.clusters)
-		return writeOutput(env, o.out, func(w io.Writer) error { return writeClusterCSV(w, counts) })
+		meta := &csvMeta{Command: "lattice", Contents: "one row per cluster size: the number of connected site clusters of that size"}
+		meta.line("warmfit lattice: connected clusters of %s (%d sites) up to %d sites", l.Spec, l.NumSites(), o.clusters)
+		meta.set("lattice", o.lattice)
+		meta.set("sites", l.NumSites())
+		meta.set("max_size", o.clusters)
+		meta.set("shells", l.Spec.Shells)
+		return writeCSVResult(env, o.out, o.csv, meta, func(w io.Writer) error { return writeClusterCSV(w, counts) })
 	case o.format == "json":
 		return writeOutput(env, o.out, l.WriteJSON)
 	default:

@@ -61,7 +61,7 @@ func TestLatticeExitCodes(t *testing.T) {
 		{[]string{"--lattice", "square:4x4", "--bogus"}, exitUsage, "unknown flag"},
 		{[]string{"--lattice", "../../testdata/graphs/bad_bond_out_of_range.json"}, exitFailure, "bonds[3]: site 17 out of range [0,12)"},
 		{[]string{"--lattice", "no-such-file.json"}, exitFailure, "no-such-file.json"},
-		{[]string{"--lattice", "square:100x100", "--clusters", "12", "--max-clusters", "1000"}, exitFailure, "more than --max-clusters 1000"},
+		{[]string{"--lattice", "square:100x100", "--clusters", "12", "--max-clusters", "1000"}, exitUsage, "more than --max-clusters 1000"},
 	}
 	for _, tt := range tests {
 		code, _, errs := runLatticeCmd(tt.args...)
@@ -118,10 +118,10 @@ func TestLatticeSVGAndOutputFiles(t *testing.T) {
 	if data, err := os.ReadFile(csv); err != nil || string(data) != "size,count\n1,12\n" {
 		t.Errorf("CSV file: %q, %v", data, err)
 	}
-	// An unwritable SVG path fails without leaving a file behind.
+	// An unwritable SVG path is refused before the work, naming the directory.
 	bad := filepath.Join(dir, "missing", "x.svg")
-	if code, _, _ := runLatticeCmd("--lattice", "chain:3", "--svg", bad); code != exitFailure {
-		t.Errorf("unwritable --svg: exit %d, want %d", code, exitFailure)
+	if code, _, errs := runLatticeCmd("--lattice", "chain:3", "--svg", bad); code != exitUsage || !strings.Contains(errs, filepath.Join(dir, "missing")) {
+		t.Errorf("unwritable --svg: exit %d, want %d; stderr %q", code, exitUsage, errs)
 	}
 }
 

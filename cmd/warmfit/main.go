@@ -52,7 +52,7 @@ func usagef(format string, args ...any) error {
 	return &usageError{msg: fmt.Sprintf(format, args...)}
 }
 
-// Exit codes: 0 success, 1 failure (bad data, no convergence), 2 usage.
+// Exit codes; exitRule states when each is used.
 const (
 	exitOK      = 0
 	exitFailure = 1
@@ -72,7 +72,12 @@ func run(env *runEnv, args []string) int {
 	}
 	name := args[0]
 	switch name {
+	case "--version":
+		name, args = "version", []string{"version"}
 	case "help", "-h", "--help":
+		if len(args) > 1 && args[1] == "formats" {
+			return printFormatsHelp(env.Stdout, env.Stderr, args[2:])
+		}
 		if len(args) > 1 {
 			c, ok := commands[args[1]]
 			if !ok {
@@ -96,6 +101,9 @@ func run(env *runEnv, args []string) int {
 	if c.Flags != nil {
 		c.Flags(fs)
 	}
+	var strict bool
+	addStrictFlag(fs, &strict)
+	checkFreshFlags(fs)
 	if err := fs.Parse(args[1:]); err != nil {
 		if errors.Is(err, pflag.ErrHelp) {
 			printCommandHelp(env.Stdout, c, fs)
@@ -104,8 +112,15 @@ func run(env *runEnv, args []string) int {
 		fmt.Fprintf(env.Stderr, "warmfit %s: %v\nRun 'warmfit help %s' for usage.\n", c.Name, err, c.Name)
 		return exitUsage
 	}
-	err := c.Run(env, fs.Args())
+	counter := &warningCounter{w: env.Stderr}
+	cmdEnv := *env
+	cmdEnv.Stderr = counter
+	err := c.Run(&cmdEnv, fs.Args())
 	if err == nil {
+		if strict && counter.count > 0 {
+			fmt.Fprintf(env.Stderr, "warmfit %s: --strict: %d WARNING line(s) above; the output was written, but the run counts as failed\n", c.Name, counter.count)
+			return exitFailure
+		}
 		return exitOK
 	}
 	var ue *usageError
@@ -135,7 +150,7 @@ Commands:
 	for _, n := range names {
 		fmt.Fprintf(w, "\t%-10s %s\n", n, commands[n].Short)
 	}
-	fmt.Fprint(w, "\nUse \"warmfit help <command>\" for more about a command.\n")
+	fmt.Fprint(w, "\nUse \"warmfit help <command>\" for more about a command, \"warmfit help formats\" for\nthe file formats, \"warmfit --version\" for the version.\n\n"+exitRule+"\n")
 }
 
 func printCommandHelp(w io.Writer, c *command, fs *pflag.FlagSet) {
@@ -149,6 +164,8 @@ func printCommandHelp(w io.Writer, c *command, fs *pflag.FlagSet) {
 		if c.Flags != nil {
 			c.Flags(fs)
 		}
+		var strict bool
+		addStrictFlag(fs, &strict)
 	}
 	if fs.HasFlags() {
 		fmt.Fprintf(w, "Flags:\n%s\n", fs.FlagUsages())

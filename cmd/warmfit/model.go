@@ -41,17 +41,17 @@ func init() {
 		Example: modelExample,
 		Flags: func(fs *pflag.FlagSet) {
 			o := &modelOptions
-			o.shells = modelIntFlag{}
-			fs.StringVar(&o.lattice, "lattice", "", "lattice specification (square:4x4, chain:12:periodic, ...) or JSON file")
+			fs.StringVar(&o.lattice, "lattice", "", latticeFlagUsage)
 			fs.StringVar(&o.preset, "preset", "", "model family: "+strings.Join(model.PresetNames(), ", "))
 			fs.StringSliceVar(&o.set, "set", nil, "coefficients, NAME=VALUE[,NAME=VALUE...] (repeatable)")
 			fs.Float64Var(&o.disorder, "disorder", 0, "add an independent uniform shift in [-W, W) to every coefficient")
 			fs.Uint64Var(&o.seed, "seed", 1, "seed of the disorder")
 			addBetaFlag(fs, &o.beta, "inverse temperature to record in the model (> 0)")
-			fs.Var(&o.shells, "shells", "neighbour shells of the interaction graph, 1 or 2 (overrides the lattice)")
+			o.beta.omitted = "leave --beta out to write a model without beta (commands then need --beta, and fit learns beta*lambda)"
+			addFreshVar(fs, &o.shells, "shells", "neighbour shells of the interaction graph, 1 or 2 (overrides the lattice)")
 			fs.BoolVar(&o.tie, "tie", false, "give terms of one preset parameter a common group (uniform fit)")
 			fs.StringVar(&o.units, "units", "", "energy unit of the coefficients, recorded in the model")
-			fs.StringVarP(&o.out, "output", "o", "", "write the model to `FILE` instead of stdout")
+			addOutputFlag(fs, &o.out, "the model")
 			fs.StringVar(&o.check, "check", "", "validate the model `FILE` and summarise it")
 		},
 		Run: runModel,
@@ -132,6 +132,9 @@ func runModel(env *runEnv, args []string) error {
 	}
 	if o.shells.set && o.shells.v != 1 && o.shells.v != 2 {
 		return usagef("--shells %d: want 1 or 2", o.shells.v)
+	}
+	if err := checkOutputs([]outputFile{{"-o", o.out}}, o.lattice); err != nil {
+		return err
 	}
 	l, err := openModelLattice(o.lattice, o.shells)
 	if err != nil {
@@ -234,6 +237,12 @@ func checkModel(env *runEnv) error {
 	if err != nil {
 		return err
 	}
+	if fittedWithoutScale(m) {
+		if o.beta.set {
+			return usagef("%s was fitted without beta: its coefficients are beta*lambda (beta = 1 by convention), so --beta would count the temperature twice; fix the energy scale with 'warmfit fit ... --scale-from TERM=VALUE'", o.check)
+		}
+		fmt.Fprintln(env.Stderr, unscaledModelWarning(o.check, "its beta and beta*max|coeff| below describe the products, and no energy in it is in physical units"))
+	}
 	if o.beta.set {
 		m.Beta = o.beta.value
 	}
@@ -282,7 +291,9 @@ func modelSummary(name string, m *model.Model) string {
 	if len(m.Fit) > 0 {
 		b.WriteString("; the file carries a fit report")
 	}
-	if m.Beta > 0 {
+	if fittedWithoutScale(m) {
+		fmt.Fprintf(&b, ". The coefficients are beta*lambda, fitted at unknown temperature: beta = %s is a convention, and beta*max|coeff| = %s", formatG(m.Beta, 4), formatG(m.Beta*maxAbs, 4))
+	} else if m.Beta > 0 {
 		fmt.Fprintf(&b, ". beta = %s, beta*max|coeff| = %s (the expansion converges best when this is small)", formatG(m.Beta, 4), formatG(m.Beta*maxAbs, 4))
 	} else {
 		b.WriteString(". No beta: give --beta to commands that need one")
@@ -360,3 +371,5 @@ func (f *modelIntFlag) Set(s string) error {
 }
 
 func (f *modelIntFlag) Type() string { return "int" }
+
+func (f *modelIntFlag) reset() { *f = modelIntFlag{} }

@@ -7,9 +7,11 @@ import (
 	"io"
 	"math"
 	"strconv"
+	"time"
 
 	"github.com/spf13/pflag"
 
+	"warmfit/cluster"
 	"warmfit/fit"
 	"warmfit/lattice"
 	"warmfit/lattice/model"
@@ -24,33 +26,39 @@ var planOptions struct {
 	norm       string
 	bases      string
 	seed       uint64
-	order      int
+	order      orderFlag
 	confidence float64
 	format     string
 	out        string
 	workers    int
+	budget     time.Duration
+	csv        csvFlags
+	flags      *pflag.FlagSet
 }
 
 func init() {
 	register(&command{
 		Name:    "plan",
 		Short:   "how many shots learn a model's coefficients to a target precision",
-		Usage:   "warmfit plan --model M.json [--beta B] --target EPS [--norm linf|l2] [--bases covering|random:N] [--format text|csv|json] [-o FILE]",
+		Usage:   "warmfit plan --model M.json [--beta B] --target EPS [--norm linf|l2] [--bases covering|random:K] [--format text|csv|json] [-o FILE]",
 		Long:    planLong,
 		Example: planExample,
 		Flags: func(fs *pflag.FlagSet) {
 			o := &planOptions
-			fs.StringVar(&o.model, "model", "", "model `FILE` whose coefficients are to be learned (a best guess)")
+			o.flags = fs
+			addModelFlag(fs, &o.model, "model `FILE` whose coefficients are to be learned (a best guess)")
 			addBetaFlag(fs, &o.beta)
-			fs.Float64Var(&o.target, "target", 0, "target error eps of the coefficients")
+			fs.Float64Var(&o.target, "target", 0, "target error `EPS` of the coefficients")
 			fs.StringVar(&o.norm, "norm", fit.NormLinf, "linf: every coefficient within eps at 95% (Bonferroni); l2: expected squared L2 error <= eps^2")
-			fs.StringVar(&o.bases, "bases", "covering", "measurement scheme: covering (few bases serving every term) or random:N")
-			fs.Uint64Var(&o.seed, "seed", 1, "seed of random:N bases")
-			fs.IntVar(&o.order, "order", 0, "expansion order for the prediction (default 4)")
+			fs.StringVar(&o.bases, "bases", "covering", "measurement `SCHEME`: covering (few bases serving every term) or random:K")
+			fs.Uint64Var(&o.seed, "seed", 1, "seed of random:K bases")
+			addOrderFlag(fs, &o.order, "expansion order of the prediction, or auto (the order stored in a fitted model, else chosen as in predict)")
 			fs.Float64Var(&o.confidence, "confidence", 0.95, "confidence of the linf guarantee")
 			fs.StringVar(&o.format, "format", "text", "text (summary), csv (per term) or json")
-			fs.StringVarP(&o.out, "output", "o", "", "write to `FILE` instead of stdout")
-			fs.IntVar(&o.workers, "workers", 0, "parallel workers (default: all cores)")
+			addOutputFlag(fs, &o.out, "the plan")
+			addWorkersFlag(fs, &o.workers)
+			addBudgetFlag(fs, &o.budget)
+			addCSVFlags(fs, &o.csv)
 		},
 		Run: runPlan,
 	})
@@ -72,7 +80,9 @@ every coefficient is within eps at once with at least that probability; with
 
 The summary gives shots per basis, the number of bases, the total number of shots
 and the predicted standard errors; --format csv lists pauli,sites,coverage,stderr per
-term, --format json the whole plan.`
+term, --format json the whole plan.
+
+` + csvOutputHelp
 
 const planExample = `warmfit model --lattice square:6x6 --preset xxz --set Jxy=0.4,Jz=0.3,hz=0.2 --beta 0.5 -o m.json
 warmfit plan --model m.json --target 0.01
@@ -95,39 +105,77 @@ func runPlan(env *runEnv, args []string) error {
 	if o.format != "text" && o.format != "csv" && o.format != "json" {
 		return usagef("--format %q: want text, csv or json", o.format)
 	}
+	if o.format != "csv" {
+		if err := o.csv.misuse("--format " + o.format + "; add --format csv"); err != nil {
+			return err
+		}
+	}
 	if !(o.confidence > 0 && o.confidence < 1) {
 		return usagef("--confidence %v: must lie in (0, 1)", o.confidence)
 	}
-	if o.order < 0 {
-		return usagef("--order %d: must be positive", o.order)
+	if err := checkWorkersFlag(o.workers); err != nil {
+		return err
+	}
+	if err := checkBudgetFlag(o.budget); err != nil {
+		return err
+	}
+	if err := checkOutputs(withCSV("-o", o.out, o.csv), o.model); err != nil {
+		return err
 	}
 	m, beta, err := loadModelBeta(o.model, o.beta)
 	if err != nil {
 		return err
+	}
+	var unscaled string
+	if fittedWithoutScale(m) {
+		unscaled = unscaledModelWarning(o.model, "the plan is for learning beta*lambda: --target and the predicted stderrs are in units of beta*lambda, not of lambda")
+		fmt.Fprintln(env.Stderr, unscaled)
 	}
 	n := m.Lattice.NumSites()
 	bases, scheme, err := fit.SchemeBases(o.bases, n, m.Terms, o.seed)
 	if err != nil {
 		return usagef("--%v", err)
 	}
-	order := o.order
+	order := o.order.L
 	if order == 0 {
 		order = fittedOrder(m)
 		if order > 0 {
 			fmt.Fprintf(env.Stderr, "plan: order %d, the order the model was fitted at\n", order)
 		}
 	}
+	exp, err := cluster.NewExpansion(m.Lattice, m.Terms)
+	if err != nil {
+		return err
+	}
+	policy := cluster.NewOrderPolicy(m.Lattice, m.Terms)
+	policy.Budget = o.budget
+	if err := admitExpansion(env, "plan", exp, n, order, policy, o.budget); err != nil {
+		return err
+	}
+	bar := newProgressBar(env, "expanding")
 	plan, err := fit.PlanShots(m.Lattice, m.Terms, beta, fit.PlanOptions{
-		Target: o.target, Norm: o.norm, Confidence: o.confidence, Bases: bases, Order: order, Workers: o.workers,
+		Target: o.target, Norm: o.norm, Confidence: o.confidence, Bases: bases, Order: order, Workers: o.workers, Budget: o.budget,
+		Progress: bar.Update,
 	})
+	bar.Done()
 	if err != nil {
 		return err
 	}
 	fmt.Fprintf(env.Stderr, "plan: %s, %d sites, %d terms, beta %s, order-%d expansion\n", m.Lattice.Spec.Kind, n, len(m.Terms), fmtFloat(beta), plan.Order)
+	for _, warn := range plan.Warnings {
+		fmt.Fprintf(env.Stderr, "WARNING: %s\n", warn)
+	}
+	if o.format == "csv" {
+		meta := planCSVMeta(plan, scheme)
+		if unscaled != "" {
+			meta.line("%s", unscaled)
+		}
+		meta.set("model", o.model)
+		meta.set("beta", beta)
+		return writeCSVResult(env, o.out, o.csv, meta, func(w io.Writer) error { return planWriteCSV(w, m.Terms, plan) })
+	}
 	return writeOutput(env, o.out, func(w io.Writer) error {
 		switch o.format {
-		case "csv":
-			return planWriteCSV(w, m.Terms, plan)
 		case "json":
 			return planWriteJSON(w, m.Terms, plan, scheme)
 		}
@@ -150,6 +198,9 @@ func planWriteText(w io.Writer, terms []lattice.Term, p *fit.Plan, scheme string
 	for _, n := range p.Notes {
 		fmt.Fprintf(w, "note            %s\n", n)
 	}
+	for _, warn := range p.Warnings {
+		fmt.Fprintf(w, "WARNING         %s\n", warn)
+	}
 	if len(p.Bases) <= 12 {
 		for i, b := range p.Bases {
 			fmt.Fprintf(w, "basis %-9d %s\n", i+1, b)
@@ -158,8 +209,33 @@ func planWriteText(w io.Writer, terms []lattice.Term, p *fit.Plan, scheme string
 	return nil
 }
 
+// planCSVMeta is the metadata of the per-term plan CSV.
+func planCSVMeta(p *fit.Plan, scheme string) *csvMeta {
+	meta := &csvMeta{Command: "plan", Contents: "one row per model term: how many bases measure it and its predicted stderr"}
+	meta.line("warmfit plan: %d bases x %d shots = %d shots, target %s (%s)", len(p.Bases), p.ShotsPerBasis, p.TotalShots, fmtFloat(p.Target), p.Norm)
+	for _, n := range p.Notes {
+		meta.line("%s", n)
+	}
+	for _, warn := range p.Warnings {
+		meta.line("WARNING: %s", warn)
+	}
+	meta.set("target", p.Target)
+	meta.set("norm", p.Norm)
+	if p.Norm == fit.NormLinf {
+		meta.set("confidence", p.Confidence)
+	}
+	meta.set("scheme", scheme)
+	meta.set("bases", p.Bases)
+	meta.set("shots_per_basis", p.ShotsPerBasis)
+	meta.set("total_shots", p.TotalShots)
+	meta.set("order", p.Order)
+	meta.set("parameters", p.Params)
+	meta.set("max_stderr", p.PredictedLinf())
+	meta.set("l2_stderr", p.PredictedL2())
+	return meta
+}
+
 func planWriteCSV(w io.Writer, terms []lattice.Term, p *fit.Plan) error {
-	fmt.Fprintf(w, "# warmfit plan: %d bases x %d shots = %d shots, target %s (%s)\n", len(p.Bases), p.ShotsPerBasis, p.TotalShots, fmtFloat(p.Target), p.Norm)
 	cw := csv.NewWriter(w)
 	if err := cw.Write([]string{"pauli", "sites", "coverage", "stderr"}); err != nil {
 		return err
@@ -189,6 +265,7 @@ type planJSON struct {
 	MaxStderr     float64        `json:"max_stderr"`
 	L2Stderr      float64        `json:"l2_stderr"`
 	Notes         []string       `json:"notes"`
+	Warnings      []string       `json:"warnings"`
 	Terms         []planTermJSON `json:"terms"`
 }
 
@@ -204,6 +281,7 @@ func planWriteJSON(w io.Writer, terms []lattice.Term, p *fit.Plan, scheme string
 		Target: p.Target, Norm: p.Norm, Scheme: scheme, Bases: p.Bases,
 		ShotsPerBasis: p.ShotsPerBasis, TotalShots: p.TotalShots, Order: p.Order, Parameters: p.Params,
 		MaxStderr: p.PredictedLinf(), L2Stderr: p.PredictedL2(), Notes: p.Notes,
+		Warnings: append([]string{}, p.Warnings...), // [] rather than null when there are none
 	}
 	if p.Norm == fit.NormLinf {
 		out.Confidence, out.Z = p.Confidence, p.Z

@@ -23,7 +23,7 @@ type progressBar struct {
 
 func newProgressBar(env *runEnv, label string) *progressBar {
 	p := &progressBar{w: env.Stderr, label: label, start: time.Now()}
-	if f, ok := env.Stderr.(*os.File); ok {
+	if f, ok := env.Stderr.(interface{ Stat() (os.FileInfo, error) }); ok {
 		if fi, err := f.Stat(); err == nil && fi.Mode()&os.ModeCharDevice != 0 {
 			p.enabled = true
 		}

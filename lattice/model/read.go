@@ -40,9 +40,9 @@ func ReadFile(path string) (*Model, error) {
 // as "square:3x3". Parse makes the checks of Validate as it goes
 // (with positions), so the result passes Validate.
 func Parse(r io.Reader, name string) (*Model, error) {
-	doc, err := io.ReadAll(r)
+	doc, err := lattice.ReadAllLimited(r, name)
 	if err != nil {
-		return nil, fmt.Errorf("%s: %w", name, err)
+		return nil, err
 	}
 	p := &modelParser{doc: doc, name: name}
 	return p.parse()

@@ -21,18 +21,20 @@ func init() {
 		modelPath string
 		beta      betaFlag
 		method    string
-		order     int
+		order     orderFlag
+		workers   int
 		tol       float64
 		vectors   int
 		seed      uint64
+		budget    time.Duration
 		out       string
-		flags     *pflag.FlagSet
+		csvOut    csvFlags
 	)
 	register(&command{
-		Name:  "expect",
+		Name:  "predict",
 		Short: "expectation of every term of a model in its Gibbs state",
-		Usage: "warmfit expect --model M.json [--beta B] [--method expansion|exact] [--order L] [-o FILE]",
-		Long: `Expect computes <E_k> = tr(rho E_k) for every term E_k of the model, with
+		Usage: "warmfit predict --model M.json [--beta B] [--method expansion|exact] [--order L|auto] [-o FILE]",
+		Long: `Predict computes <E_k> = tr(rho E_k) for every term E_k of the model, with
 rho = exp(-beta H)/Z, and writes the expectation table (pauli,sites,value,stderr).
 
 --method expansion (the default) sums the numerical linked-cluster expansion over
@@ -49,50 +51,78 @@ a ceiling by lattice dimension (12 on a chain, 8 in two dimensions) and while th
 estimated work of the next order stays within about a minute of computing; stderr
 says which order was used and why.
 
---method exact diagonalises the whole system: densely up to 11 qubits (stderr
-empty), and by thermal typicality with random vectors up to 26 qubits, in which case
-stderr holds the statistical error of each value.`,
+--method exact diagonalises the whole system: densely up to ` + fmt.Sprint(denseExactQubits) + ` qubits (stderr
+"exact"), and by thermal typicality with random vectors up to ` + fmt.Sprint(validate.MaxTypicalityQubits) + ` qubits, in which
+case stderr holds the statistical error of each value.
+
+` + csvOutputHelp,
 		Example: `warmfit model --lattice square:4x4 --preset xxz --set Jxy=0.5,Jz=1,hz=0.3 --beta 0.4 -o m.json
-warmfit expect --model m.json --order 6 -o e.csv
-warmfit expect --model m.json --method exact`,
+warmfit predict --model m.json --order 6 -o e.csv
+warmfit predict --model m.json --method exact`,
 		Flags: func(fs *pflag.FlagSet) {
-			flags = fs
-			fs.StringVar(&modelPath, "model", "", "model file (JSON)")
+			addModelFlag(fs, &modelPath, "")
 			addBetaFlag(fs, &beta)
 			fs.StringVar(&method, "method", "expansion", "expansion or exact")
-			fs.IntVar(&order, "order", 0, "largest cluster size for the expansion (default: chosen automatically, see above)")
+			addOrderFlag(fs, &order, "largest cluster size of the expansion, or auto (chosen automatically, see above)")
 			fs.Float64Var(&tol, "tol", 1e-3, "truncation error at which an expansion value counts as trusted")
 			fs.IntVar(&vectors, "vectors", 0, "random vectors for thermal typicality (exact method past dense size)")
 			fs.Uint64Var(&seed, "seed", 1, "seed of the random vectors")
-			fs.StringVarP(&out, "output", "o", "", "write the table to `FILE` instead of stdout")
+			addBudgetFlag(fs, &budget)
+			addWorkersFlag(fs, &workers)
+			addOutputFlag(fs, &out, "the table")
+			addCSVFlags(fs, &csvOut)
 		},
 		Run: func(env *runEnv, args []string) error {
 			if len(args) > 0 {
 				return usagef("unexpected argument %q", args[0])
 			}
-			if err := checkOrderFlag(flags, order); err != nil {
+			if err := checkWorkersFlag(workers); err != nil {
 				return err
 			}
 			if !(tol > 0) || math.IsInf(tol, 0) {
 				return usagef("--tol %v: must be a positive number", tol)
+			}
+			if vectors < 0 || vectors == 1 {
+				return usagef("--vectors %d: want at least 2 random vectors (0: the default 16)", vectors)
+			}
+			if err := checkBudgetFlag(budget); err != nil {
+				return err
+			}
+			if err := checkOutputs(withCSV("-o", out, csvOut), modelPath); err != nil {
+				return err
 			}
 			m, b, err := loadModelBeta(modelPath, beta)
 			if err != nil {
 				return err
 			}
 			var table *fit.Table
+			fields := map[string]any{}
 			switch method {
 			case "expansion":
-				table, err = expectByExpansion(env, m, b, order, tol)
+				table, err = predictByExpansion(env, m, b, order.L, tol, budget, workers, fields)
 			case "exact":
-				table, err = expectExact(env, m, b, vectors, seed)
+				table, err = predictExact(env, m, b, vectors, seed, budget, fields)
 			default:
 				return usagef("--method %q: want expansion or exact", method)
 			}
 			if err != nil {
 				return err
 			}
-			return writeOutput(env, out, func(w io.Writer) error { return fit.WriteTable(w, table) })
+			meta := tableMeta("predict", "expectation table: one row per model term (pauli,sites,value,stderr, then the method's columns)", table.Comments)
+			table.Comments = nil
+			meta.set("model", modelPath)
+			meta.set("method", method)
+			meta.set("beta", b)
+			if fittedWithoutScale(m) {
+				note := "the model's coefficients are beta*lambda (fitted without beta): beta = 1 is the temperature of its data, by convention"
+				meta.line("%s", note)
+				meta.set("beta_meaning", "1 by convention: the coefficients are beta*lambda")
+				fmt.Fprintln(env.Stderr, "predict: "+note)
+			}
+			for k, v := range fields {
+				meta.set(k, v)
+			}
+			return writeCSVResult(env, out, csvOut, meta, func(w io.Writer) error { return fit.WriteTable(w, table) })
 		},
 	})
 }
@@ -109,6 +139,9 @@ func loadModelBeta(path string, beta betaFlag) (*model.Model, float64, error) {
 	}
 	b := m.Beta
 	if beta.set {
+		if fittedWithoutScale(m) {
+			return nil, 0, usagef("%s was fitted without beta: its coefficients are beta*lambda (beta = 1 by convention), so --beta %s would count the temperature twice; drop --beta, or fix the energy scale with 'warmfit fit ... --scale-from TERM=VALUE'", path, beta.String())
+		}
 		b = beta.value
 	}
 	if b <= 0 {
@@ -117,11 +150,25 @@ func loadModelBeta(path string, beta betaFlag) (*model.Model, float64, error) {
 	return m, b, nil
 }
 
-// checkOrderFlag refuses an explicit --order outside 1..MaxDenseQubits
-// (clusters are diagonalised densely).
+// checkOrderFlag refuses an explicit --order outside
+// minExpansionOrder..MaxDenseQubits as a usage error.
 func checkOrderFlag(fs *pflag.FlagSet, order int) error {
-	if fs.Changed("order") && (order < 1 || order > cluster.MaxDenseQubits) {
-		return usagef("--order %d: must be from 1 to %d (clusters are diagonalised exactly)", order, cluster.MaxDenseQubits)
+	if fs.Changed("order") {
+		return checkOrder(strconv.Itoa(order), order)
+	}
+	return nil
+}
+
+// minExpansionOrder is the lowest --order any command takes: order 1
+// holds single sites only, no two-site term and no convergence estimate.
+const minExpansionOrder = 2
+
+// checkOrder is the one range check of an --order value (given is the
+// flag as written, for the message).
+func checkOrder(given string, order int) error {
+	if order < minExpansionOrder || order > cluster.MaxDenseQubits {
+		return usagef("--order %s: must be from %d to %d (order 1 holds single sites only; clusters are diagonalised exactly, at most %d sites)",
+			given, minExpansionOrder, cluster.MaxDenseQubits, cluster.MaxDenseQubits)
 	}
 	return nil
 }
@@ -134,22 +181,29 @@ func modelCoeffs(m *model.Model) []float64 {
 	return c
 }
 
-func expectByExpansion(env *runEnv, m *model.Model, beta float64, order int, tol float64) (*fit.Table, error) {
+// predictByExpansion returns the table of expansion predictions and
+// records the run's facts in meta.
+func predictByExpansion(env *runEnv, m *model.Model, beta float64, order int, tol float64, budget time.Duration, workers int, meta map[string]any) (*fit.Table, error) {
 	exp, err := cluster.NewExpansion(m.Lattice, m.Terms)
 	if err != nil {
+		return nil, err
+	}
+	policy := cluster.NewOrderPolicy(m.Lattice, m.Terms)
+	policy.Budget = budget
+	if err := admitExpansion(env, "predict", exp, m.Lattice.NumSites(), order, policy, budget); err != nil {
 		return nil, err
 	}
 	coeffs := modelCoeffs(m)
 	start := time.Now()
 	bar := newProgressBar(env, "expanding")
-	opt := cluster.Options{Progress: bar.Update}
+	opt := cluster.Options{Progress: bar.Update, Workers: workers}
 	var res *cluster.Result
 	if order > 0 {
 		opt.Order = order
 		res, err = exp.Evaluate(coeffs, beta, opt)
 	} else {
 		var choice cluster.OrderChoice
-		res, choice, err = exp.ChooseOrder(coeffs, beta, tol, cluster.NewOrderPolicy(m.Lattice, m.Terms), opt)
+		res, choice, err = exp.ChooseOrder(coeffs, beta, tol, policy, opt)
 		if err == nil {
 			order = choice.Order
 			for _, st := range choice.Steps {
@@ -190,8 +244,17 @@ func expectByExpansion(env *runEnv, m *model.Model, beta float64, order int, tol
 	}
 	bound := cluster.SufficientBeta(m.Terms, coeffs)
 	verdict := expansionVerdict(untrusted-unknown, unknown, len(m.Terms), worst, tol, beta, order)
+	meta["order"] = order
+	meta["clusters"] = sum64(res.Clusters)
+	meta["tolerance"] = tol
+	meta["values_unconverged"] = untrusted - unknown
+	meta["values_unjudged"] = unknown
+	meta["converged"] = untrusted == 0
+	meta["max_truncation_error"] = worst
+	meta["sufficient_beta_bound"] = bound.Beta
+	meta["overlap_degree"] = bound.Degree
 	t.Comments = []string{
-		fmt.Sprintf("warmfit expect: linked-cluster expansion, order %d, beta %s, %d clusters", order, fmtFloat(beta), sum64(res.Clusters)),
+		fmt.Sprintf("warmfit predict: linked-cluster expansion, order %d, beta %s, %d clusters", order, fmtFloat(beta), sum64(res.Clusters)),
 		verdict, // WriteTable splits multi-line comments
 		boundLine(bound, beta),
 	}
@@ -232,11 +295,25 @@ func boundLine(b cluster.ThresholdBound, beta float64) string {
 	return fmt.Sprintf("sufficient-temperature bound (cluster-expansion criterion, term-overlap degree %d): beta < %.3g; this beta is %s it, so trust rests on the measured convergence", b.Degree, b.Beta, rel)
 }
 
-func expectExact(env *runEnv, m *model.Model, beta float64, vectors int, seed uint64) (*fit.Table, error) {
+func predictExact(env *runEnv, m *model.Model, beta float64, vectors int, seed uint64, budget time.Duration, meta map[string]any) (*fit.Table, error) {
 	n := m.Lattice.NumSites()
 	if n > validate.MaxTypicalityQubits {
 		return nil, fmt.Errorf("--method exact handles at most %d qubits (dense up to %d, thermal typicality beyond); this model has %d: use --method expansion",
 			validate.MaxTypicalityQubits, denseExactQubits, n)
+	}
+	cost := denseEstimate(n, "the number of qubits (or use --method expansion)")
+	if n > denseExactQubits {
+		if vectors == 0 {
+			vectors = defaultTypicalityVectors
+		}
+		norm1 := 0.0
+		for _, t := range m.Terms {
+			norm1 += math.Abs(t.Coeff)
+		}
+		cost = typicalityEstimate(n, vectors, len(m.Terms), norm1, beta)
+	}
+	if err := admit(env.Stderr, "predict", cost, budget); err != nil {
+		return nil, err
 	}
 	ops := make([]cluster.PauliString, len(m.Terms))
 	for k, t := range m.Terms {
@@ -258,7 +335,9 @@ func expectExact(env *runEnv, m *model.Model, beta float64, vectors int, seed ui
 		for k, term := range m.Terms {
 			t.Rows = append(t.Rows, fit.Row{Pauli: term.Pauli, Sites: term.Sites, Value: vals[k]})
 		}
-		t.Comments = []string{fmt.Sprintf("warmfit expect: dense exact diagonalisation of %d qubits, beta %s", n, fmtFloat(beta))}
+		meta["exact_method"] = "dense diagonalisation"
+		meta["qubits"] = n
+		t.Comments = []string{fmt.Sprintf("warmfit predict: dense exact diagonalisation of %d qubits, beta %s", n, fmtFloat(beta))}
 		fmt.Fprintf(env.Stderr, "exact: dense diagonalisation of %d qubits, %.2fs\n", n, time.Since(start).Seconds())
 		return t, nil
 	}
@@ -270,13 +349,40 @@ func expectExact(env *runEnv, m *model.Model, beta float64, vectors int, seed ui
 	for k, term := range m.Terms {
 		t.Rows = append(t.Rows, fit.Row{Pauli: term.Pauli, Sites: term.Sites, Value: est[k].Value, Stderr: est[k].Stderr, HasStderr: true})
 	}
-	t.Comments = []string{fmt.Sprintf("warmfit expect: thermal typicality on %d qubits, beta %s, log Z = %s +- %s; stderr is statistical",
+	meta["exact_method"] = "thermal typicality"
+	meta["qubits"] = n
+	meta["vectors"] = opt.Vectors
+	if opt.Vectors == 0 {
+		meta["vectors"] = 16 // validate.TypicalityOptions' default
+	}
+	meta["seed"] = seed
+	meta["log_z"] = logZ.Value
+	meta["log_z_stderr"] = logZ.Stderr
+	t.Comments = []string{fmt.Sprintf("warmfit predict: thermal typicality on %d qubits, beta %s, log Z = %s +- %s; stderr is statistical",
 		n, fmtFloat(beta), fmtFloat(logZ.Value), fmtFloat(logZ.Stderr))}
 	fmt.Fprintf(env.Stderr, "exact: %d qubits are past dense size (%d); thermal typicality, %.2fs\n", n, denseExactQubits, time.Since(start).Seconds())
 	return t, nil
 }
 
-// denseExactQubits is the largest system `expect --method exact` and the
+// defaultTypicalityVectors is the number of random vectors of thermal
+// typicality when --vectors is not given (validate's default).
+const defaultTypicalityVectors = 16
+
+// admitExpansion predicts an expansion run before it starts: an explicit
+// order is estimated and refused past the memory or --budget; an
+// automatic choice says where it starts and that each further order is
+// predicted before it is started.
+func admitExpansion(env *runEnv, cmd string, exp *cluster.Expansion, sites, order int, policy cluster.OrderPolicy, budget time.Duration) error {
+	if order > 0 {
+		return admit(env.Stderr, cmd, expansionEstimate(exp, sites, order, "--order"), budget)
+	}
+	e := expansionEstimate(exp, sites, policy.Start, "--order")
+	fmt.Fprintf(env.Stderr, "%s: estimate: %s, about %s to start --order auto; each higher order is predicted before it starts and not begun past --budget %v\n",
+		cmd, e.What, describeTime(e.Duration), budget)
+	return nil
+}
+
+// denseExactQubits is the largest system `predict --method exact` and the
 // exact sampler diagonalise densely by default: 11 qubits take seconds,
 // 12 (cluster.MaxDenseQubits) minutes, where thermal typicality is faster.
 const denseExactQubits = 11

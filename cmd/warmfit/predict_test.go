@@ -35,16 +35,16 @@ func readTable(t *testing.T, text string) *fit.Table {
 }
 
 // With the order equal to the number of sites the expansion is exact, so
-// `expect --method expansion` must agree with dense diagonalisation
+// `predict --method expansion` must agree with dense diagonalisation
 // (`--method exact`) to rounding (inclusion–exclusion identity; Rigol,
 // Bryant, Singh, arXiv 0706.3254).
 func TestExpectExpansionMatchesExact(t *testing.T) {
 	modelPath := writeTestModel(t, t.TempDir())
-	code, exact, stderr := runCmd("expect", "--model", modelPath, "--method", "exact")
+	code, exact, stderr := runCmd("predict", "--model", modelPath, "--method", "exact")
 	if code != 0 {
 		t.Fatalf("exact: exit %d: %s", code, stderr)
 	}
-	code, expanded, stderr := runCmd("expect", "--model", modelPath, "--order", "6")
+	code, expanded, stderr := runCmd("predict", "--model", modelPath, "--order", "6")
 	if code != 0 {
 		t.Fatalf("expansion: exit %d: %s", code, stderr)
 	}
@@ -68,13 +68,25 @@ func TestExpectExpansionMatchesExact(t *testing.T) {
 // At a temperature far too low for the order, the output must say so in
 // the file and on stderr, not only in the trusted column.
 func TestExpectWarnsWhenNotConverged(t *testing.T) {
-	modelPath := writeTestModel(t, t.TempDir())
-	code, out, stderr := runCmd("expect", "--model", modelPath, "--order", "3", "--beta", "1")
+	dir := t.TempDir()
+	modelPath := writeTestModel(t, dir)
+	code, out, stderr := runCmd("predict", "--model", modelPath, "--order", "3", "--beta", "1")
 	if code != 0 {
 		t.Fatalf("exit %d: %s", code, stderr)
 	}
-	if !strings.Contains(stderr, "WARNING") || !strings.Contains(out, "# WARNING") {
-		t.Errorf("no plain warning at beta = 1, order 3:\nstdout:\n%s\nstderr:\n%s", out, stderr)
+	if !strings.Contains(stderr, "WARNING") {
+		t.Errorf("no plain warning at beta = 1, order 3:\nstderr:\n%s", stderr)
+	}
+	// In the file: the sidecar's warnings, or a '#' line with --csv-comments.
+	table := filepath.Join(dir, "cold.csv")
+	if code, _, stderr := runCmd("predict", "--model", modelPath, "--order", "3", "--beta", "1", "-o", table); code != 0 {
+		t.Fatalf("exit %d: %s", code, stderr)
+	}
+	if meta := readSidecar(t, table+".meta.json"); len(meta["warnings"].([]any)) == 0 || meta["converged"] != false {
+		t.Errorf("the sidecar does not record the warning: %v", meta)
+	}
+	if _, commented, _ := runCmd("predict", "--model", modelPath, "--order", "3", "--beta", "1", "--csv-comments"); !strings.Contains(commented, "# WARNING") {
+		t.Errorf("--csv-comments: no '# WARNING' line:\n%s", commented)
 	}
 	if !strings.Contains(out, ",false\n") {
 		t.Errorf("no row marked untrusted:\n%s", out)
@@ -92,15 +104,18 @@ func TestExpectBadInput(t *testing.T) {
 		args []string
 		code int
 	}{
-		{[]string{"expect"}, 2},
-		{[]string{"expect", "--model", modelPath, "--beta", "-1"}, 2},
-		{[]string{"expect", "--model", modelPath, "--order", "0"}, 2},
-		{[]string{"expect", "--model", modelPath, "--method", "guess"}, 2},
-		{[]string{"expect", "--model", filepath.Join(dir, "missing.json")}, 1},
-		{[]string{"expect", "--model", modelPath, "--order", "13", "-o", keep}, 2},
-		{[]string{"expect", "--model", modelPath, "--beta", "0", "-o", keep}, 2},
-		{[]string{"thermo", "--model", modelPath, "--beta-range", "1:0:3"}, 2},
-		{[]string{"thermo", "--model", modelPath}, 2},
+		{[]string{"predict"}, 2},
+		{[]string{"predict", "--model", modelPath, "--beta", "-1"}, 2},
+		{[]string{"predict", "--model", modelPath, "--order", "0"}, 2},
+		{[]string{"predict", "--model", modelPath, "--method", "guess"}, 2},
+		{[]string{"predict", "--model", filepath.Join(dir, "missing.json")}, 1},
+		{[]string{"predict", "--model", modelPath, "--order", "13", "-o", keep}, 2},
+		{[]string{"predict", "--model", modelPath, "--beta", "0", "-o", keep}, 2},
+		{[]string{"sweep", "--model", modelPath, "--beta-grid", "from=1,to=0.5,points=3"}, 2},
+		{[]string{"sweep", "--model", modelPath, "--beta-range", "0.1:1:3"}, 2},
+		{[]string{"sweep", "--model", modelPath, "--beta-grid", "0.1:1:3"}, 2},
+		{[]string{"sweep", "--model", modelPath, "--beta-grid", "from=0.1,to=1"}, 2},
+		{[]string{"sweep", "--model", modelPath}, 2},
 		{[]string{"sample", "--model", modelPath}, 2},
 		{[]string{"sample", "--model", modelPath, "--shots", "10", "--bases", "random:x"}, 2},
 	}
@@ -122,7 +137,7 @@ func TestExpectBadInput(t *testing.T) {
 // truncation error is n/a and it is not trusted.
 func TestExpectUnknownTruncationIsNotTrusted(t *testing.T) {
 	modelPath := writeTestModel(t, t.TempDir())
-	code, out, stderr := runCmd("expect", "--model", modelPath, "--order", "2")
+	code, out, stderr := runCmd("predict", "--model", modelPath, "--order", "2")
 	if code != 0 {
 		t.Fatalf("exit %d: %s", code, stderr)
 	}
@@ -146,8 +161,8 @@ func TestExpectFitRoundTrip(t *testing.T) {
 	dir := t.TempDir()
 	modelPath := writeTestModel(t, dir)
 	table := filepath.Join(dir, "e.csv")
-	if code, _, stderr := runCmd("expect", "--model", modelPath, "--order", "6", "-o", table); code != 0 {
-		t.Fatalf("expect: exit %d: %s", code, stderr)
+	if code, _, stderr := runCmd("predict", "--model", modelPath, "--order", "6", "-o", table); code != 0 {
+		t.Fatalf("predict: exit %d: %s", code, stderr)
 	}
 	fitted := filepath.Join(dir, "fitted.json")
 	code, _, stderr := runCmd("fit", "--model", modelPath, "--data", table, "--order", "6", "-o", fitted)
@@ -171,12 +186,12 @@ func TestExpectFitRoundTrip(t *testing.T) {
 
 func TestThermoTable(t *testing.T) {
 	modelPath := writeTestModel(t, t.TempDir())
-	code, out, stderr := runCmd("thermo", "--model", modelPath, "--beta-range", "0.01:2:4", "--order", "4")
+	code, out, stderr := runCmd("sweep", "--model", modelPath, "--beta-grid", "from=0.01,to=2,points=4", "--order", "4")
 	if code != 0 {
 		t.Fatalf("exit %d: %s", code, stderr)
 	}
 	lines := strings.Split(strings.TrimSpace(out), "\n")
-	if len(lines) != 6 || lines[1] != "beta,T,log_z,energy,entropy,heat_capacity,energy_error,heat_capacity_error,trusted" {
+	if len(lines) != 5 || lines[0] != "beta,T,log_z,energy,entropy,heat_capacity,energy_error,heat_capacity_error,trusted" {
 		t.Fatalf("unexpected table:\n%s", out)
 	}
 	// High-temperature expansion for orthonormal traceless Paulis:
@@ -192,7 +207,7 @@ func TestThermoTable(t *testing.T) {
 	}
 	n := float64(m.Lattice.NumSites())
 	want := math.Ln2 - 0.01*0.01*sum2/(2*n)
-	got, err := strconv.ParseFloat(strings.Split(lines[2], ",")[4], 64)
+	got, err := strconv.ParseFloat(strings.Split(lines[1], ",")[4], 64)
 	if err != nil || math.Abs(got-want) > 1e-5 {
 		t.Errorf("entropy per site at beta = 0.01: %v, high-temperature series %.8f", got, want)
 	}
