@@ -26,7 +26,8 @@ const DefaultMaxWork = 3e12
 // cost_calibration_test.go prints predicted against measured for the
 // README tour, the demo and the issue benchmarks). A cluster costs
 //
-//	SecondsPerWorkUnit * sum_b d_b^3                 (the eigensolver)
+//	SecondsPerWorkUnit * sum_b d_b^3                 (the eigensolver; 0.7 times
+//	                                                  that for blocks above 128)
 //	+ secondsPerTermSquare * m * sum_b d_b^2         (expectations of its m terms)
 //	+ secondsPerCluster + secondsPerBlock * blocks   (enumeration, set-up)
 //
@@ -53,6 +54,11 @@ const (
 	// responseFactor is the cost of an evaluation with the Kubo-Mori
 	// response against one without (measured 4.3 to 4.5 at orders 3-6).
 	responseFactor = 4.5
+	// largeBlockFactor scales SecondsPerWorkUnit for blocks larger than
+	// smallReductionDim, which the blocked LAPACK reduction handles
+	// faster per unit (measured 0.67 on the Heisenberg chain at order
+	// 10, U(1) blocks up to 252).
+	largeBlockFactor = 0.7
 )
 
 // EstimateWork returns the expected number of clusters and the work of an
@@ -127,13 +133,42 @@ func (e *Expansion) predict(order int, sym Symmetry, response bool) time.Duratio
 	for i, c := range e.lat.EstimateClusterSizes(order) {
 		s := i + 1
 		m := perSite*float64(s) + perBond*float64(s-1)
-		total += c * (SecondsPerWorkUnit*blockWork(s, sym) + termCost*m*blockSquares(s, sym) +
+		total += c * (eigenSeconds(s, sym) + termCost*m*blockSquares(s, sym) +
 			secondsPerCluster + secondsPerBlock*blockCount(s, sym))
 	}
 	if response {
 		total *= responseFactor
 	}
 	return seconds(total)
+}
+
+// eigenSeconds is the predicted eigensolver time of one cluster of nq
+// qubits in the blocks of sym: blockWork with the faster rate of large
+// blocks.
+func eigenSeconds(nq int, sym Symmetry) float64 {
+	rate := func(d float64) float64 {
+		if d > smallReductionDim {
+			return SecondsPerWorkUnit * largeBlockFactor
+		}
+		return SecondsPerWorkUnit
+	}
+	switch sym.sectorKind() {
+	case byPopcount:
+		var t, binom float64 = 0, 1
+		for k := 0; k <= nq; k++ {
+			t += binom * binom * binom * rate(binom)
+			binom = binom * float64(nq-k) / float64(k+1)
+		}
+		return t
+	case byParity:
+		if nq == 0 {
+			return SecondsPerWorkUnit
+		}
+		d := math.Pow(2, float64(nq-1))
+		return 2 * d * d * d * rate(d)
+	}
+	d := math.Pow(2, float64(nq))
+	return d * d * d * rate(d)
 }
 
 func seconds(s float64) time.Duration {

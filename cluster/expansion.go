@@ -537,14 +537,3 @@ func (e *Expansion) merge(accs []*blockAcc, L int, beta float64, respOrder int) 
 	}
 	return r
 }
-
-// Multiplier returns the integer weight m_L(t) with which a connected
-// cluster of the given size and perimeter enters the order-L sum of the
-// expansion (zero when size > L).
-func Multiplier(size, perimeter, order int) float64 {
-	if size > order {
-		return 0
-	}
-	m := multipliers(nil, size, perimeter, order)
-	return m[len(m)-1]
-}

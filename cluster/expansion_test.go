@@ -193,7 +193,7 @@ func TestMultipliersMatchWeightRecursion(t *testing.T) {
 			l.EachCluster(order, func(s []int) bool {
 				s = append([]int(nil), s...)
 				recursive += weightOf(s)
-				m := cluster.Multiplier(len(s), l.Perimeter(s), order)
+				m := multiplier(len(s), l.Perimeter(s), order)
 				multiplied += m * prop[key(s)]
 				return true
 			})
@@ -522,4 +522,23 @@ func TestExpansionResponseIsDerivative(t *testing.T) {
 			}
 		}
 	}
+}
+
+// multiplier is the integer weight m_L(t) = sum_{j=0}^{L-|t|} (-1)^j C(b, j)
+// with which a connected cluster t of |t| sites and b perimeter sites
+// enters the order-L sum (inclusion-exclusion over the perimeter;
+// Rigol, Bryant, Singh 2007, from memory), zero when |t| > L.
+func multiplier(size, perimeter, order int) float64 {
+	m := 0.0
+	for j := 0; j <= order-size; j++ {
+		c := 1.0 // C(perimeter, j)
+		for i := 1; i <= j; i++ {
+			c = c * float64(perimeter-i+1) / float64(i)
+		}
+		if j%2 == 1 {
+			c = -c
+		}
+		m += c
+	}
+	return math.Round(m)
 }

@@ -1,6 +1,7 @@
 package cluster
 
 import (
+	"cmp"
 	"fmt"
 	"math"
 	"math/rand/v2"
@@ -118,21 +119,11 @@ func labelled(l *Levels) []labelledLevel {
 	}
 	slices.SortFunc(out, func(a, b labelledLevel) int {
 		if a.e != b.e {
-			return cmpFloat(a.e, b.e)
+			return cmp.Compare(a.e, b.e)
 		}
-		return cmpFloat(a.z, b.z)
+		return cmp.Compare(a.z, b.z)
 	})
 	return out
-}
-
-func cmpFloat(a, b float64) int {
-	switch {
-	case a < b:
-		return -1
-	case a > b:
-		return 1
-	}
-	return 0
 }
 
 // multiplets lists (energy, total Z) for spin multiplets: a multiplet of
@@ -147,9 +138,9 @@ func multiplets(spec ...[2]float64) []labelledLevel {
 	}
 	slices.SortFunc(out, func(a, b labelledLevel) int {
 		if a.e != b.e {
-			return cmpFloat(a.e, b.e)
+			return cmp.Compare(a.e, b.e)
 		}
-		return cmpFloat(a.z, b.z)
+		return cmp.Compare(a.z, b.z)
 	})
 	return out
 }

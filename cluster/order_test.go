@@ -117,3 +117,27 @@ func TestChooseOrderIndependentOfClock(t *testing.T) {
 		t.Errorf("budget with a slow clock: %+v", guarded)
 	}
 }
+
+// The prediction is positive, grows with the order (about 8-fold per
+// order once the eigensolver dominates) and costs the response about
+// 4.5 times more (the measured ratio; common practice for a calibrated
+// cost model: monotone in the work).
+func TestPredictEvaluationGrows(t *testing.T) {
+	l := mustLattice(t, "square:6x6")
+	terms := transverseIsingTerms(l, 1)
+	exp, err := cluster.NewExpansion(l, terms)
+	if err != nil {
+		t.Fatal(err)
+	}
+	prev := time.Duration(0)
+	for L := 2; L <= 8; L++ {
+		p := exp.PredictEvaluation(L, false)
+		if p <= prev {
+			t.Errorf("order %d: predicted %v, not above order %d's %v", L, p, L-1, prev)
+		}
+		if r := float64(exp.PredictEvaluation(L, true)) / float64(p); math.Abs(r-4.5) > 1e-4 {
+			t.Errorf("order %d: response costs %.3g times the forward pass, want 4.5", L, r)
+		}
+		prev = p
+	}
+}

@@ -84,16 +84,6 @@ func u1Blocks(n int, flip bool) (blocks []u1Block, image []bool) {
 	return blocks, image
 }
 
-// largestU1Block returns the dimension of the largest block of a cluster
-// of n sites.
-func largestU1Block(n int, flip bool) int {
-	d := binomial(n, n/2)
-	if flip && n%2 == 0 {
-		d /= 2
-	}
-	return d
-}
-
 func binomial(n, k int) int {
 	r := 1
 	for j := 1; j <= k; j++ {

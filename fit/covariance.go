@@ -101,12 +101,6 @@ func (s *SparseSym) DoRow(i int, fn func(j int, v float64)) {
 	}
 }
 
-// RowLen returns the number of stored entries in row i.
-func (s *SparseSym) RowLen(i int) int {
-	s.check(i, i)
-	return len(s.rows[i])
-}
-
 // Do calls fn once for every stored entry of the upper triangle (i <= j),
 // row by row and by increasing column.
 func (s *SparseSym) Do(fn func(i, j int, v float64)) {
@@ -169,12 +163,4 @@ func (s *SparseSym) Sandwich(a mat.Matrix) *mat.SymDense {
 		}
 	}
 	return out
-}
-
-// ToDense returns S as a dense matrix; meant for small dimensions (tests,
-// reports). It panics for dimension 0, which gonum cannot represent.
-func (s *SparseSym) ToDense() *mat.SymDense {
-	d := mat.NewSymDense(s.n, nil)
-	s.Do(func(i, j int, v float64) { d.SetSym(i, j, v) })
-	return d
 }

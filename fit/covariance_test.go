@@ -73,7 +73,7 @@ func TestSparseSymAgainstDense(t *testing.T) {
 		}
 	}
 
-	dense := s.ToDense()
+	dense := toDense(s)
 	a := mat.NewDense(3, n, nil)
 	for i := range 3 {
 		for j := range n {
@@ -96,4 +96,12 @@ func TestSparseSymPanics(t *testing.T) {
 		}
 	}()
 	s.At(0, 2)
+}
+
+// toDense returns S as a dense matrix (dimension at least 1: gonum
+// cannot represent 0).
+func toDense(s *SparseSym) *mat.SymDense {
+	d := mat.NewSymDense(s.n, nil)
+	s.Do(func(i, j int, v float64) { d.SetSym(i, j, v) })
+	return d
 }

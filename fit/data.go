@@ -8,10 +8,13 @@ import (
 	"strings"
 )
 
+// DataKind says which of the two data files a file is.
+type DataKind string
+
 // Data kinds returned by DetectDataKind.
 const (
-	KindTable     = "table"     // expectation table, header pauli,sites,value,stderr
-	KindSnapshots = "snapshots" // snapshot file, header basis,outcome,count
+	KindTable     DataKind = "table"     // expectation table, header pauli,sites,value,stderr
+	KindSnapshots DataKind = "snapshots" // snapshot file, header basis,outcome,count
 )
 
 var (
@@ -57,7 +60,7 @@ func displayName(name string) string {
 // DetectDataKind tells an expectation table (KindTable) from a snapshot
 // file (KindSnapshots) by the first line that is neither blank nor a
 // '#' comment.
-func DetectDataKind(path string) (kind string, err error) {
+func DetectDataKind(path string) (kind DataKind, err error) {
 	f, err := os.Open(path)
 	if err != nil {
 		return "", err

@@ -165,7 +165,7 @@ func countByPauli(terms []lattice.Term, list []int) string {
 
 // DataSummary describes data read by LoadEstimates, for reports.
 type DataSummary struct {
-	Kind     string   // KindTable or KindSnapshots
+	Kind     DataKind // KindTable or KindSnapshots
 	Rows     int      // rows of an expectation table
 	Shots    int64    // shots of a snapshot file
 	Comments []string // comment lines of a table

@@ -82,25 +82,10 @@ type EnergyScale struct {
 // error above 1/3 gives a warning: the scale is then poorly determined and
 // the linearised error bars are rough.
 func ScaleEnergy(r *Result, c Calibration) (*Result, error) {
-	if r.BetaKnown {
-		return nil, fmt.Errorf("the fit was made at a known beta %g: its coefficients are lambda already", r.Beta)
-	}
-	if r.EnergyScale != nil {
-		return nil, fmt.Errorf("the energy scale is fixed already (%s)", r.EnergyScale.Calibration)
-	}
-	if !r.Converged {
-		return nil, fmt.Errorf("the fit did not converge: no energy scale from its last iterate")
-	}
-	for _, v := range []float64{c.Value, c.ValueStderr, c.Beta, c.BetaStderr} {
-		if math.IsNaN(v) || math.IsInf(v, 0) {
-			return nil, fmt.Errorf("calibration %s: not a finite number", c)
-		}
-	}
-	if c.ValueStderr < 0 || c.BetaStderr < 0 {
-		return nil, fmt.Errorf("calibration %s: negative standard error", c)
+	if err := checkScalable(r, c); err != nil {
+		return nil, err
 	}
 	np := r.Params.NumParams()
-	theta := r.Theta
 	varTheta := make([]float64, np) // zero for exact data
 	haveErr := r.ThetaStderr != nil
 	if haveErr {
@@ -116,88 +101,21 @@ func ScaleEnergy(r *Result, c Calibration) (*Result, error) {
 		out.ThetaStderr = make([]float64, np)
 	}
 	var warnings []string
+	var err error
 	if c.Term == "" {
-		if !(c.Beta > 0) {
-			return nil, fmt.Errorf("calibration %s: beta must be positive", c)
-		}
-		b, sb := c.Beta, c.BetaStderr
-		es.Beta, es.BetaStderr = b, sb
-		for q := range theta {
-			out.Theta[q] = theta[q] / b
-			if haveErr {
-				out.ThetaStderr[q] = math.Sqrt(varTheta[q]/(b*b) + sq(theta[q]/(b*b))*sb*sb)
-			}
-		}
-		es.Method = "known beta: lambda = theta/beta"
+		err = scaleByBeta(&out, es, r.Theta, varTheta)
 	} else {
-		k := slices.IndexFunc(r.Terms, func(t lattice.Term) bool { return t.Key() == c.Term })
-		if k < 0 {
-			return nil, fmt.Errorf("calibration %s: %q is not a term of the template", c, c.Term)
-		}
-		es.Term = k
-		ref := r.Params.Of[k]
-		tr, v, sv := theta[ref], c.Value, c.ValueStderr
-		if v == 0 || tr == 0 || math.Signbit(tr) != math.Signbit(v) {
-			return nil, fmt.Errorf("calibration %s: the fitted beta*lambda of %s is %.4g, so beta = %.4g / %.4g would not be positive; check the sign convention (H = sum coeff P) and the term",
-				c, c.Term, tr, tr, v)
-		}
-		var col []float64
-		if haveErr {
-			if r.covColumn == nil {
-				return nil, fmt.Errorf("calibration %s: the fit's covariance is not available (a Result not made by Fit)", c)
-			}
-			var err error
-			if col, err = r.covColumn(ref); err != nil {
-				return nil, fmt.Errorf("calibration %s: covariance of the fitted coefficients: %v", c, err)
-			}
-		}
-		es.Beta = tr / v
-		es.BetaStderr = math.Sqrt(varTheta[ref]/(v*v) + sq(tr/(v*v))*sv*sv)
-		for q := range theta {
-			ratio := theta[q] / tr
-			out.Theta[q] = v * ratio
-			if haveErr {
-				vq := sq(v/tr)*(varTheta[q]-2*ratio*col[q]+ratio*ratio*varTheta[ref]) + ratio*ratio*sv*sv
-				if q == ref {
-					vq = sv * sv // exactly V, up to the calibration's own error
-				}
-				out.ThetaStderr[q] = math.Sqrt(math.Max(vq, 0))
-			}
-		}
-		es.Method = "delta method with the fitted covariance of beta*lambda: beta = theta_r / lambda_r"
-		if haveErr && math.Sqrt(varTheta[ref]) > math.Abs(tr)/3 {
-			warnings = append(warnings, fmt.Sprintf("the calibrated term %s is fitted as %.3g +- %.2g (beta*lambda): its relative error is above 1/3, so beta is poorly determined and its linearised error bar is rough; calibrate with a larger coefficient",
-				c.Term, tr, math.Sqrt(varTheta[ref])))
-		}
+		warnings, err = scaleByTerm(&out, es, r, varTheta)
+	}
+	if err != nil {
+		return nil, err
 	}
 	if !haveErr {
 		es.BetaStderr = math.NaN()
 	}
 	out.EnergyScale = es
 	out.Beta = es.Beta
-
-	out.Coeffs = make([]float64, len(r.Coeffs))
-	r.Params.Expand(out.Coeffs, out.Theta)
-	out.Terms = make([]lattice.Term, len(r.Terms))
-	for k, t := range r.Terms {
-		t.Sites = slices.Clone(t.Sites)
-		t.Coeff = out.Coeffs[k]
-		if haveErr {
-			t.Stderr, t.HasStderr = out.ThetaStderr[r.Params.Of[k]], true
-		}
-		out.Terms[k] = t
-	}
-	// Truncation measures are coefficient differences: units of lambda now.
-	inv := 1 / es.Beta
-	out.Truncation.Steps = make([]float64, len(r.Truncation.Steps))
-	for i, s := range r.Truncation.Steps {
-		out.Truncation.Steps[i] = s * inv
-	}
-	out.Truncation.Error *= inv
-	out.Truncation.StatError *= inv
-	out.Truncation.Target *= inv
-	out.Bound = cluster.SufficientBeta(out.Terms, out.Coeffs)
-
+	rescaleDerived(&out, r)
 	out.Notes = nil
 	for _, n := range r.Notes {
 		if n != betaUnknownNote {
@@ -212,6 +130,125 @@ func ScaleEnergy(r *Result, c Calibration) (*Result, error) {
 	}
 	out.covColumn = nil // the covariance of lambda is not that of theta
 	return &out, nil
+}
+
+// checkScalable refuses a fit whose scale is known or untrustworthy and a
+// calibration that is not a finite number with a non-negative error.
+func checkScalable(r *Result, c Calibration) error {
+	if r.BetaKnown {
+		return fmt.Errorf("the fit was made at a known beta %g: its coefficients are lambda already", r.Beta)
+	}
+	if r.EnergyScale != nil {
+		return fmt.Errorf("the energy scale is fixed already (%s)", r.EnergyScale.Calibration)
+	}
+	if !r.Converged {
+		return fmt.Errorf("the fit did not converge: no energy scale from its last iterate")
+	}
+	for _, v := range []float64{c.Value, c.ValueStderr, c.Beta, c.BetaStderr} {
+		if math.IsNaN(v) || math.IsInf(v, 0) {
+			return fmt.Errorf("calibration %s: not a finite number", c)
+		}
+	}
+	if c.ValueStderr < 0 || c.BetaStderr < 0 {
+		return fmt.Errorf("calibration %s: negative standard error", c)
+	}
+	return nil
+}
+
+// scaleByBeta fills out.Theta (and out.ThetaStderr when allocated) with
+// lambda = theta/B for the calibration's known beta B +- sigma_B.
+func scaleByBeta(out *Result, es *EnergyScale, theta, varTheta []float64) error {
+	c := es.Calibration
+	if !(c.Beta > 0) {
+		return fmt.Errorf("calibration %s: beta must be positive", c)
+	}
+	b, sb := c.Beta, c.BetaStderr
+	es.Beta, es.BetaStderr = b, sb
+	for q := range theta {
+		out.Theta[q] = theta[q] / b
+		if out.ThetaStderr != nil {
+			out.ThetaStderr[q] = math.Sqrt(varTheta[q]/(b*b) + sq(theta[q]/(b*b))*sb*sb)
+		}
+	}
+	es.Method = "known beta: lambda = theta/beta"
+	return nil
+}
+
+// scaleByTerm fills out.Theta (and out.ThetaStderr when allocated) with
+// lambda_q = V theta_q / theta_r for the calibrated term r = V +- sigma_V,
+// with the delta-method error bars of the package comment. It returns
+// the warning of a poorly determined calibrated coefficient.
+func scaleByTerm(out *Result, es *EnergyScale, r *Result, varTheta []float64) ([]string, error) {
+	c := es.Calibration
+	theta, haveErr := r.Theta, out.ThetaStderr != nil
+	k := slices.IndexFunc(r.Terms, func(t lattice.Term) bool { return t.Key() == c.Term })
+	if k < 0 {
+		return nil, fmt.Errorf("calibration %s: %q is not a term of the template", c, c.Term)
+	}
+	es.Term = k
+	ref := r.Params.Of[k]
+	tr, v, sv := theta[ref], c.Value, c.ValueStderr
+	if v == 0 || tr == 0 || math.Signbit(tr) != math.Signbit(v) {
+		return nil, fmt.Errorf("calibration %s: the fitted beta*lambda of %s is %.4g, so beta = %.4g / %.4g would not be positive; check the sign convention (H = sum coeff P) and the term",
+			c, c.Term, tr, tr, v)
+	}
+	var col []float64
+	if haveErr {
+		if r.covColumn == nil {
+			return nil, fmt.Errorf("calibration %s: the fit's covariance is not available (a Result not made by Fit)", c)
+		}
+		var err error
+		if col, err = r.covColumn(ref); err != nil {
+			return nil, fmt.Errorf("calibration %s: covariance of the fitted coefficients: %v", c, err)
+		}
+	}
+	es.Beta = tr / v
+	es.BetaStderr = math.Sqrt(varTheta[ref]/(v*v) + sq(tr/(v*v))*sv*sv)
+	for q := range theta {
+		ratio := theta[q] / tr
+		out.Theta[q] = v * ratio
+		if haveErr {
+			vq := sq(v/tr)*(varTheta[q]-2*ratio*col[q]+ratio*ratio*varTheta[ref]) + ratio*ratio*sv*sv
+			if q == ref {
+				vq = sv * sv // exactly V, up to the calibration's own error
+			}
+			out.ThetaStderr[q] = math.Sqrt(math.Max(vq, 0))
+		}
+	}
+	es.Method = "delta method with the fitted covariance of beta*lambda: beta = theta_r / lambda_r"
+	var warnings []string
+	if haveErr && math.Sqrt(varTheta[ref]) > math.Abs(tr)/3 {
+		warnings = append(warnings, fmt.Sprintf("the calibrated term %s is fitted as %.3g +- %.2g (beta*lambda): its relative error is above 1/3, so beta is poorly determined and its linearised error bar is rough; calibrate with a larger coefficient",
+			c.Term, tr, math.Sqrt(varTheta[ref])))
+	}
+	return warnings, nil
+}
+
+// rescaleDerived recomputes from out.Theta and out.Beta what the
+// parameters determine: the per-term coefficients and error bars, the
+// truncation measures (coefficient differences, so units of lambda now)
+// and the sufficient-temperature bound. r is the fit of beta*lambda.
+func rescaleDerived(out, r *Result) {
+	out.Coeffs = make([]float64, len(r.Coeffs))
+	r.Params.Expand(out.Coeffs, out.Theta)
+	out.Terms = make([]lattice.Term, len(r.Terms))
+	for k, t := range r.Terms {
+		t.Sites = slices.Clone(t.Sites)
+		t.Coeff = out.Coeffs[k]
+		if out.ThetaStderr != nil {
+			t.Stderr, t.HasStderr = out.ThetaStderr[r.Params.Of[k]], true
+		}
+		out.Terms[k] = t
+	}
+	inv := 1 / out.Beta
+	out.Truncation.Steps = make([]float64, len(r.Truncation.Steps))
+	for i, s := range r.Truncation.Steps {
+		out.Truncation.Steps[i] = s * inv
+	}
+	out.Truncation.Error *= inv
+	out.Truncation.StatError *= inv
+	out.Truncation.Target *= inv
+	out.Bound = cluster.SufficientBeta(out.Terms, out.Coeffs)
 }
 
 // CoefficientsAreLambda reports whether the coefficients are lambda (beta

@@ -10,27 +10,25 @@ import (
 // pointers, omitted when undefined, so that no NaN or infinity is ever
 // written.
 type Report struct {
-	Converged     bool     `json:"converged"`
-	Reason        string   `json:"reason,omitempty"`
-	Iterations    int      `json:"iterations"`
-	AllIterations int      `json:"iterations_all_orders"`
-	Evaluations   int      `json:"evaluations"`
-	GradientSigma *float64 `json:"gradient_sigma,omitempty"` // max |gradient| / data noise
-	GradientAbs   *float64 `json:"gradient_abs,omitempty"`   // exact data: max mean residual
-	Tolerance     float64  `json:"tolerance"`
-	Order         int      `json:"order"`
-	OrderMode     string   `json:"order_selection"` // "fixed" or "auto"
-	Beta          float64  `json:"beta"`
-	BetaKnown     bool     `json:"beta_known"`
-	// BetaSource says where Beta comes from: "given", "energy scale"
-	// (recovered by ScaleEnergy; see EnergyScale) or "unknown" (Beta is
-	// 1 by convention and the coefficients are beta*lambda).
-	BetaSource   string             `json:"beta_source"`
+	Converged     bool      `json:"converged"`
+	Reason        string    `json:"reason,omitempty"`
+	Iterations    int       `json:"iterations"`
+	AllIterations int       `json:"iterations_all_orders"`
+	Evaluations   int       `json:"evaluations"`
+	GradientSigma *float64  `json:"gradient_sigma,omitempty"` // max |gradient| / data noise
+	GradientAbs   *float64  `json:"gradient_abs,omitempty"`   // exact data: max mean residual
+	Tolerance     float64   `json:"tolerance"`
+	Order         int       `json:"order"`
+	OrderMode     OrderMode `json:"order_selection"`
+	Beta          float64   `json:"beta"`
+	BetaKnown     bool      `json:"beta_known"`
+	// BetaSource says where Beta comes from.
+	BetaSource   BetaSource         `json:"beta_source"`
 	EnergyScale  *ReportEnergyScale `json:"energy_scale,omitempty"`
-	CoeffMeaning string             `json:"coefficients"` // "lambda" or "beta*lambda"
+	CoeffMeaning CoeffMeaning       `json:"coefficients"`
 	Terms        int                `json:"terms"`
 	Parameters   int                `json:"parameters"`
-	DataKind     string             `json:"data,omitempty"`
+	DataKind     DataKind           `json:"data,omitempty"`
 	DataFile     string             `json:"data_file,omitempty"`
 	ExactData    bool               `json:"exact_data"`
 	// Unmeasured counts terms without data fitted through their group.
@@ -145,9 +143,37 @@ func finitePtr(v float64) *float64 {
 	return &v
 }
 
-// NewReport builds the report of a fit. mode is "fixed" or "auto"; data
+// BetaSource says where the beta of a Report comes from.
+type BetaSource string
+
+// Sources of a Report's beta.
+const (
+	BetaGiven           BetaSource = "given"        // by the caller (Problem.Beta)
+	BetaFromEnergyScale BetaSource = "energy scale" // recovered by ScaleEnergy; see EnergyScale
+	BetaUnknown         BetaSource = "unknown"      // 1 by convention: the coefficients are beta*lambda
+)
+
+// CoeffMeaning says what a Report's coefficients are.
+type CoeffMeaning string
+
+// Meanings of a Report's coefficients.
+const (
+	CoeffLambda     CoeffMeaning = "lambda"
+	CoeffBetaLambda CoeffMeaning = "beta*lambda"
+)
+
+// OrderMode says how the order of a fit was chosen.
+type OrderMode string
+
+// Order modes of a Report.
+const (
+	OrderFixed OrderMode = "fixed" // the caller's Options.Order
+	OrderAuto  OrderMode = "auto"  // raised by the fitter (Options.Order 0)
+)
+
+// NewReport builds the report of a fit. mode is OrderFixed or OrderAuto; data
 // kind and file label the input; tol is the stopping tolerance used.
-func NewReport(r *Result, mode, dataKind, dataFile string, tol float64) *Report {
+func NewReport(r *Result, mode OrderMode, dataKind DataKind, dataFile string, tol float64) *Report {
 	rep := &Report{
 		Converged:     r.Converged,
 		Reason:        r.Reason,
@@ -159,7 +185,7 @@ func NewReport(r *Result, mode, dataKind, dataFile string, tol float64) *Report 
 		OrderMode:     mode,
 		Beta:          r.Beta,
 		BetaKnown:     r.BetaKnown,
-		CoeffMeaning:  "lambda",
+		CoeffMeaning:  CoeffLambda,
 		Terms:         len(r.Terms),
 		Parameters:    r.Params.NumParams(),
 		DataKind:      dataKind,
@@ -172,16 +198,16 @@ func NewReport(r *Result, mode, dataKind, dataFile string, tol float64) *Report 
 		Notes:         r.Notes,
 	}
 	rep.ElapsedSeconds = math.Round(r.Elapsed.Seconds()*1000) / 1000
-	rep.BetaSource = "given"
+	rep.BetaSource = BetaGiven
 	if es := r.EnergyScale; es != nil {
-		rep.BetaSource = "energy scale"
+		rep.BetaSource = BetaFromEnergyScale
 		rep.EnergyScale = &ReportEnergyScale{
 			From: es.Calibration.String(), Term: es.Calibration.Term, Value: es.Calibration.Value,
 			Beta: es.Beta, BetaStderr: finitePtr(es.BetaStderr), Method: es.Method,
 		}
 	} else if !r.BetaKnown {
-		rep.BetaSource = "unknown"
-		rep.CoeffMeaning = "beta*lambda"
+		rep.BetaSource = BetaUnknown
+		rep.CoeffMeaning = CoeffBetaLambda
 	}
 	if r.Exact {
 		rep.GradientAbs = finitePtr(r.GradientAbs)

@@ -12,10 +12,13 @@ import (
 	"warmfit/lattice"
 )
 
+// Norm is the norm in which a shot plan's target error is measured.
+type Norm string
+
 // Norms of the target error accepted by PlanShots.
 const (
-	NormLinf = "linf"
-	NormL2   = "l2"
+	NormLinf Norm = "linf"
+	NormL2   Norm = "l2"
 )
 
 // PlanOptions controls PlanShots.
@@ -25,7 +28,7 @@ type PlanOptions struct {
 	// Norm is NormLinf (default): every coefficient within Target at
 	// Confidence, simultaneously; or NormL2: the expected squared L2
 	// error sum_k E(fit_k - lambda_k)^2 at most Target^2.
-	Norm string
+	Norm Norm
 	// Confidence of the NormLinf guarantee; default 0.95.
 	Confidence float64
 	// Bases is the measurement scheme (one letter per qubit each); nil
@@ -58,7 +61,7 @@ type Plan struct {
 	// ShotsPerBasis.
 	VarPerShot []float64
 	Stderr     []float64
-	Norm       string
+	Norm       Norm
 	Target     float64
 	Confidence float64
 	// Z is the two-sided normal quantile of the Bonferroni bound
@@ -95,29 +98,9 @@ type Plan struct {
 //	          union bound over the m parameters at the confidence;
 //	NormL2:   N = ceil(sum_k Var_k(1) / eps^2).
 func PlanShots(lat *lattice.Lattice, terms []lattice.Term, beta float64, opt PlanOptions) (*Plan, error) {
-	if lat == nil || len(terms) == 0 {
-		return nil, errors.New("plan: no lattice or no terms")
-	}
-	if !(beta > 0) || math.IsInf(beta, 0) {
-		return nil, fmt.Errorf("plan: beta = %v must be positive and finite", beta)
-	}
-	if !(opt.Target > 0) || math.IsInf(opt.Target, 0) {
-		return nil, fmt.Errorf("plan: target %v must be positive and finite", opt.Target)
-	}
-	if opt.Norm == "" {
-		opt.Norm = NormLinf
-	}
-	if opt.Norm != NormLinf && opt.Norm != NormL2 {
-		return nil, fmt.Errorf("plan: norm %q: want %s or %s", opt.Norm, NormLinf, NormL2)
-	}
-	if opt.Confidence == 0 {
-		opt.Confidence = 0.95
-	}
-	if !(opt.Confidence > 0 && opt.Confidence < 1) {
-		return nil, fmt.Errorf("plan: confidence %v must lie in (0, 1)", opt.Confidence)
-	}
-	if opt.DenseLimit <= 0 {
-		opt.DenseLimit = 1500
+	opt, err := checkPlanOptions(lat, terms, beta, opt)
+	if err != nil {
+		return nil, err
 	}
 	n := lat.NumSites()
 	minL := 0
@@ -153,72 +136,24 @@ func PlanShots(lat *lattice.Lattice, terms []lattice.Term, beta float64, opt Pla
 			return nil, err
 		}
 	}
-	for i, b := range bases {
-		if len(b) != n {
-			return nil, fmt.Errorf("plan: basis %d has %d letters for %d qubits", i, len(b), n)
-		}
-	}
 	p := &Plan{Bases: bases, Norm: opt.Norm, Target: opt.Target, Confidence: opt.Confidence, Order: L, OrderReason: orderReason}
-	p.Coverage = make([]int, len(terms))
-	var uncovered []string
-	for k, t := range terms {
-		for _, b := range bases {
-			if Serves(b, t) {
-				p.Coverage[k]++
-			}
-		}
-		if p.Coverage[k] == 0 && len(uncovered) < 10 {
-			uncovered = append(uncovered, t.Key())
-		}
-	}
-	if len(uncovered) > 0 {
-		return nil, fmt.Errorf("plan: no basis measures term(s) %v: the scheme cannot learn them", uncovered)
+	if p.Coverage, err = basisCoverage(bases, n, terms); err != nil {
+		return nil, err
 	}
 
 	res, err := exp.Evaluate(coeffs, beta, cluster.Options{Order: L, Response: true, Workers: opt.Workers, Progress: opt.Progress})
 	if err != nil {
 		return nil, err
 	}
-	p.Expect = res.Expect[L-1]
-	params := NewParams(terms)
-	p.Params = params.NumParams()
-	d := make([]float64, len(terms))
-	for k, e := range p.Expect {
-		if math.Abs(e) >= 1 || math.IsNaN(e) {
-			return nil, fmt.Errorf("plan: the expansion gives <%s> = %v at order %d: the temperature is too low for this order", terms[k].Key(), e, L)
-		}
-		d[k] = (1 - e*e) / float64(p.Coverage[k])
+	if err := p.setVariances(res, terms, opt); err != nil {
+		return nil, err
 	}
-	hess := params.project(res.Response, -1)
-	vars, _, err := paramVariances(hess, params.project(diagMatrix(d), 1), opt.DenseLimit, opt.Workers, params.spatialOrder(terms))
-	if err != nil {
-		return nil, fmt.Errorf("plan: %v", err)
-	}
-	p.VarPerShot = make([]float64, len(terms))
-	var maxVar, sumVar float64
-	for k := range terms {
-		v := vars[params.Of[k]]
-		p.VarPerShot[k] = v
-		maxVar = math.Max(maxVar, v)
-		sumVar += v
-	}
-	var shots float64
-	switch opt.Norm {
-	case NormLinf:
+	if opt.Norm == NormLinf {
 		alpha := 1 - opt.Confidence
 		p.Z = distuv.UnitNormal.Quantile(1 - alpha/(2*float64(p.Params)))
-		shots = p.Z * p.Z * maxVar / (opt.Target * opt.Target)
-	case NormL2:
-		shots = sumVar / (opt.Target * opt.Target)
 	}
-	if shots > math.MaxInt64/float64(len(bases)+1) {
-		return nil, fmt.Errorf("plan: about %.3g shots per basis needed: beyond any experiment", shots)
-	}
-	p.ShotsPerBasis = max(int64(math.Ceil(shots)), 2)
-	p.TotalShots = p.ShotsPerBasis * int64(len(bases))
-	p.Stderr = make([]float64, len(terms))
-	for k, v := range p.VarPerShot {
-		p.Stderr[k] = math.Sqrt(v / float64(p.ShotsPerBasis))
+	if err := p.setShots(opt.Target); err != nil {
+		return nil, err
 	}
 	p.Notes = append(p.Notes,
 		"diagonal approximation: covariances between estimates that share shots are ignored",
@@ -239,6 +174,117 @@ func PlanShots(lat *lattice.Lattice, terms []lattice.Term, beta float64, opt Pla
 		p.Notes = append(p.Notes, "l2: expected squared L2 error of all term coefficients at most target^2")
 	}
 	return p, nil
+}
+
+// checkPlanOptions refuses a problem PlanShots cannot plan for and
+// returns opt with its defaults filled in.
+func checkPlanOptions(lat *lattice.Lattice, terms []lattice.Term, beta float64, opt PlanOptions) (PlanOptions, error) {
+	if lat == nil || len(terms) == 0 {
+		return opt, errors.New("plan: no lattice or no terms")
+	}
+	if !(beta > 0) || math.IsInf(beta, 0) {
+		return opt, fmt.Errorf("plan: beta = %v must be positive and finite", beta)
+	}
+	if !(opt.Target > 0) || math.IsInf(opt.Target, 0) {
+		return opt, fmt.Errorf("plan: target %v must be positive and finite", opt.Target)
+	}
+	if opt.Norm == "" {
+		opt.Norm = NormLinf
+	}
+	if opt.Norm != NormLinf && opt.Norm != NormL2 {
+		return opt, fmt.Errorf("plan: norm %q: want %s or %s", opt.Norm, NormLinf, NormL2)
+	}
+	if opt.Confidence == 0 {
+		opt.Confidence = 0.95
+	}
+	if !(opt.Confidence > 0 && opt.Confidence < 1) {
+		return opt, fmt.Errorf("plan: confidence %v must lie in (0, 1)", opt.Confidence)
+	}
+	if opt.DenseLimit <= 0 {
+		opt.DenseLimit = 1500
+	}
+	return opt, nil
+}
+
+// basisCoverage returns how many of the bases (n letters each) measure
+// each term, and an error naming the first terms no basis measures.
+func basisCoverage(bases []string, n int, terms []lattice.Term) ([]int, error) {
+	for i, b := range bases {
+		if len(b) != n {
+			return nil, fmt.Errorf("plan: basis %d has %d letters for %d qubits", i, len(b), n)
+		}
+	}
+	coverage := make([]int, len(terms))
+	var uncovered []string
+	for k, t := range terms {
+		for _, b := range bases {
+			if Serves(b, t) {
+				coverage[k]++
+			}
+		}
+		if coverage[k] == 0 && len(uncovered) < 10 {
+			uncovered = append(uncovered, t.Key())
+		}
+	}
+	if len(uncovered) > 0 {
+		return nil, fmt.Errorf("plan: no basis measures term(s) %v: the scheme cannot learn them", uncovered)
+	}
+	return coverage, nil
+}
+
+// setVariances sets Expect, Params and VarPerShot from the expansion at
+// the plan's order: the delta method with the diagonal data covariance
+// D = diag((1 - e_k^2)/n_k) of one shot per basis.
+func (p *Plan) setVariances(res *cluster.Result, terms []lattice.Term, opt PlanOptions) error {
+	L := p.Order
+	p.Expect = res.Expect[L-1]
+	params := NewParams(terms)
+	p.Params = params.NumParams()
+	d := make([]float64, len(terms))
+	for k, e := range p.Expect {
+		if math.Abs(e) >= 1 || math.IsNaN(e) {
+			return fmt.Errorf("plan: the expansion gives <%s> = %v at order %d: the temperature is too low for this order", terms[k].Key(), e, L)
+		}
+		d[k] = (1 - e*e) / float64(p.Coverage[k])
+	}
+	hess := params.project(res.Response, -1)
+	vars, _, err := paramVariances(hess, params.project(diagMatrix(d), 1), opt.DenseLimit, opt.Workers, params.spatialOrder(terms))
+	if err != nil {
+		return fmt.Errorf("plan: %v", err)
+	}
+	p.VarPerShot = make([]float64, len(terms))
+	for k := range terms {
+		p.VarPerShot[k] = vars[params.Of[k]]
+	}
+	return nil
+}
+
+// setShots sets ShotsPerBasis, TotalShots and Stderr for the target from
+// VarPerShot, Norm and (NormLinf) Z.
+func (p *Plan) setShots(target float64) error {
+	var maxVar, sumVar, shots float64
+	for _, v := range p.VarPerShot {
+		maxVar = math.Max(maxVar, v)
+		sumVar += v
+	}
+	switch p.Norm {
+	case NormLinf:
+		shots = p.Z * p.Z * maxVar / (target * target)
+	case NormL2:
+		shots = sumVar / (target * target)
+	default:
+		return fmt.Errorf("plan: norm %q: want %s or %s", p.Norm, NormLinf, NormL2)
+	}
+	if shots > math.MaxInt64/float64(len(p.Bases)+1) {
+		return fmt.Errorf("plan: about %.3g shots per basis needed: beyond any experiment", shots)
+	}
+	p.ShotsPerBasis = max(int64(math.Ceil(shots)), 2)
+	p.TotalShots = p.ShotsPerBasis * int64(len(p.Bases))
+	p.Stderr = make([]float64, len(p.VarPerShot))
+	for k, v := range p.VarPerShot {
+		p.Stderr[k] = math.Sqrt(v / float64(p.ShotsPerBasis))
+	}
+	return nil
 }
 
 // PredictedLinf returns the largest predicted standard error.

@@ -18,29 +18,10 @@ func (p *Plan) Retarget(target float64) (*Plan, error) {
 	if len(p.VarPerShot) == 0 || len(p.Bases) == 0 {
 		return nil, errors.New("plan: Retarget needs a plan made by PlanShots")
 	}
-	var shots float64
-	switch p.Norm {
-	case NormLinf:
-		shots = p.Z * p.Z * slices.Max(p.VarPerShot) / (target * target)
-	case NormL2:
-		var sum float64
-		for _, v := range p.VarPerShot {
-			sum += v
-		}
-		shots = sum / (target * target)
-	default:
-		return nil, fmt.Errorf("plan: norm %q: want %s or %s", p.Norm, NormLinf, NormL2)
-	}
-	if shots > math.MaxInt64/float64(len(p.Bases)+1) {
-		return nil, fmt.Errorf("plan: about %.3g shots per basis needed: beyond any experiment", shots)
-	}
 	q := *p
 	q.Target = target
-	q.ShotsPerBasis = max(int64(math.Ceil(shots)), 2)
-	q.TotalShots = q.ShotsPerBasis * int64(len(p.Bases))
-	q.Stderr = make([]float64, len(p.VarPerShot))
-	for k, v := range p.VarPerShot {
-		q.Stderr[k] = math.Sqrt(v / float64(q.ShotsPerBasis))
+	if err := q.setShots(target); err != nil {
+		return nil, err
 	}
 	q.Notes = slices.Clone(p.Notes)
 	q.Warnings = slices.Clone(p.Warnings)

@@ -22,7 +22,7 @@ func TestPlanRetargetEqualsFreshPlan(t *testing.T) {
 		{Pauli: "XX", Sites: []int{2, 3}, Coeff: 0.25},
 	}
 	const beta = 0.5
-	for _, norm := range []string{fit.NormLinf, fit.NormL2} {
+	for _, norm := range []fit.Norm{fit.NormLinf, fit.NormL2} {
 		base, err := fit.PlanShots(lat, terms, beta, fit.PlanOptions{Target: 0.05, Norm: norm})
 		if err != nil {
 			t.Fatal(err)

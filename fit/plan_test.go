@@ -32,7 +32,7 @@ func TestPlanTwoFreeSpins(t *testing.T) {
 	}
 	z := distuv.UnitNormal.Quantile(1 - 0.05/4)
 	for _, tt := range []struct {
-		norm string
+		norm fit.Norm
 		want float64
 	}{
 		{fit.NormLinf, math.Ceil(z * z * math.Max(v[0], v[1]) / (eps * eps))},

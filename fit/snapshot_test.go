@@ -73,7 +73,9 @@ func TestScanSnapshotsErrors(t *testing.T) {
 func TestDetectDataKind(t *testing.T) {
 	dir := t.TempDir()
 	for _, tc := range []struct {
-		name, src, kind, err string
+		name, src string
+		kind      DataKind
+		err       string
 	}{
 		{"t.csv", "# comment\n\npauli,sites,value,stderr,shots\nZ,0,0.1,0.01,5\n", KindTable, ""},
 		{"s.csv", "basis,outcome,count\nZ,0,1\n", KindSnapshots, ""},

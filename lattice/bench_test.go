@@ -18,40 +18,12 @@ func BenchmarkClustersSquare20x20Order8(b *testing.B) {
 // BenchmarkCountClustersSquare20x20Order8 counts the same clusters in
 // parallel without building the largest ones.
 func BenchmarkCountClustersSquare20x20Order8(b *testing.B) {
-	l := mustBuild(b, "square:20x20")
-	var n int64
-	b.ResetTimer()
-	for range b.N {
-		n += sum(l.CountClusters(8))
-	}
-	b.ReportMetric(float64(n)/b.Elapsed().Seconds(), "clusters/s")
-}
-
-// BenchmarkBuildClustersSquare20x20Order8 stores the same clusters in a
-// ClusterList (counting pass, then parallel fill).
-func BenchmarkBuildClustersSquare20x20Order8(b *testing.B) {
-	l := mustBuild(b, "square:20x20")
-	var n int64
-	b.ResetTimer()
-	for range b.N {
-		list, err := l.BuildClusters(8, 0)
-		if err != nil {
-			b.Fatal(err)
-		}
-		n += int64(list.Len())
-	}
-	b.ReportMetric(float64(n)/b.Elapsed().Seconds(), "clusters/s")
+	benchCountClusters(b, "square:20x20", 8)
 }
 
 // BenchmarkCountClustersCubic8x8x8Order8 is a 3-D counting load.
 func BenchmarkCountClustersCubic8x8x8Order8(b *testing.B) {
-	l := mustBuild(b, "cubic:8x8x8")
-	var n int64
-	b.ResetTimer()
-	for range b.N {
-		n += sum(l.CountClusters(8))
-	}
-	b.ReportMetric(float64(n)/b.Elapsed().Seconds(), "clusters/s")
+	benchCountClusters(b, "cubic:8x8x8", 8)
 }
 
 // BenchmarkEstimateClustersSquare200x200Order14 is the cost of the
@@ -62,4 +34,16 @@ func BenchmarkEstimateClustersSquare200x200Order14(b *testing.B) {
 	for range b.N {
 		l.EstimateClusters(14)
 	}
+}
+
+// benchCountClusters times CountClusters of the lattice spec up to
+// maxSize sites and reports the clusters counted per second.
+func benchCountClusters(b *testing.B, spec string, maxSize int) {
+	l := mustBuild(b, spec)
+	var n int64
+	b.ResetTimer()
+	for range b.N {
+		n += sum(l.CountClusters(maxSize))
+	}
+	b.ReportMetric(float64(n)/b.Elapsed().Seconds(), "clusters/s")
 }

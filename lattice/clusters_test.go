@@ -72,6 +72,20 @@ func collect(t *testing.T, what string) (map[uint64]bool, func([]int) bool) {
 	}
 }
 
+// matchBruteForce checks that the visited site sets (collect) are exactly
+// the sets the brute force found.
+func matchBruteForce(t *testing.T, what string, seen map[uint64]bool, want []uint64) {
+	t.Helper()
+	for _, m := range want {
+		if !seen[m] {
+			t.Errorf("%s: set %b missed", what, m)
+		}
+	}
+	if len(seen) != len(want) {
+		t.Errorf("%s: %d sets visited, brute force %d", what, len(seen), len(want))
+	}
+}
+
 // smallLattices are brute-forced over all 2^N site subsets.
 var smallLattices = []string{
 	"square:3x3", "kagome:2x2", "triangular:3x3", "honeycomb:2x2:periodic",
@@ -235,18 +249,13 @@ func TestEachConnectedSubclusterBruteForce(t *testing.T) {
 			rng.Shuffle(len(shuffled), func(i, j int) { shuffled[i], shuffled[j] = shuffled[j], shuffled[i] })
 			l.EachConnectedSubcluster(shuffled, visit)
 			full := maskOf(c)
-			want := 0
+			var subsets []uint64
 			for m := full; m > 0; m = (m - 1) & full {
 				if m != full && bruteConnected(n, bonds, m) {
-					want++
-					if !seen[m] {
-						t.Errorf("%s: subset %b missed", what, m)
-					}
+					subsets = append(subsets, m)
 				}
 			}
-			if len(seen) != want {
-				t.Errorf("%s: %d subclusters, brute force %d", what, len(seen), want)
-			}
+			matchBruteForce(t, what, seen, subsets)
 		}
 	}
 }
@@ -264,18 +273,13 @@ func TestClustersContainingBruteForce(t *testing.T) {
 				seen, visit := collect(t, what)
 				l.ClustersContaining(sup, maxSize, visit)
 				s := maskOf(sup)
-				want := 0
+				var sets []uint64
 				for m := uint64(1); m < 1<<n; m++ {
 					if m&s == s && bits.OnesCount64(m) <= maxSize && bruteConnected(n, bonds, m) {
-						want++
-						if !seen[m] {
-							t.Errorf("%s: set %b missed", what, m)
-						}
+						sets = append(sets, m)
 					}
 				}
-				if len(seen) != want {
-					t.Errorf("%s: %d clusters, brute force %d", what, len(seen), want)
-				}
+				matchBruteForce(t, what, seen, sets)
 			}
 		}
 	}

@@ -11,8 +11,8 @@ const (
 )
 
 // EstimateClusters estimates, cheaply, how many connected clusters of at
-// most maxSize sites the lattice has and how many bytes a ClusterList of
-// them takes, so that callers can refuse work past a limit before
+// most maxSize sites the lattice has and how many bytes they take stored
+// compactly (a 32-bit index per site and a 64-bit offset per cluster), so that callers can refuse work past a limit before
 // starting it (see EstimateClusterSizes for the method).
 func (l *Lattice) EstimateClusters(maxSize int) (count int64, bytes int64) {
 	var c, b float64
@@ -75,7 +75,8 @@ func (l *Lattice) EstimateClusterSizes(maxSize int) []float64 {
 	return extrapolate(exact, maxSize)
 }
 
-// clusterBytes is the storage of one cluster of n sites in a ClusterList.
+// clusterBytes is the compact storage of one cluster of n sites: a 32-bit
+// index per site and a 64-bit offset.
 func clusterBytes(n int) float64 { return 4*float64(n) + 8 }
 
 func clampInt64(x float64) int64 {

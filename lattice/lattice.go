@@ -120,24 +120,6 @@ func (l *Lattice) Neighbors(i int) []int { return l.adj[i] }
 // Degree returns the number of interaction-graph neighbours of site i.
 func (l *Lattice) Degree(i int) int { return len(l.adj[i]) }
 
-// MaxDegree returns the largest interaction-graph degree.
-func (l *Lattice) MaxDegree() int {
-	m := 0
-	for _, a := range l.adj {
-		m = max(m, len(a))
-	}
-	return m
-}
-
-// HasBond reports whether sites i and j are joined in the interaction graph.
-func (l *Lattice) HasBond(i, j int) bool {
-	if i < 0 || i >= len(l.adj) {
-		return false
-	}
-	_, ok := slices.BinarySearch(l.adj[i], j)
-	return ok
-}
-
 // finish builds the interaction graph from the bonds. Every constructor
 // calls it last.
 func (l *Lattice) finish() {

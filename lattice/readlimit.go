@@ -12,7 +12,7 @@ import (
 // delivered one byte more than the limit. name prefixes the error.
 func ReadAllLimited(r io.Reader, name string) ([]byte, error) {
 	tooLarge := func(what string) error {
-		return fmt.Errorf("%s: %s larger than %d MiB (lattice.MaxFileBytes): not a lattice or model file this program reads", name, what, MaxFileBytes>>20)
+		return fmt.Errorf("%s: %s larger than %d MiB (lattice.MaxFileBytes), more than any input file this program reads", name, what, MaxFileBytes>>20)
 	}
 	if f, ok := r.(*os.File); ok {
 		if fi, err := f.Stat(); err == nil && fi.Mode().IsRegular() && fi.Size() > MaxFileBytes {

@@ -105,14 +105,7 @@ func TestChebyshevMatchesDenseExp(t *testing.T) {
 // The real-vector path must agree with the complex one on a real H.
 func TestChebyshevRealPath(t *testing.T) {
 	rng := rand.New(rand.NewPCG(13, 14))
-	const n = 7
-	terms := randomTerms(rng, n, true)
-	ref := newKronRef(t, n, terms)
-	op, err := NewOperator(n, terms, 1)
-	if err != nil {
-		t.Fatal(err)
-	}
-	o := newVecOps(op, true)
+	ref, op, o := randomRealSystem(t, rng, 7)
 	a, b, psi := o.newVec(), o.newVec(), o.newVec()
 	lo, hi, _, err := spectralBounds(o, a, b, 2)
 	if err != nil {
@@ -141,14 +134,7 @@ func TestChebyshevRealPath(t *testing.T) {
 // give a wrong vector.
 func TestChebyshevDetectsSpectrumEscape(t *testing.T) {
 	rng := rand.New(rand.NewPCG(15, 16))
-	const n = 6
-	terms := randomTerms(rng, n, true)
-	ref := newKronRef(t, n, terms)
-	op, err := NewOperator(n, terms, 1)
-	if err != nil {
-		t.Fatal(err)
-	}
-	o := newVecOps(op, true)
+	ref, _, o := randomRealSystem(t, rng, 6)
 	a, b, psi := o.newVec(), o.newVec(), o.newVec()
 	o.random(a, 1, 1)
 	e0, emax := slices.Min(ref.vals), slices.Max(ref.vals)
@@ -192,4 +178,18 @@ func TestSpectralBoundsContainSpectrum(t *testing.T) {
 			}
 		}
 	}
+}
+
+// randomRealSystem draws a random real n-qubit Hamiltonian from rng and
+// returns its dense reference, its operator and the vector operations of
+// the real path.
+func randomRealSystem(t *testing.T, rng *rand.Rand, n int) (*kronRef, *Operator, *vecOps) {
+	t.Helper()
+	terms := randomTerms(rng, n, true)
+	ref := newKronRef(t, n, terms)
+	op, err := NewOperator(n, terms, 1)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return ref, op, newVecOps(op, true)
 }

@@ -1,6 +1,7 @@
 package validate
 
 import (
+	"cmp"
 	"fmt"
 	"math"
 	"math/bits"
@@ -89,9 +90,9 @@ func newOperator(n int, ops []cluster.PauliString, coeffs []float64, workers int
 	}
 	slices.SortFunc(order, func(a, b cluster.PauliString) int {
 		if a.X != b.X {
-			return cmpUint(a.X, b.X)
+			return cmp.Compare(a.X, b.X)
 		}
-		return cmpUint(a.Z, b.Z)
+		return cmp.Compare(a.Z, b.Z)
 	})
 	var diagOps []cluster.PauliString
 	var diagCoeffs []float64
@@ -167,16 +168,6 @@ func newOperator(n int, ops []cluster.PauliString, coeffs []float64, workers int
 		})
 	}
 	return op
-}
-
-func cmpUint(a, b uint64) int {
-	switch {
-	case a < b:
-		return -1
-	case a > b:
-		return 1
-	}
-	return 0
 }
 
 // NumQubits returns n.

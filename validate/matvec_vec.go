@@ -51,14 +51,6 @@ func (o *vecOps) newVec() stateVec {
 	return stateVec{c: make([]complex128, o.op.Dim())}
 }
 
-// bytesPerAmplitude is the size of one amplitude.
-func (o *vecOps) bytesPerAmplitude() int64 {
-	if o.real {
-		return 8
-	}
-	return 16
-}
-
 // sums adds the per-chunk slots in order.
 func (o *vecOps) sums() (s0, s1 float64) {
 	for c := 0; c < len(o.part); c += 2 {

@@ -321,21 +321,14 @@ func ExampleTypical() {
 }
 
 func benchmarkTypicality(b *testing.B, n int) {
-	// XXZ chain sum (X X + Y Y + 0.5 Z Z) + 0.3 sum X, open, beta = 0.5.
-	var terms []lattice.Term
+	// XXZ chain at beta = 0.5; the observables are its bond terms.
+	terms := xxzTerms(n)
 	var obs []cluster.PauliString
-	for i := 0; i+1 < n; i++ {
-		for _, l := range []struct {
-			p string
-			c float64
-		}{{"XX", 1}, {"YY", 1}, {"ZZ", 0.5}} {
-			terms = append(terms, lattice.Term{Pauli: l.p, Sites: []int{i, i + 1}, Coeff: l.c})
-			p, _ := cluster.ParsePauli(l.p, []int{i, i + 1})
+	for _, t := range terms {
+		if len(t.Sites) == 2 {
+			p, _ := cluster.ParsePauli(t.Pauli, t.Sites)
 			obs = append(obs, p)
 		}
-	}
-	for i := 0; i < n; i++ {
-		terms = append(terms, lattice.Term{Pauli: "X", Sites: []int{i}, Coeff: 0.3})
 	}
 	b.ResetTimer()
 	for b.Loop() {

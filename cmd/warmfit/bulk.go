@@ -18,14 +18,14 @@ type bulkFlags struct {
 	models      []string
 	start       []string
 	fix         []string
-	phonon      string
+	phonon      bulkPhonon
 	perFormula  float64
 	unknownErr  []string
 	cwAbove     float64
 	cwChi0      bool
 	rejectBelow float64
 	sizeTol     float64
-	engine      string
+	engine      bulkEngine
 	order       int
 	out         string
 	curves      string
@@ -40,6 +40,23 @@ type bulkFlags struct {
 // them.
 var bulkOptions bulkFlags
 
+// bulkEngine is the value of bulk --engine: the forward model.
+type bulkEngine string
+
+const (
+	engineExpansion bulkEngine = "expansion" // linked-cluster expansion of the infinite lattice
+	engineClusters  bulkEngine = "clusters"  // exact diagonalisation of periodic clusters
+)
+
+// bulkPhonon is the value of bulk --phonon: the lattice heat capacity.
+type bulkPhonon string
+
+const (
+	phononT3   bulkPhonon = "T3"    // a T^3
+	phononT3T5 bulkPhonon = "T3+T5" // a T^3 + b T^5
+	phononNone bulkPhonon = "none"  // no lattice term
+)
+
 func init() {
 	register(&command{
 		Name:    "bulk",
@@ -53,13 +70,13 @@ func init() {
 			fs.StringArrayVar(&o.models, "model", nil, "candidate `LATTICE[+J2][+Delta]` (chain, square, triangular, honeycomb); repeat to compare (default chain)")
 			fs.StringArrayVar(&o.start, "start", nil, "start value `NAME=VALUE` (J=7.5meV, J=87K, g=2.1, chi0=-1e-4, rho=0.01, a=2e-4, Delta=1, J2=0); repeatable")
 			fs.StringArrayVar(&o.fix, "fix", nil, "hold a parameter at `NAME=VALUE` instead of fitting it; repeatable")
-			fs.StringVar(&o.phonon, "phonon", "T3", "lattice heat capacity: T3 (a T^3), T3+T5 (a T^3 + b T^5) or none")
+			fs.StringVar((*string)(&o.phonon), "phonon", string(phononT3), "lattice heat capacity: T3 (a T^3), T3+T5 (a T^3 + b T^5) or none")
 			fs.Float64Var(&o.perFormula, "sites-per-formula", 1, "magnetic spin-1/2 sites per formula unit (molar curves are per mole of formula units)")
 			fs.StringSliceVar(&o.unknownErr, "unknown-stderr", nil, "`QUANTITIES` (chi,C,M) whose errors are unknown: estimated from the residual scatter")
 			fs.Float64Var(&o.cwAbove, "cw-above", 0, "lowest temperature (K) of the Curie–Weiss first look (default: upper half of the chi range)")
 			fs.BoolVar(&o.cwChi0, "cw-chi0", true, "fit a temperature-independent chi0 in the Curie–Weiss first look")
 			fs.Float64Var(&o.rejectBelow, "reject-below", bulk.DefaultRejectBelow, "p-value below which a candidate is rejected")
-			fs.StringVar(&o.engine, "engine", "expansion", "forward model: expansion (linked-cluster expansion of the infinite lattice) or clusters (exact diagonalisation of 12-site periodic clusters; faster, trusted only higher)")
+			fs.StringVar((*string)(&o.engine), "engine", string(engineExpansion), "forward model: expansion (linked-cluster expansion of the infinite lattice) or clusters (exact diagonalisation of 12-site periodic clusters; faster, trusted only higher)")
 			fs.IntVar(&o.order, "order", 0, "expansion order, the largest cluster (default: chain 13, honeycomb 11, square 10, triangular 9; with +Delta chain 10, others 8)")
 			fs.Float64Var(&o.sizeTol, "finite-size-tol", bulk.DefaultFiniteSizeTolerance, "relative agreement of the two periodic clusters that marks a curve trusted")
 			addOutputFlag(fs, &o.out, "the fit (JSON)")
@@ -174,20 +191,17 @@ func newBulkJob(files []string) (*bulkJob, error) {
 	if !(o.sizeTol > 0 && o.sizeTol < 1) {
 		return nil, usagef("--finite-size-tol %v: must be in (0, 1)", o.sizeTol)
 	}
-	if o.engine != "expansion" && o.engine != "clusters" {
-		return nil, usagef("--engine %q: want expansion or clusters", o.engine)
+	if _, err := parseChoice("--engine", string(o.engine), engineExpansion, engineClusters); err != nil {
+		return nil, err
 	}
 	if o.order < 0 || o.order > 16 {
 		return nil, usagef("--order %d: want 1-16", o.order)
 	}
-	switch o.phonon {
-	case "T3", "none":
-	case "T3+T5":
-		j.phononT5 = true
-	default:
-		return nil, usagef("--phonon %q: want T3, T3+T5 or none", o.phonon)
+	if _, err := parseChoice("--phonon", string(o.phonon), phononT3, phononT3T5, phononNone); err != nil {
+		return nil, err
 	}
-	if o.phonon == "none" {
+	j.phononT5 = o.phonon == phononT3T5
+	if o.phonon == phononNone {
 		j.fixed[bulk.ParamPhononA] = true
 		j.start[bulk.ParamPhononA] = 0
 	}
@@ -391,7 +405,7 @@ func (j *bulkJob) candidate(spec string, latExtra []string, cw *bulk.CurieWeiss)
 // newForwardModel builds the forward model chosen by --engine.
 func newForwardModel(lattice string, withJ2, withDelta bool) (bulk.ForwardModel, error) {
 	o := &bulkOptions
-	if o.engine == "clusters" {
+	if o.engine == engineClusters {
 		return bulk.NewPeriodicClusterModel(lattice, bulk.PeriodicClusterOptions{Tolerance: o.sizeTol})
 	}
 	order := o.order

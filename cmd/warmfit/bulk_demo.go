@@ -95,7 +95,7 @@ func runBulkDemo(env *runEnv, dir string) error {
 	// the infinite lattice at lower orders than made them, which says
 	// where it stops being trusted (the 2 K sweep and the coldest chi and
 	// C points are left out, with warnings).
-	o.engine = "expansion"
+	o.engine = engineExpansion
 	// Orders below the defaults keep the demo to about a minute: the M(H)
 	// sweeps are evaluated on a trust grid of some 30 temperatures at each
 	// of 14 fields.

@@ -1,7 +1,6 @@
 package main
 
 import (
-	"bytes"
 	"encoding/json"
 	"fmt"
 	"os"
@@ -11,12 +10,6 @@ import (
 
 	"warmfit/fit/bulk"
 )
-
-func runCapture(args ...string) (code int, stdout, stderr string) {
-	var out, errb bytes.Buffer
-	code = run(&runEnv{Stdout: &out, Stderr: &errb, Stdin: strings.NewReader("")}, args)
-	return code, out.String(), errb.String()
-}
 
 func TestBulkUsageAndBadInput(t *testing.T) {
 	dir := t.TempDir()
@@ -36,12 +29,12 @@ func TestBulkUsageAndBadInput(t *testing.T) {
 		{[]string{"bulk", noErr}, exitFailure, "noerr.csv:1: column \"chi [emu/mol]\" has no standard-error column"},
 		{[]string{"bulk", filepath.Join(dir, "missing.csv")}, exitFailure, "missing.csv"},
 	} {
-		code, _, stderr := runCapture(tc.args...)
+		code, _, stderr := runCmd(tc.args...)
 		if code != tc.code || !strings.Contains(stderr, tc.want) {
 			t.Errorf("%v: exit %d, stderr %q; want exit %d and %q", tc.args, code, stderr, tc.code, tc.want)
 		}
 	}
-	code, out, _ := runCapture("help", "bulk")
+	code, out, _ := runCmd("help", "bulk")
 	if code != exitOK || !strings.Contains(out, "warmfit bulk --demo") || !strings.Contains(out, "CODATA 2018") {
 		t.Errorf("help bulk: exit %d\n%s", code, out)
 	}
@@ -83,7 +76,7 @@ func TestBulkFitsFileAndRefusesColdData(t *testing.T) {
 	}
 	warm := write("warm.csv", 30, 300)
 	curves := filepath.Join(dir, "curves.csv")
-	code, out, stderr := runCapture("bulk", "--order", "10", "--start", "J=3meV", "--fix", "chi0=0", "--fix", "rho=0", "--curves", curves, warm)
+	code, out, stderr := runCmd("bulk", "--order", "10", "--start", "J=3meV", "--fix", "chi0=0", "--fix", "rho=0", "--curves", curves, warm)
 	if code != exitOK {
 		t.Fatalf("exit %d: %s", code, stderr)
 	}
@@ -120,7 +113,7 @@ func TestBulkFitsFileAndRefusesColdData(t *testing.T) {
 		t.Errorf("curves sidecar: %v", meta)
 	}
 	cold := write("cold.csv", 1, 8)
-	code, _, stderr = runCapture("bulk", "--order", "10", "--start", "J=40K", cold)
+	code, _, stderr = runCmd("bulk", "--order", "10", "--start", "J=40K", cold)
 	if code != exitFailure || !strings.Contains(stderr, "lowest usable temperature") {
 		t.Errorf("cold data: exit %d, stderr %q", code, stderr)
 	}

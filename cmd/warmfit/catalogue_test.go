@@ -105,6 +105,8 @@ var catalogue = []catalogueCase{
 	{"model coefficient text", []string{"model", "--check", "DIR/coeff-text.json"}, exitFailure, []string{"coeff-text.json:", "coeff"}},
 	{"model missing", []string{"predict", "--model", "DIR/missing.json"}, exitFailure, []string{"missing.json"}},
 	{"model from /dev/zero", []string{"predict", "--model", "/dev/zero"}, exitFailure, []string{"/dev/zero", "MaxFileBytes"}},
+	{"data from /dev/zero", []string{"fit", "--model", "DIR/m.json", "--data", "/dev/zero"}, exitFailure, []string{"/dev/zero:1"}},
+	{"bulk curves from /dev/zero", []string{"bulk", "/dev/zero"}, exitFailure, []string{"/dev/zero", "MaxFileBytes"}},
 	// Graph files: exit 1, file and field named.
 	{"graph self bond", []string{"lattice", "--lattice", "DIR/graph-self.json"}, exitFailure, []string{"graph-self.json", "bonds[1]"}},
 	{"graph site range", []string{"lattice", "--lattice", "DIR/graph-range.json"}, exitFailure, []string{"graph-range.json", "bonds[0]"}},

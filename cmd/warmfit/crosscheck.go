@@ -28,7 +28,7 @@ type crosscheckFlags struct {
 	vectors    int
 	seed       uint64
 	workers    int
-	format     string
+	format     outputFormat
 	out        string
 	svg        string
 	csv        csvFlags
@@ -88,7 +88,7 @@ warmfit crosscheck --model device.json --shape 4x4 --max-patches 2 --beta 0.6`,
 			fs.IntVar(&o.vectors, "vectors", 0, "random vectors for thermal typicality (default 16)")
 			fs.Uint64Var(&o.seed, "seed", 1, "seed of the random vectors")
 			addWorkersFlag(fs, &o.workers)
-			fs.StringVar(&o.format, "format", "csv", "csv (the per-order table) or json (with every value)")
+			fs.StringVar((*string)(&o.format), "format", string(formatCSV), "csv (the per-order table) or json (with every value)")
 			addOutputFlag(fs, &o.out, "the result")
 			fs.StringVar(&o.svg, "svg", "", "draw the difference against the order into `FILE` (SVG)")
 			addCSVFlags(fs, &o.csv)
@@ -120,10 +120,10 @@ func runCrosscheck(env *runEnv, o *crosscheckFlags, args []string) error {
 	if o.maxPatches < 0 {
 		return usagef("--max-patches %d: must be positive", o.maxPatches)
 	}
-	if o.format != "csv" && o.format != "json" {
-		return usagef("--format %q: want csv or json", o.format)
+	if _, err := parseChoice("--format", string(o.format), formatCSV, formatJSON); err != nil {
+		return err
 	}
-	if o.format == "json" {
+	if o.format == formatJSON {
 		if err := o.csv.misuse("--format json"); err != nil {
 			return err
 		}
@@ -167,7 +167,7 @@ func runCrosscheck(env *runEnv, o *crosscheckFlags, args []string) error {
 	for _, v := range res.Verdict {
 		fmt.Fprintln(env.Stderr, v)
 	}
-	if o.format == "json" {
+	if o.format == formatJSON {
 		err = writeOutput(env, o.out, func(w io.Writer) error { return writeCrosscheckJSON(w, m, res, how) })
 	} else {
 		meta := crosscheckCSVMeta(res, how)

@@ -67,9 +67,9 @@ func (d *demoRun) fitData(step int, j fitJob) (*demoFit, error) {
 	if !res.Converged {
 		return nil, fmt.Errorf("the fit of %s did not converge: %s", j.data, res.Reason)
 	}
-	mode := "auto"
+	mode := fit.OrderAuto
 	if j.order > 0 {
-		mode = "fixed"
+		mode = fit.OrderFixed
 	}
 	rep := fit.NewReport(res, mode, summary.Kind, j.data, 1e-3)
 	cmp, err := fit.CompareTruth(res, j.truth.Terms, 1)

@@ -110,7 +110,7 @@ func (d *demoRun) stepDetails(step int) []string {
 		if f := d.array; f != nil {
 			r := f.Report
 			out = append(out, fmt.Sprintf("fitted.json: %d coefficients with error bars (%s), expansion order %d chosen %s, %s, %.1f s.",
-				r.Terms, r.ErrorMethod, r.Order, map[string]string{"auto": "by the fitter", "fixed": "by --order"}[r.OrderMode], newtonIterations(r.AllIterations, r.Iterations, r.Order), r.ElapsedSeconds))
+				r.Terms, r.ErrorMethod, r.Order, map[string]string{"auto": "by the fitter", "fixed": "by --order"}[string(r.OrderMode)], newtonIterations(r.AllIterations, r.Iterations, r.Order), r.ElapsedSeconds))
 		}
 	case 4:
 		if p := d.patch; p != nil && p.Fit != nil {

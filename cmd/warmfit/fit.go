@@ -19,9 +19,8 @@ import (
 	"warmfit/lattice/model"
 )
 
-// fitOptions holds the flags of "warmfit fit"; Flags resets them on every
-// invocation.
-var fitOptions struct {
+// fitFlags holds the flags of "warmfit fit".
+type fitFlags struct {
 	model    string
 	data     string
 	beta     betaFlag
@@ -29,11 +28,11 @@ var fitOptions struct {
 	oldTol   float64 // the retired --tol, answered with a pointer
 	budget   time.Duration
 	truth    string
-	format   string
+	format   outputFormat
 	out      string
 	tol      float64
 	maxIter  int
-	start    string
+	start    fitStart
 	fdr      float64
 	covDist  int
 	workers  int
@@ -42,6 +41,18 @@ var fitOptions struct {
 	scale    string
 	csv      csvFlags
 }
+
+// fitOptions holds the flags of "warmfit fit"; Flags resets them on every
+// invocation.
+var fitOptions fitFlags
+
+// fitStart is the value of fit --start: where the Newton iteration starts.
+type fitStart string
+
+const (
+	startFirstOrder fitStart = "first-order" // lambda = -e/beta
+	startTemplate   fitStart = "template"    // the template's coefficients
+)
 
 func init() {
 	register(&command{
@@ -61,13 +72,13 @@ func init() {
 			addBudgetFlag(fs, &o.budget)
 			fs.StringVar(&o.truth, "truth", "", "true model `FILE`: report z-scores and L2/Linf errors against it")
 			fs.StringVar(&o.scale, "scale-from", "", "without beta: fix the energy scale from `TERM=VALUE` (a calibrated coefficient, e.g. \"ZZ 0 1=0.25\") or beta=B; VALUE may be V+-ERR")
-			fs.StringVar(&o.format, "format", "json", "output format: json (fitted model with report) or csv")
+			fs.StringVar((*string)(&o.format), "format", string(formatJSON), "output format: json (fitted model with report) or csv")
 			addOutputFlag(fs, &o.out, "the fit")
 			fs.Float64Var(&o.tol, "gradient-tol", 1e-3, "stop when every gradient component is below this times its data noise")
 			fs.Float64Var(&o.oldTol, "tol", 0, "replaced by --gradient-tol")
 			_ = fs.MarkHidden("tol")
 			fs.IntVar(&o.maxIter, "max-iter", 50, "Newton iterations per order")
-			fs.StringVar(&o.start, "start", "first-order", "starting point: first-order (lambda = -e/beta) or template")
+			fs.StringVar((*string)(&o.start), "start", string(startFirstOrder), "starting point: first-order (lambda = -e/beta) or template")
 			fs.Float64Var(&o.fdr, "fdr", 0.05, "false-discovery rate of the significance flags (Benjamini-Hochberg)")
 			fs.IntVar(&o.covDist, "cov-distance", 1, "snapshots: keep covariances of terms within this graph distance")
 			addWorkersFlag(fs, &o.workers)
@@ -143,51 +154,11 @@ warmfit fit --model template.json --data shots.csv --order 5 --format csv -o fit
 
 func runFit(env *runEnv, args []string) error {
 	o := fitOptions
-	if len(args) > 0 {
-		return usagef("unexpected argument %q", args[0])
-	}
-	if o.model == "" {
-		return usagef("--model is required")
-	}
-	if o.data == "" {
-		return usagef("--data is required")
-	}
-	if o.format != "json" && o.format != "csv" {
-		return usagef("--format %q: want json or csv", o.format)
-	}
-	if o.format != "csv" {
-		if err := o.csv.misuse("the fitted model (JSON); add --format csv"); err != nil {
-			return err
-		}
+	calibration, err := checkFitFlags(&o, args)
+	if err != nil {
+		return err
 	}
 	order := o.order.L
-	if o.oldTol != 0 {
-		return usagef("fit --tol was renamed --gradient-tol (a stopping rule on the gradient); elsewhere --tol is a truncation error: write --gradient-tol %v", o.oldTol)
-	}
-	if err := checkBudgetFlag(o.budget); err != nil {
-		return err
-	}
-	if err := checkWorkersFlag(o.workers); err != nil {
-		return err
-	}
-	if o.covDist < 0 {
-		return usagef("--cov-distance %d: want a graph distance >= 0 (0 keeps variances only)", o.covDist)
-	}
-	if !(o.tol > 0) || o.maxIter < 1 || !(o.fdr > 0 && o.fdr < 1) {
-		return usagef("--gradient-tol and --fdr must be in range (tol > 0, 0 < fdr < 1) and --max-iter at least 1")
-	}
-	if o.start != "first-order" && o.start != "template" {
-		return usagef("--start %q: want first-order or template", o.start)
-	}
-	var calibration *fit.Calibration
-	if o.scale != "" {
-		c, err := parseScaleFrom(o.scale)
-		if err != nil {
-			return err
-		}
-		calibration = &c
-	}
-
 	if err := checkOutputs(withCSV("-o", o.out, o.csv), o.model, o.data, o.truth); err != nil {
 		return err
 	}
@@ -195,56 +166,19 @@ func runFit(env *runEnv, args []string) error {
 	if err != nil {
 		return err
 	}
-	beta := tmpl.Beta
-	betaSource := "from " + o.model
-	if fittedWithoutScale(tmpl) && !o.beta.set {
-		// Its beta = 1 is a convention: the temperature is still unknown.
-		beta = 0
-		fmt.Fprintf(env.Stderr, "fit: %s holds a fit at unknown temperature (beta*lambda); its beta = 1 is not used\n", o.model)
-	}
-	if o.beta.set {
-		beta, betaSource = o.beta.value, "from --beta"
-	}
-	if calibration != nil {
-		c, err := resolveScaleGroup(*calibration, tmpl.Terms, o.scale)
-		if err != nil {
-			return err
-		}
-		calibration = &c
-	}
-	switch mo := fitMethodOptions; {
-	case calibration != nil && mo.method == "stationary":
-		return usagef("--scale-from fixes the scale of the expansion fit at unknown temperature; --method stationary takes its known coefficients from --calibrate NAME=VALUE")
-	case mo.calibrate != "" && mo.method == "expansion":
-		return usagef("--calibrate is for --method stationary (or auto); the expansion fit at unknown temperature fixes its energy scale with --scale-from TERM=VALUE (one calibrated coefficient) or --scale-from beta=B")
-	}
-	if calibration != nil && beta > 0 {
-		return usagef("--scale-from fixes the energy scale of a fit without beta, but beta is %s (%s): drop --scale-from, or fit at unknown temperature (no --beta, no beta in the template)", fmtFloat(beta), betaSource)
+	beta, betaSource := fitBeta(env, &o, tmpl)
+	if calibration, err = checkFitScale(&o, tmpl, calibration, beta, betaSource); err != nil {
+		return err
 	}
 	if done, err := fitMethodFirst(env, tmpl, beta); done {
 		return err
 	}
-	var truth *model.Model
-	if o.truth != "" {
-		if truth, err = model.ReadFile(o.truth); err != nil {
-			return err
-		}
-		if !truth.Lattice.SameGraph(tmpl.Lattice) {
-			return usagef("--truth %s is a model on %s (%d sites), but the template %s is on %s (%d sites): their terms cannot be compared; give the true model of this lattice",
-				o.truth, truth.Lattice.Spec, truth.Lattice.NumSites(), o.model, tmpl.Lattice.Spec, tmpl.Lattice.NumSites())
-		}
+	truth, err := readFitTruth(&o, tmpl)
+	if err != nil {
+		return err
 	}
-	if exp, err := cluster.NewExpansion(tmpl.Lattice, tmpl.Terms); err == nil {
-		policy := cluster.NewOrderPolicy(tmpl.Lattice, tmpl.Terms)
-		if order > 0 {
-			e := expansionEstimate(exp, tmpl.Lattice.NumSites(), order, "--order")
-			e.What = "one evaluation of the " + e.What + " (a fit makes several)"
-			if err := admit(env.Stderr, "fit", e, o.budget); err != nil {
-				return err
-			}
-		} else if err := admitExpansion(env, "fit", exp, tmpl.Lattice.NumSites(), 0, policy, o.budget); err != nil {
-			return err
-		}
+	if err := admitFit(env, &o, tmpl, order); err != nil {
+		return err
 	}
 
 	est, dataSummary, err := fit.LoadEstimates(o.data, tmpl.Lattice, tmpl.Terms, fit.CovarianceOptions{Distance: o.covDist})
@@ -252,36 +186,8 @@ func runFit(env *runEnv, args []string) error {
 		return err
 	}
 	kind := dataSummary.Kind
-
-	opt := fit.Options{
-		Order: order, MaxOrder: o.maxOrder, Budget: o.budget, Tol: o.tol, MaxIter: o.maxIter,
-		FDR: o.fdr, Workers: o.workers,
-	}
-	if o.start == "template" {
-		opt.Start = make([]float64, len(tmpl.Terms))
-		for k, t := range tmpl.Terms {
-			opt.Start[k] = t.Coeff
-		}
-	}
-	opt.Log = func(format string, args ...any) {
-		line := fmt.Sprintf(format, args...)
-		if o.verbose || !strings.Contains(line, "iteration") {
-			fmt.Fprintln(env.Stderr, "fit: "+line)
-		}
-	}
-	bar := newProgressBar(env, "expanding")
-	opt.Progress = bar.Update
-
-	n := tmpl.Lattice.NumSites()
-	fmt.Fprintf(env.Stderr, "fit: %s, %d sites, %d terms; data: %s %s\n", tmpl.Lattice.Spec.Kind, n, len(tmpl.Terms), kind, o.data)
-	if beta > 0 {
-		fmt.Fprintf(env.Stderr, "fit: beta %s (%s)\n", fmtFloat(beta), betaSource)
-	} else {
-		fmt.Fprintln(env.Stderr, "fit: beta unknown (neither --beta nor the template gives one): fitting the products beta*lambda, written with beta = 1")
-		if calibration == nil {
-			fmt.Fprintln(env.Stderr, "fit: every coefficient below is beta*lambda; --scale-from TERM=VALUE (one calibrated coefficient) or --scale-from beta=B turns them into lambda")
-		}
-	}
+	opt, bar := fitRunOptions(env, &o, tmpl, order)
+	announceFit(env, &o, tmpl, kind, beta, betaSource, calibration)
 	res, err := fit.Fit(&fit.Problem{Lattice: tmpl.Lattice, Terms: tmpl.Terms, Data: est, Beta: beta}, opt)
 	bar.Done()
 	if done, ferr := fitMethodAfter(env, tmpl, beta, res, err); done {
@@ -295,26 +201,203 @@ func runFit(env *runEnv, args []string) error {
 			return err
 		}
 	}
-	mode := "auto"
-	if order > 0 {
-		mode = "fixed"
-	}
-	rep := fit.NewReport(res, mode, kind, o.data, o.tol)
-	var cmp *fit.TruthComparison
-	if truth != nil {
-		scale, why := truthScale(res, truth, o.truth)
-		if why != "" {
-			fmt.Fprintf(env.Stderr, "fit: %s\n", why)
-			rep.Notes = append(rep.Notes, why)
-		}
-		if cmp, err = fit.CompareTruth(res, truth.Terms, scale); err != nil {
-			return err
-		}
-		rep.SetTruth(cmp, res, o.truth)
-		betaAgainstTruth(env.Stderr, rep, res, truth)
+	rep, cmp, err := fitReport(env, &o, res, order, kind, truth)
+	if err != nil {
+		return err
 	}
 	fitSummary(env.Stderr, res, rep, cmp)
+	return writeFitResult(env, &o, tmpl, res, rep, cmp)
+}
 
+// checkFitFlags refuses flag values out of range, before any file is
+// read, and parses --scale-from (nil without it).
+func checkFitFlags(o *fitFlags, args []string) (*fit.Calibration, error) {
+	if len(args) > 0 {
+		return nil, usagef("unexpected argument %q", args[0])
+	}
+	if o.model == "" {
+		return nil, usagef("--model is required")
+	}
+	if o.data == "" {
+		return nil, usagef("--data is required")
+	}
+	if _, err := parseChoice("--format", string(o.format), formatJSON, formatCSV); err != nil {
+		return nil, err
+	}
+	if o.format != formatCSV {
+		if err := o.csv.misuse("the fitted model (JSON); add --format csv"); err != nil {
+			return nil, err
+		}
+	}
+	if o.oldTol != 0 {
+		return nil, usagef("fit --tol was renamed --gradient-tol (a stopping rule on the gradient); elsewhere --tol is a truncation error: write --gradient-tol %v", o.oldTol)
+	}
+	if err := checkBudgetFlag(o.budget); err != nil {
+		return nil, err
+	}
+	if err := checkWorkersFlag(o.workers); err != nil {
+		return nil, err
+	}
+	if o.covDist < 0 {
+		return nil, usagef("--cov-distance %d: want a graph distance >= 0 (0 keeps variances only)", o.covDist)
+	}
+	if !(o.tol > 0) || o.maxIter < 1 || !(o.fdr > 0 && o.fdr < 1) {
+		return nil, usagef("--gradient-tol and --fdr must be in range (tol > 0, 0 < fdr < 1) and --max-iter at least 1")
+	}
+	if _, err := parseChoice("--start", string(o.start), startFirstOrder, startTemplate); err != nil {
+		return nil, err
+	}
+	if o.scale == "" {
+		return nil, nil
+	}
+	c, err := parseScaleFrom(o.scale)
+	if err != nil {
+		return nil, err
+	}
+	return &c, nil
+}
+
+// fitBeta is the inverse temperature of the fit and where it comes from:
+// --beta, else the template's (0, unknown, for a template that is itself
+// a fit at unknown temperature).
+func fitBeta(env *runEnv, o *fitFlags, tmpl *model.Model) (beta float64, betaSource string) {
+	beta = tmpl.Beta
+	betaSource = "from " + o.model
+	if fittedWithoutScale(tmpl) && !o.beta.set {
+		// Its beta = 1 is a convention: the temperature is still unknown.
+		beta = 0
+		fmt.Fprintf(env.Stderr, "fit: %s holds a fit at unknown temperature (beta*lambda); its beta = 1 is not used\n", o.model)
+	}
+	if o.beta.set {
+		beta, betaSource = o.beta.value, "from --beta"
+	}
+	return beta, betaSource
+}
+
+// checkFitScale resolves the calibrated term of --scale-from against the
+// template and refuses --scale-from and --calibrate where they do not
+// apply.
+func checkFitScale(o *fitFlags, tmpl *model.Model, calibration *fit.Calibration, beta float64, betaSource string) (*fit.Calibration, error) {
+	if calibration != nil {
+		c, err := resolveScaleGroup(*calibration, tmpl.Terms, o.scale)
+		if err != nil {
+			return nil, err
+		}
+		calibration = &c
+	}
+	switch mo := fitMethodOptions; {
+	case calibration != nil && mo.method == "stationary":
+		return nil, usagef("--scale-from fixes the scale of the expansion fit at unknown temperature; --method stationary takes its known coefficients from --calibrate NAME=VALUE")
+	case mo.calibrate != "" && mo.method == "expansion":
+		return nil, usagef("--calibrate is for --method stationary (or auto); the expansion fit at unknown temperature fixes its energy scale with --scale-from TERM=VALUE (one calibrated coefficient) or --scale-from beta=B")
+	}
+	if calibration != nil && beta > 0 {
+		return nil, usagef("--scale-from fixes the energy scale of a fit without beta, but beta is %s (%s): drop --scale-from, or fit at unknown temperature (no --beta, no beta in the template)", fmtFloat(beta), betaSource)
+	}
+	return calibration, nil
+}
+
+// readFitTruth reads --truth (nil without it) and refuses a model on
+// another lattice than the template's.
+func readFitTruth(o *fitFlags, tmpl *model.Model) (*model.Model, error) {
+	if o.truth == "" {
+		return nil, nil
+	}
+	truth, err := model.ReadFile(o.truth)
+	if err != nil {
+		return nil, err
+	}
+	if !truth.Lattice.SameGraph(tmpl.Lattice) {
+		return nil, usagef("--truth %s is a model on %s (%d sites), but the template %s is on %s (%d sites): their terms cannot be compared; give the true model of this lattice",
+			o.truth, truth.Lattice.Spec, truth.Lattice.NumSites(), o.model, tmpl.Lattice.Spec, tmpl.Lattice.NumSites())
+	}
+	return truth, nil
+}
+
+// admitFit prints the estimate of the expansion's time and memory and
+// refuses a fit past the machine or --budget (order 0: --order auto).
+func admitFit(env *runEnv, o *fitFlags, tmpl *model.Model, order int) error {
+	exp, err := cluster.NewExpansion(tmpl.Lattice, tmpl.Terms)
+	if err != nil {
+		return nil // the fit reports it
+	}
+	policy := cluster.NewOrderPolicy(tmpl.Lattice, tmpl.Terms)
+	if order > 0 {
+		e := expansionEstimate(exp, tmpl.Lattice.NumSites(), order, "--order")
+		e.What = "one evaluation of the " + e.What + " (a fit makes several)"
+		return admit(env.Stderr, "fit", e, o.budget)
+	}
+	return admitExpansion(env, "fit", exp, tmpl.Lattice.NumSites(), 0, policy, o.budget)
+}
+
+// fitRunOptions are the fitter's options from the flags, with the log
+// and the progress bar on stderr.
+func fitRunOptions(env *runEnv, o *fitFlags, tmpl *model.Model, order int) (fit.Options, *progressBar) {
+	opt := fit.Options{
+		Order: order, MaxOrder: o.maxOrder, Budget: o.budget, Tol: o.tol, MaxIter: o.maxIter,
+		FDR: o.fdr, Workers: o.workers,
+	}
+	if o.start == startTemplate {
+		opt.Start = make([]float64, len(tmpl.Terms))
+		for k, t := range tmpl.Terms {
+			opt.Start[k] = t.Coeff
+		}
+	}
+	verbose := o.verbose
+	opt.Log = func(format string, args ...any) {
+		line := fmt.Sprintf(format, args...)
+		if verbose || !strings.Contains(line, "iteration") {
+			fmt.Fprintln(env.Stderr, "fit: "+line)
+		}
+	}
+	bar := newProgressBar(env, "expanding")
+	opt.Progress = bar.Update
+	return opt, bar
+}
+
+// announceFit says on stderr what is fitted to what, and at which beta.
+func announceFit(env *runEnv, o *fitFlags, tmpl *model.Model, kind fit.DataKind, beta float64, betaSource string, calibration *fit.Calibration) {
+	n := tmpl.Lattice.NumSites()
+	fmt.Fprintf(env.Stderr, "fit: %s, %d sites, %d terms; data: %s %s\n", tmpl.Lattice.Spec.Kind, n, len(tmpl.Terms), kind, o.data)
+	if beta > 0 {
+		fmt.Fprintf(env.Stderr, "fit: beta %s (%s)\n", fmtFloat(beta), betaSource)
+	} else {
+		fmt.Fprintln(env.Stderr, "fit: beta unknown (neither --beta nor the template gives one): fitting the products beta*lambda, written with beta = 1")
+		if calibration == nil {
+			fmt.Fprintln(env.Stderr, "fit: every coefficient below is beta*lambda; --scale-from TERM=VALUE (one calibrated coefficient) or --scale-from beta=B turns them into lambda")
+		}
+	}
+}
+
+// fitReport is the report of the fit and, with a truth (non-nil), the
+// comparison against it.
+func fitReport(env *runEnv, o *fitFlags, res *fit.Result, order int, kind fit.DataKind, truth *model.Model) (*fit.Report, *fit.TruthComparison, error) {
+	mode := fit.OrderAuto
+	if order > 0 {
+		mode = fit.OrderFixed
+	}
+	rep := fit.NewReport(res, mode, kind, o.data, o.tol)
+	if truth == nil {
+		return rep, nil, nil
+	}
+	scale, why := truthScale(res, truth, o.truth)
+	if why != "" {
+		fmt.Fprintf(env.Stderr, "fit: %s\n", why)
+		rep.Notes = append(rep.Notes, why)
+	}
+	cmp, err := fit.CompareTruth(res, truth.Terms, scale)
+	if err != nil {
+		return nil, nil, err
+	}
+	rep.SetTruth(cmp, res, o.truth)
+	betaAgainstTruth(env.Stderr, rep, res, truth)
+	return rep, cmp, nil
+}
+
+// writeFitResult writes a converged fit to -o as JSON or CSV; an
+// unconverged one leaves -o untouched, goes to OUT.unconverged.json and
+// is an error.
+func writeFitResult(env *runEnv, o *fitFlags, tmpl *model.Model, res *fit.Result, rep *fit.Report, cmp *fit.TruthComparison) error {
 	if !res.Converged {
 		path := fitUnconvergedPath(o.out)
 		werr := writeFileAtomic(path, func(w io.Writer) error { return fitWriteModel(w, tmpl, res, rep) })
@@ -323,7 +406,7 @@ func runFit(env *runEnv, args []string) error {
 		}
 		return fmt.Errorf("the fit did not converge: %s; the last iterate is in %s (not an estimate)", res.Reason, path)
 	}
-	if o.format == "csv" {
+	if o.format == formatCSV {
 		meta, err := fitCSVMeta(res, rep, o.model, o.data)
 		if err != nil {
 			return err

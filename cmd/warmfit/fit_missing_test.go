@@ -1,19 +1,13 @@
 package main
 
 import (
-	"bytes"
-	"fmt"
 	"math"
 	"math/rand/v2"
-	"os"
 	"path/filepath"
 	"strings"
 	"testing"
 
-	"warmfit/cluster"
-	"warmfit/fit"
 	"warmfit/lattice/model"
-	"warmfit/validate"
 )
 
 // groupedTruth is the uniform transverse-field Ising chain of the test
@@ -43,34 +37,7 @@ func groupedTruth(t *testing.T, ungrouped string) *model.Model {
 // whose keys are in skip.
 func writeExactTableWithout(t *testing.T, m *model.Model, skip []string, path string) {
 	t.Helper()
-	th, err := validate.ExactThermal(m.Lattice.NumSites(), m.Terms, m.Beta)
-	if err != nil {
-		t.Fatal(err)
-	}
-	tab := &fit.Table{}
-	for _, term := range m.Terms {
-		if containsString(skip, term.Key()) {
-			continue
-		}
-		op, _ := cluster.ParsePauli(term.Pauli, term.Sites)
-		tab.Rows = append(tab.Rows, fit.Row{Pauli: term.Pauli, Sites: term.Sites, Value: th.Expect(op)})
-	}
-	var buf bytes.Buffer
-	if err := fit.WriteTable(&buf, tab); err != nil {
-		t.Fatal(err)
-	}
-	if err := os.WriteFile(path, buf.Bytes(), 0o644); err != nil {
-		t.Fatal(err)
-	}
-}
-
-func containsString(list []string, s string) bool {
-	for _, x := range list {
-		if x == s {
-			return true
-		}
-	}
-	return false
+	writeExactTableSkipping(t, m, 0, skip, path)
 }
 
 // A table without some grouped terms fits through their groups: exact
@@ -136,26 +103,8 @@ func TestFitCommandMissingGroupedTerms(t *testing.T) {
 func TestFitCommandSnapshotsMissingGroupedTerms(t *testing.T) {
 	dir := t.TempDir()
 	truth := groupedTruth(t, "")
-	sampler, err := validate.NewSampler(4, truth.Terms, truth.Beta)
-	if err != nil {
-		t.Fatal(err)
-	}
-	rng := rand.New(rand.NewPCG(5, 6))
-	var buf bytes.Buffer
-	buf.WriteString("basis,outcome,count\n")
-	for _, b := range []string{"ZZZZ", "XXZZ"} {
-		counts, err := sampler.Sample(b, 40000, rng)
-		if err != nil {
-			t.Fatal(err)
-		}
-		for _, c := range counts {
-			fmt.Fprintf(&buf, "%s,%s,%d\n", b, c.Outcome, c.Count)
-		}
-	}
 	data := filepath.Join(dir, "shots.csv")
-	if err := os.WriteFile(data, buf.Bytes(), 0o644); err != nil {
-		t.Fatal(err)
-	}
+	writeExactShots(t, data, truth, []string{"ZZZZ", "XXZZ"}, 40000, rand.NewPCG(5, 6))
 	tmplPath := filepath.Join(dir, "template.json")
 	writeModelFile(t, truth, tmplPath)
 	out := filepath.Join(dir, "fitted.json")

@@ -79,11 +79,7 @@ func TestFitScaleFromExact(t *testing.T) {
 // gives the pull of beta.
 func TestFitScaleFromNoisy(t *testing.T) {
 	dir := t.TempDir()
-	truth := fitTruth(t)
-	data := filepath.Join(dir, "e.csv")
-	writeExactTable(t, truth, 2e-3, data)
-	truthPath := filepath.Join(dir, "truth.json")
-	writeModelFile(t, truth, truthPath)
+	_, data, truthPath := noisyChainFiles(t, dir)
 	tmpl := unknownBetaTemplate(t, dir)
 	out := filepath.Join(dir, "scaled.json")
 	code, _, errs := runCmd("fit", "--model", tmpl, "--data", data, "--order", "4", "--scale-from", "ZZ 0 1=0.9", "--truth", truthPath, "-o", out)
@@ -111,11 +107,7 @@ func TestFitScaleFromNoisy(t *testing.T) {
 // beta; plan, sweep and model --check warn, --beta on the model is refused.
 func TestFitUnknownBetaLabelled(t *testing.T) {
 	dir := t.TempDir()
-	truth := fitTruth(t)
-	data := filepath.Join(dir, "e.csv")
-	writeExactTable(t, truth, 2e-3, data)
-	truthPath := filepath.Join(dir, "truth.json")
-	writeModelFile(t, truth, truthPath)
+	_, data, truthPath := noisyChainFiles(t, dir)
 	tmpl := unknownBetaTemplate(t, dir)
 	csvOut := filepath.Join(dir, "un.csv")
 	code, _, errs := runCmd("fit", "--model", tmpl, "--data", data, "--order", "4", "--truth", truthPath, "--format", "csv", "-o", csvOut)

@@ -167,6 +167,9 @@ func runFitStationary(env *runEnv, tmpl *model.Model, beta float64) error {
 	if d.Misfit {
 		warnings = append(warnings, fmt.Sprintf("constraint chi2 %s far above its degrees of freedom: the data fit no stationary state of these terms well (a term missing from the template, systematic errors, or a non-stationary state)", fmtG3(d.Chi2)))
 	}
+	if d.Weak {
+		warnings = append(warnings, fmt.Sprintf("weak signal: a resolved direction has a standard error of %s of the unit direction; error bars may be too small (seeded repetitions at beta x max|coeff| = 0.1 gave pull rms 2.2)", fmtG3(maxResolvedStdErr(d))))
+	}
 	if d.Dropped > 0 {
 		warnings = append(warnings, fmt.Sprintf("%d of %d constraints left out: their correlators have no data (measure in the bases of --bases covering:3)", d.Dropped, d.Dropped+d.Rows))
 	}
@@ -363,4 +366,16 @@ func stationaryCompareTruth(w io.Writer, tmpl, truth *model.Model, res *stationa
 	}
 	fmt.Fprintf(w, "fit: against the truth: largest |error| %s, rms z-score %s over %d coefficients\n", fmtG3(worst), fmtG3(math.Sqrt(z2/float64(max(nz, 1)))), nz)
 	return nil
+}
+
+// maxResolvedStdErr is the largest standard error of a direction the
+// data resolve.
+func maxResolvedStdErr(d *stationary.Direction) float64 {
+	var m float64
+	for _, se := range d.StdErr {
+		if !math.IsInf(se, 0) && se <= 0.3 {
+			m = max(m, se)
+		}
+	}
+	return m
 }

@@ -8,6 +8,7 @@ import (
 	"math/rand/v2"
 	"os"
 	"path/filepath"
+	"slices"
 	"strings"
 	"testing"
 
@@ -44,6 +45,13 @@ func fitTruth(t *testing.T) *model.Model {
 // standard error sigma, as an expectation table.
 func writeExactTable(t *testing.T, m *model.Model, sigma float64, path string) {
 	t.Helper()
+	writeExactTableSkipping(t, m, sigma, nil, path)
+}
+
+// writeExactTableSkipping is writeExactTable without the rows of the
+// terms whose keys are in skip.
+func writeExactTableSkipping(t *testing.T, m *model.Model, sigma float64, skip []string, path string) {
+	t.Helper()
 	th, err := validate.ExactThermal(m.Lattice.NumSites(), m.Terms, m.Beta)
 	if err != nil {
 		t.Fatal(err)
@@ -51,6 +59,9 @@ func writeExactTable(t *testing.T, m *model.Model, sigma float64, path string) {
 	rng := rand.New(rand.NewPCG(1, 2))
 	tab := &fit.Table{}
 	for _, term := range m.Terms {
+		if slices.Contains(skip, term.Key()) {
+			continue
+		}
 		op, _ := cluster.ParsePauli(term.Pauli, term.Sites)
 		row := fit.Row{Pauli: term.Pauli, Sites: term.Sites, Value: th.Expect(op)}
 		if sigma > 0 {
@@ -66,6 +77,18 @@ func writeExactTable(t *testing.T, m *model.Model, sigma float64, path string) {
 	if err := os.WriteFile(path, buf.Bytes(), 0o644); err != nil {
 		t.Fatal(err)
 	}
+}
+
+// noisyChainFiles writes, in dir, the truth (fitTruth) as truth.json and
+// its exact expectations with noise of standard error 2e-3 as e.csv.
+func noisyChainFiles(t *testing.T, dir string) (truth *model.Model, data, truthPath string) {
+	t.Helper()
+	truth = fitTruth(t)
+	data = filepath.Join(dir, "e.csv")
+	writeExactTable(t, truth, 2e-3, data)
+	truthPath = filepath.Join(dir, "truth.json")
+	writeModelFile(t, truth, truthPath)
+	return truth, data, truthPath
 }
 
 func writeModelFile(t *testing.T, m *model.Model, path string) {
@@ -135,26 +158,8 @@ func TestFitCommandExactRoundTrip(t *testing.T) {
 func TestFitCommandSnapshotsUnknownBeta(t *testing.T) {
 	dir := t.TempDir()
 	truth := fitTruth(t)
-	sampler, err := validate.NewSampler(4, truth.Terms, truth.Beta)
-	if err != nil {
-		t.Fatal(err)
-	}
-	rng := rand.New(rand.NewPCG(3, 4))
-	var buf bytes.Buffer
-	buf.WriteString("basis,outcome,count\n")
-	for _, b := range []string{"ZZZZ", "XXXX"} {
-		counts, err := sampler.Sample(b, 20000, rng)
-		if err != nil {
-			t.Fatal(err)
-		}
-		for _, c := range counts {
-			fmt.Fprintf(&buf, "%s,%s,%d\n", b, c.Outcome, c.Count)
-		}
-	}
 	data := filepath.Join(dir, "shots.csv")
-	if err := os.WriteFile(data, buf.Bytes(), 0o644); err != nil {
-		t.Fatal(err)
-	}
+	writeExactShots(t, data, truth, []string{"ZZZZ", "XXXX"}, 20000, rand.NewPCG(3, 4))
 	tmpl, err := model.ReadFile(fitTemplate)
 	if err != nil {
 		t.Fatal(err)
@@ -302,5 +307,30 @@ func TestPlanCommand(t *testing.T) {
 		if code, _, errs := runCmd(args...); code != exitUsage {
 			t.Errorf("%v: exit %d (%s), want 2", args, code, errs)
 		}
+	}
+}
+
+// writeExactShots writes a snapshot file of shots per basis drawn from
+// the exact Gibbs state of the four-site truth (validate.Sampler).
+func writeExactShots(t *testing.T, path string, truth *model.Model, bases []string, shots int, src rand.Source) {
+	t.Helper()
+	sampler, err := validate.NewSampler(4, truth.Terms, truth.Beta)
+	if err != nil {
+		t.Fatal(err)
+	}
+	rng := rand.New(src)
+	var buf bytes.Buffer
+	buf.WriteString("basis,outcome,count\n")
+	for _, b := range bases {
+		counts, err := sampler.Sample(b, shots, rng)
+		if err != nil {
+			t.Fatal(err)
+		}
+		for _, c := range counts {
+			fmt.Fprintf(&buf, "%s,%s,%d\n", b, c.Outcome, c.Count)
+		}
+	}
+	if err := os.WriteFile(path, buf.Bytes(), 0o644); err != nil {
+		t.Fatal(err)
 	}
 }

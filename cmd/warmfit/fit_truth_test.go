@@ -16,11 +16,7 @@ import (
 // their definition z = (coeff - true)/stderr (common practice).
 func TestFitTruthColumnsAndPulls(t *testing.T) {
 	dir := t.TempDir()
-	truth := fitTruth(t)
-	data := filepath.Join(dir, "e.csv")
-	writeExactTable(t, truth, 2e-3, data)
-	truthPath := filepath.Join(dir, "truth.json")
-	writeModelFile(t, truth, truthPath)
+	truth, data, truthPath := noisyChainFiles(t, dir)
 
 	csvPath := filepath.Join(dir, "fit.csv")
 	if code, _, errs := runCmd("fit", "--model", fitTemplate, "--data", data, "--order", "4", "--truth", truthPath, "--format", "csv", "-o", csvPath); code != exitOK {

@@ -20,7 +20,7 @@ var latticeOptions struct {
 	lattice     string
 	shells      int
 	clusters    int
-	format      string
+	format      outputFormat
 	svg         string
 	out         string
 	maxClusters int64
@@ -78,7 +78,7 @@ warmfit lattice --lattice testdata/graphs/house.json --clusters 5`,
 			fs.StringVar(&o.lattice, "lattice", "", latticeFlagUsage)
 			fs.IntVar(&o.shells, "shells", 0, "neighbour shells in the interaction graph, 1 or 2 (default: the lattice's own)")
 			fs.IntVar(&o.clusters, "clusters", 0, "print the number of connected clusters of each size 1..`L` as CSV")
-			fs.StringVar(&o.format, "format", "text", "output format of the description: text or json")
+			fs.StringVar((*string)(&o.format), "format", string(formatText), "output format of the description: text or json")
 			fs.StringVar(&o.svg, "svg", "", "draw the lattice into `FILE` (SVG)")
 			addOutputFlag(fs, &o.out, "the output")
 			fs.Int64Var(&o.maxClusters, "max-clusters", 1e11, "refuse --clusters when the estimated count exceeds this (0: no limit)")
@@ -103,10 +103,10 @@ func runLattice(env *runEnv, args []string) error {
 	if o.clusters < 0 || (o.clusters == 0 && o.flags.Changed("clusters")) {
 		return usagef("--clusters %d: the cluster size bound must be at least 1", o.clusters)
 	}
-	if o.format != "text" && o.format != "json" {
-		return usagef("--format %q: want text or json", o.format)
+	if _, err := parseChoice("--format", string(o.format), formatText, formatJSON); err != nil {
+		return err
 	}
-	if o.clusters > 0 && o.format == "json" {
+	if o.clusters > 0 && o.format == formatJSON {
 		return usagef("--clusters prints CSV and does not combine with --format json")
 	}
 	if o.clusters == 0 {
@@ -162,7 +162,7 @@ func runLattice(env *runEnv, args []string) error {
 		meta.set("max_size", o.clusters)
 		meta.set("shells", l.Spec.Shells)
 		return writeCSVResult(env, o.out, o.csv, meta, func(w io.Writer) error { return writeClusterCSV(w, counts) })
-	case o.format == "json":
+	case o.format == formatJSON:
 		return writeOutput(env, o.out, l.WriteJSON)
 	default:
 		return writeOutput(env, o.out, func(w io.Writer) error { return writeLatticeSummary(w, o.lattice, l) })

@@ -10,10 +10,7 @@ import (
 )
 
 func runLatticeCmd(args ...string) (code int, stdout, stderr string) {
-	var out, errb bytes.Buffer
-	env := &runEnv{Stdout: &out, Stderr: &errb, Stdin: strings.NewReader("")}
-	code = run(env, append([]string{"lattice"}, args...))
-	return code, out.String(), errb.String()
+	return runCmd(append([]string{"lattice"}, args...)...)
 }
 
 func TestLatticeClustersCSV(t *testing.T) {

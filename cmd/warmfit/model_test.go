@@ -1,7 +1,6 @@
 package main
 
 import (
-	"bytes"
 	"os"
 	"path/filepath"
 	"strings"
@@ -11,12 +10,6 @@ import (
 )
 
 // runModelCmd runs warmfit with args and returns exit code, stdout, stderr.
-func runModelCmd(args ...string) (int, string, string) {
-	var out, errb bytes.Buffer
-	code := run(&runEnv{Stdout: &out, Stderr: &errb, Stdin: strings.NewReader("")}, args)
-	return code, out.String(), errb.String()
-}
-
 func parseModelOutput(t *testing.T, out string) *model.Model {
 	t.Helper()
 	m, err := model.Parse(strings.NewReader(out), "stdout")
@@ -26,11 +19,30 @@ func parseModelOutput(t *testing.T, out string) *model.Model {
 	return m
 }
 
+// modelTermCount is a "warmfit model" command line (without "model") and
+// the number of terms its model must have.
+type modelTermCount struct {
+	args  []string
+	terms int // closed-form count
+}
+
+// checkModelTermCounts runs each command line and checks its model's
+// number of terms.
+func checkModelTermCounts(t *testing.T, tests []modelTermCount) {
+	t.Helper()
+	for _, tc := range tests {
+		code, out, errs := runCmd(append([]string{"model"}, tc.args...)...)
+		if code != exitOK {
+			t.Fatalf("%v: exit %d: %s", tc.args, code, errs)
+		}
+		if m := parseModelOutput(t, out); len(m.Terms) != tc.terms {
+			t.Errorf("%v: %d terms, want %d", tc.args, len(m.Terms), tc.terms)
+		}
+	}
+}
+
 func TestModelCommandPresets(t *testing.T) {
-	tests := []struct {
-		args  []string
-		terms int // closed-form count
-	}{
+	tests := []modelTermCount{
 		// open 5-chain: 4 ZZ + 5 X (hz = 0 is left out)
 		{[]string{"--lattice", "chain:5", "--preset", "tfim"}, 9},
 		// hz set: + 5 Z
@@ -40,15 +52,7 @@ func TestModelCommandPresets(t *testing.T) {
 		// all2local on open 3x3: 9*12 + 3*9
 		{[]string{"--lattice", "square:3x3", "--preset", "all2local"}, 135},
 	}
-	for _, tc := range tests {
-		code, out, errs := runModelCmd(append([]string{"model"}, tc.args...)...)
-		if code != exitOK {
-			t.Fatalf("%v: exit %d: %s", tc.args, code, errs)
-		}
-		if m := parseModelOutput(t, out); len(m.Terms) != tc.terms {
-			t.Errorf("%v: %d terms, want %d", tc.args, len(m.Terms), tc.terms)
-		}
-	}
+	checkModelTermCounts(t, tests)
 }
 
 func TestModelCommandLatticeFiles(t *testing.T) {
@@ -60,10 +64,7 @@ func TestModelCommandLatticeFiles(t *testing.T) {
 		t.Fatal(err)
 	}
 	sample := filepath.Join("..", "..", "testdata", "models", "square3x3_tfim.json")
-	tests := []struct {
-		args  []string
-		terms int
-	}{
+	tests := []modelTermCount{
 		{[]string{"--lattice", graph, "--preset", "j1j2", "--shells", "2"}, 3 * (3 + 2)},
 		{[]string{"--lattice", graph, "--preset", "tfim"}, 3 + 4},
 		// --shells 1 takes the diagonals of a two-shell specification away:
@@ -72,27 +73,19 @@ func TestModelCommandLatticeFiles(t *testing.T) {
 		// The lattice of a model file: open 3x3 square, 12 bonds x 3 + 0 fields.
 		{[]string{"--lattice", sample, "--preset", "heisenberg"}, 36},
 	}
-	for _, tc := range tests {
-		code, out, errs := runModelCmd(append([]string{"model"}, tc.args...)...)
-		if code != exitOK {
-			t.Fatalf("%v: exit %d: %s", tc.args, code, errs)
-		}
-		if m := parseModelOutput(t, out); len(m.Terms) != tc.terms {
-			t.Errorf("%v: %d terms, want %d", tc.args, len(m.Terms), tc.terms)
-		}
-	}
+	checkModelTermCounts(t, tests)
 	// A broken lattice file is a failure (exit 1), not a usage error.
 	bad := filepath.Join(dir, "bad.json")
 	if err := os.WriteFile(bad, []byte(`{"kind": "graph", "sites": [[0, 0]], "bonds": [[0, 5]]}`), 0o644); err != nil {
 		t.Fatal(err)
 	}
-	if code, _, errs := runModelCmd("model", "--lattice", bad, "--preset", "tfim"); code != exitFailure || !strings.Contains(errs, "bad.json") {
+	if code, _, errs := runCmd("model", "--lattice", bad, "--preset", "tfim"); code != exitFailure || !strings.Contains(errs, "bad.json") {
 		t.Errorf("bad lattice file: exit %d, %s", code, errs)
 	}
 }
 
 func TestModelCommandValuesBetaTie(t *testing.T) {
-	code, out, errs := runModelCmd("model", "--lattice", "chain:4", "--preset", "xxz",
+	code, out, errs := runCmd("model", "--lattice", "chain:4", "--preset", "xxz",
 		"--set", "Jxy=-1,Jz=2", "--beta", "0.7", "--tie", "--units", "MHz")
 	if code != exitOK {
 		t.Fatalf("exit %d: %s", code, errs)
@@ -114,9 +107,9 @@ func TestModelCommandValuesBetaTie(t *testing.T) {
 
 func TestModelCommandDisorderDeterministic(t *testing.T) {
 	args := []string{"model", "--lattice", "square:3x3", "--preset", "heisenberg", "--disorder", "0.2", "--seed", "11"}
-	_, a, _ := runModelCmd(args...)
-	_, b, _ := runModelCmd(args...)
-	code, c, errs := runModelCmd(append(args[:len(args)-1:len(args)-1], "12")...)
+	_, a, _ := runCmd(args...)
+	_, b, _ := runCmd(args...)
+	code, c, errs := runCmd(append(args[:len(args)-1:len(args)-1], "12")...)
 	if code != exitOK || a != b || a == c {
 		t.Fatalf("exit %d (%s); same seed equal: %v, other seed differs: %v", code, errs, a == b, a != c)
 	}
@@ -152,7 +145,7 @@ func TestModelCommandUsageErrors(t *testing.T) {
 		{[]string{"--bogus"}, "unknown flag"},
 	}
 	for _, tc := range tests {
-		code, out, errs := runModelCmd(append([]string{"model"}, tc.args...)...)
+		code, out, errs := runCmd(append([]string{"model"}, tc.args...)...)
 		if code != exitUsage || out != "" || !strings.Contains(errs, tc.msg) {
 			t.Errorf("%v: exit %d, stdout %q, stderr %q; want exit 2 mentioning %q", tc.args, code, out, errs, tc.msg)
 		}
@@ -162,7 +155,7 @@ func TestModelCommandUsageErrors(t *testing.T) {
 func TestModelCommandOutputFile(t *testing.T) {
 	dir := t.TempDir()
 	path := filepath.Join(dir, "m.json")
-	code, out, errs := runModelCmd("model", "--lattice", "chain:3", "--preset", "heisenberg", "-o", path)
+	code, out, errs := runCmd("model", "--lattice", "chain:3", "--preset", "heisenberg", "-o", path)
 	if code != exitOK || out != "" {
 		t.Fatalf("exit %d, stdout %q, stderr %s", code, out, errs)
 	}
@@ -180,7 +173,7 @@ func TestModelCommandOutputFile(t *testing.T) {
 		{"model", "--lattice", "chain:3", "--preset", "tfim", "--set", "nope=1", "-o", path},
 		{"model", "--lattice", filepath.Join(dir, "missing.json"), "--preset", "tfim", "-o", path},
 	} {
-		code, _, _ := runModelCmd(args...)
+		code, _, _ := runCmd(args...)
 		if code == exitOK {
 			t.Errorf("%v: exit 0", args)
 		}
@@ -188,7 +181,7 @@ func TestModelCommandOutputFile(t *testing.T) {
 			t.Errorf("%v clobbered the output file: %q", args, got)
 		}
 	}
-	if code, _, _ := runModelCmd("model", "--lattice", filepath.Join(dir, "missing.json"), "--preset", "tfim"); code != exitFailure {
+	if code, _, _ := runCmd("model", "--lattice", filepath.Join(dir, "missing.json"), "--preset", "tfim"); code != exitFailure {
 		t.Errorf("missing lattice file: exit %d, want 1", code)
 	}
 	entries, _ := os.ReadDir(dir)
@@ -199,7 +192,7 @@ func TestModelCommandOutputFile(t *testing.T) {
 
 func TestModelCheck(t *testing.T) {
 	sample := filepath.Join("..", "..", "testdata", "models", "square3x3_tfim.json")
-	code, out, errs := runModelCmd("model", "--check", sample)
+	code, out, errs := runCmd("model", "--check", sample)
 	if code != exitOK {
 		t.Fatalf("exit %d: %s", code, errs)
 	}
@@ -212,24 +205,24 @@ func TestModelCheck(t *testing.T) {
 			t.Errorf("summary lacks %q:\n%s", want, out)
 		}
 	}
-	code, out, _ = runModelCmd("model", "--check", sample, "--beta", "2")
+	code, out, _ = runCmd("model", "--check", sample, "--beta", "2")
 	if code != exitOK || !strings.Contains(out, "beta = 2,") {
 		t.Errorf("--beta did not override: %s", out)
 	}
 
 	bad := filepath.Join("..", "..", "testdata", "models", "bad_syntax.json")
-	code, out, errs = runModelCmd("model", "--check", bad)
+	code, out, errs = runCmd("model", "--check", bad)
 	if code != exitFailure || out != "" || !strings.Contains(errs, bad+":6:") {
 		t.Errorf("bad file: exit %d, stdout %q, stderr %q", code, out, errs)
 	}
-	code, _, _ = runModelCmd("model", "--check", filepath.Join(t.TempDir(), "none.json"))
+	code, _, _ = runCmd("model", "--check", filepath.Join(t.TempDir(), "none.json"))
 	if code != exitFailure {
 		t.Errorf("missing file: exit %d", code)
 	}
 }
 
 func TestModelHelp(t *testing.T) {
-	code, out, _ := runModelCmd("help", "model")
+	code, out, _ := runCmd("help", "model")
 	if code != exitOK {
 		t.Fatalf("exit %d", code)
 	}
@@ -238,7 +231,7 @@ func TestModelHelp(t *testing.T) {
 			t.Errorf("help does not describe preset %s", p)
 		}
 	}
-	if code, out, _ := runModelCmd("model", "--help"); code != exitOK || !strings.Contains(out, "--check") {
+	if code, out, _ := runCmd("model", "--help"); code != exitOK || !strings.Contains(out, "--check") {
 		t.Errorf("--help: exit %d", code)
 	}
 }

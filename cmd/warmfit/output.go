@@ -77,7 +77,9 @@ func checkOutputs(outputs []outputFile, inputs ...string) error {
 				}
 			}
 			for _, prev := range seen {
-				if pi, err := os.Stat(prev.path); err == nil && os.SameFile(fi, pi) {
+				// Two outputs to one terminal or pipe are fine; to one
+				// regular file, the second would replace the first.
+				if pi, err := os.Stat(prev.path); err == nil && fi.Mode().IsRegular() && os.SameFile(fi, pi) {
 					return usagef("%s %s and %s %s are the same file; give them different names", prev.flag, prev.path, out.flag, out.path)
 				}
 			}
@@ -101,6 +103,9 @@ func checkOutputs(outputs []outputFile, inputs ...string) error {
 // pipes are not opened here (opening a pipe would wait for a reader).
 func checkWritable(out outputFile) error {
 	target := resolveOutput(out.path)
+	if isDirectTarget(out.path, target) {
+		return nil // /dev/stdout behind a pipe resolves to no path at all
+	}
 	fi, err := os.Stat(target)
 	switch {
 	case err == nil && fi.IsDir():
@@ -178,7 +183,7 @@ func isDirectTarget(path, resolved string) bool {
 		}
 	}
 	fi, err := os.Stat(resolved)
-	return err == nil && !fi.Mode().IsRegular()
+	return err == nil && !fi.Mode().IsRegular() && !fi.IsDir()
 }
 
 // writeOutput sends what write produces to stdout when path is "" or "-",

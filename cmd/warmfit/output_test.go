@@ -100,6 +100,12 @@ func TestOutputTargets(t *testing.T) {
 		t.Fatalf("-o -: exit %d, stdout %q, stderr %s", code, stdout, stderr)
 	}
 
+	// /dev/stdout, whatever stands behind it (here a pipe or a file), is
+	// accepted before the work.
+	if err := checkOutputs([]outputFile{{"-o", "/dev/stdout"}, {"--meta", "/dev/stderr"}}); err != nil {
+		t.Errorf("/dev/stdout refused: %v", err)
+	}
+
 	// /dev/null stays a device.
 	if code, _, stderr := predict(os.DevNull); code != 0 {
 		t.Fatalf("/dev/null: exit %d: %s", code, stderr)

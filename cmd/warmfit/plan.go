@@ -49,7 +49,7 @@ func init() {
 			addModelFlag(fs, &o.model, "model `FILE` whose coefficients are to be learned (a best guess)")
 			addBetaFlag(fs, &o.beta)
 			fs.Float64Var(&o.target, "target", 0, "target error `EPS` of the coefficients")
-			fs.StringVar(&o.norm, "norm", fit.NormLinf, "linf: every coefficient within eps at 95% (Bonferroni); l2: expected squared L2 error <= eps^2")
+			fs.StringVar(&o.norm, "norm", string(fit.NormLinf), "linf: every coefficient within eps at 95% (Bonferroni); l2: expected squared L2 error <= eps^2")
 			fs.StringVar(&o.bases, "bases", "covering", "measurement `SCHEME`: covering (few bases serving every term) or random:K")
 			fs.Uint64Var(&o.seed, "seed", 1, "seed of random:K bases")
 			addOrderFlag(fs, &o.order, "expansion order of the prediction, or auto (the order stored in a fitted model, else chosen as in predict)")
@@ -99,13 +99,15 @@ func runPlan(env *runEnv, args []string) error {
 	if !(o.target > 0) || math.IsInf(o.target, 0) {
 		return usagef("--target is required and must be a positive number")
 	}
-	if o.norm != fit.NormLinf && o.norm != fit.NormL2 {
-		return usagef("--norm %q: want linf or l2", o.norm)
+	norm, err := parseChoice("--norm", o.norm, fit.NormLinf, fit.NormL2)
+	if err != nil {
+		return err
 	}
-	if o.format != "text" && o.format != "csv" && o.format != "json" {
-		return usagef("--format %q: want text, csv or json", o.format)
+	format, err := parseChoice("--format", o.format, formatText, formatCSV, formatJSON)
+	if err != nil {
+		return err
 	}
-	if o.format != "csv" {
+	if format != formatCSV {
 		if err := o.csv.misuse("--format " + o.format + "; add --format csv"); err != nil {
 			return err
 		}
@@ -154,7 +156,7 @@ func runPlan(env *runEnv, args []string) error {
 	}
 	bar := newProgressBar(env, "expanding")
 	plan, err := fit.PlanShots(m.Lattice, m.Terms, beta, fit.PlanOptions{
-		Target: o.target, Norm: o.norm, Confidence: o.confidence, Bases: bases, Order: order, Workers: o.workers, Budget: o.budget,
+		Target: o.target, Norm: norm, Confidence: o.confidence, Bases: bases, Order: order, Workers: o.workers, Budget: o.budget,
 		Progress: bar.Update,
 	})
 	bar.Done()
@@ -165,7 +167,7 @@ func runPlan(env *runEnv, args []string) error {
 	for _, warn := range plan.Warnings {
 		fmt.Fprintf(env.Stderr, "WARNING: %s\n", warn)
 	}
-	if o.format == "csv" {
+	if format == formatCSV {
 		meta := planCSVMeta(plan, scheme)
 		if unscaled != "" {
 			meta.line("%s", unscaled)
@@ -175,8 +177,8 @@ func runPlan(env *runEnv, args []string) error {
 		return writeCSVResult(env, o.out, o.csv, meta, func(w io.Writer) error { return planWriteCSV(w, m.Terms, plan) })
 	}
 	return writeOutput(env, o.out, func(w io.Writer) error {
-		switch o.format {
-		case "json":
+		switch format {
+		case formatJSON:
 			return planWriteJSON(w, m.Terms, plan, scheme)
 		}
 		return planWriteText(w, m.Terms, plan, scheme)
@@ -253,7 +255,7 @@ func planWriteCSV(w io.Writer, terms []lattice.Term, p *fit.Plan) error {
 // planJSON is the plan as written by --format json.
 type planJSON struct {
 	Target        float64        `json:"target"`
-	Norm          string         `json:"norm"`
+	Norm          fit.Norm       `json:"norm"`
 	Confidence    float64        `json:"confidence,omitempty"`
 	Z             float64        `json:"z,omitempty"`
 	Scheme        string         `json:"scheme"`

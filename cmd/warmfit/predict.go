@@ -16,6 +16,14 @@ import (
 	"warmfit/validate"
 )
 
+// predictMethod is the value of predict --method.
+type predictMethod string
+
+const (
+	methodExpansion predictMethod = "expansion" // the linked-cluster expansion
+	methodExact     predictMethod = "exact"     // the whole system, dense or by typicality
+)
+
 func init() {
 	var (
 		modelPath string
@@ -62,7 +70,7 @@ warmfit predict --model m.json --method exact`,
 		Flags: func(fs *pflag.FlagSet) {
 			addModelFlag(fs, &modelPath, "")
 			addBetaFlag(fs, &beta)
-			fs.StringVar(&method, "method", "expansion", "expansion or exact")
+			fs.StringVar(&method, "method", string(methodExpansion), "expansion or exact")
 			addOrderFlag(fs, &order, "largest cluster size of the expansion, or auto (chosen automatically, see above)")
 			fs.Float64Var(&tol, "tol", 1e-3, "truncation error at which an expansion value counts as trusted")
 			fs.IntVar(&vectors, "vectors", 0, "random vectors for thermal typicality (exact method past dense size)")
@@ -97,13 +105,15 @@ warmfit predict --model m.json --method exact`,
 			}
 			var table *fit.Table
 			fields := map[string]any{}
-			switch method {
-			case "expansion":
+			pm, err := parseChoice("--method", method, methodExpansion, methodExact)
+			if err != nil {
+				return err
+			}
+			switch pm {
+			case methodExpansion:
 				table, err = predictByExpansion(env, m, b, order.L, tol, budget, workers, fields)
-			case "exact":
+			case methodExact:
 				table, err = predictExact(env, m, b, vectors, seed, budget, fields)
-			default:
-				return usagef("--method %q: want expansion or exact", method)
 			}
 			if err != nil {
 				return err

@@ -15,6 +15,15 @@ import (
 	"warmfit/validate"
 )
 
+// sampleGenerator is the value of sample --generator.
+type sampleGenerator string
+
+const (
+	generatorExact    sampleGenerator = "exact"    // whole snapshots from the dense Gibbs state
+	generatorBinomial sampleGenerator = "binomial" // each term's outcomes from its expansion expectation
+	generatorAuto     sampleGenerator = "auto"     // exact up to denseExactQubits, else binomial
+)
+
 func init() {
 	var (
 		modelPath string
@@ -60,7 +69,7 @@ warmfit sample --model big.json --shots 100000 --generator binomial -o big-data.
 			fs.Int64Var(&shots, "shots", 0, "`N` shots per basis")
 			fs.StringVar(&bases, "bases", "covering", "measurement `SCHEME`: covering, covering:3 (what fit --method stationary needs) or random:K")
 			fs.Uint64Var(&seed, "seed", 1, "random seed")
-			fs.StringVar(&generator, "generator", "auto", "exact, binomial or auto")
+			fs.StringVar(&generator, "generator", string(generatorAuto), "exact, binomial or auto")
 			addOrderFlag(fs, &order, "expansion order of the binomial generator, or auto (chosen as in predict)")
 			addBudgetFlag(fs, &budget)
 			addWorkersFlag(fs, &workers)
@@ -92,25 +101,25 @@ warmfit sample --model big.json --shots 100000 --generator binomial -o big-data.
 			if err != nil {
 				return usagef("--%v", err)
 			}
-			switch generator {
-			case "auto":
-				generator = "binomial"
-				if n <= denseExactQubits {
-					generator = "exact"
-				}
-			case "exact", "binomial":
-			default:
-				return usagef("--generator %q: want exact, binomial or auto", generator)
+			gen, err := parseChoice("--generator", generator, generatorExact, generatorBinomial, generatorAuto)
+			if err != nil {
+				return err
 			}
-			fmt.Fprintf(env.Stderr, "sample: %d qubits, %d bases x %d shots, %s generator, seed %d\n", n, len(basisList), shots, generator, seed)
+			if gen == generatorAuto {
+				gen = generatorBinomial
+				if n <= denseExactQubits {
+					gen = generatorExact
+				}
+			}
+			fmt.Fprintf(env.Stderr, "sample: %d qubits, %d bases x %d shots, %s generator, seed %d\n", n, len(basisList), shots, gen, seed)
 			meta := &csvMeta{Command: "sample"}
 			meta.set("model", modelPath)
 			meta.set("beta", b)
-			meta.set("generator", generator)
+			meta.set("generator", gen)
 			meta.set("bases", basisList)
 			meta.set("shots_per_basis", shots)
 			meta.set("seed", seed)
-			if generator == "exact" {
+			if gen == generatorExact {
 				if n > cluster.MaxDenseQubits {
 					return fmt.Errorf("exact snapshots need dense diagonalisation, at most %d qubits; this model has %d: use --generator binomial", cluster.MaxDenseQubits, n)
 				}

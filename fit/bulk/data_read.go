@@ -1,6 +1,7 @@
 package bulk
 
 import (
+	"bytes"
 	"encoding/csv"
 	"errors"
 	"fmt"
@@ -10,6 +11,8 @@ import (
 	"sort"
 	"strconv"
 	"strings"
+
+	"warmfit/lattice"
 )
 
 // UnknownUnit is the unit that marks an error column whose errors are not
@@ -32,7 +35,13 @@ func ReadFile(path string, opt ReadOptions) ([]*Series, error) {
 		return nil, err
 	}
 	defer f.Close()
-	return ParseCSV(f, path, opt)
+	// Capped before parsing: a CSV reader holds a whole line, and a
+	// device such as /dev/zero has no end of line.
+	data, err := lattice.ReadAllLimited(f, path)
+	if err != nil {
+		return nil, err
+	}
+	return ParseCSV(bytes.NewReader(data), path, opt)
 }
 
 // column is one parsed header field.

@@ -52,12 +52,18 @@ func TestPullsAndShotScaling(t *testing.T) {
 	pull2, e2 := pullStats(t, sc, 256000, seeds, calibrateFirst)
 	t.Logf("16000 shots/basis: pull rms %.3g, direction error %.4g; 256000: pull rms %.3g, direction error %.4g (ratio %.3g, 1/sqrt scaling says 4)",
 		pull1, e1, pull2, e2, e1/e2)
-	if r := e1 / e2; r < 2.8 || r > 5.7 {
+	if r := e1 / e2; r < 2.5 || r > 6 {
 		t.Errorf("direction error ratio %.3g for 16x the shots, want about 4", r)
 	}
+	// With -short's 4 seeds the rms of about 90 correlated pulls scatters
+	// by tens of percent; only gross failures are caught there.
+	lo, hi := 0.8, 1.25
+	if testing.Short() {
+		lo, hi = 0.45, 2
+	}
 	for _, p := range []float64{pull1, pull2} {
-		if p < 0.8 || p > 1.25 {
-			t.Errorf("pull rms %.3g outside 0.8-1.25", p)
+		if p < lo || p > hi {
+			t.Errorf("pull rms %.3g outside %.2g-%.2g", p, lo, hi)
 		}
 	}
 }

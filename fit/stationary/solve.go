@@ -75,6 +75,11 @@ type Direction struct {
 	// string had no data).
 	Chi2          float64
 	Rows, Dropped int
+	// Weak is set when some resolved direction still has a standard
+	// error above 0.1 of the unit direction: the estimator is then not
+	// yet in its linear regime and seeded repetitions show error bars
+	// too small by up to about 2 (comparison table, compare_test.go).
+	Weak bool
 	// Misfit is set when Chi2 is more than five standard deviations above
 	// its degrees of freedom (Rows - parameters + 1): the data fit no
 	// stationary state of these terms well (terms missing from the
@@ -215,6 +220,11 @@ func Solve(sys *System, est *fit.Estimates, opt Options) (*Direction, error) {
 	}
 	orthonormalise(vs)
 	nameInvisible(sys, d)
+	for j := 1; j < len(d.StdErr); j++ {
+		if se := d.StdErr[j]; se > 0.1 && se <= opt.InvisibleError {
+			d.Weak = true
+		}
+	}
 	if floor := -max(10, 0.1*float64(d.Rows)); d.Spectrum[0] < floor {
 		return d, fmt.Errorf("%w: the reweighting did not settle (lowest eigenvalue %.4g, below %.3g: at a settled direction it is near zero); the noise correction dominates the signal, or the data are not consistent with any stationary state of these terms",
 			ErrNoInformation, d.Spectrum[0], floor)
@@ -398,6 +408,9 @@ func (d *Direction) Summary() string {
 	if d.Misfit {
 		fmt.Fprintf(&b, "WARNING: constraint chi2 %.4g far above its %d degrees of freedom: the data fit no stationary state of these terms well (a term missing from the template, systematic errors, or a non-stationary state)\n",
 			d.Chi2, max(d.Rows-len(d.Theta)+1, 1))
+	}
+	if d.Weak {
+		fmt.Fprintf(&b, "WARNING: weak signal: a resolved direction has a standard error of %.3g of the unit direction; error bars may be too small (seeded repetitions at beta x max|coeff| = 0.1 gave pull rms 2.2); more shots or a lower temperature help\n", maxFinite(d.StdErr))
 	}
 	if len(d.Invisible) == 0 {
 		fmt.Fprintf(&b, "every other direction is resolved (largest standard error %.3g)\n", maxFinite(d.StdErr))

@@ -56,6 +56,16 @@ var allPauliPairs = func() []letterParam {
 	return out
 }()
 
+// exchange is the isotropic (Heisenberg) exchange XX + YY + ZZ on a bond
+// with the one coefficient named param.
+func exchange(param string) []letterParam {
+	return []letterParam{{"XX", param}, {"YY", param}, {"ZZ", param}}
+}
+
+// fieldZ is the uniform field along Z (site term Z with coefficient hz),
+// zero by default.
+var fieldZ = PresetParam{"hz", 0, "field along Z"}
+
 var presetDefs = []presetDef{
 	{
 		info: PresetInfo{
@@ -78,7 +88,7 @@ var presetDefs = []presetDef{
 			Params: []PresetParam{
 				{"Jxy", 1, "XX and YY coupling on nearest-neighbour bonds"},
 				{"Jz", 0.5, "ZZ coupling on nearest-neighbour bonds"},
-				{"hz", 0, "field along Z"},
+				fieldZ,
 				{"hx", 0, "field along X"},
 			},
 			Shells: 1,
@@ -92,11 +102,11 @@ var presetDefs = []presetDef{
 			Hamiltonian: "H = J sum_<ij> (X_i X_j + Y_i Y_j + Z_i Z_j) + hz sum_i Z_i",
 			Params: []PresetParam{
 				{"J", 1, "exchange on nearest-neighbour bonds"},
-				{"hz", 0, "field along Z"},
+				fieldZ,
 			},
 			Shells: 1,
 		},
-		nn:   []letterParam{{"XX", "J"}, {"YY", "J"}, {"ZZ", "J"}},
+		nn:   exchange("J"),
 		site: []letterParam{{"Z", "hz"}},
 	},
 	{
@@ -106,7 +116,7 @@ var presetDefs = []presetDef{
 			Params: []PresetParam{
 				{"Jx", 1, "XX coupling on nearest-neighbour bonds"},
 				{"Jy", 1, "YY coupling on nearest-neighbour bonds"},
-				{"hz", 0, "field along Z"},
+				fieldZ,
 			},
 			Shells: 1,
 		},
@@ -121,12 +131,12 @@ var presetDefs = []presetDef{
 			Params: []PresetParam{
 				{"J1", 1, "Heisenberg exchange on nearest-neighbour bonds"},
 				{"J2", 0.5, "Heisenberg exchange on next-nearest-neighbour bonds"},
-				{"hz", 0, "field along Z"},
+				fieldZ,
 			},
 			Shells: 2,
 		},
-		nn:   []letterParam{{"XX", "J1"}, {"YY", "J1"}, {"ZZ", "J1"}},
-		nnn:  []letterParam{{"XX", "J2"}, {"YY", "J2"}, {"ZZ", "J2"}},
+		nn:   exchange("J1"),
+		nnn:  exchange("J2"),
 		site: []letterParam{{"Z", "hz"}},
 	},
 	{

@@ -126,3 +126,9 @@ func TestHex(t *testing.T) {
 		t.Errorf("hexColor round trip gave %s", c.Hex())
 	}
 }
+
+// deltaE is the Euclidean distance in OKLab, the colour difference
+// Ottosson (2020) designed the space for.
+func deltaE(p, q oklab) float64 {
+	return math.Sqrt((p.L-q.L)*(p.L-q.L) + (p.a-q.a)*(p.a-q.a) + (p.b-q.b)*(p.b-q.b))
+}

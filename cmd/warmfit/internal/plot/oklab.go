@@ -105,9 +105,3 @@ func (p oklab) lch() oklch {
 	}
 	return oklch{p.L, math.Hypot(p.a, p.b), h}
 }
-
-// deltaE is the Euclidean distance in OKLab, the colour difference
-// Ottosson (2020) designed the space for.
-func deltaE(p, q oklab) float64 {
-	return math.Sqrt((p.L-q.L)*(p.L-q.L) + (p.a-q.a)*(p.a-q.a) + (p.b-q.b)*(p.b-q.b))
-}

@@ -1,55 +1,8 @@
 package lattice
 
 import (
-	"slices"
-	"strings"
 	"testing"
 )
-
-func TestBuildClustersMatchesEnumeration(t *testing.T) {
-	for _, spec := range []string{"square:5x4", "kagome:2x2:periodic", "cubic:2x2x2:shells=2", "chain:1"} {
-		l := mustBuild(t, spec)
-		list, err := l.BuildClusters(6, 0)
-		if err != nil {
-			t.Fatal(err)
-		}
-		k := 0
-		buf := []int(nil)
-		l.EachCluster(6, func(s []int) bool {
-			if k >= list.Len() {
-				t.Fatalf("%s: list has only %d clusters", spec, list.Len())
-			}
-			buf = list.AppendSites(buf[:0], k)
-			if !slices.Equal(buf, s) || list.Size(k) != len(s) {
-				t.Fatalf("%s: cluster %d is %v in the list, %v in EachCluster", spec, k, buf, s)
-			}
-			k++
-			return true
-		})
-		if k != list.Len() {
-			t.Errorf("%s: list has %d clusters, EachCluster %d", spec, list.Len(), k)
-		}
-		if !slices.Equal(list.CountBySize(), l.CountClusters(6)) || list.MaxSize() != 6 {
-			t.Errorf("%s: list counts %v, CountClusters %v", spec, list.CountBySize(), l.CountClusters(6))
-		}
-	}
-}
-
-func TestBuildClustersLimit(t *testing.T) {
-	l := mustBuild(t, "square:20x20")
-	_, err := l.BuildClusters(8, 1000)
-	if err == nil {
-		t.Fatal("no refusal past the limit")
-	}
-	for _, w := range []string{"square:20x20", "about", "clusters of up to 8 sites", "MiB", "limit of 1000"} {
-		if !strings.Contains(err.Error(), w) {
-			t.Errorf("refusal %q does not mention %q", err, w)
-		}
-	}
-	if _, err := l.BuildClusters(0, 0); err == nil {
-		t.Error("size bound 0 accepted")
-	}
-}
 
 // The estimate is exact when every anchor is sampled and the sizes fit
 // the budget, and close on larger lattices (measured against the exact
