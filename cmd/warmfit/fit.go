@@ -101,7 +101,7 @@ falls back on the exact Hessian.
 
 The template (--model) gives the lattice and the terms; terms sharing a "group" share
 one coefficient. The data (--data) are an expectation table (pauli,sites,value,stderr;
-an empty stderr marks an exact value) or a snapshot file (basis,outcome,count), from
+stderr "exact" marks a value known exactly; a blank stderr is refused) or a snapshot file (basis,outcome,count), from
 which expectations and their covariance are estimated. Every template term needs
 data unless it shares its group with a measured term: such terms are fitted through
 their group by moment matching on the measured members (A_m^T <E>_m = A_m^T e_m,

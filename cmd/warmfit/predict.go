@@ -50,8 +50,10 @@ connected clusters of up to --order sites; it works for any lattice size. Four e
 columns say how far each value can be trusted: step (change from the previous
 order), trunc_error (estimated truncation error, from the geometric decay of the
 changes over pairs of orders), resummed (Wynn epsilon acceleration of the partial
-sums) and trusted (trunc_error <= --tol). The stderr column repeats trunc_error,
-the value's uncertainty, so the table can serve as fit data.
+sums) and trusted (trunc_error <= --tol). The stderr column says "exact": the value
+is the expansion's own prediction at that order, which is the Gibbs value only where
+trusted is true. Rows marked trusted=false are NOT exact Gibbs values (their distance
+from one is trunc_error), and fit refuses them as exact data.
 A summary on stderr says plainly when the temperature is too low for the order.
 Without --order the order is chosen automatically, the same way on every machine:
 it starts low (4 in two dimensions) and rises while some value is untrusted, up to
