@@ -472,7 +472,10 @@ func (f *fitter) autoOrder(theta0 []float64, start time.Time) (*Result, error) {
 		policy = cluster.NewOrderPolicy(f.prob.Lattice, f.prob.Terms)
 	}
 	first := max(f.minL, f.opt.StartOrder)
-	last := min(f.sites, policy.Ceiling)
+	// Without MaxOrder the policy stops the rise (its ceiling, which a
+	// small lattice may pass up to its number of sites, and its work
+	// limit), and the note says which.
+	last := f.sites
 	if f.opt.MaxOrder > 0 {
 		last = min(f.sites, cluster.MaxDenseQubits, f.opt.MaxOrder)
 	}
@@ -509,7 +512,11 @@ func (f *fitter) autoOrder(theta0 []float64, start time.Time) (*Result, error) {
 				statErr = f.statisticalScale(of)
 			}
 			tr := f.truncation(history, statErr)
-			f.opt.logf("order %d: truncation error %s against target %.3g (this order took %s)", L, fmtMaybe(tr.Error, tr.Known), tr.Target, of.elapsed.Round(10*time.Millisecond))
+			units := ""
+			if f.prob.Beta <= 0 {
+				units = " (units of beta*lambda)"
+			}
+			f.opt.logf("order %d: truncation error %s against target %.3g%s (this order took %s)", L, fmtMaybe(tr.Error, tr.Known), tr.Target, units, of.elapsed.Round(10*time.Millisecond))
 			if tr.Known && tr.OK {
 				break
 			}

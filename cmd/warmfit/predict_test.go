@@ -273,3 +273,30 @@ func TestFitHelpStderrMatchesReader(t *testing.T) {
 		t.Errorf("blank stderr: exit %d:\n%s", code, stderr)
 	}
 }
+
+// On a 9-site lattice at a temperature where order 8 has not converged,
+// the automatic order passes the two-dimensional ceiling 8 to order 9,
+// which covers every site and is exact (review finding 6;
+// inclusion-exclusion, Rigol, Bryant, Singh, arXiv 0706.3254), and stderr
+// says so instead of warning about truncation.
+func TestExpectAutoOrderReachesWholeSmallLattice(t *testing.T) {
+	if testing.Short() {
+		t.Skip("order 9 on 3x3: a few seconds")
+	}
+	dir := t.TempDir()
+	path := filepath.Join(dir, "x3.json")
+	if code, _, stderr := runCmd("model", "--lattice", "square:3x3", "--preset", "xxz", "--set", "Jxy=0.4,Jz=0.3,hz=0.2,hx=0.1",
+		"--disorder", "0.1", "--seed", "3", "--beta", "1.0", "-o", path); code != 0 {
+		t.Fatalf("model: exit %d: %s", code, stderr)
+	}
+	code, out, stderr := runCmd("predict", "--model", path)
+	if code != 0 {
+		t.Fatalf("predict: exit %d: %s", code, stderr)
+	}
+	if !strings.Contains(stderr, "order 9 chosen automatically") || !strings.Contains(stderr, "exactly: order 9 covers all 9 sites") || strings.Contains(stderr, "WARNING") {
+		t.Errorf("the automatic order did not reach the exact order 9:\n%s", stderr)
+	}
+	if strings.Contains(out, ",false\n") {
+		t.Errorf("rows of the exact order marked untrusted:\n%s", out)
+	}
+}
