@@ -528,6 +528,12 @@ func (f *fitter) autoOrder(theta0 []float64, start time.Time) (*Result, error) {
 			notes = append(notes, fmt.Sprintf("the fit at order %d did not converge: %s", L, of.out.reason))
 		}
 		if L == last {
+			switch {
+			case L < f.sites && L == f.opt.MaxOrder:
+				notes = append(notes, fmt.Sprintf("stopped at order %d: the --max-order limit (order %d would cover all %d sites and be exact)", L, f.sites, f.sites))
+			case L < f.sites:
+				notes = append(notes, fmt.Sprintf("stopped at order %d: clusters of more than %d sites are not diagonalised", L, cluster.MaxDenseQubits))
+			}
 			break
 		}
 		if f.opt.MaxOrder == 0 {
