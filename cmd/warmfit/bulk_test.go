@@ -76,7 +76,7 @@ func TestBulkFitsFileAndRefusesColdData(t *testing.T) {
 	}
 	warm := write("warm.csv", 30, 300)
 	curves := filepath.Join(dir, "curves.csv")
-	code, out, stderr := runCmd("bulk", "--start", "J=3meV", "--fix", "chi0=0", "--fix", "rho=0", "--curves", curves, warm)
+	code, out, stderr := runCmd("bulk", "--order", "10", "--start", "J=3meV", "--fix", "chi0=0", "--fix", "rho=0", "--curves", curves, warm)
 	if code != exitOK {
 		t.Fatalf("exit %d: %s", code, stderr)
 	}
@@ -113,7 +113,7 @@ func TestBulkFitsFileAndRefusesColdData(t *testing.T) {
 		t.Errorf("curves sidecar: %v", meta)
 	}
 	cold := write("cold.csv", 1, 8)
-	code, _, stderr = runCmd("bulk", "--start", "J=40K", cold)
+	code, _, stderr = runCmd("bulk", "--order", "10", "--start", "J=40K", cold)
 	if code != exitFailure || !strings.Contains(stderr, "lowest usable temperature") {
 		t.Errorf("cold data: exit %d, stderr %q", code, stderr)
 	}
