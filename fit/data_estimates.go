@@ -200,6 +200,9 @@ func LoadEstimates(path string, lat *lattice.Lattice, terms []lattice.Term, opt 
 		if err := sitesBeyondError(path, lat, t); err != nil {
 			return nil, nil, err
 		}
+		if err := untrustedExactError(path, t); err != nil {
+			return nil, nil, err
+		}
 		index := t.Index()
 		allow := append(GroupedMissing(terms, func(k int) bool {
 			_, ok := index[terms[k].Key()]
@@ -323,4 +326,40 @@ func unusedRowsError(path string, lat *lattice.Lattice, t *Table, unused []int) 
 		b.WriteString("; a site beyond the lattice usually means the data belong to a larger lattice than the template's")
 	}
 	return errors.New(b.String())
+}
+
+// untrustedExactError refuses exact rows that their own table marks
+// trusted=false (predict writes such rows when the expansion has not
+// converged): the value is the expansion's prediction, not the Gibbs
+// value, so fitting it as exact data would give wrong couplings with
+// error bars of zero. A row whose stderr carries an uncertainty (say the
+// trunc_error put there by hand) is accepted.
+func untrustedExactError(path string, t *Table) error {
+	col := -1
+	for j, h := range t.ExtraHeader {
+		if strings.EqualFold(strings.TrimSpace(h), "trusted") {
+			col = j
+		}
+	}
+	if col < 0 {
+		return nil
+	}
+	n, first := 0, -1
+	for i, r := range t.Rows {
+		if r.HasStderr || col >= len(r.Extra) || !strings.EqualFold(strings.TrimSpace(r.Extra[col]), "false") {
+			continue
+		}
+		if first < 0 {
+			first = i
+		}
+		n++
+	}
+	if n == 0 {
+		return nil
+	}
+	r := t.Rows[first]
+	return dataErrorf(displayName(path), r.Line, "trusted",
+		"%s is stderr %q but trusted=false (%d such rows): an untrusted expansion value is not an exact Gibbs value; "+
+			"rerun predict with a higher --order (or at a higher temperature), or write each row's trunc_error in its stderr to fit it with that uncertainty",
+		r.Key(), ExactStderr, n)
 }

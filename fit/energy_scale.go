@@ -124,7 +124,9 @@ func ScaleEnergy(r *Result, c Calibration) (*Result, error) {
 	}
 	out.Notes = append(out.Notes, fmt.Sprintf("beta not given: the fit learnt beta*lambda; the energy scale is fixed from %s, so beta = %s (%s)",
 		c, formatPM(es.Beta, es.BetaStderr), es.Method))
-	out.Warnings = append(slices.Clone(r.Warnings), warnings...)
+	out.Warnings = slices.Clone(r.Warnings)
+	out.rewriteScaleWarnings() // their numbers in units of lambda, with the recovered beta
+	out.Warnings = append(out.Warnings, warnings...)
 	if haveErr {
 		out.ErrorMethod = r.ErrorMethod + "; energy scale by the delta method"
 	}
