@@ -68,6 +68,11 @@ func bulkFigure(r *bulkRun, q bulk.Quantity, series []int) (*plot.Document, erro
 	xlo, xhi := slices.Min(xs), slices.Max(xs)
 	ylo, yhi := slices.Min(ys), slices.Max(ys)
 	logX := q != bulk.Magnetization && xlo > 0 && xhi/xlo > 8
+	xAxis := plot.Axis{Label: xLabel, Min: xlo, Max: xhi, Log: logX}
+	if q == bulk.Magnetization {
+		// Room right of the sweeps for their temperature labels.
+		xAxis = plot.Axis{Label: xLabel, Min: math.Min(0, xlo), Max: xhi + 0.2*(xhi-math.Min(0, xlo)), Tight: true}
+	}
 	pad := 0.06 * (yhi - ylo)
 	yMin := ylo - pad
 	if ylo > 0 {
@@ -80,10 +85,10 @@ func bulkFigure(r *bulkRun, q bulk.Quantity, series []int) (*plot.Document, erro
 	global := fmt.Sprintf("best: %s, χ²/dof = %.1f/%d over all curves; the legend gives each candidate's χ² over this quantity's fitted points", cmp.Candidates[best].Name, bestFit.Chi2, bestFit.DOF)
 	sub := fmt.Sprintf("%s. Curves are drawn only where the model is trusted; the shaded band is the best candidate's trusted range. Residuals are (data − model)/σ.", global)
 	if q == bulk.Magnetization {
-		sub = fmt.Sprintf("%s. One curve per temperature, labelled at its end; hollow points are at temperatures the model does not trust and were not fitted. Residuals are (data − model)/σ.", global)
+		sub = fmt.Sprintf("%s. One curve per temperature, labelled at its right end; hollow points are at temperatures the model does not trust and were not fitted. Residuals are (data − model)/σ.", global)
 	}
 	top := d.Heading(quantityTitles[q][0]+": data and fitted models", sub)
-	ps := d.Stack(plot.Rect{X: 24, Y: top, W: 852, H: 600 - top - 10}, plot.Axis{Label: xLabel, Min: xlo, Max: xhi, Log: logX},
+	ps := d.Stack(plot.Rect{X: 24, Y: top, W: 852, H: 600 - top - 10}, xAxis,
 		plot.Row{Title: quantityTitles[q][0], Y: plot.Axis{Label: quantityTitles[q][1], Min: yMin, Max: yhi + pad}, Weight: 3},
 		plot.Row{Y: plot.Axis{Label: "residual / σ", Min: -4, Max: 4, Tight: true, Step: 2}, Weight: 1.2})
 	shade := plot.Fill{Color: plot.Diverging.At(0.42), Alpha: 0.45}
@@ -220,9 +225,9 @@ func labelSweeps(p *plot.Panel, r *bulkRun, series []int) {
 			e := ends[t]
 			label := fmt.Sprintf("T = %.3g K", t)
 			if !e.used {
-				label += " (not fitted)"
+				label += ", not fitted"
 			}
-			p.Annotate(e.h, e.m, -10, -9, label, plot.TextStyle{Anchor: plot.End, Halo: true})
+			p.Annotate(e.h, e.m, 8, 4, label, plot.TextStyle{Anchor: plot.Start, Halo: true})
 		}
 	}
 }
