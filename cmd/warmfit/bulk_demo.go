@@ -14,9 +14,11 @@ import (
 // The demo scenario of "warmfit bulk --demo": orvanite, an invented
 // copper compound (one Cu2+ spin-1/2 per formula unit) whose spins form
 // antiferromagnetic Heisenberg chains. Its curves are synthetic: the
-// infinite chain (the expansion at order 14) where that is trusted, the
-// 12-site ring of the periodic-cluster model below it, with the values
-// below, plus Gaussian noise of the stated size from a fixed seed. The sample carries
+// infinite chain (the expansion at order 14) where that is trusted;
+// below it chi and M from an interpolation of the infinite chain
+// (orvaniteChi, orvaniteM; a finite ring would show a spin gap the chain
+// has not) and C from the 12-site ring of the periodic-cluster model;
+// with the values below, plus Gaussian noise of the stated size from a fixed seed. The sample carries
 // 1.2% free spins (a Curie tail), a diamagnetic background, and a
 // lattice heat capacity that dominates C above 20 K, as real samples do.
 var orvaniteTruth = map[string]float64{
@@ -160,14 +162,16 @@ func writeOrvaniteCurve(env *runEnv, path string, c orvaniteCurve, models []bulk
 		}
 	}
 	// A finite ring has a spin gap that the infinite chain has not, so
-	// below the expansion's trusted range chi comes from the
-	// infinite-chain interpolation instead (the Curie tail of the free
-	// spins is added the same way as in the fitted model).
-	if c.q == bulk.Susceptibility {
-		for k, p := range s.Points {
-			if !expansionTrusted[k] {
-				vals[k] = orvaniteChi(p.T)
-			}
+	// below the expansion's trusted range chi and M come from the
+	// infinite-chain interpolation instead (the free spins' Curie tail
+	// and Brillouin M are added the same way as in the fitted model).
+	for k, p := range s.Points {
+		switch {
+		case expansionTrusted[k]:
+		case c.q == bulk.Susceptibility:
+			vals[k] = orvaniteChi(p.T)
+		case c.q == bulk.Magnetization:
+			vals[k] = orvaniteM(p.T, p.H)
 		}
 	}
 	meta := &csvMeta{Command: "bulk --demo", Contents: "one row per measured point of the invented compound orvanite"}
@@ -200,6 +204,20 @@ func orvaniteChi(t float64) float64 {
 	g, rho := orvaniteTruth[bulk.ParamG], orvaniteTruth[bulk.ParamImpurity]
 	u := g * g * bulk.MolarSusceptibilityUnit
 	return u*((1-rho)*chainChiPerSite(t, orvaniteTruth[bulk.ParamJ])+rho/(4*t)) + orvaniteTruth[bulk.ParamChi0]
+}
+
+// orvaniteM is the true M(T, H) of orvanite (mu_B per formula unit)
+// where the expansion does not reach: the chain in linear response,
+// <S^z> = chi_chain(T) h with h = g mu_B H / k_B (the chain is gapless,
+// so this holds for h well below J, not only below T: h = 0.36 J at 7 T;
+// the T = 0 curve bends up by some per cent there), plus the free spins'
+// Brillouin magnetisation and chi0 H, as in fit/bulk.Candidate.
+func orvaniteM(t, hTesla float64) float64 {
+	g, rho := orvaniteTruth[bulk.ParamG], orvaniteTruth[bulk.ParamImpurity]
+	h := g * bulk.KelvinPerTesla * hTesla
+	chain := chainChiPerSite(t, orvaniteTruth[bulk.ParamJ]) * h
+	free := math.Tanh(h/(2*t)) / 2
+	return g*((1-rho)*chain+rho*free) + orvaniteTruth[bulk.ParamChi0]*1e4*hTesla/bulk.MuBPerFormulaUnitEmu
 }
 
 // chainChiPerSite is the susceptibility per site of the spin-1/2
