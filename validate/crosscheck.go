@@ -489,9 +489,9 @@ func (r *CrosscheckResult) verdict(lastOpen int) []string {
 	}
 	if judged > 0 {
 		frac := float64(covered) / float64(judged)
-		line := fmt.Sprintf("the expansion's own truncation estimate bounded the true difference (within 2 standard errors of the reference) for %d of %d judged values (%.1f%%) below the patch size", covered, judged, 100*frac)
+		line := fmt.Sprintf("the expansion's own truncation estimate bounded the true difference for %d of %d judged values (%.1f%%) below the patch size", covered, judged, 100*frac)
 		if noise > 0 {
-			line += "; values whose reference noise exceeds their estimate are not judged"
+			line += " (within 2 standard errors of the reference; values whose reference noise exceeds their estimate are not judged)"
 		}
 		if frac < 0.9 {
 			line = "WARNING: " + line + ": its trusted flags are optimistic for this model"
