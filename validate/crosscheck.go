@@ -123,7 +123,8 @@ type CrosscheckResult struct {
 	// noise (0 when there is none): the expansion matches there as well
 	// as the references can tell. VectorsNeeded is then about the number
 	// of random vectors that would bring 2 standard errors of every
-	// reference below Tol (0 when not applicable).
+	// reference below Tol and at least halve them (0 when not
+	// applicable).
 	NoisyOrder, VectorsNeeded int
 	// Trusted is true when the expansion agrees from an order at least
 	// one below the highest it can check short of the patch size, so that
@@ -325,8 +326,9 @@ func (r *CrosscheckResult) summarise() {
 }
 
 // vectorsToResolve is about the number of random vectors that brings 2
-// standard errors of every typicality reference below Tol: the errors
-// fall as one over the square root of the number of vectors.
+// standard errors of every typicality reference below Tol, and at least
+// halves them: the errors fall as one over the square root of the number
+// of vectors.
 func (r *CrosscheckResult) vectorsToResolve() int {
 	need := 0
 	for i := range r.Patches {
@@ -338,9 +340,8 @@ func (r *CrosscheckResult) vectorsToResolve() int {
 		for _, e := range pc.Exact {
 			sigma = math.Max(sigma, e.Stderr)
 		}
-		if ratio := 2 * sigma / r.Tol; ratio > 1 {
-			need = max(need, roundUp2(float64(pc.Vectors)*ratio*ratio))
-		}
+		ratio := math.Max(2*sigma/r.Tol, 2)
+		need = max(need, roundUp2(float64(pc.Vectors)*ratio*ratio))
 	}
 	return need
 }
@@ -457,8 +458,12 @@ func (r *CrosscheckResult) verdict(lastOpen int) []string {
 	case lastOpen == 0:
 		lines = append(lines, fmt.Sprintf("WARNING: every order evaluated covers the whole patch, where the expansion is exact by construction: nothing is checked at beta = %.4g; use larger patches", r.Beta))
 	case r.Trusted:
-		lines = append(lines, fmt.Sprintf("trusted: at beta = %.4g the expansion agrees with exact results within %.2g on all %d patches from order %d on (checked up to order %d, the last below the patch size)",
-			r.Beta, r.Tol, np, r.AgreeOrder, lastOpen))
+		where := fmt.Sprintf("all %d patches", np)
+		if np == 1 {
+			where = "the patch"
+		}
+		lines = append(lines, fmt.Sprintf("trusted: at beta = %.4g the expansion agrees with exact results within %.2g on %s from order %d on (checked up to order %d, the last below the patch size)",
+			r.Beta, r.Tol, where, r.AgreeOrder, lastOpen))
 	case r.AgreeOrder > 0:
 		lines = append(lines, fmt.Sprintf("WARNING: at beta = %.4g the expansion agrees with exact results within %.2g only at order %d, the last below the patch size: these patches are too small to show convergence at this temperature; use larger patches or a higher temperature",
 			r.Beta, r.Tol, r.AgreeOrder))
@@ -479,9 +484,9 @@ func (r *CrosscheckResult) verdict(lastOpen int) []string {
 		}
 		beyond := ""
 		if noise > 0 {
-			beyond = " beyond the reference noise"
+			beyond = ", by more than the references' noise explains,"
 		}
-		lines = append(lines, fmt.Sprintf("WARNING: at beta = %.4g the expansion does NOT agree with exact results within %.2g%s at any order below the patch size (smallest largest difference %.2g, at order %d): the temperature is too low for the orders these patches check; do not trust expansion values at this temperature",
+		lines = append(lines, fmt.Sprintf("WARNING: at beta = %.4g the expansion does NOT agree with exact results within %.2g at any order below the patch size%s (smallest largest difference %.2g, at order %d): the temperature is too low for the orders these patches check; do not trust expansion values at this temperature",
 			r.Beta, r.Tol, beyond, best.MaxDiff, best.Order))
 	}
 	if 2*noise > r.Tol && r.NoisyOrder == 0 {
