@@ -458,12 +458,8 @@ func (r *CrosscheckResult) verdict(lastOpen int) []string {
 	case lastOpen == 0:
 		lines = append(lines, fmt.Sprintf("WARNING: every order evaluated covers the whole patch, where the expansion is exact by construction: nothing is checked at beta = %.4g; use larger patches", r.Beta))
 	case r.Trusted:
-		where := fmt.Sprintf("all %d patches", np)
-		if np == 1 {
-			where = "the patch"
-		}
 		lines = append(lines, fmt.Sprintf("trusted: at beta = %.4g the expansion agrees with exact results within %.2g on %s from order %d on (checked up to order %d, the last below the patch size)",
-			r.Beta, r.Tol, where, r.AgreeOrder, lastOpen))
+			r.Beta, r.Tol, everyPatch(np), r.AgreeOrder, lastOpen))
 	case r.AgreeOrder > 0:
 		lines = append(lines, fmt.Sprintf("WARNING: at beta = %.4g the expansion agrees with exact results within %.2g only at order %d, the last below the patch size: these patches are too small to show convergence at this temperature; use larger patches or a higher temperature",
 			r.Beta, r.Tol, r.AgreeOrder))
@@ -504,4 +500,12 @@ func (r *CrosscheckResult) verdict(lastOpen int) []string {
 		lines = append(lines, line)
 	}
 	return lines
+}
+
+// everyPatch says "the patch" or "all N patches".
+func everyPatch(n int) string {
+	if n == 1 {
+		return "the patch"
+	}
+	return fmt.Sprintf("all %d patches", n)
 }

@@ -127,7 +127,9 @@ range, and a ranking: candidates with p < --reject-below are rejected, the rest 
 ordered by AIC on the points every candidate trusts. Warnings go to stderr and into the
 JSON.
 
-The --curves CSV: ` + csvOutputHelp
+--curves FILE writes the data against each candidate's curve as CSV, one row per data
+point and candidate.
+` + csvOutputHelp
 
 const bulkExample = `# the invented demo compound: curves, fit, figures in ./orvanite
 warmfit bulk --demo orvanite

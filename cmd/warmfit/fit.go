@@ -101,7 +101,7 @@ falls back on the exact Hessian.
 
 The template (--model) gives the lattice and the terms; terms sharing a "group" share
 one coefficient. The data (--data) are an expectation table (pauli,sites,value,stderr;
-an empty stderr marks an exact value) or a snapshot file (basis,outcome,count), from
+stderr "exact" marks a value known exactly; a blank stderr is refused) or a snapshot file (basis,outcome,count), from
 which expectations and their covariance are estimated. Every template term needs
 data unless it shares its group with a measured term: such terms are fitted through
 their group by moment matching on the measured members (A_m^T <E>_m = A_m^T e_m,
@@ -121,8 +121,10 @@ orders L-2 and L-1 are fitted first, each from the solution below, and measure
 the truncation error (the larger of the last two changes
 of any coefficient: partial sums can stall for one order). With --order auto (the
 default), the order rises until that error is at most 0.1 x the median statistical
-error, or --budget runs out (the next order's cost is predicted before it is
-started); the report says plainly when the truncation error is larger. The report also gives the sufficient-temperature bound,
+error, the order reaches the automatic ceiling (as for predict: 8 in two dimensions,
+or the number of sites of a small lattice, where the expansion is exact), or --budget
+runs out (the next order's cost is predicted before it is started); the notes say
+which stopped it, and the report says plainly when the truncation error is larger. The report also gives the sufficient-temperature bound,
 the number of term expectations whose expansion has not converged, chi^2/dof for
 tied groups, and, with --truth, z-scores and L2/Linf errors.
 

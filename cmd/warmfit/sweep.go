@@ -294,8 +294,15 @@ func (t *sweepTrust) sweepVerdict() string {
 // 0.001 per site) up to beta 0.6 (T = 1.67), the last trusted point of the
 // grid"; only meaningful when LastGood > 0.
 func (t *sweepTrust) rangeText() string {
-	return fmt.Sprintf("converged (tolerance %.2g per site) up to beta %s (T = %s), the last trusted point of the grid",
-		t.Tol, fmtFloat(t.LastGood), fmtFloat(1/t.LastGood))
+	return fmt.Sprintf("converged (tolerance %.2g per site) %s", t.Tol, t.trustedLimit())
+}
+
+// trustedLimit is the one wording of where the trusted range ends, e.g.
+// "up to beta 0.6 (T = 1.67), the last trusted point of the grid"; the
+// sweep, the demo's report, summary and verdicts all use it. Only
+// meaningful when LastGood > 0.
+func (t *sweepTrust) trustedLimit() string {
+	return fmt.Sprintf("up to beta %s (T = %s), the last trusted point of the grid", fmtFloat(t.LastGood), fmtFloat(1/t.LastGood))
 }
 
 // writeSweep writes the sweep table and records its facts and verdict in
