@@ -89,7 +89,7 @@ warmfit crosscheck --model device.json --shape 4x4 --max-patches 2 --beta 0.6 --
 			fs.StringVar(&o.shape, "shape", "", "check every patch of `WxH` unit cells (one size per lattice axis)")
 			fs.StringArrayVar(&o.sites, "sites", nil, "check the patch on these `SITES` (like 0,1,2,6-8); repeat for more patches")
 			fs.IntVar(&o.maxPatches, "max-patches", 0, "check at most `N` of the patches of --shape, evenly spread (default all)")
-			fs.Float64Var(&o.tol, "tol", 1e-3, "largest |expansion - exact| at which a value agrees")
+			fs.Float64Var(&o.tol, "tol", 1e-3, "largest |expansion - exact| at which a value agrees (plus 2 standard errors of a typicality reference)")
 			fs.IntVar(&o.order, "order", 0, "highest expansion order (default: the patch size, within the work limit)")
 			fs.IntVar(&o.dense, "dense-qubits", 11, "largest patch diagonalised densely; larger ones use thermal typicality")
 			fs.IntVar(&o.vectors, "vectors", 0, "random vectors for thermal typicality (default 16)")
