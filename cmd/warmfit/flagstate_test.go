@@ -13,14 +13,9 @@ import (
 
 // registerFlags builds a command's flag set the way the runner does.
 func registerFlags(c *command) *pflag.FlagSet {
-	fs := pflag.NewFlagSet(c.Name, pflag.ContinueOnError)
-	fs.SetOutput(new(strings.Builder))
-	if c.Flags != nil {
-		c.Flags(fs)
-	}
-	var strict bool
-	addStrictFlag(fs, &strict)
+	fs, _ := commandFlags(c) // the runner's own registration, --strict included where it applies
 	checkFreshFlags(fs)
+	fs.SetOutput(new(strings.Builder))
 	return fs
 }
 
