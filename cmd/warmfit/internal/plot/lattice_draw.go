@@ -54,6 +54,7 @@ type latticeLayout struct {
 	g      Geometry
 	pts    [][2]float64
 	segs   []segment
+	drawn  []segment // the segments drawn (drawLattice)
 	lo, hi [2]float64 // bounding box of sites and stubs, lattice units
 	scale  float64    // pixels per lattice unit
 	ox, oy float64    // pixel of the box's upper left corner (lo[0], hi[1])
@@ -244,8 +245,8 @@ func (v *LatticeView) Site(i int) (x, y float64, ok bool) {
 }
 
 // Outline draws a dashed frame around the given sites, with an optional
-// label above its left corner: the patch checked against exact methods,
-// say.
+// label beside it where it touches no bond or site (freeLabelSpot): the
+// patch checked against exact methods, say.
 func (v *LatticeView) Outline(sites []int, label string) {
 	if v.layout == nil || len(sites) == 0 {
 		return
@@ -264,15 +265,60 @@ func (v *LatticeView) Outline(sites []int, label string) {
 	r := Rect{x0 - pad, y0 - pad, x1 - x0 + 2*pad, y1 - y0 + 2*pad}
 	v.d.Rect(r, nil, Stroke{Color: inkColor, Width: 1.2, Dash: []float64{5, 3}})
 	if label != "" {
-		v.d.Text(r.X+2, r.Y-4, label, TextStyle{Size: sizeLegend, Color: mutedColor, Halo: true})
+		x, y := v.layout.freeLabelSpot(r, textWidth(label, sizeLegend, false), sizeLegend)
+		v.d.Text(x, y, label, TextStyle{Size: sizeLegend, Color: mutedColor, Halo: true})
 	}
+}
+
+// freeLabelSpot finds the baseline of a label of width w and font size
+// size next to the frame r where it touches no drawn bond and no site:
+// along the outside of the top edge first, then of the bottom edge, left
+// to right. Without a free spot it falls back on the top left corner.
+func (l *latticeLayout) freeLabelSpot(r Rect, w, size float64) (x, baseline float64) {
+	const clear = 5.0 // pixels between the label and any bond or site
+	free := func(box Rect) bool {
+		box = Rect{box.X - clear, box.Y - clear, box.W + 2*clear, box.H + 2*clear}
+		inside := func(px, py, grow float64) bool {
+			return px >= box.X-grow && px <= box.Right()+grow && py >= box.Y-grow && py <= box.Bottom()+grow
+		}
+		for _, s := range l.drawn {
+			ax, ay := l.at(s.a)
+			bx, by := l.at(s.b)
+			for k := 0; k <= 32; k++ {
+				t := float64(k) / 32
+				if inside(ax+t*(bx-ax), ay+t*(by-ay), l.bond) {
+					return false
+				}
+			}
+		}
+		for _, p := range l.pts {
+			if px, py := l.at(p); inside(px, py, l.radius) {
+				return false
+			}
+		}
+		return true
+	}
+	for _, base := range []float64{r.Y - 4, r.Bottom() + size + 2} {
+		for x := r.X + 2; x+w <= r.Right()-2; x += 4 {
+			if free(Rect{x, base - size, w, size * 1.2}) {
+				return x, base
+			}
+		}
+	}
+	return r.X + 2, r.Y - 4
 }
 
 // drawLattice paints the bonds, then the sites, far ones first.
 func (d *Document) drawLattice(l *latticeLayout, ls LatticeLayers) {
 	d.group(func(e elem) { e.str("stroke-linecap", "round") })
+	l.drawn = l.drawn[:0]
 	for _, s := range l.segs {
 		d.drawSegment(l, ls, s)
+		// Bonds without a value are left out, except nearest neighbours
+		// (drawn faint); labels keep clear of what is drawn.
+		if _, ok := ls.BondValues[s.bond]; ls.BondValues == nil || ok || !s.nnn {
+			l.drawn = append(l.drawn, s)
+		}
 	}
 	d.endGroup()
 	order := make([]int, len(l.pts))

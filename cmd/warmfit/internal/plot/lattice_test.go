@@ -200,3 +200,22 @@ func TestLatticeLayers(t *testing.T) {
 		t.Error("site 9 of 9 was placed")
 	}
 }
+
+// An outline's label keeps clear of the drawn bonds and sites (review
+// finding 9: the demo's "patch" label sat on a bond; common practice for
+// labels). Here a vertical bond runs through the frame's top left corner,
+// where the label used to go, so the label moves right along the edge.
+func TestOutlineLabelAvoidsBonds(t *testing.T) {
+	l := &latticeLayout{scale: 1, hi: [2]float64{0, 200}, radius: 10, bond: 2.5,
+		pts: [][2]float64{{30, 100}, {30, 180}, {130, 100}}}
+	l.drawn = []segment{{a: l.pts[0], b: l.pts[1]}, {a: l.pts[0], b: l.pts[2]}}
+	frame := Rect{X: 15, Y: 85, W: 130, H: 40} // around sites 0 and 2 (pixel y 100)
+	w := textWidth("patch", sizeLegend, false)
+	x, base := l.freeLabelSpot(frame, w, sizeLegend)
+	if base != frame.Y-4 {
+		t.Fatalf("label baseline %v, want above the frame at %v", base, frame.Y-4)
+	}
+	if bondX := 30.0; x <= bondX+l.bond && x+w >= bondX-l.bond {
+		t.Errorf("label [%v, %v] crosses the vertical bond at x = %v", x, x+w, bondX)
+	}
+}
