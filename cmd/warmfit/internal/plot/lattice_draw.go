@@ -7,6 +7,7 @@ import (
 	"math"
 	"slices"
 	"strconv"
+	"strings"
 
 	"warmfit/lattice"
 )
@@ -135,14 +136,70 @@ func LatticeFigure(g Geometry) *Document {
 	l.bond = 2.5
 	pad := latticeMargin + l.radius
 	caption := g.caption()
+	keys := sublatticeKeys(g)
 	content := (l.hi[0]-l.lo[0])*l.scale + 2*pad
 	width := math.Max(content, textWidth(caption, sizeNote, false)+latticeMargin)
 	height := (l.hi[1]-l.lo[1])*l.scale + 2*pad + latticeCaption
+	if len(keys) > 0 {
+		width = math.Max(width, sublatticeLegendWidth(keys)+latticeMargin)
+		height += latticeCaption
+	}
 	l.ox, l.oy = pad+(width-content)/2, pad
 	d := New(math.Ceil(width), math.Ceil(height), g.Name)
 	d.drawLattice(l, LatticeLayers{Numbers: true})
+	if len(keys) > 0 {
+		d.sublatticeLegend(latticeMargin/2, height-latticeCaption*1.5, keys)
+	}
 	d.Text(latticeMargin/2, height-latticeCaption/2, caption, TextStyle{Size: sizeNote, Color: mutedColor})
 	return d
+}
+
+// sublatticeKeys are the legend texts of the site fills of the plain
+// style, one per position in the unit cell ("A: sites 0, 3, 6, …"), or
+// none for one site per cell or more positions than fills.
+func sublatticeKeys(g Geometry) []string {
+	cell := g.CellSites
+	if cell < 2 || cell > len(cellFills) {
+		return nil
+	}
+	keys := make([]string, cell)
+	for k := range keys {
+		var sites []string
+		for i := k; i < len(g.Coords) && len(sites) < 3; i += cell {
+			sites = append(sites, fmt.Sprint(i))
+		}
+		keys[k] = fmt.Sprintf("%c: sites %s, …", 'A'+k, strings.Join(sites, ", "))
+	}
+	return keys
+}
+
+const (
+	sublatticeSwatch = 7.0  // radius of a legend circle
+	sublatticeGap    = 18.0 // between legend entries
+	sublatticeTitle  = "sublattice (position in the unit cell):"
+)
+
+func sublatticeLegendWidth(keys []string) float64 {
+	w := textWidth(sublatticeTitle, sizeNote, false)
+	for _, k := range keys {
+		w += sublatticeGap + 2*sublatticeSwatch + 4 + textWidth(k, sizeNote, false)
+	}
+	return w
+}
+
+// sublatticeLegend explains the site fills of the plain style on one line
+// whose text baseline is at y.
+func (d *Document) sublatticeLegend(x, y float64, keys []string) {
+	st := TextStyle{Size: sizeNote, Color: mutedColor}
+	d.Text(x, y, sublatticeTitle, st)
+	x += textWidth(sublatticeTitle, sizeNote, false)
+	for k, key := range keys {
+		x += sublatticeGap
+		d.Circle(x+sublatticeSwatch, y-sizeNote/3, sublatticeSwatch, &Fill{Color: cellFills[k]}, Stroke{Color: inkColor, Width: 1})
+		x += 2*sublatticeSwatch + 4
+		d.Text(x, y, key, st)
+		x += textWidth(key, sizeNote, false)
+	}
 }
 
 // Lattice draws the geometry scaled to fit box, coloured by the layers,

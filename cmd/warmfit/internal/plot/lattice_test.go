@@ -59,9 +59,11 @@ func TestLatticeFigure(t *testing.T) {
 				labels[k] = true
 			}
 		}
-		if st.elements["circle"] != l.NumSites() || len(labels) != l.NumSites() || st.elements["line"] != wantLines {
+		// One circle per site, and a legend swatch per sublattice.
+		wantCircles := l.NumSites() + len(sublatticeKeys(LatticeGeometry(l)))
+		if st.elements["circle"] != wantCircles || len(labels) != l.NumSites() || st.elements["line"] != wantLines {
 			t.Errorf("%s: %d circles, %d labels, %d lines; want %d, %d, %d",
-				tt.spec, st.elements["circle"], len(labels), st.elements["line"], l.NumSites(), l.NumSites(), wantLines)
+				tt.spec, st.elements["circle"], len(labels), st.elements["line"], wantCircles, l.NumSites(), wantLines)
 		}
 	}
 }
@@ -111,6 +113,7 @@ func TestLatticeFigureSitePositions(t *testing.T) {
 	for _, spec := range []string{"honeycomb:3x3:periodic:shells=2", "kagome:2x3", "triangular:4x3", "square:3x3"} {
 		l := mustOpen(t, spec)
 		c := circleCentres(t, render(t, spec, LatticeFigure(LatticeGeometry(l))))
+		c = c[:min(len(c), l.NumSites())] // the sublattice legend's swatches follow the sites
 		if len(c) != l.NumSites() {
 			t.Fatalf("%s: %d circles for %d sites", spec, len(c), l.NumSites())
 		}
