@@ -8,6 +8,7 @@ import (
 	"slices"
 	"strings"
 
+	"warmfit/cluster"
 	"warmfit/lattice"
 )
 
@@ -26,7 +27,7 @@ type Estimates struct {
 	Shots []int64
 	// Cov is the covariance matrix of Values: Stderr² on the diagonal and
 	// the kept covariances off it (see CovarianceOptions).
-	Cov     *SparseSym
+	Cov     *cluster.SparseSym
 	Missing []int
 }
 
@@ -100,7 +101,7 @@ func newEstimates(n int) *Estimates {
 		Values: make([]float64, n),
 		Stderr: make([]float64, n),
 		Shots:  make([]int64, n),
-		Cov:    NewSparseSym(n),
+		Cov:    cluster.NewSparseSym(n),
 	}
 }
 

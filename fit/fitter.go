@@ -249,7 +249,7 @@ func newFitter(p *Problem, opt Options) (*fitter, error) {
 	}
 	b := f.params.project(f.cov, 1)
 	f.sigma = make([]float64, f.params.NumParams())
-	for q, d := range b.diag() {
+	for q, d := range b.Diag() {
 		f.sigma[q] = math.Sqrt(math.Max(d, 0))
 	}
 	// A Pauli expectation in a full-rank state lies strictly inside

@@ -77,7 +77,7 @@ func bulkFigure(r *bulkRun, q bulk.Quantity, series []int) (*plot.Document, erro
 	top := d.Heading(quantityTitles[q][0]+": data and fitted models", sub)
 	ps := d.Stack(plot.Rect{X: 24, Y: top, W: 852, H: 600 - top - 10}, plot.Axis{Label: xLabel, Min: xlo, Max: xhi, Log: logX},
 		plot.Row{Title: quantityTitles[q][0], Y: plot.Axis{Label: quantityTitles[q][1], Min: ylo - pad, Max: yhi + pad}, Weight: 3},
-		plot.Row{Y: plot.Axis{Label: "residual / σ", Min: -4, Max: 4, Tight: true}, Weight: 1.2})
+		plot.Row{Y: plot.Axis{Label: "residual / σ", Min: -4, Max: 4, Tight: true, Step: 2}, Weight: 1.2})
 	shade := plot.Fill{Color: plot.Diverging.At(0.42), Alpha: 0.45}
 	var entries []plot.LegendEntry
 	if q != bulk.Magnetization {
