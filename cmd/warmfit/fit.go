@@ -518,7 +518,7 @@ func fitWriteCSV(w io.Writer, res *fit.Result, cmp *fit.TruthComparison) error {
 		if cmp != nil {
 			z := ""
 			if v := cmp.Z[k]; !math.IsNaN(v) && !math.IsInf(v, 0) {
-				z = strconv.FormatFloat(v, 'g', 6, 64)
+				z = fmtExact(v)
 			}
 			rec = append(rec, strconv.FormatFloat(cmp.True[k], 'g', -1, 64), z)
 		}

@@ -253,7 +253,7 @@ func predictByExpansion(env *runEnv, m *model.Model, beta float64, order int, to
 		}
 		t.Rows = append(t.Rows, fit.Row{
 			Pauli: term.Pauli, Sites: term.Sites, Value: c.Value,
-			Extra: []string{fmtFloat(c.LastStep), fmtFloat(c.Error), fmtFloat(c.Resummed), strconv.FormatBool(c.Trusted)},
+			Extra: []string{fmtExact(c.LastStep), fmtExact(c.Error), fmtExact(c.Resummed), strconv.FormatBool(c.Trusted)},
 		})
 	}
 	bound := cluster.SufficientBeta(m.Terms, coeffs)
