@@ -286,9 +286,9 @@ func checkFitScale(o *fitFlags, tmpl *model.Model, calibration *fit.Calibration,
 		calibration = &c
 	}
 	switch mo := fitMethodOptions; {
-	case calibration != nil && mo.method == "stationary":
+	case calibration != nil && mo.method == fitMethodStationary:
 		return nil, usagef("--scale-from fixes the scale of the expansion fit at unknown temperature; --method stationary takes its known coefficients from --calibrate NAME=VALUE")
-	case mo.calibrate != "" && mo.method == "expansion":
+	case mo.calibrate != "" && mo.method == fitMethodExpansion:
 		return nil, usagef("--calibrate is for --method stationary (or auto); the expansion fit at unknown temperature fixes its energy scale with --scale-from TERM=VALUE (one calibrated coefficient) or --scale-from beta=B")
 	}
 	if calibration != nil && beta > 0 {

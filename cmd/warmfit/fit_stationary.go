@@ -23,10 +23,19 @@ import (
 // estimator (the expansion's maximum-entropy fit or the stationarity
 // constraints of fit/stationary).
 var fitMethodOptions struct {
-	method    string
+	method    fitMethod
 	calibrate string
 	farPairs  bool
 }
+
+// fitMethod is the value of fit --method: the estimator.
+type fitMethod string
+
+const (
+	fitMethodExpansion  fitMethod = "expansion"  // maximum entropy on the linked-cluster expansion
+	fitMethodStationary fitMethod = "stationary" // stationarity constraints (fit/stationary)
+	fitMethodAuto       fitMethod = "auto"       // expansion, stationary where it is not trusted
+)
 
 const fitMethodLong = `
 
@@ -54,7 +63,7 @@ trusted; otherwise it uses stationary, and says which it used. For example:
 // addFitMethodFlags registers the method flags on the fit command.
 func addFitMethodFlags(fs *pflag.FlagSet) {
 	o := &fitMethodOptions
-	fs.StringVar(&o.method, "method", "expansion", "estimator: expansion, stationary or auto")
+	fs.StringVar((*string)(&o.method), "method", string(fitMethodExpansion), "estimator: expansion, stationary or auto")
 	fs.StringVar(&o.calibrate, "calibrate", "", "stationary: known coefficients `NAME=VALUE,...` (NAME a term key like ZZ:0:1, or a group)")
 	fs.BoolVar(&o.farPairs, "far-pairs", false, "stationary: also probe pairs of sites at distance two (symmetric models)")
 }
@@ -62,21 +71,22 @@ func addFitMethodFlags(fs *pflag.FlagSet) {
 // fitMethodFirst runs the stationarity method when --method stationary
 // and reports done; for expansion and auto the expansion fit runs first.
 func fitMethodFirst(env *runEnv, tmpl *model.Model, beta float64) (done bool, err error) {
-	switch fitMethodOptions.method {
-	case "expansion", "auto":
-		return false, nil
-	case "stationary":
-		fmt.Fprintln(env.Stderr, "fit: method stationary (--method stationary)")
-		return true, runFitStationary(env, tmpl, beta)
+	method, err := parseChoice("--method", string(fitMethodOptions.method), fitMethodExpansion, fitMethodStationary, fitMethodAuto)
+	if err != nil {
+		return true, err
 	}
-	return true, usagef("--method %q: want expansion, stationary or auto", fitMethodOptions.method)
+	if method != fitMethodStationary {
+		return false, nil
+	}
+	fmt.Fprintln(env.Stderr, "fit: method stationary (--method stationary)")
+	return true, runFitStationary(env, tmpl, beta)
 }
 
 // fitMethodAfter decides, for --method auto, whether the expansion fit
 // (res, err) is trusted; when it is not, it runs the stationarity method
 // and reports done.
 func fitMethodAfter(env *runEnv, tmpl *model.Model, beta float64, res *fit.Result, fitErr error) (done bool, err error) {
-	if fitMethodOptions.method != "auto" {
+	if fitMethodOptions.method != fitMethodAuto {
 		return false, nil
 	}
 	why := ""
