@@ -532,8 +532,8 @@ func (f *fitter) autoOrder(theta0 []float64, start time.Time) (*Result, error) {
 		if !of.out.converged && !deadline.IsZero() && f.opt.now().After(deadline) {
 			// Abandoned by the guard: this order is within the work
 			// limit (it was started), so the stop depends on the machine.
-			budgetStop = fmt.Sprintf("stopped by the %s budget (machine-dependent): order %d, within the work limit, was abandoned when the time ran out; raise --budget for a reproducible result",
-				describeBudget(f.opt.Budget), L)
+			budgetStop = fmt.Sprintf("stopped by the %s budget (machine-dependent): order %d, within %s, was abandoned when the time ran out; raise --budget for a reproducible result",
+				describeBudget(f.opt.Budget), L, f.limitName())
 			break
 		}
 		if of.out.converged {
@@ -581,8 +581,8 @@ func (f *fitter) autoOrder(theta0 []float64, start time.Time) (*Result, error) {
 		needTime := f.nextOrderTime(of)
 		f.opt.logf("order %d: predicted to cost %s; here about %s (from order %d's %s)", L+1, describeWork(needWork), roundDuration(needTime), L, roundDuration(of.elapsed))
 		if rest := f.opt.Budget - f.opt.now().Sub(start); needTime > rest {
-			budgetStop = fmt.Sprintf("stopped at order %d by the %s budget (machine-dependent): order %d would take about %s here, more than the %s left, but it is within the work limit; raise --budget for a reproducible result",
-				L, describeBudget(f.opt.Budget), L+1, roundDuration(needTime), roundDuration(max(rest, 0)))
+			budgetStop = fmt.Sprintf("stopped at order %d by the %s budget (machine-dependent): order %d would take about %s here, more than the %s left, but it is within %s; raise --budget for a reproducible result",
+				L, describeBudget(f.opt.Budget), L+1, roundDuration(needTime), roundDuration(max(rest, 0)), f.limitName())
 			break
 		}
 	}

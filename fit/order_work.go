@@ -130,3 +130,12 @@ func describeBudget(d time.Duration) string {
 	}
 	return d.String()
 }
+
+// limitName names the machine-independent limit of the automatic order
+// for messages: the work limit, or MaxOrder, which replaces it.
+func (f *fitter) limitName() string {
+	if f.opt.MaxOrder > 0 {
+		return fmt.Sprintf("the maximum order %d", f.opt.MaxOrder)
+	}
+	return "the work limit"
+}
