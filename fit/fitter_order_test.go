@@ -63,6 +63,16 @@ func TestFitOrderIndependentOfClock(t *testing.T) {
 		if fast.Order != slow.Order || !slices.Equal(fast.Truncation.Orders, slow.Truncation.Orders) || !slices.Equal(fast.Theta, slow.Theta) {
 			t.Errorf("work limit %.3g: fast clock order %d (%v), slow clock order %d (%v)", maxWork, fast.Order, fast.Truncation.Orders, slow.Order, slow.Truncation.Orders)
 		}
+		if fast.Truncation.OK {
+			continue
+		}
+		byWork := false
+		for _, n := range fast.Notes {
+			byWork = byWork || strings.Contains(n, "by the work limit")
+		}
+		if !byWork {
+			t.Errorf("work limit %.3g: the rise stopped at order %d short of the target, and no note says the work limit stopped it: %q", maxWork, fast.Order, fast.Notes)
+		}
 	}
 	// The guard: at an hour per clock reading the default 60 s budget
 	// binds after the first order, and the result says so.
