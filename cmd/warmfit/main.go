@@ -8,7 +8,6 @@ import (
 	"fmt"
 	"io"
 	"os"
-	"sort"
 	"strings"
 
 	"github.com/spf13/pflag"
@@ -83,7 +82,7 @@ func run(env *runEnv, args []string) int {
 		if len(args) > 1 {
 			c, ok := commands[args[1]]
 			if !ok {
-				fmt.Fprintf(env.Stderr, "warmfit help: unknown command %q\n", args[1])
+				fmt.Fprintf(env.Stderr, "warmfit help: unknown command %q%s\n%s", args[1], didYouMean(args[1], commandNames()), commandListHint)
 				return exitUsage
 			}
 			printCommandHelp(env.Stdout, c, nil)
@@ -94,7 +93,7 @@ func run(env *runEnv, args []string) int {
 	}
 	c, ok := commands[name]
 	if !ok {
-		fmt.Fprintf(env.Stderr, "warmfit: unknown command %q\n%s", name, commandListHint)
+		fmt.Fprintf(env.Stderr, "warmfit: unknown command %q%s\n%s", name, didYouMean(name, commandNames()), commandListHint)
 		return exitUsage
 	}
 	fs, strict := commandFlags(c)
@@ -105,7 +104,7 @@ func run(env *runEnv, args []string) int {
 			printCommandHelp(env.Stdout, c, fs)
 			return exitOK
 		}
-		fmt.Fprintf(env.Stderr, "warmfit %s: %v\n%s", c.Name, err, commandHelpHint(c.Name))
+		fmt.Fprintf(env.Stderr, "warmfit %s: %v%s\n%s", c.Name, err, flagSuggestion(err, fs), commandHelpHint(c.Name))
 		return exitUsage
 	}
 	counter := &warningCounter{w: env.Stderr}
@@ -134,11 +133,7 @@ func printCommandList(w io.Writer) {
 Run it as: warmfit COMMAND [flags] [arguments]. The commands:
 
 `)
-	names := make([]string, 0, len(commands))
-	for n := range commands {
-		names = append(names, n)
-	}
-	sort.Strings(names)
+	names := commandNames()
 	width := 0
 	for _, n := range names {
 		width = max(width, len(n))

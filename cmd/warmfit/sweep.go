@@ -327,10 +327,10 @@ func writeSweep(w io.Writer, env *runEnv, r *cluster.ThermoResult, tol float64, 
 			if math.IsNaN(v) || math.IsInf(v, 0) {
 				return fmt.Errorf("beta %g: non-finite thermodynamic value; the expansion broke down", beta)
 			}
-			bw.WriteString(strconv.FormatFloat(v, 'g', 10, 64))
+			bw.WriteString(fmtExact(v))
 			bw.WriteByte(',')
 		}
-		fmt.Fprintf(bw, "%s,%s,%t\n", fmtFloat(e.Error), fmtFloat(c.Error), trust.Trusted[i])
+		fmt.Fprintf(bw, "%s,%s,%t\n", fmtExact(e.Error), fmtExact(c.Error), trust.Trusted[i])
 	}
 	if trust.Edge > 0 {
 		meta.set("untrusted_from_beta", trust.Edge)
