@@ -165,11 +165,15 @@ func writeOrvaniteCurve(env *runEnv, path string, c orvaniteCurve, models []bulk
 	// below the expansion's trusted range chi and M come from the
 	// infinite-chain interpolation instead (the free spins' Curie tail
 	// and Brillouin M are added the same way as in the fitted model).
+	scale := 1.0
+	if c.q == bulk.Susceptibility {
+		scale = orvaniteChiMatch(s.Points, vals, expansionTrusted)
+	}
 	for k, p := range s.Points {
 		switch {
 		case expansionTrusted[k]:
 		case c.q == bulk.Susceptibility:
-			vals[k] = orvaniteChi(p.T)
+			vals[k] = orvaniteChi(p.T, scale)
 		case c.q == bulk.Magnetization:
 			vals[k] = orvaniteM(p.T, p.H)
 		}
@@ -198,12 +202,34 @@ func writeOrvaniteCurve(env *runEnv, path string, c orvaniteCurve, models []bulk
 
 // orvaniteChi is the true chi(T) of orvanite (emu/mol) from the
 // interpolation of the infinite spin-1/2 Heisenberg chain susceptibility
-// in chainChiPerSite, with the free-spin Curie tail rho/(4T) and chi0, in
-// the form the fitted model uses (fit/bulk.Candidate).
-func orvaniteChi(t float64) float64 {
+// in chainChiPerSite times scale, with the free-spin Curie tail
+// rho/(4T) and chi0, in the form the fitted model uses
+// (fit/bulk.Candidate).
+func orvaniteChi(t, scale float64) float64 {
 	g, rho := orvaniteTruth[bulk.ParamG], orvaniteTruth[bulk.ParamImpurity]
 	u := g * g * bulk.MolarSusceptibilityUnit
-	return u*((1-rho)*chainChiPerSite(t, orvaniteTruth[bulk.ParamJ])+rho/(4*t)) + orvaniteTruth[bulk.ParamChi0]
+	return u*((1-rho)*scale*chainChiPerSite(t, orvaniteTruth[bulk.ParamJ])+rho/(4*t)) + orvaniteTruth[bulk.ParamChi0]
+}
+
+// orvaniteChiMatch is the factor that makes the interpolation meet the
+// expansion at its coldest trusted point (about 1% there), so the
+// synthetic curve has no step where one takes over from the other; 1
+// when the expansion trusts no point.
+func orvaniteChiMatch(pts []bulk.Point, vals []float64, trusted []bool) float64 {
+	k0 := -1
+	for k, p := range pts {
+		if trusted[k] && (k0 < 0 || p.T < pts[k0].T) {
+			k0 = k
+		}
+	}
+	if k0 < 0 {
+		return 1
+	}
+	t := pts[k0].T
+	g, rho := orvaniteTruth[bulk.ParamG], orvaniteTruth[bulk.ParamImpurity]
+	u := g * g * bulk.MolarSusceptibilityUnit
+	chain := (vals[k0] - orvaniteTruth[bulk.ParamChi0] - u*rho/(4*t)) / (u * (1 - rho))
+	return chain / chainChiPerSite(t, orvaniteTruth[bulk.ParamJ])
 }
 
 // orvaniteM is the true M(T, H) of orvanite (mu_B per formula unit)

@@ -56,6 +56,7 @@ func TestBulkDemoChiHasImpurityTail(t *testing.T) {
 	zeroT := 1 / (math.Pi * math.Pi * j)
 	for _, chainChi := range []float64{zeroT, zeroT * (1 + 1/(2*math.Log(7.7*j/tK)))} {
 		want := tail + orvaniteTruth[bulk.ParamChi0] + (1-rho)*u*chainChi
+		t.Logf("chi(2 K) = %.5g emu/mol; reference %.5g (tail %.4g, chain %.4g)", chi, want, tail, (1-rho)*u*chainChi)
 		if math.Abs(chi/want-1) > 0.05 {
 			t.Errorf("chi(2 K) = %.5g emu/mol, want %.5g within 5%% (tail %.4g + chain %.4g)", chi, want, tail, (1-rho)*u*chainChi)
 		}
