@@ -36,6 +36,8 @@ type SparseSym struct {
 }
 
 // NewSparseSym returns an n×n symmetric matrix with no stored entries.
+// Columns are stored as int32, so it panics for n > math.MaxInt32 (and
+// for n < 0).
 func NewSparseSym(n int) *SparseSym {
 	if n < 0 || n > math.MaxInt32 {
 		panic(fmt.Sprintf("cluster: SparseSym dimension %d out of range", n))
