@@ -54,8 +54,13 @@
 // change of the coefficients measures the truncation error, which the
 // Result compares with the statistical error; the automatic order rises
 // until truncation is negligible against statistics, within
-// cluster.OrderPolicy's work limit (machine-independent), with the
-// wall-clock budget only a guard.
+// cluster.OrderPolicy's ceiling and per-evaluation work limit and the
+// fit's own limit Options.MaxFitWork on the work of all its evaluations
+// (order_work.go): work units and Newton iteration counts, so that the
+// same data give the same order on every machine. The wall-clock
+// Options.Budget is only a guard; when it stops the rise first,
+// Result.StoppedByBudget is set and a Warning says the order depends on
+// the machine.
 //
 // # Error bars and planning
 //

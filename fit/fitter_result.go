@@ -36,6 +36,11 @@ type Result struct {
 	EnergyScale *EnergyScale
 	// Order is the expansion order of the answer.
 	Order int
+	// StoppedByBudget is true when the automatic order was stopped by the
+	// wall-clock Options.Budget rather than by the convergence or the
+	// work limit: the order then depends on the machine and its load, and
+	// a Warning says so.
+	StoppedByBudget bool
 
 	// Converged reports that Newton met the stopping rule; when false,
 	// Reason says why and the other fields describe the best iterate.

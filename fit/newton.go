@@ -79,6 +79,8 @@ type newtonProblem struct {
 	logf  func(format string, args ...any)
 	// deadline, when not zero, stops the minimisation once passed.
 	deadline time.Time
+	// now reads the clock for the deadline; nil means time.Now.
+	now func() time.Time
 	// minIter forces that many Newton steps even when the start already
 	// meets the tolerance: a refit at another order from a solution must
 	// move by the change the order makes, or the truncation error would

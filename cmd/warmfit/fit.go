@@ -121,10 +121,15 @@ orders L-2 and L-1 are fitted first, each from the solution below, and measure
 the truncation error (the larger of the last two changes
 of any coefficient: partial sums can stall for one order). With --order auto (the
 default), the order rises until that error is at most 0.1 x the median statistical
-error, the order reaches the automatic ceiling (as for predict: 8 in two dimensions,
-or the number of sites of a small lattice, where the expansion is exact), or --budget
-runs out (the next order's cost is predicted before it is started); the notes say
-which stopped it, and the report says plainly when the truncation error is larger. The report also gives the sufficient-temperature bound,
+error, the order reaches the automatic ceiling (8 in two dimensions, or the number of
+sites of a small lattice, where the expansion is exact), or the next order would take
+the fit past its work limit (6e10 units of D^3
+work, about a minute on the reference 2-core machine, counted from the cost model
+and the Newton iterations, so the same data give the same order on any machine);
+the report says plainly when the truncation error is larger. --budget only guards
+the wall time: when this machine is too slow for it and it stops the rise first,
+a WARNING says the order is machine-dependent ("order_stopped_by_budget" in the
+report) and that a larger --budget gives the reproducible result. The report also gives the sufficient-temperature bound,
 the number of term expectations whose expansion has not converged, chi^2/dof for
 tied groups, and, with --truth, z-scores and L2/Linf errors.
 

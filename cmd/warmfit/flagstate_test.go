@@ -13,9 +13,9 @@ import (
 
 // registerFlags builds a command's flag set the way the runner does.
 func registerFlags(c *command) *pflag.FlagSet {
-	fs, _ := commandFlags(c) // the runner's own registration, --strict included where it applies
-	checkFreshFlags(fs)
+	fs, _ := commandFlags(c)
 	fs.SetOutput(new(strings.Builder))
+	checkFreshFlags(fs)
 	return fs
 }
 

@@ -387,15 +387,15 @@ const defaultTypicalityVectors = 16
 
 // admitExpansion predicts an expansion run before it starts: an explicit
 // order is estimated and refused past the memory or --budget; an
-// automatic choice says where it starts and that each further order is
-// predicted before it is started.
+// automatic choice says where it starts, that further orders are chosen
+// by work units and that the budget only guards.
 func admitExpansion(env *runEnv, cmd string, exp *cluster.Expansion, sites, order int, policy cluster.OrderPolicy, budget time.Duration) error {
 	if order > 0 {
 		return admit(env.Stderr, cmd, expansionEstimate(exp, sites, order, "--order"), budget)
 	}
 	e := expansionEstimate(exp, sites, policy.Start, "--order")
-	fmt.Fprintf(env.Stderr, "%s: estimate: %s, about %s to start --order auto; each higher order is predicted before it starts and not begun past --budget %v\n",
-		cmd, e.What, describeTime(e.Duration), budget)
+	fmt.Fprintf(env.Stderr, "%s: estimate: %s, about %s to start --order auto; higher orders are chosen within a machine-independent work limit, and --budget %v only guards the wall time (a stop by it is reported as machine-dependent)\n",
+		cmd, e.What, describeTime(e.Duration), describeBudgetFlag(budget))
 	return nil
 }
 
