@@ -51,7 +51,9 @@
 // sectors both connect.
 //
 // Expansion.Evaluate with Options.Response sums the clusters' responses
-// into a sparse matrix (Result.Response); Options.ResponseOrder takes it
+// into a SparseSym (Result.Response), the module's one sparse symmetric
+// matrix: package fit keeps data covariances and its parameter-space
+// Hessians in it too (sparse.go); Options.ResponseOrder takes it
 // at a lower order than the expectations in the same pass, which a fitter
 // uses as a cheap curvature (the Kubo–Mori sums of the largest clusters
 // cost about four times their diagonalisation). The sum runs in a dense

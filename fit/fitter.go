@@ -273,7 +273,7 @@ func newFitter(p *Problem, opt Options) (*fitter, error) {
 	}
 	b := f.params.project(f.cov, 1)
 	f.sigma = make([]float64, f.params.NumParams())
-	for q, d := range b.diag() {
+	for q, d := range b.Diag() {
 		f.sigma[q] = math.Sqrt(math.Max(d, 0))
 	}
 	// A Pauli expectation in a full-rank state lies strictly inside
@@ -501,7 +501,10 @@ func (f *fitter) autoOrder(theta0 []float64, start time.Time) (*Result, error) {
 		policy = cluster.NewOrderPolicy(f.prob.Lattice, f.prob.Terms)
 	}
 	first := max(f.minL, f.opt.StartOrder)
-	last := min(f.sites, policy.Ceiling)
+	// Without MaxOrder the policy stops the rise (its ceiling, which a
+	// small lattice may pass up to its number of sites, and its work
+	// limit), and the note says which.
+	last := f.sites
 	if f.opt.MaxOrder > 0 {
 		last = min(f.sites, cluster.MaxDenseQubits, f.opt.MaxOrder)
 	}
@@ -546,7 +549,11 @@ func (f *fitter) autoOrder(theta0 []float64, start time.Time) (*Result, error) {
 				statErr = f.statisticalScale(of)
 			}
 			tr := f.truncation(history, statErr)
-			f.opt.logf("order %d: truncation error %s against target %.3g (this order: %s, took %s)", L, fmtMaybe(tr.Error, tr.Known), tr.Target,
+			units := ""
+			if f.prob.Beta <= 0 {
+				units = " (units of beta*lambda)"
+			}
+			f.opt.logf("order %d: truncation error %s against target %.3g%s (this order: %s, took %s)", L, fmtMaybe(tr.Error, tr.Known), tr.Target, units,
 				describeWork(of.work), roundDuration(of.elapsed))
 			if tr.Known && tr.OK {
 				break
@@ -559,6 +566,12 @@ func (f *fitter) autoOrder(theta0 []float64, start time.Time) (*Result, error) {
 			notes = append(notes, fmt.Sprintf("the fit at order %d did not converge: %s", L, of.out.reason))
 		}
 		if L == last {
+			switch {
+			case L < f.sites && L == f.opt.MaxOrder:
+				notes = append(notes, fmt.Sprintf("stopped at order %d: the --max-order limit (order %d would cover all %d sites and be exact)", L, f.sites, f.sites))
+			case L < f.sites:
+				notes = append(notes, fmt.Sprintf("stopped at order %d: clusters of more than %d sites are not diagonalised", L, cluster.MaxDenseQubits))
+			}
 			break
 		}
 		// The decision: machine-independent work units. The next order

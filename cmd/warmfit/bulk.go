@@ -73,7 +73,7 @@ func init() {
 			fs.StringVar((*string)(&o.phonon), "phonon", string(phononT3), "lattice heat capacity: T3 (a T^3), T3+T5 (a T^3 + b T^5) or none")
 			fs.Float64Var(&o.perFormula, "sites-per-formula", 1, "magnetic spin-1/2 sites per formula unit (molar curves are per mole of formula units)")
 			fs.StringSliceVar(&o.unknownErr, "unknown-stderr", nil, "`QUANTITIES` (chi,C,M) whose errors are unknown: estimated from the residual scatter")
-			fs.Float64Var(&o.cwAbove, "cw-above", 0, "lowest temperature (K) of the Curie–Weiss first look (default: upper half of the chi range)")
+			fs.Float64Var(&o.cwAbove, "cw-above", 0, "lowest temperature (K) of the Curie–Weiss first look (default: a quarter of the hottest chi temperature)")
 			fs.BoolVar(&o.cwChi0, "cw-chi0", true, "fit a temperature-independent chi0 in the Curie–Weiss first look")
 			fs.Float64Var(&o.rejectBelow, "reject-below", bulk.DefaultRejectBelow, "p-value below which a candidate is rejected")
 			fs.StringVar((*string)(&o.engine), "engine", string(engineExpansion), "forward model: expansion (linked-cluster expansion of the infinite lattice) or clusters (exact diagonalisation of 12-site periodic clusters; faster, trusted only higher)")
@@ -127,7 +127,9 @@ range, and a ranking: candidates with p < --reject-below are rejected, the rest 
 ordered by AIC on the points every candidate trusts. Warnings go to stderr and into the
 JSON.
 
-The --curves CSV: ` + csvOutputHelp
+--curves FILE writes the data against each candidate's curve as CSV, one row per data
+point and candidate.
+` + csvOutputHelp
 
 const bulkExample = `# the invented demo compound: curves, fit, figures in ./orvanite
 warmfit bulk --demo orvanite
