@@ -515,6 +515,7 @@ func (f *fitter) autoOrder(theta0 []float64, start time.Time) (*Result, error) {
 	var notes []string
 	var failed *orderFit // the last order that did not converge
 	var budgetStop string
+	abandoned := 0 // the order the budget cut short, if any
 	statErr := -1.0
 	theta := theta0
 	for L := first; L <= last; L++ {
@@ -535,8 +536,7 @@ func (f *fitter) autoOrder(theta0 []float64, start time.Time) (*Result, error) {
 		if !of.out.converged && !deadline.IsZero() && f.opt.now().After(deadline) {
 			// Abandoned by the guard: this order is within the work
 			// limit (it was started), so the stop depends on the machine.
-			budgetStop = fmt.Sprintf("stopped by the %s budget (machine-dependent): order %d, within %s, was abandoned when the time ran out; raise --budget for a reproducible result",
-				describeBudget(f.opt.Budget), L, f.limitName())
+			abandoned = L
 			break
 		}
 		if of.out.converged {
@@ -609,6 +609,10 @@ func (f *fitter) autoOrder(theta0 []float64, start time.Time) (*Result, error) {
 			notes = append(notes, fmt.Sprintf("the result is from order %d, the highest that converged", main.order))
 		}
 		res, err = f.finish(main, history, notes)
+	}
+	if err == nil && abandoned > 0 {
+		budgetStop = fmt.Sprintf("stopped at order %d by the %s budget (machine-dependent): order %d, within %s, was abandoned when the time ran out; raise --budget for a reproducible result",
+			res.Order, describeBudget(f.opt.Budget), abandoned, f.limitName())
 	}
 	if err == nil && budgetStop != "" {
 		res.StoppedByBudget = true

@@ -92,3 +92,36 @@ func TestFitOrderIndependentOfClock(t *testing.T) {
 		t.Error("the report does not record the budget's stop")
 	}
 }
+
+// The guard's other stop: an order past the first that is still running
+// when the budget runs out is abandoned, the answer is the order below,
+// and the result says the stop depends on the machine. The clock jumps an
+// hour once the second order has taken its first Newton step.
+func TestFitBudgetAbandonsOrder(t *testing.T) {
+	lat, terms := randomModel(t, "square:3x3", "xxz", map[string]float64{"Jxy": 1, "Jz": 0.7, "hz": 0.5, "hx": 0.4}, 0, 12)
+	beta := scaleToBeta(terms, 0.3)
+	_, vals := exactData(t, lat.NumSites(), terms, beta)
+	clock := &fakeClock{now: time.Date(2026, 1, 1, 0, 0, 0, 0, time.UTC), step: time.Microsecond}
+	res, err := fit.Fit(&fit.Problem{Lattice: lat, Terms: template(terms), Data: gaussianData(vals, 1e-4, 6), Beta: beta},
+		fit.Options{StartOrder: 2, Clock: clock.read, Log: func(format string, args ...any) {
+			if strings.HasPrefix(format, "order %d, iteration") && args[0] == 3 {
+				clock.mu.Lock()
+				clock.step = time.Hour
+				clock.mu.Unlock()
+			}
+		}})
+	if err != nil {
+		t.Fatal(err)
+	}
+	t.Logf("order %d, by budget %v, warnings %q", res.Order, res.StoppedByBudget, res.Warnings)
+	if res.Order != 2 || !res.StoppedByBudget {
+		t.Fatalf("order %d, stopped by budget %v: want order 2 with the budget's stop", res.Order, res.StoppedByBudget)
+	}
+	found := false
+	for _, w := range res.Warnings {
+		found = found || strings.Contains(w, "stopped at order 2 by the 60 s budget") && strings.Contains(w, "order 3, within the work limit, was abandoned") && strings.Contains(w, "machine-dependent")
+	}
+	if !found {
+		t.Errorf("no warning that order 3 was abandoned by the budget: %q", res.Warnings)
+	}
+}
