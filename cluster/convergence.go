@@ -126,7 +126,8 @@ func Wynn(s []float64) float64 {
 }
 
 // TermConvergence judges the series of every term expectation at
-// tolerance tol (absolute, in units of the expectation value).
+// tolerance tol (absolute, in units of the expectation value). At an order
+// that covers every site the expansion is exact: Error 0, Trusted.
 func (r *Result) TermConvergence(terms []lattice.Term, tol float64) []Convergence {
 	out := make([]Convergence, len(terms))
 	series := make([]float64, r.Order)
@@ -135,6 +136,11 @@ func (r *Result) TermConvergence(terms []lattice.Term, tol float64) []Convergenc
 			series[o] = r.Expect[o][k]
 		}
 		out[k] = Converge(series, len(t.Sites), tol)
+		if r.NumSites > 0 && r.Order >= r.NumSites {
+			// Clusters up to the whole lattice: the sum is the lattice's
+			// own value (inclusion-exclusion), with no truncation left.
+			out[k].Error, out[k].Trusted = 0, true
+		}
 	}
 	return out
 }

@@ -202,4 +202,3 @@ func describeDuration(d time.Duration) string {
 		return fmt.Sprintf("%.3g h", s/3600)
 	}
 }
-

@@ -51,7 +51,9 @@
 // sectors both connect.
 //
 // Expansion.Evaluate with Options.Response sums the clusters' responses
-// into a sparse matrix (Result.Response); Options.ResponseOrder takes it
+// into a SparseSym (Result.Response), the module's one sparse symmetric
+// matrix: package fit keeps data covariances and its parameter-space
+// Hessians in it too (sparse.go); Options.ResponseOrder takes it
 // at a lower order than the expectations in the same pass, which a fitter
 // uses as a cheap curvature (the Kubo–Mori sums of the largest clusters
 // cost about four times their diagonalisation). The sum runs in a dense
@@ -130,6 +132,16 @@
 // diagonalised sector by sector, once for all fields (the field only
 // shifts a level by -h m); with the spin flip also a symmetry, only the
 // sectors m >= 0 are diagonalised and m = 0 is split by flip parity.
+// When every coupling is isotropic exchange (sums of w (XX + YY + ZZ),
+// as in HeisenbergModel, J1-J2 models, ladders) the blocks are those of
+// total spin instead (uniform_su2.go): the Hamiltonian is a combination
+// of transpositions of sites, acting on the irreducible representation of
+// the symmetric group of each two-row shape (n/2 + S, n/2 - S), written in
+// Young's orthogonal form, and each eigenvalue is a multiplet of 2S+1
+// levels. At 16 sites the largest block has 3640 states where the largest
+// S^z block has 11440; the blocks of all classes of a chunk are solved as
+// parallel tasks, largest first, so one big cluster does not leave the
+// other workers idle (the chain has one class per size).
 // Classical (diagonal) models need no diagonalisation. Where only
 // eigenvalues are needed (no derivatives, or a single coupling, whose
 // Hellmann–Feynman element is E_n/v) only eigenvalues are computed

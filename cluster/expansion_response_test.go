@@ -40,12 +40,11 @@ func TestExpansionResponseAtLowerOrder(t *testing.T) {
 			t.Fatalf("order %d: %d stored entries, the order-%d evaluation has %d", c, res.Response.NNZ(), c, ref.Response.NNZ())
 		}
 		for i := 0; i < len(terms); i++ {
-			for p := ref.Response.RowPtr[i]; p < ref.Response.RowPtr[i+1]; p++ {
-				j := int(ref.Response.Col[p])
-				if d := math.Abs(res.Response.At(i, j) - ref.Response.Val[p]); d > 1e-13 {
+			ref.Response.DoRow(i, func(j int, v float64) {
+				if d := math.Abs(res.Response.At(i, j) - v); d > 1e-13 {
 					t.Errorf("order %d: response (%d,%d) differs by %.3g from the order-%d evaluation", c, i, j, d, c)
 				}
-			}
+			})
 		}
 		for _, j := range []int{0, len(terms) / 3, len(terms) - 1} {
 			plus := append([]float64(nil), coeffs...)

@@ -84,9 +84,16 @@ func TestExpansionBlocksMatchDense(t *testing.T) {
 		if blk.Response.NNZ() != dense.Response.NNZ() {
 			t.Fatalf("%s: response has %d entries in blocks, %d dense", name, blk.Response.NNZ(), dense.Response.NNZ())
 		}
-		for i, v := range blk.Response.Val {
-			if math.Abs(v-dense.Response.Val[i]) > tol || blk.Response.Col[i] != dense.Response.Col[i] {
-				t.Fatalf("%s: response entry %d: blocks %v, dense %v", name, i, v, dense.Response.Val[i])
+		for i := 0; i < blk.Response.Dim(); i++ {
+			bc, bv := blk.Response.Row(i)
+			dc, dv := dense.Response.Row(i)
+			if len(bc) != len(dc) {
+				t.Fatalf("%s: response row %d has %d entries in blocks, %d dense", name, i, len(bc), len(dc))
+			}
+			for p, v := range bv {
+				if math.Abs(v-dv[p]) > tol || bc[p] != dc[p] {
+					t.Fatalf("%s: response entry (%d,%d): blocks %v, dense (%d) %v", name, i, bc[p], v, dc[p], dv[p])
+				}
 			}
 		}
 		betas := []float64{0.1, beta, 1}

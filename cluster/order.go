@@ -16,7 +16,10 @@ import (
 type OrderPolicy struct {
 	// Start is the first order tried.
 	Start int
-	// Ceiling is the highest order chosen automatically.
+	// Ceiling is the highest order chosen automatically, except that on a
+	// lattice of at most MaxDenseQubits sites the order may rise past it
+	// to the number of sites, where the expansion is exact, when that
+	// order's work is at most ExactReachWork (and MaxWork).
 	Ceiling int
 	// MaxWork is the largest estimated work (units of D^3, see
 	// EstimateWork) of one evaluation chosen automatically.
@@ -40,11 +43,20 @@ func (p OrderPolicy) now() time.Time {
 // about a minute on the reference 2-core machine (SecondsPerWorkUnit).
 const DefaultAutoWork = 5e10
 
+// ExactReachWork is the largest work (D^3 units) of an evaluation at the
+// order that covers a whole small lattice for which the automatic order
+// rises past its ceiling: about 3 s on the reference 2-core machine
+// (SecondsPerWorkUnit), so a fit's several evaluations stay within its
+// default minute.
+const ExactReachWork = DefaultAutoWork / 20
+
 // NewOrderPolicy returns the default policy for terms on lat: it starts
 // at an order that covers every term's support and costs little (6 on a
 // chain, 5 on a ladder, 4 in two dimensions, 3 in three), and rises to at
 // most the number of sites, MaxDenseQubits and a ceiling by dimension
-// (12, 9, 8, 6), within DefaultAutoWork.
+// (12, 9, 8, 6), within DefaultAutoWork. On a small lattice Allows lets
+// the order reach the number of sites past that ceiling when it is cheap
+// (ExactReachWork): there the expansion is exact.
 func NewOrderPolicy(lat *lattice.Lattice, terms []lattice.Term) OrderPolicy {
 	start, ceiling := 4, 8
 	switch {
@@ -68,7 +80,12 @@ func NewOrderPolicy(lat *lattice.Lattice, terms []lattice.Term) OrderPolicy {
 // if not, why, in words that say how to go further.
 func (p OrderPolicy) Allows(e *Expansion, L int) (bool, string) {
 	if L > p.Ceiling {
-		return false, fmt.Sprintf("order %d is above the automatic ceiling %d for this lattice (set --order to go further)", L, p.Ceiling)
+		if n := e.lat.NumSites(); L > n || n > MaxDenseQubits {
+			return false, fmt.Sprintf("order %d is above the automatic ceiling %d for this lattice (set --order to go further)", L, p.Ceiling)
+		} else if _, work := e.EstimateWork(n); work > ExactReachWork {
+			return false, fmt.Sprintf("order %d is above the automatic ceiling %d for this lattice, and order %d (all %d sites, where the expansion is exact) would cost %.3g units of work (about %s on a 2-core machine), above %.3g (set --order to go further)",
+				L, p.Ceiling, n, n, work, describeDuration(e.PredictEvaluation(n, false)), ExactReachWork)
+		}
 	}
 	if _, work := e.EstimateWork(L); p.MaxWork > 0 && work > p.MaxWork {
 		return false, fmt.Sprintf("order %d would cost %.3g units of work (about %s on a 2-core machine), above the automatic limit %.3g (set --order %d to go further)",

@@ -161,7 +161,9 @@ func mergeResponse(n int, blocks [][]respEntry, sorted []int32) *SparseSym {
 		}
 	}
 	// Sum duplicates in their order and sort each row by column.
-	s := &SparseSym{N: n, RowPtr: make([]int, n+1)}
+	rowPtr := make([]int, n+1)
+	var outCol []int32
+	var outVal []float64
 	slot := make([]int32, n)
 	for i := range slot {
 		slot[i] = -1
@@ -187,10 +189,10 @@ func mergeResponse(n int, blocks [][]respEntry, sorted []int32) *SparseSym {
 		}
 		slices.SortFunc(row, func(a, b colVal) int { return int(a.c) - int(b.c) })
 		for _, cv := range row {
-			s.Col = append(s.Col, cv.c)
-			s.Val = append(s.Val, cv.v)
+			outCol = append(outCol, cv.c)
+			outVal = append(outVal, cv.v)
 		}
-		s.RowPtr[i+1] = len(s.Col)
+		rowPtr[i+1] = len(outCol)
 	}
-	return s
+	return NewSparseSymCSR(n, rowPtr, outCol, outVal)
 }

@@ -3,6 +3,8 @@ package fit
 import (
 	"errors"
 	"math"
+
+	"warmfit/cluster"
 )
 
 // errNotPositive reports a search direction of non-positive curvature met
@@ -26,8 +28,8 @@ type cgResult struct {
 // are treated as 1. It returns errNotPositive (with x the last iterate)
 // when M shows non-positive curvature, and an error when the residual did
 // not reach tol.
-func solveCG(m *csr, diag, b, x []float64, tol float64, maxIter int) (cgResult, error) {
-	n := m.n
+func solveCG(m *cluster.SparseSym, diag, b, x []float64, tol float64, maxIter int) (cgResult, error) {
+	n := m.Dim()
 	for i := range x {
 		x[i] = 0
 	}
@@ -53,7 +55,7 @@ func solveCG(m *csr, diag, b, x []float64, tol float64, maxIter int) (cgResult, 
 	rz := dot(r, z)
 	var res cgResult
 	for it := 1; it <= maxIter; it++ {
-		m.mulVec(q, p)
+		m.MulVec(q, p)
 		pq := dot(p, q)
 		if !(pq > 0) {
 			res.Iterations = it - 1

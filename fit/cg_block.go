@@ -3,6 +3,8 @@ package fit
 import (
 	"fmt"
 	"math"
+
+	"warmfit/cluster"
 )
 
 // cgBlockWidth is the number of right-hand sides solved together: wide
@@ -17,9 +19,9 @@ type block [cgBlockWidth]float64
 // solveCGUnitBlock solves M x_c = u_{first+c} for the unit vectors of
 // columns first..first+cgBlockWidth-1 (columns past the matrix size get a
 // zero right-hand side); see solveCGUnitColumns.
-func solveCGUnitBlock(m *csr, diag []float64, first int, tol float64, maxIter int) ([]block, int, error) {
+func solveCGUnitBlock(m *cluster.SparseSym, diag []float64, first int, tol float64, maxIter int) ([]block, int, error) {
 	cols := make([]int, 0, cgBlockWidth)
-	for c := first; c < first+cgBlockWidth && c < m.n; c++ {
+	for c := first; c < first+cgBlockWidth && c < m.Dim(); c++ {
 		cols = append(cols, c)
 	}
 	return solveCGUnitColumns(m, diag, cols, tol, maxIter)
@@ -32,9 +34,9 @@ func solveCGUnitBlock(m *csr, diag []float64, first int, tol float64, maxIter in
 // unused columns of the block are zero. Each column stops when its
 // residual falls to tol (its right-hand side has norm 1). It also returns
 // the number of iterations.
-func solveCGUnitColumns(m *csr, diag []float64, cols []int, tol float64, maxIter int) ([]block, int, error) {
+func solveCGUnitColumns(m *cluster.SparseSym, diag []float64, cols []int, tol float64, maxIter int) ([]block, int, error) {
 	const w = cgBlockWidth
-	n := m.n
+	n := m.Dim()
 	x := make([]block, n)
 	r := make([]block, n)
 	z := make([]block, n)
@@ -72,9 +74,10 @@ func solveCGUnitColumns(m *csr, diag []float64, cols []int, tol float64, maxIter
 		// q = M p for the whole block.
 		for i := 0; i < n; i++ {
 			var acc block
-			for e := m.rowPtr[i]; e < m.rowPtr[i+1]; e++ {
-				v := m.val[e]
-				pj := &p[m.col[e]]
+			cols, vals := m.Row(i)
+			for e, j := range cols {
+				v := vals[e]
+				pj := &p[j]
 				for c := range acc {
 					acc[c] += v * pj[c]
 				}

@@ -7,12 +7,14 @@ import (
 	"testing"
 
 	"gonum.org/v1/gonum/mat"
+
+	"warmfit/cluster"
 )
 
 // randomSPD returns a sparse symmetric positive definite matrix: a random
 // sparse symmetric matrix made diagonally dominant (Gershgorin's theorem
 // then bounds every eigenvalue below by the margin).
-func randomSPD(rng *rand.Rand, n, perRow int, margin float64) *csr {
+func randomSPD(rng *rand.Rand, n, perRow int, margin float64) *cluster.SparseSym {
 	dense := make([]float64, n*n)
 	for i := 0; i < n; i++ {
 		for k := 0; k < perRow; k++ {
@@ -33,19 +35,17 @@ func randomSPD(rng *rand.Rand, n, perRow int, margin float64) *csr {
 		}
 		dense[i*n+i] = s + margin*(1+rng.Float64())
 	}
-	return denseToCSR(n, dense)
+	return denseToSparse(n, dense)
 }
 
-func denseToCSR(n int, dense []float64) *csr {
-	m := &csr{n: n, rowPtr: make([]int, n+1)}
+func denseToSparse(n int, dense []float64) *cluster.SparseSym {
+	m := cluster.NewSparseSym(n)
 	for i := 0; i < n; i++ {
-		for j := 0; j < n; j++ {
+		for j := i; j < n; j++ {
 			if v := dense[i*n+j]; v != 0 {
-				m.col = append(m.col, int32(j))
-				m.val = append(m.val, v)
+				m.Set(i, j, v)
 			}
 		}
-		m.rowPtr[i+1] = len(m.col)
 	}
 	return m
 }
@@ -60,7 +60,7 @@ func TestSolveCGMatchesDense(t *testing.T) {
 			b[i] = rng.NormFloat64()
 		}
 		x := make([]float64, n)
-		if _, err := solveCG(m, m.diag(), b, x, 1e-12, 10*n+50); err != nil {
+		if _, err := solveCG(m, m.Diag(), b, x, 1e-12, 10*n+50); err != nil {
 			t.Fatalf("n=%d: %v", n, err)
 		}
 		want := denseSolve(t, m, b)
@@ -72,16 +72,15 @@ func TestSolveCGMatchesDense(t *testing.T) {
 	}
 }
 
-func denseSolve(t *testing.T, m *csr, b []float64) []float64 {
+func denseSolve(t *testing.T, m *cluster.SparseSym, b []float64) []float64 {
 	t.Helper()
-	a := mat.NewDense(m.n, m.n, nil)
-	for i := 0; i < m.n; i++ {
-		for e := m.rowPtr[i]; e < m.rowPtr[i+1]; e++ {
-			a.Set(i, int(m.col[e]), m.val[e])
-		}
+	n := m.Dim()
+	a := mat.NewDense(n, n, nil)
+	for i := 0; i < n; i++ {
+		m.DoRow(i, func(j int, v float64) { a.Set(i, j, v) })
 	}
 	var x mat.VecDense
-	if err := x.SolveVec(a, mat.NewVecDense(m.n, append([]float64(nil), b...))); err != nil {
+	if err := x.SolveVec(a, mat.NewVecDense(n, append([]float64(nil), b...))); err != nil {
 		t.Fatal(err)
 	}
 	return x.RawVector().Data
@@ -90,9 +89,9 @@ func denseSolve(t *testing.T, m *csr, b []float64) []float64 {
 // An indefinite matrix must be reported, not solved: diag(1, -1) has the
 // direction (0, 1) of negative curvature.
 func TestSolveCGIndefinite(t *testing.T) {
-	m := denseToCSR(2, []float64{1, 0, 0, -1})
+	m := denseToSparse(2, []float64{1, 0, 0, -1})
 	x := make([]float64, 2)
-	_, err := solveCG(m, m.diag(), []float64{1, 1}, x, 1e-12, 10)
+	_, err := solveCG(m, m.Diag(), []float64{1, 1}, x, 1e-12, 10)
 	if !errors.Is(err, errNotPositive) {
 		t.Errorf("err = %v, want errNotPositive", err)
 	}
@@ -106,7 +105,7 @@ func TestSolveCGUnitBlockIsInverse(t *testing.T) {
 	n := cgBlockWidth + 9
 	m := randomSPD(rng, n, 5, 0.3)
 	for first := 0; first < n; first += cgBlockWidth {
-		x, _, err := solveCGUnitBlock(m, m.diag(), first, 1e-12, 10*n)
+		x, _, err := solveCGUnitBlock(m, m.Diag(), first, 1e-12, 10*n)
 		if err != nil {
 			t.Fatal(err)
 		}
@@ -142,9 +141,7 @@ func TestParamVariancesDenseAndCG(t *testing.T) {
 	}
 	bd := mat.NewDense(n, n, nil)
 	for i := 0; i < n; i++ {
-		for e := b.rowPtr[i]; e < b.rowPtr[i+1]; e++ {
-			bd.Set(i, int(b.col[e]), b.val[e])
-		}
+		b.DoRow(i, func(j int, v float64) { bd.Set(i, j, v) })
 	}
 	var tmp, cov mat.Dense
 	tmp.Mul(inv, bd)
@@ -182,12 +179,12 @@ func TestLocalVariancesBanded(t *testing.T) {
 			dense[i*n+i+d], dense[(i+d)*n+i] = v, v
 		}
 	}
-	p := denseToCSR(n, dense)
+	p := denseToSparse(n, dense)
 	bd := make([]float64, n*n)
 	for i := 0; i < n; i++ {
 		bd[i*n+i] = 0.5 + rng.Float64()
 	}
-	b := denseToCSR(n, bd)
+	b := denseToSparse(n, bd)
 	want, err := denseVariances(p, b)
 	if err != nil {
 		t.Fatal(err)

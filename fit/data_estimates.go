@@ -8,6 +8,7 @@ import (
 	"slices"
 	"strings"
 
+	"warmfit/cluster"
 	"warmfit/lattice"
 )
 
@@ -26,7 +27,7 @@ type Estimates struct {
 	Shots []int64
 	// Cov is the covariance matrix of Values: Stderr² on the diagonal and
 	// the kept covariances off it (see CovarianceOptions).
-	Cov     *SparseSym
+	Cov     *cluster.SparseSym
 	Missing []int
 }
 
@@ -100,7 +101,7 @@ func newEstimates(n int) *Estimates {
 		Values: make([]float64, n),
 		Stderr: make([]float64, n),
 		Shots:  make([]int64, n),
-		Cov:    NewSparseSym(n),
+		Cov:    cluster.NewSparseSym(n),
 	}
 }
 
@@ -198,6 +199,9 @@ func LoadEstimates(path string, lat *lattice.Lattice, terms []lattice.Term, opt 
 		// A site beyond the lattice is a mistake whatever else is wrong,
 		// and it explains terms "without data": say it first.
 		if err := sitesBeyondError(path, lat, t); err != nil {
+			return nil, nil, err
+		}
+		if err := untrustedExactError(path, t); err != nil {
 			return nil, nil, err
 		}
 		index := t.Index()
@@ -323,4 +327,40 @@ func unusedRowsError(path string, lat *lattice.Lattice, t *Table, unused []int) 
 		b.WriteString("; a site beyond the lattice usually means the data belong to a larger lattice than the template's")
 	}
 	return errors.New(b.String())
+}
+
+// untrustedExactError refuses exact rows that their own table marks
+// trusted=false (predict writes such rows when the expansion has not
+// converged): the value is the expansion's prediction, not the Gibbs
+// value, so fitting it as exact data would give wrong couplings with
+// error bars of zero. A row whose stderr carries an uncertainty (say the
+// trunc_error put there by hand) is accepted.
+func untrustedExactError(path string, t *Table) error {
+	col := -1
+	for j, h := range t.ExtraHeader {
+		if strings.EqualFold(strings.TrimSpace(h), "trusted") {
+			col = j
+		}
+	}
+	if col < 0 {
+		return nil
+	}
+	n, first := 0, -1
+	for i, r := range t.Rows {
+		if r.HasStderr || col >= len(r.Extra) || !strings.EqualFold(strings.TrimSpace(r.Extra[col]), "false") {
+			continue
+		}
+		if first < 0 {
+			first = i
+		}
+		n++
+	}
+	if n == 0 {
+		return nil
+	}
+	r := t.Rows[first]
+	return dataErrorf(displayName(path), r.Line, "trusted",
+		"%s is stderr %q but trusted=false (%d such rows): an untrusted expansion value is not an exact Gibbs value; "+
+			"rerun predict with a higher --order (or at a higher temperature), or write each row's trunc_error in its stderr to fit it with that uncertainty",
+		r.Key(), ExactStderr, n)
 }

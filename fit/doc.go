@@ -10,7 +10,8 @@
 // it, SnapshotWriter writes it). LoadEstimates reads either, tells them
 // apart by the header, and returns Estimates aligned with a template's
 // terms: values, standard errors, and the covariance of estimates that
-// share shots (CovarianceOptions says which pairs are kept). Exactness is
+// share shots (a cluster.SparseSym; CovarianceOptions says which pairs
+// are kept). Exactness is
 // never implied: a value is exact only when its stderr says "exact"
 // (ExactStderr); a blank or zero stderr is an error naming the file and
 // line. Rows that match no template term are an error too, each named by
@@ -25,7 +26,9 @@
 // whose minimum reproduces the measured expectations e_k (Jaynes 1957).
 // Fit evaluates log Z, <E_k> and the response d<E_k>/d lambda_j with the
 // linked-cluster expansion of package cluster, takes damped Newton steps
-// solved by conjugate gradients on the sparse response, and stops when
+// solved by conjugate gradients on the sparse response projected onto
+// the parameters (a cluster.SparseSym, like the response and the data
+// covariance; the fitter has no matrix type of its own), and stops when
 // every gradient component is below a small fraction of its data noise.
 // On large lattices the response of order L costs about four forward
 // passes, so the exact order-L gradient is paired with the response of
@@ -51,8 +54,13 @@
 // change of the coefficients measures the truncation error, which the
 // Result compares with the statistical error; the automatic order rises
 // until truncation is negligible against statistics, within
-// cluster.OrderPolicy's work limit (machine-independent), with the
-// wall-clock budget only a guard.
+// cluster.OrderPolicy's ceiling and per-evaluation work limit and the
+// fit's own limit Options.MaxFitWork on the work of all its evaluations
+// (order_work.go): work units and Newton iteration counts, so that the
+// same data give the same order on every machine. The wall-clock
+// Options.Budget is only a guard; when it stops the rise first,
+// Result.StoppedByBudget is set and a Warning says the order depends on
+// the machine.
 //
 // # Error bars and planning
 //

@@ -124,7 +124,9 @@ func ScaleEnergy(r *Result, c Calibration) (*Result, error) {
 	}
 	out.Notes = append(out.Notes, fmt.Sprintf("beta not given: the fit learnt beta*lambda; the energy scale is fixed from %s, so beta = %s (%s)",
 		c, formatPM(es.Beta, es.BetaStderr), es.Method))
-	out.Warnings = append(slices.Clone(r.Warnings), warnings...)
+	out.Warnings = slices.Clone(r.Warnings)
+	out.rewriteScaleWarnings() // their numbers in units of lambda, with the recovered beta
+	out.Warnings = append(out.Warnings, warnings...)
 	if haveErr {
 		out.ErrorMethod = r.ErrorMethod + "; energy scale by the delta method"
 	}
@@ -270,18 +272,18 @@ type covColumnFunc func(q int) ([]float64, error)
 
 // hessianCovColumn is column q of P^{-1} B P^{-1} (the delta method of
 // a fit with every term measured): two conjugate-gradient solves.
-func hessianCovColumn(p, b *csr) covColumnFunc {
+func hessianCovColumn(p, b *cluster.SparseSym) covColumnFunc {
 	return func(q int) ([]float64, error) {
-		n := p.n
+		n := p.Dim()
 		u := make([]float64, n)
 		u[q] = 1
 		x := make([]float64, n)
-		diag := p.diag()
+		diag := p.Diag()
 		if _, err := solveCG(p, diag, u, x, 1e-12, 10*n+100); err != nil {
 			return nil, err
 		}
 		y := make([]float64, n)
-		b.mulVec(y, x)
+		b.MulVec(y, x)
 		z := make([]float64, n)
 		if _, err := solveCG(p, diag, y, z, 1e-12, 10*n+100); err != nil {
 			return nil, err
@@ -291,7 +293,7 @@ func hessianCovColumn(p, b *csr) covColumnFunc {
 }
 
 // momentCovColumn is column q of J^{-1} B J^{-T} (moment matching).
-func momentCovColumn(j *mat.Dense, b *csr) covColumnFunc {
+func momentCovColumn(j *mat.Dense, b *cluster.SparseSym) covColumnFunc {
 	return func(q int) ([]float64, error) {
 		n, _ := j.Dims()
 		var lu mat.LU
@@ -303,7 +305,7 @@ func momentCovColumn(j *mat.Dense, b *csr) covColumnFunc {
 			return nil, err
 		}
 		y := make([]float64, n)
-		b.mulVec(y, x.RawVector().Data)
+		b.MulVec(y, x.RawVector().Data)
 		var z mat.VecDense
 		if err := lu.SolveVecTo(&z, false, mat.NewVecDense(n, y)); err != nil {
 			return nil, err

@@ -4,6 +4,7 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"sync"
 	"time"
 
 	"warmfit/cluster"
@@ -36,8 +37,10 @@ type Options struct {
 	// Order is the expansion order (largest cluster size). 0 selects it
 	// automatically: orders rise from StartOrder until the change of the
 	// fitted coefficients between consecutive orders is at most
-	// TruncationFraction times the median statistical error, or Budget
-	// runs out.
+	// TruncationFraction times the median statistical error, or the next
+	// order would take the fit past MaxFitWork or the Policy's limits
+	// (machine-independent), or, as a guard, past Budget (machine-
+	// dependent, and the Result says so: Result.StoppedByBudget).
 	Order int
 	// StartOrder is the first order tried by the automatic selection;
 	// default: the largest term support.
@@ -46,10 +49,23 @@ type Options struct {
 	// the number of sites and cluster.MaxDenseQubits.
 	MaxOrder int
 	// Budget is the wall time the automatic selection may spend; default
-	// 60 s. The cost of the next order is predicted from the measured
-	// time of the last one and cluster.Expansion.EstimateWork, and an
-	// order past the first is abandoned when the budget runs out.
+	// 60 s. It only guards: the order is chosen by MaxFitWork, so that it
+	// does not depend on the machine, and the Budget stops the rise only
+	// when this machine is slower than the reference one. The time of the
+	// next order is predicted from the measured time of the last one, and
+	// an order past the first is abandoned when the budget runs out; the
+	// Result then says that its order depends on the machine.
 	Budget time.Duration
+	// MaxFitWork is the automatic selection's machine-independent limit:
+	// the work units (see order_work.go) of all its evaluations together,
+	// including the predicted ones of the next order; default
+	// DefaultFitWork, about the default Budget on the reference machine.
+	// MaxOrder, when set, replaces it.
+	MaxFitWork float64
+	// Clock reads the time for Budget and the timings in the log; nil
+	// means time.Now. The order chosen cannot depend on it unless the
+	// Budget stops the rise.
+	Clock func() time.Time
 	// Tol stops Newton when every gradient component is below Tol times
 	// its data noise: max_q |A^T(e - <E>)|_q / sd((A^T e)_q) <= Tol.
 	// Default 1e-3.
@@ -110,6 +126,9 @@ func (o Options) withDefaults() Options {
 	if o.Budget <= 0 {
 		o.Budget = 60 * time.Second
 	}
+	if o.MaxFitWork <= 0 {
+		o.MaxFitWork = DefaultFitWork
+	}
 	if o.Tol <= 0 {
 		o.Tol = 1e-3
 	}
@@ -161,6 +180,11 @@ type fitter struct {
 	// when every term has data. With unmeasured terms the fit matches
 	// moments on the measured members (moments.go).
 	measured []bool
+	// spentWork is the work of every evaluation so far (order_work.go),
+	// guarded by workMu with workCache, the predictions per order.
+	spentWork float64
+	workCache map[workKey]float64
+	workMu    sync.Mutex
 }
 
 // Fit learns the template's coefficients from the data. It returns an
@@ -179,7 +203,7 @@ func Fit(p *Problem, opt Options) (*Result, error) {
 	if f.opt.Order > 0 {
 		res, err = f.fixedOrder(f.opt.Order, theta0)
 	} else {
-		res, err = f.autoOrder(theta0, start)
+		res, err = f.autoOrder(theta0, f.opt.now())
 	}
 	if err != nil {
 		return nil, err
@@ -249,7 +273,7 @@ func newFitter(p *Problem, opt Options) (*fitter, error) {
 	}
 	b := f.params.project(f.cov, 1)
 	f.sigma = make([]float64, f.params.NumParams())
-	for q, d := range b.diag() {
+	for q, d := range b.Diag() {
 		f.sigma[q] = math.Sqrt(math.Max(d, 0))
 	}
 	// A Pauli expectation in a full-rank state lies strictly inside
@@ -337,6 +361,7 @@ func (f *fitter) evaluator(L, respOrder int) evaluator {
 		if err != nil {
 			return nil, err
 		}
+		f.addWork(f.evaluationWork(L, response, respOrder))
 		ev := &thermalEval{logZ: res.LogZ[L-1], expect: res.Expect[L-1], raw: res}
 		if response {
 			if res.Response == nil {
@@ -352,7 +377,8 @@ func (f *fitter) evaluator(L, respOrder int) evaluator {
 type orderFit struct {
 	order   int
 	out     *newtonOutcome
-	elapsed time.Duration
+	elapsed time.Duration // wall time on this machine (Options.Clock)
+	work    float64       // work units of its evaluations, machine-independent
 }
 
 // newtonProblem sets up the minimisation at order L with the curvature
@@ -362,7 +388,7 @@ func (f *fitter) newtonProblem(L int, deadline time.Time) *newtonProblem {
 	np := &newtonProblem{
 		params: f.params, beta: f.beta, values: f.values, sigma: f.sigma,
 		tol: f.opt.Tol, absTol: f.opt.AbsTol, maxIter: f.opt.MaxIter, maxStep: f.opt.MaxStep,
-		eval: f.evaluator(L, c), deadline: deadline, measured: f.measured,
+		eval: f.evaluator(L, c), deadline: deadline, now: f.opt.now, measured: f.measured,
 		order: L, curvatureOrder: c,
 	}
 	if c < L {
@@ -388,7 +414,7 @@ func (f *fitter) fitOrderUntil(L int, theta0 []float64, deadline time.Time, from
 	if L > cluster.MaxDenseQubits {
 		return nil, fmt.Errorf("order %d: clusters above %d sites are beyond dense diagonalisation", L, cluster.MaxDenseQubits)
 	}
-	t0 := time.Now()
+	t0, w0 := f.opt.now(), f.workSpent()
 	np := f.newtonProblem(L, deadline)
 	if fromOtherOrder && f.measured == nil {
 		// (Moment matching stops as soon as the residual is small.)
@@ -407,7 +433,7 @@ func (f *fitter) fitOrderUntil(L int, theta0 []float64, deadline time.Time, from
 	}
 	f.evaluations += out.evaluations
 	f.iterations += out.iterations
-	of := &orderFit{order: L, out: out, elapsed: time.Since(t0)}
+	of := &orderFit{order: L, out: out, elapsed: f.opt.now().Sub(t0), work: f.workSpent() - w0}
 	status := "converged"
 	if !out.converged {
 		status = "NOT converged: " + out.reason
@@ -465,14 +491,20 @@ func (f *fitter) fixedOrder(L int, theta0 []float64) (*Result, error) {
 }
 
 // autoOrder raises the order until the truncation error is small against
-// the statistical error or the budget is spent.
+// the statistical error, or the next order would take the fit past the
+// work limit (MaxFitWork, the policy's ceiling and per-evaluation work):
+// decisions in machine-independent quantities. The wall-clock Budget only
+// guards, and a stop by it is marked machine-dependent in the result.
 func (f *fitter) autoOrder(theta0 []float64, start time.Time) (*Result, error) {
 	policy := f.opt.Policy
 	if policy.Ceiling == 0 {
 		policy = cluster.NewOrderPolicy(f.prob.Lattice, f.prob.Terms)
 	}
 	first := max(f.minL, f.opt.StartOrder)
-	last := min(f.sites, policy.Ceiling)
+	// Without MaxOrder the policy stops the rise (its ceiling, which a
+	// small lattice may pass up to its number of sites, and its work
+	// limit), and the note says which.
+	last := f.sites
 	if f.opt.MaxOrder > 0 {
 		last = min(f.sites, cluster.MaxDenseQubits, f.opt.MaxOrder)
 	}
@@ -482,6 +514,8 @@ func (f *fitter) autoOrder(theta0 []float64, start time.Time) (*Result, error) {
 	var history []*orderFit
 	var notes []string
 	var failed *orderFit // the last order that did not converge
+	var budgetStop string
+	abandoned := 0 // the order the budget cut short, if any
 	statErr := -1.0
 	theta := theta0
 	for L := first; L <= last; L++ {
@@ -499,6 +533,12 @@ func (f *fitter) autoOrder(theta0 []float64, start time.Time) (*Result, error) {
 			notes = append(notes, fmt.Sprintf("order %d could not be evaluated: %v", L, err))
 			break
 		}
+		if !of.out.converged && !deadline.IsZero() && f.opt.now().After(deadline) {
+			// Abandoned by the guard: this order is within the work
+			// limit (it was started), so the stop depends on the machine.
+			abandoned = L
+			break
+		}
 		if of.out.converged {
 			history = append(history, of)
 			theta = of.out.state.theta
@@ -509,7 +549,12 @@ func (f *fitter) autoOrder(theta0 []float64, start time.Time) (*Result, error) {
 				statErr = f.statisticalScale(of)
 			}
 			tr := f.truncation(history, statErr)
-			f.opt.logf("order %d: truncation error %s against target %.3g (this order took %s)", L, fmtMaybe(tr.Error, tr.Known), tr.Target, of.elapsed.Round(10*time.Millisecond))
+			units := ""
+			if f.prob.Beta <= 0 {
+				units = " (units of beta*lambda)"
+			}
+			f.opt.logf("order %d: truncation error %s against target %.3g%s (this order: %s, took %s)", L, fmtMaybe(tr.Error, tr.Known), tr.Target, units,
+				describeWork(of.work), roundDuration(of.elapsed))
 			if tr.Known && tr.OK {
 				break
 			}
@@ -521,41 +566,60 @@ func (f *fitter) autoOrder(theta0 []float64, start time.Time) (*Result, error) {
 			notes = append(notes, fmt.Sprintf("the fit at order %d did not converge: %s", L, of.out.reason))
 		}
 		if L == last {
+			switch {
+			case L < f.sites && L == f.opt.MaxOrder:
+				notes = append(notes, fmt.Sprintf("stopped at order %d: the --max-order limit (order %d would cover all %d sites and be exact)", L, f.sites, f.sites))
+			case L < f.sites:
+				notes = append(notes, fmt.Sprintf("stopped at order %d: clusters of more than %d sites are not diagonalised", L, cluster.MaxDenseQubits))
+			}
 			break
 		}
+		// The decision: machine-independent work units. The next order
+		// starts from this order's solution and so needs about as many
+		// evaluations as this one did.
+		needWork := f.nextOrderWork(of)
 		if f.opt.MaxOrder == 0 {
 			if ok, why := policy.Allows(f.exp, L+1); !ok {
 				notes = append(notes, fmt.Sprintf("stopped at order %d: %s", L, why))
 				break
 			}
+			if spent := f.workSpent(); spent+needWork > f.opt.MaxFitWork {
+				notes = append(notes, fmt.Sprintf("stopped at order %d by the work limit: order %d would cost about %s, and with the %.3g units spent that is over the fit's automatic limit %.3g (set --order %d or --max-order %d to go further)",
+					L, L+1, describeWork(needWork), spent, f.opt.MaxFitWork, L+1, L+1))
+				break
+			}
 		}
-		// The budget guards the wall time; the prediction scales the
-		// measured time of this order by the work ratio, so it depends on
-		// the machine, and the note says so. The next order starts from
-		// this order's solution and so needs about as many evaluations as
-		// this one did (at least 2: a step and its check). A floor of 4
-		// predicted twice the measured time of order 6 on the README's
-		// 6x6 tour, which then stopped at order 5.
-		_, wNow := f.exp.EstimateWork(L)
-		_, wNext := f.exp.EstimateWork(L + 1)
-		evals := max(of.out.evaluations, 1)
-		perEval := float64(of.elapsed) / float64(evals)
-		predicted := time.Duration(perEval * float64(max(evals, 2)) * wNext / math.Max(wNow, 1))
-		f.opt.logf("order %d: predicted to take about %s (from order %d's %s)", L+1, predicted.Round(10*time.Millisecond), L, of.elapsed.Round(10*time.Millisecond))
-		if rest := f.opt.Budget - time.Since(start); predicted > rest {
-			notes = append(notes, fmt.Sprintf("stopped at order %d by the time budget: order %d would take about %s, more than the %s left of --budget (this stop depends on the machine's speed)",
-				L, L+1, predicted.Round(time.Second), rest.Round(time.Second)))
+		// The guard: wall time on this machine, from the measured time
+		// of this order.
+		needTime := f.nextOrderTime(of)
+		f.opt.logf("order %d: predicted to cost %s; here about %s (from order %d's %s)", L+1, describeWork(needWork), roundDuration(needTime), L, roundDuration(of.elapsed))
+		if rest := f.opt.Budget - f.opt.now().Sub(start); needTime > rest {
+			budgetStop = fmt.Sprintf("stopped at order %d by the %s budget (machine-dependent): order %d would take about %s here, more than the %s left, but it is within %s; raise --budget for a reproducible result",
+				L, describeBudget(f.opt.Budget), L+1, roundDuration(needTime), roundDuration(max(rest, 0)), f.limitName())
 			break
 		}
 	}
+	var res *Result
+	var err error
 	if len(history) == 0 {
-		return f.finish(failed, []*orderFit{failed}, notes)
+		res, err = f.finish(failed, []*orderFit{failed}, notes)
+	} else {
+		main := history[len(history)-1]
+		if failed != nil && failed.order > main.order {
+			notes = append(notes, fmt.Sprintf("the result is from order %d, the highest that converged", main.order))
+		}
+		res, err = f.finish(main, history, notes)
 	}
-	main := history[len(history)-1]
-	if failed != nil && failed.order > main.order {
-		notes = append(notes, fmt.Sprintf("the result is from order %d, the highest that converged", main.order))
+	if err == nil && abandoned > 0 {
+		budgetStop = fmt.Sprintf("stopped at order %d by the %s budget (machine-dependent): order %d, within %s, was abandoned when the time ran out; raise --budget for a reproducible result",
+			res.Order, describeBudget(f.opt.Budget), abandoned, f.limitName())
 	}
-	return f.finish(main, history, notes)
+	if err == nil && budgetStop != "" {
+		res.StoppedByBudget = true
+		res.Warnings = append(res.Warnings, budgetStop)
+		f.opt.logf("%s", budgetStop)
+	}
+	return res, err
 }
 
 func fmtMaybe(v float64, known bool) string {

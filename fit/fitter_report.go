@@ -20,8 +20,12 @@ type Report struct {
 	Tolerance     float64   `json:"tolerance"`
 	Order         int       `json:"order"`
 	OrderMode     OrderMode `json:"order_selection"`
-	Beta          float64   `json:"beta"`
-	BetaKnown     bool      `json:"beta_known"`
+	// OrderByBudget is true when the wall-clock budget, not the data or
+	// the work limit, stopped the automatic order: another machine may
+	// choose another order (the warnings say so).
+	OrderByBudget bool    `json:"order_stopped_by_budget,omitempty"`
+	Beta          float64 `json:"beta"`
+	BetaKnown     bool    `json:"beta_known"`
 	// BetaSource says where Beta comes from.
 	BetaSource   BetaSource         `json:"beta_source"`
 	EnergyScale  *ReportEnergyScale `json:"energy_scale,omitempty"`
@@ -183,6 +187,7 @@ func NewReport(r *Result, mode OrderMode, dataKind DataKind, dataFile string, to
 		Tolerance:     tol,
 		Order:         r.Order,
 		OrderMode:     mode,
+		OrderByBudget: r.StoppedByBudget,
 		Beta:          r.Beta,
 		BetaKnown:     r.BetaKnown,
 		CoeffMeaning:  CoeffLambda,

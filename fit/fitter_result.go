@@ -36,6 +36,11 @@ type Result struct {
 	EnergyScale *EnergyScale
 	// Order is the expansion order of the answer.
 	Order int
+	// StoppedByBudget is true when the automatic order was stopped by the
+	// wall-clock Options.Budget rather than by the convergence or the
+	// work limit: the order then depends on the machine and its load, and
+	// a Warning says so.
+	StoppedByBudget bool
 
 	// Converged reports that Newton met the stopping rule; when false,
 	// Reason says why and the other fields describe the best iterate.
@@ -87,6 +92,17 @@ type Result struct {
 	// covColumn gives columns of Cov(Theta) (nil without error bars);
 	// ScaleEnergy needs the covariance of the calibrated parameter.
 	covColumn covColumnFunc
+	// scaleWarnings holds the positions in Warnings of the warnings that
+	// quote numbers in the coefficients' units or beta; ScaleEnergy
+	// writes them again in units of lambda with the recovered beta.
+	scaleWarnings []scaleWarning
+}
+
+// scaleWarning is one warning whose numbers depend on the energy scale:
+// its position in Result.Warnings and how to write it from the result.
+type scaleWarning struct {
+	at    int
+	write func(r *Result) string
 }
 
 // betaUnknownNote is the note of a fit without beta.
@@ -239,10 +255,16 @@ func (f *fitter) addWarnings(r *Result) {
 	case !tr.Known:
 		r.Warnings = append(r.Warnings, fmt.Sprintf("truncation error unknown: no lower order than %d could be fitted to compare with (the smallest order holding every term is %d)", r.Order, f.minL))
 	case !tr.OK && tr.StatError > 0 && f.opt.TruncationTarget <= 0:
-		r.Warnings = append(r.Warnings, fmt.Sprintf("truncation error %.3g exceeds %g x statistical error %.3g: the temperature may be too low for this order (%d)",
-			tr.Error, f.opt.TruncationFraction, tr.StatError, r.Order))
+		fraction := f.opt.TruncationFraction
+		r.addScaleWarning(func(r *Result) string {
+			return fmt.Sprintf("truncation error %.3g exceeds %g x statistical error %.3g%s: the temperature may be too low for this order (%d)",
+				r.Truncation.Error, fraction, r.Truncation.StatError, r.unitsNote(), r.Order)
+		})
 	case !tr.OK:
-		r.Warnings = append(r.Warnings, fmt.Sprintf("truncation error %.3g exceeds the target %.3g: the temperature may be too low for this order (%d)", tr.Error, tr.Target, r.Order))
+		r.addScaleWarning(func(r *Result) string {
+			return fmt.Sprintf("truncation error %.3g exceeds the target %.3g%s: the temperature may be too low for this order (%d)",
+				r.Truncation.Error, r.Truncation.Target, r.unitsNote(), r.Order)
+		})
 	}
 	if n := len(r.Untrusted); n > 0 {
 		crit := "0.1 x their stderr"
@@ -250,11 +272,43 @@ func (f *fitter) addWarnings(r *Result) {
 			crit = fmt.Sprintf("%g, the tolerance for exact data", exactSeriesTol)
 		}
 		r.Warnings = append(r.Warnings, fmt.Sprintf("%d of %d term expectations have not converged in the expansion at order %d (estimated truncation error above %s)", n, len(r.Terms), r.Order, crit))
+		// beta > bound(lambda) is the same condition in either unit
+		// system (bound(theta) = bound(lambda)/beta), so only the
+		// numbers change when the scale is fixed.
 		if r.Beta > r.Bound.Beta {
-			r.Warnings = append(r.Warnings, fmt.Sprintf("beta %.4g is above the sufficient convergence bound %.4g and the series did not converge: the fitted coefficients may be unreliable", r.Beta, r.Bound.Beta))
+			r.addScaleWarning(func(r *Result) string {
+				if !r.CoefficientsAreLambda() {
+					return fmt.Sprintf("the products beta*lambda are beyond the sufficient convergence bound (beta = 1 by convention is above %.4g) and the series did not converge: the fitted coefficients may be unreliable", r.Bound.Beta)
+				}
+				return fmt.Sprintf("beta %.4g is above the sufficient convergence bound %.4g and the series did not converge: the fitted coefficients may be unreliable", r.Beta, r.Bound.Beta)
+			})
 		}
 	}
 	if r.Dof > 0 && r.Chi2P < 1e-3 {
 		r.Warnings = append(r.Warnings, fmt.Sprintf("chi2/dof = %.3g over %d degrees of freedom (p = %.2g): the tied groups do not describe the data", r.Chi2/float64(r.Dof), r.Dof, r.Chi2P))
 	}
+}
+
+// addScaleWarning appends a warning whose numbers depend on the energy
+// scale and remembers how to write it again.
+func (r *Result) addScaleWarning(write func(r *Result) string) {
+	r.scaleWarnings = append(r.scaleWarnings, scaleWarning{at: len(r.Warnings), write: write})
+	r.Warnings = append(r.Warnings, write(r))
+}
+
+// rewriteScaleWarnings writes the scale-dependent warnings again from r's
+// (rescaled) numbers; r.Warnings must be r's own copy.
+func (r *Result) rewriteScaleWarnings() {
+	for _, w := range r.scaleWarnings {
+		r.Warnings[w.at] = w.write(r)
+	}
+}
+
+// unitsNote says in which units the truncation numbers are when that is
+// not lambda.
+func (r *Result) unitsNote() string {
+	if r.CoefficientsAreLambda() {
+		return ""
+	}
+	return " (units of beta*lambda)"
 }

@@ -8,6 +8,8 @@ import (
 	"strings"
 
 	"gonum.org/v1/gonum/mat"
+
+	"warmfit/cluster"
 )
 
 // Terms without data. When a template term has no usable data but shares
@@ -237,7 +239,7 @@ func (m *momentMatching) failure() string {
 
 // momentVariances returns diag(J^{-1} B J^{-T}) for the moment-matching
 // Jacobian J and B = A_m^T Cov(e_m) A_m.
-func momentVariances(j *mat.Dense, b *csr) ([]float64, error) {
+func momentVariances(j *mat.Dense, b *cluster.SparseSym) ([]float64, error) {
 	n, _ := j.Dims()
 	var lu mat.LU
 	lu.Factorize(j)
@@ -258,9 +260,9 @@ func momentVariances(j *mat.Dense, b *csr) ([]float64, error) {
 	vars := make([]float64, n)
 	for a := 0; a < n; a++ {
 		ra := raw.Data[a*raw.Stride : a*raw.Stride+n]
-		for e := b.rowPtr[a]; e < b.rowPtr[a+1]; e++ {
-			c := int(b.col[e])
-			bv := b.val[e]
+		cols, bvals := b.Row(a)
+		for e, c32 := range cols {
+			c, bv := int(c32), bvals[e]
 			rc := raw.Data[c*raw.Stride : c*raw.Stride+n]
 			for q := range vars {
 				vars[q] += bv * ra[q] * rc[q]

@@ -79,6 +79,8 @@ type newtonProblem struct {
 	logf  func(format string, args ...any)
 	// deadline, when not zero, stops the minimisation once passed.
 	deadline time.Time
+	// now reads the clock for the deadline; nil means time.Now.
+	now func() time.Time
 	// minIter forces that many Newton steps even when the start already
 	// meets the tolerance: a refit at another order from a solution must
 	// move by the change the order makes, or the truncation error would
@@ -107,9 +109,9 @@ type newtonOutcome struct {
 	reason      string // why it did not converge
 	iterations  int
 	evaluations int
-	gradSigma   float64 // max |r_q| / sigma_q over noisy parameters
-	gradAbs     float64 // max |r_q| / |q| over exact parameters
-	hessian     *csr    // P = -A^T R A at curvatureTheta (positive semidefinite)
+	gradSigma   float64            // max |r_q| / sigma_q over noisy parameters
+	gradAbs     float64            // max |r_q| / |q| over exact parameters
+	hessian     *cluster.SparseSym // P = -A^T R A at curvatureTheta (positive semidefinite)
 	// responseOrder is the order of the response in hessian or jacobian
 	// and curvatureTheta the parameters it was evaluated at (the state's
 	// unless the response was reused).
@@ -219,7 +221,7 @@ func (np *newtonProblem) switchToExact(cur *newtonState, out *newtonOutcome, why
 }
 
 // hessian returns P = -A^T R A from the state's response.
-func (np *newtonProblem) hessian(s *newtonState) *csr {
+func (np *newtonProblem) hessian(s *newtonState) *cluster.SparseSym {
 	return np.params.project(s.ev.response, -1)
 }
 
@@ -258,7 +260,7 @@ func (m *dualMethod) curvature(out *newtonOutcome, s *newtonState) {
 func (m *dualMethod) direction(out *newtonOutcome, cur *newtonState, d []float64, polishing bool) (stepKind, string) {
 	np := m.np
 	n := len(d)
-	diag := out.hessian.diag()
+	diag := out.hessian.Diag()
 	res, err := solveCG(out.hessian, diag, cur.resid, d, 1e-10, 10*n+100)
 	for i := range d {
 		d[i] = -d[i]

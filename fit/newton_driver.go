@@ -93,7 +93,7 @@ func (np *newtonProblem) run(theta0 []float64, m newtonMethod) (*newtonOutcome, 
 			out.converged = true
 			return out, nil
 		}
-		if !np.deadline.IsZero() && time.Now().After(np.deadline) {
+		if !np.deadline.IsZero() && np.clock().After(np.deadline) {
 			out.reason = fmt.Sprintf("time budget exhausted after %d Newton iterations (%s %s)", out.iterations, m.noun(), np.gradientText(out))
 			return out, nil
 		}
@@ -154,4 +154,12 @@ func (np *newtonProblem) run(theta0 []float64, m newtonMethod) (*newtonOutcome, 
 			return out, nil
 		}
 	}
+}
+
+// clock reads the time for the deadline.
+func (np *newtonProblem) clock() time.Time {
+	if np.now != nil {
+		return np.now()
+	}
+	return time.Now()
 }

@@ -5,6 +5,7 @@ import (
 	"slices"
 	"sort"
 
+	"warmfit/cluster"
 	"warmfit/lattice"
 )
 
@@ -90,40 +91,9 @@ func (p *Params) checkLens(lambda, theta []float64) {
 	}
 }
 
-// csr is a square sparse matrix in compressed-row form with sorted
-// columns; the fitter keeps the parameter-space Hessian in it.
-type csr struct {
-	n      int
-	rowPtr []int
-	col    []int32
-	val    []float64
-}
-
-func (m *csr) mulVec(dst, x []float64) {
-	for i := 0; i < m.n; i++ {
-		var s float64
-		for p := m.rowPtr[i]; p < m.rowPtr[i+1]; p++ {
-			s += m.val[p] * x[m.col[p]]
-		}
-		dst[i] = s
-	}
-}
-
-func (m *csr) diag() []float64 {
-	d := make([]float64, m.n)
-	for i := 0; i < m.n; i++ {
-		for p := m.rowPtr[i]; p < m.rowPtr[i+1]; p++ {
-			if int(m.col[p]) == i {
-				d[i] = m.val[p]
-			}
-		}
-	}
-	return d
-}
-
 // termMatrix is the read interface of a symmetric term-space matrix:
-// the expansion's response (*cluster.SparseSym), a data covariance
-// (*SparseSym), or a diagonal one (diagMatrix).
+// the expansion's response or a data covariance (*cluster.SparseSym), or
+// a diagonal covariance (diagMatrix).
 type termMatrix interface {
 	Dim() int
 	DoRow(i int, fn func(j int, v float64))
@@ -133,9 +103,11 @@ type termMatrix interface {
 // matrix M given row by row. The sums run in a fixed order (the members
 // of each parameter in turn, each row as given), so the result is
 // reproducible bit for bit.
-func (p *Params) project(m termMatrix, s float64) *csr {
+func (p *Params) project(m termMatrix, s float64) *cluster.SparseSym {
 	np := p.NumParams()
-	out := &csr{n: np, rowPtr: make([]int, np+1)}
+	rowPtr := make([]int, np+1)
+	var outCol []int32
+	var outVal []float64
 	acc := make([]float64, np) // dense row accumulator
 	seen := make([]bool, np)
 	var cols []int32
@@ -153,13 +125,13 @@ func (p *Params) project(m termMatrix, s float64) *csr {
 		}
 		slices.Sort(cols)
 		for _, c := range cols {
-			out.col = append(out.col, c)
-			out.val = append(out.val, s*acc[c])
+			outCol = append(outCol, c)
+			outVal = append(outVal, s*acc[c])
 			acc[c], seen[c] = 0, false
 		}
-		out.rowPtr[q+1] = len(out.col)
+		rowPtr[q+1] = len(outCol)
 	}
-	return out
+	return cluster.NewSparseSymCSR(np, rowPtr, outCol, outVal)
 }
 
 // spatialOrder lists the parameters by the smallest site of their terms

@@ -1,9 +1,9 @@
 package fit
 
-// Term-space matrices. The expansion's response (*cluster.SparseSym) and
-// a data covariance (*SparseSym) are read through termMatrix directly;
-// the two types here complete it for the diagonal covariance of
-// independent estimates and for dense references in tests.
+// Term-space matrices. The expansion's response and a data covariance
+// (both *cluster.SparseSym) are read through termMatrix directly; the
+// two types here complete it for the diagonal covariance of independent
+// estimates and for dense references in tests.
 
 // diagMatrix is a diagonal termMatrix.
 type diagMatrix []float64

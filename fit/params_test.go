@@ -100,12 +100,7 @@ func TestParamsProject(t *testing.T) {
 					}
 				}
 			}
-			var have float64
-			for e := got.rowPtr[a]; e < got.rowPtr[a+1]; e++ {
-				if int(got.col[e]) == b {
-					have = got.val[e]
-				}
-			}
+			have := got.At(a, b)
 			if abs(have-want) > 1e-12 {
 				t.Errorf("(A^T M A)[%d,%d] = %v, want %v", a, b, have, want)
 			}

@@ -6,6 +6,8 @@ import (
 	"math"
 
 	"gonum.org/v1/gonum/mat"
+
+	"warmfit/cluster"
 )
 
 // Error bars by the delta method. At the solution A^T <E>(A theta) =
@@ -29,8 +31,8 @@ import (
 //
 // order lists the parameters with neighbours close together (nil: as
 // numbered); it only groups the local solves.
-func paramVariances(p, b *csr, denseLimit, workers int, order []int) ([]float64, string, error) {
-	if p.n <= denseLimit {
+func paramVariances(p, b *cluster.SparseSym, denseLimit, workers int, order []int) ([]float64, string, error) {
+	if p.Dim() <= denseLimit {
 		v, err := denseVariances(p, b)
 		return v, "dense Cholesky", err
 	}
@@ -38,10 +40,10 @@ func paramVariances(p, b *csr, denseLimit, workers int, order []int) ([]float64,
 	return v, "local conjugate-gradient solves", err
 }
 
-func denseVariances(p, b *csr) ([]float64, error) {
-	n := p.n
+func denseVariances(p, b *cluster.SparseSym) ([]float64, error) {
+	n := p.Dim()
 	var chol mat.Cholesky
-	if ok := chol.Factorize(csrToSym(p)); !ok {
+	if ok := chol.Factorize(p.SymDense()); !ok {
 		return nil, fmt.Errorf("the Hessian of the dual at the solution is not positive definite: some parameters are not determined by the data, or the expansion order is too low for this temperature")
 	}
 	if c := chol.Cond(); c > 1e14 {
@@ -66,9 +68,9 @@ func denseVariances(p, b *csr) ([]float64, error) {
 	vars := make([]float64, n)
 	for j := 0; j < n; j++ {
 		rj := full[j*n : (j+1)*n]
-		for e := b.rowPtr[j]; e < b.rowPtr[j+1]; e++ {
-			k := int(b.col[e])
-			bv := b.val[e]
+		cols, bvals := b.Row(j)
+		for e, k32 := range cols {
+			k, bv := int(k32), bvals[e]
 			rk := full[k*n : (k+1)*n]
 			for q := range vars {
 				vars[q] += bv * rj[q] * rk[q]
@@ -103,26 +105,13 @@ func checkVariances(vars []float64) ([]float64, error) {
 	return vars, nil
 }
 
-// csrToSym returns the sparse symmetric matrix as a dense gonum SymDense.
-func csrToSym(m *csr) *mat.SymDense {
-	s := mat.NewSymDense(m.n, nil)
-	for i := 0; i < m.n; i++ {
-		for e := m.rowPtr[i]; e < m.rowPtr[i+1]; e++ {
-			if j := int(m.col[e]); j >= i {
-				s.SetSym(i, j, m.val[e])
-			}
-		}
-	}
-	return s
-}
-
 // propagate returns the first-order change of the parameters for a change
 // de of the data: dtheta = M de = (A^T R A)^{-1} A^T de = -P^{-1} A^T de.
-func propagate(params *Params, p *csr, de []float64) ([]float64, error) {
+func propagate(params *Params, p *cluster.SparseSym, de []float64) ([]float64, error) {
 	rhs := make([]float64, params.NumParams())
 	params.Reduce(rhs, de)
 	x := make([]float64, len(rhs))
-	if _, err := solveCG(p, p.diag(), rhs, x, 1e-12, 10*len(rhs)+100); err != nil {
+	if _, err := solveCG(p, p.Diag(), rhs, x, 1e-12, 10*len(rhs)+100); err != nil {
 		return nil, err
 	}
 	for i := range x {

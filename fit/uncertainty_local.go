@@ -9,6 +9,8 @@ import (
 
 	"golang.org/x/sync/errgroup"
 	"gonum.org/v1/gonum/mat"
+
+	"warmfit/cluster"
 )
 
 // Local error-bar solves for large lattices.
@@ -42,11 +44,11 @@ const localCGTol = 1e-7
 // comment above. Blocks are consecutive runs of order (a permutation of
 // the parameters, nil for the identity), which should put neighbours
 // together. Results do not depend on the number of workers.
-func localVariances(p, b *csr, workers int, order []int) ([]float64, error) {
+func localVariances(p, b *cluster.SparseSym, workers int, order []int) ([]float64, error) {
 	if workers <= 0 {
 		workers = runtime.GOMAXPROCS(0)
 	}
-	n := p.n
+	n := p.Dim()
 	if order == nil {
 		order = make([]int, n)
 		for i := range order {
@@ -115,7 +117,7 @@ func blockOf(order []int, first int) []int {
 // solve fills vars for a block of at most cgBlockWidth parameters,
 // starting from radius h and growing it until the error bound holds. It
 // returns the radius used.
-func (w *localWork) solve(p, b *csr, members []int, h int, lbound float64, vars []float64) (int, error) {
+func (w *localWork) solve(p, b *cluster.SparseSym, members []int, h int, lbound float64, vars []float64) (int, error) {
 	for ; ; h++ {
 		set, whole := w.neighbourhood(p, members, h)
 		sub, diag := w.subMatrix(p, set)
@@ -135,12 +137,13 @@ func (w *localWork) solve(p, b *csr, members []int, h int, lbound float64, vars 
 			var acc block
 			for i, g := range set {
 				xi := &x[i]
-				for e := b.rowPtr[g]; e < b.rowPtr[g+1]; e++ {
-					j := w.loc[b.col[e]]
+				bcols, bvals := b.Row(g)
+				for e, k := range bcols {
+					j := w.loc[k]
 					if j < 0 {
 						continue
 					}
-					v := b.val[e]
+					v := bvals[e]
 					xj := &x[j]
 					for c := range acc {
 						acc[c] += xi[c] * v * xj[c]
@@ -161,7 +164,7 @@ func (w *localWork) solve(p, b *csr, members []int, h int, lbound float64, vars 
 // neighbourhood returns, sorted, the parameters within h hops of members
 // in the sparsity graph of p, setting w.loc for them; whole reports that
 // it is every parameter.
-func (w *localWork) neighbourhood(p *csr, members []int, h int) (set []int, whole bool) {
+func (w *localWork) neighbourhood(p *cluster.SparseSym, members []int, h int) (set []int, whole bool) {
 	frontier := make([]int, 0, len(members))
 	for _, q := range members {
 		w.hop[q] = 1
@@ -171,8 +174,9 @@ func (w *localWork) neighbourhood(p *csr, members []int, h int) (set []int, whol
 	for d := 1; d <= h && len(frontier) > 0; d++ {
 		var next []int
 		for _, i := range frontier {
-			for e := p.rowPtr[i]; e < p.rowPtr[i+1]; e++ {
-				j := int(p.col[e])
+			cols, _ := p.Row(i)
+			for _, j32 := range cols {
+				j := int(j32)
 				if w.hop[j] == 0 {
 					w.hop[j] = int32(d + 1)
 					next = append(next, j)
@@ -186,45 +190,49 @@ func (w *localWork) neighbourhood(p *csr, members []int, h int) (set []int, whol
 	for i, g := range set {
 		w.loc[g] = int32(i)
 	}
-	return set, len(set) == p.n
+	return set, len(set) == p.Dim()
 }
 
 // subMatrix returns the principal submatrix of p on set (w.loc set) and
 // its diagonal.
-func (w *localWork) subMatrix(p *csr, set []int) (*csr, []float64) {
-	sub := &csr{n: len(set), rowPtr: make([]int, len(set)+1)}
+func (w *localWork) subMatrix(p *cluster.SparseSym, set []int) (*cluster.SparseSym, []float64) {
+	rowPtr := make([]int, len(set)+1)
+	var subCol []int32
+	var subVal []float64
 	diag := make([]float64, len(set))
 	for i, g := range set {
-		for e := p.rowPtr[g]; e < p.rowPtr[g+1]; e++ {
-			if j := w.loc[p.col[e]]; j >= 0 {
-				sub.col = append(sub.col, j)
-				sub.val = append(sub.val, p.val[e])
+		cols, vals := p.Row(g)
+		for e, k := range cols {
+			if j := w.loc[k]; j >= 0 {
+				subCol = append(subCol, j)
+				subVal = append(subVal, vals[e])
 				if int(j) == i {
-					diag[i] = p.val[e]
+					diag[i] = vals[e]
 				}
 			}
 		}
-		sub.rowPtr[i+1] = len(sub.col)
+		rowPtr[i+1] = len(subCol)
 	}
-	return sub, diag
+	// set is sorted, so the local columns keep increasing.
+	return cluster.NewSparseSymCSR(len(set), rowPtr, subCol, subVal), diag
 }
 
 // boundOK reports whether ||r_c|| / lbound <= localRelTol ||x_c|| for
 // every column, with r_c the residual of the zero-extended solution
 // outside the neighbourhood plus the CG tolerance inside.
-func (w *localWork) boundOK(p *csr, set []int, x []block, ncols int, lbound float64) bool {
+func (w *localWork) boundOK(p *cluster.SparseSym, set []int, x []block, ncols int, lbound float64) bool {
 	// P is symmetric: (P y)_j for j outside = sum over i in set of P_ij y_i.
 	for i, g := range set {
 		xi := &x[i]
-		for e := p.rowPtr[g]; e < p.rowPtr[g+1]; e++ {
-			j := p.col[e]
+		cols, vals := p.Row(g)
+		for e, j := range cols {
 			if w.loc[j] >= 0 {
 				continue
 			}
 			if w.out[j] == (block{}) {
 				w.outAt = append(w.outAt, j)
 			}
-			v := p.val[e]
+			v := vals[e]
 			oj := &w.out[j]
 			for c := range oj {
 				oj[c] += v * xi[c]
@@ -266,8 +274,8 @@ func (w *localWork) reset(set []int) {
 // section 10.1) from a fixed pseudo-random start: the smallest Ritz value
 // after up to 80 steps, an upper bound that converges to lambda_min. It
 // reports a matrix that is not positive definite.
-func smallestEigenvalue(p *csr) (float64, error) {
-	n := p.n
+func smallestEigenvalue(p *cluster.SparseSym) (float64, error) {
+	n := p.Dim()
 	k := min(n, 80)
 	rng := rand.New(rand.NewPCG(0x1a2b, 0x3c4d))
 	v := make([]float64, n)
@@ -280,7 +288,7 @@ func smallestEigenvalue(p *csr) (float64, error) {
 	beta := make([]float64, 0, k)
 	w := make([]float64, n)
 	for j := 0; j < k; j++ {
-		p.mulVec(w, basis[j])
+		p.MulVec(w, basis[j])
 		a := dot(w, basis[j])
 		alpha = append(alpha, a)
 		// Full reorthogonalisation, twice for safety.

@@ -8,6 +8,7 @@ import (
 	"sync"
 
 	"golang.org/x/sync/errgroup"
+	"gonum.org/v1/gonum/stat/distuv"
 
 	"warmfit/cluster"
 	"warmfit/lattice/model"
@@ -47,6 +48,9 @@ type PatchCheck struct {
 	Patch *Patch
 	// Method is "dense" (exact diagonalisation) or "typicality".
 	Method string
+	// Vectors is the number of random vectors behind typicality
+	// references (0 for dense ones).
+	Vectors int
 	// Exact holds the reference value of each patch term; Stderr is 0
 	// for dense diagonalisation.
 	Exact []Estimate
@@ -83,10 +87,20 @@ type OrderCheck struct {
 	// the order says nothing about convergence.
 	Exact bool
 	// Agrees is true when every value of a patch larger than Order (every
-	// value, when Exact) satisfies |diff| <= Tol + 2 stderr.
-	Agrees bool
-	// Judged counts the values whose own truncation estimate is finite;
-	// Covered those among them whose estimate is at least |diff|.
+	// value, when Exact) satisfies |diff| <= Tol + 2 stderr, stderr being
+	// that value's own reference error. Status is "agrees" then;
+	// otherwise "disagrees" when some value lies beyond what the
+	// reference noise explains (Beyond > 0), else "noisy": the values
+	// that miss (Unresolved) do so by less than the largest excursion of
+	// noise expected among Values values, so the references are too
+	// noisy to judge at this tolerance.
+	Agrees             bool
+	Status             string
+	Unresolved, Beyond int
+	// Judged counts the values whose own truncation estimate e is finite
+	// and above the reference noise (2 stderr < e; a value whose
+	// reference is noisier cannot test e and is not judged); Covered
+	// those among them with |diff| <= e + 2 stderr.
 	Judged, Covered int
 	// MedianRatio is the median over the judged values of estimate /
 	// |diff| (those with |diff| above rounding, 1e-12): how tight the
@@ -104,6 +118,14 @@ type CrosscheckResult struct {
 	// AgreeOrder is the lowest order below the patch size from which
 	// every order agrees (0 when there is none).
 	AgreeOrder int
+	// NoisyOrder, when AgreeOrder is 0, is the lowest order below the
+	// patch size from which no order disagrees beyond the reference
+	// noise (0 when there is none): the expansion matches there as well
+	// as the references can tell. VectorsNeeded is then about the number
+	// of random vectors that would bring 2 standard errors of every
+	// reference below Tol and at least halve them (0 when not
+	// applicable).
+	NoisyOrder, VectorsNeeded int
 	// Trusted is true when the expansion agrees from an order at least
 	// one below the highest it can check short of the patch size, so that
 	// the agreement shows convergence rather than the end of the patch.
@@ -212,7 +234,7 @@ func checkPatch(c *PatchCheck, p *Patch, beta, maxWork float64, opt CrosscheckOp
 			return err
 		}
 	}
-	if c.Exact, c.Method, err = exactValues(n, pm, beta, ops, opt); err != nil {
+	if c.Exact, c.Method, c.Vectors, err = exactValues(n, pm, beta, ops, opt); err != nil {
 		return err
 	}
 	r, err := exp.Evaluate(coeffs, beta, cluster.Options{Order: L, Workers: 1, MaxWork: math.Inf(1)})
@@ -240,26 +262,26 @@ func checkPatch(c *PatchCheck, p *Patch, beta, maxWork float64, opt CrosscheckOp
 }
 
 // exactValues computes the reference expectations of ops on the patch.
-func exactValues(n int, pm *model.Model, beta float64, ops []cluster.PauliString, opt CrosscheckOptions) ([]Estimate, string, error) {
+func exactValues(n int, pm *model.Model, beta float64, ops []cluster.PauliString, opt CrosscheckOptions) ([]Estimate, string, int, error) {
 	out := make([]Estimate, len(ops))
 	if n <= opt.DenseQubits {
 		th, err := ExactThermal(n, pm.Terms, beta)
 		if err != nil {
-			return nil, "", err
+			return nil, "", 0, err
 		}
 		vals := make([]float64, len(ops))
 		th.ExpectAll(ops, vals)
 		for k, v := range vals {
 			out[k] = Estimate{Value: v}
 		}
-		return out, "dense", nil
+		return out, "dense", 0, nil
 	}
-	_, est, err := Typical(n, pm.Terms, beta, ops, opt.Typicality)
+	tr, err := TypicalThermal(n, pm.Terms, beta, ops, opt.Typicality)
 	if err != nil {
-		return nil, "", err
+		return nil, "", 0, err
 	}
-	copy(out, est)
-	return out, "typicality", nil
+	copy(out, tr.Expect)
+	return out, "typicality", tr.Vectors, nil
 }
 
 // summarise fills the per-order table, the agreement order and the
@@ -282,24 +304,86 @@ func (r *CrosscheckResult) summarise() {
 	for o := lastOpen; o >= 1 && r.Orders[o-1].Agrees; o-- {
 		r.AgreeOrder = o
 	}
+	for o := lastOpen; o >= 1 && r.Orders[o-1].Beyond == 0; o-- {
+		r.NoisyOrder = o
+	}
 	for _, oc := range r.Orders[lastOpen:] {
 		if !oc.Agrees {
 			r.AgreeOrder = 0 // an exact order that disagrees is a fault, not agreement
 		}
+		if oc.Beyond > 0 {
+			r.NoisyOrder = 0
+		}
+	}
+	if r.AgreeOrder > 0 {
+		r.NoisyOrder = 0
+	}
+	if r.NoisyOrder > 0 {
+		r.VectorsNeeded = r.vectorsToResolve()
 	}
 	r.Trusted = r.AgreeOrder > 0 && r.AgreeOrder < lastOpen
 	r.Verdict = r.verdict(lastOpen)
 }
 
+// vectorsToResolve is about the number of random vectors that brings 2
+// standard errors of every typicality reference below Tol, and at least
+// halves them: the errors fall as one over the square root of the number
+// of vectors.
+func (r *CrosscheckResult) vectorsToResolve() int {
+	need := 0
+	for i := range r.Patches {
+		pc := &r.Patches[i]
+		if pc.Vectors == 0 {
+			continue
+		}
+		sigma := 0.0
+		for _, e := range pc.Exact {
+			sigma = math.Max(sigma, e.Stderr)
+		}
+		ratio := math.Max(2*sigma/r.Tol, 2)
+		need = max(need, roundUp2(float64(pc.Vectors)*ratio*ratio))
+	}
+	return need
+}
+
+// roundUp2 rounds x > 0 up to two significant digits.
+func roundUp2(x float64) int {
+	unit := math.Pow(10, math.Max(0, math.Floor(math.Log10(x))-1))
+	return int(math.Ceil(x/unit) * unit)
+}
+
+// noiseExcursion is the largest |diff| / stderr that reference noise
+// alone explains among n values of references from the given number of
+// random vectors: the two-sided 5% point of the largest of n Student t
+// variables with vectors-1 degrees of freedom (Bonferroni; jackknife
+// errors over R vectors follow t with R-1 degrees of freedom, Efron &
+// Tibshirani, An Introduction to the Bootstrap, ch. 11, from memory).
+func noiseExcursion(n, vectors int) float64 {
+	if vectors < 2 || n < 1 {
+		return 0
+	}
+	t := distuv.StudentsT{Mu: 0, Sigma: 1, Nu: float64(vectors - 1)}
+	return t.Quantile(1 - 0.05/(2*float64(n)))
+}
+
+// Order statuses (OrderCheck.Status).
+const (
+	StatusAgrees    = "agrees"
+	StatusNoisy     = "noisy"
+	StatusDisagrees = "disagrees"
+)
+
 func (r *CrosscheckResult) orderCheck(o int) OrderCheck {
 	oc := OrderCheck{Order: o, Exact: true, Agrees: true, WorstPatch: -1, WorstTerm: -1}
 	var sum2 float64
 	var ratios []float64
+	count := 0
 	for pi := range r.Patches {
 		pc := &r.Patches[pi]
 		if pc.Orders < o {
 			continue
 		}
+		count += len(pc.Exact)
 		if len(pc.Patch.Sites) > o {
 			oc.Exact = false
 		}
@@ -310,6 +394,7 @@ func (r *CrosscheckResult) orderCheck(o int) OrderCheck {
 			continue
 		}
 		open := len(pc.Patch.Sites) > o
+		z := noiseExcursion(count, pc.Vectors)
 		for i := range pc.Exact {
 			d := math.Abs(pc.Diff(o, i))
 			sigma := pc.Exact[i].Stderr
@@ -321,10 +406,16 @@ func (r *CrosscheckResult) orderCheck(o int) OrderCheck {
 			}
 			if (open || oc.Exact) && d > r.Tol+2*sigma {
 				oc.Agrees = false
+				if d > r.Tol+z*sigma {
+					oc.Beyond++
+				} else {
+					oc.Unresolved++
+				}
 			}
-			if e := pc.Estimate[o-1][i]; open && !math.IsInf(e, 0) {
+			// A reference noisier than the estimate cannot test it.
+			if e := pc.Estimate[o-1][i]; open && !math.IsInf(e, 0) && 2*sigma < e {
 				oc.Judged++
-				if e >= d {
+				if d <= e+2*sigma {
 					oc.Covered++
 				}
 				if d > 1e-12 {
@@ -332,6 +423,14 @@ func (r *CrosscheckResult) orderCheck(o int) OrderCheck {
 				}
 			}
 		}
+	}
+	switch {
+	case oc.Agrees:
+		oc.Status = StatusAgrees
+	case oc.Beyond > 0:
+		oc.Status = StatusDisagrees
+	default:
+		oc.Status = StatusNoisy
 	}
 	if oc.Values > 0 {
 		oc.RMSDiff = math.Sqrt(sum2 / float64(oc.Values))
@@ -348,25 +447,6 @@ func (r *CrosscheckResult) orderCheck(o int) OrderCheck {
 func (r *CrosscheckResult) verdict(lastOpen int) []string {
 	var lines []string
 	np := len(r.Patches)
-	switch {
-	case lastOpen == 0:
-		lines = append(lines, fmt.Sprintf("WARNING: every order evaluated covers the whole patch, where the expansion is exact by construction: nothing is checked at beta = %.4g; use larger patches", r.Beta))
-	case r.Trusted:
-		lines = append(lines, fmt.Sprintf("trusted: at beta = %.4g the expansion agrees with exact results within %.2g on all %d patches from order %d on (checked up to order %d, the last below the patch size)",
-			r.Beta, r.Tol, np, r.AgreeOrder, lastOpen))
-	case r.AgreeOrder > 0:
-		lines = append(lines, fmt.Sprintf("WARNING: at beta = %.4g the expansion agrees with exact results within %.2g only at order %d, the last below the patch size: these patches are too small to show convergence at this temperature; use larger patches or a higher temperature",
-			r.Beta, r.Tol, r.AgreeOrder))
-	default:
-		best := r.Orders[0]
-		for _, oc := range r.Orders[:lastOpen] {
-			if oc.MaxDiff < best.MaxDiff {
-				best = oc
-			}
-		}
-		lines = append(lines, fmt.Sprintf("WARNING: at beta = %.4g the expansion does NOT agree with exact results within %.2g at any order below the patch size (smallest largest difference %.2g, at order %d): the temperature is too low for the orders these patches check; do not trust expansion values at this temperature",
-			r.Beta, r.Tol, best.MaxDiff, best.Order))
-	}
 	noise := 0.0
 	judged, covered := 0, 0
 	for _, oc := range r.Orders[:lastOpen] {
@@ -374,16 +454,58 @@ func (r *CrosscheckResult) verdict(lastOpen int) []string {
 		judged += oc.Judged
 		covered += oc.Covered
 	}
-	if 2*noise > r.Tol {
-		lines = append(lines, fmt.Sprintf("WARNING: the typicality references carry statistical errors up to %.2g (2 sigma %.2g > tolerance %.2g): agreement is resolved only to that level; use more random vectors", noise, 2*noise, r.Tol))
+	switch {
+	case lastOpen == 0:
+		lines = append(lines, fmt.Sprintf("WARNING: every order evaluated covers the whole patch, where the expansion is exact by construction: nothing is checked at beta = %.4g; use larger patches", r.Beta))
+	case r.Trusted:
+		lines = append(lines, fmt.Sprintf("trusted: at beta = %.4g the expansion agrees with exact results within %.2g on %s from order %d on (checked up to order %d, the last below the patch size)",
+			r.Beta, r.Tol, everyPatch(np), r.AgreeOrder, lastOpen))
+	case r.AgreeOrder > 0:
+		lines = append(lines, fmt.Sprintf("WARNING: at beta = %.4g the expansion agrees with exact results within %.2g only at order %d, the last below the patch size: these patches are too small to show convergence at this temperature; use larger patches or a higher temperature",
+			r.Beta, r.Tol, r.AgreeOrder))
+	case r.NoisyOrder > 0:
+		oc := r.Orders[lastOpen-1]
+		line := fmt.Sprintf("WARNING: inconclusive: the typicality references are too noisy to judge at tolerance %.2g (2 standard errors up to %.2g): from order %d on the expansion differs from them by no more than their noise explains, but %d of %d values at order %d miss tolerance + 2 standard errors, so agreement within %.2g is neither shown nor refuted at beta = %.4g",
+			r.Tol, 2*noise, r.NoisyOrder, oc.Unresolved, oc.Values, lastOpen, r.Tol, r.Beta)
+		if r.VectorsNeeded > 0 {
+			line += fmt.Sprintf("; about %d random vectors (--vectors %d) would bring 2 standard errors below the tolerance, or check at a looser --tol", r.VectorsNeeded, r.VectorsNeeded)
+		}
+		lines = append(lines, line)
+	default:
+		best := r.Orders[0]
+		for _, oc := range r.Orders[:lastOpen] {
+			if oc.MaxDiff < best.MaxDiff {
+				best = oc
+			}
+		}
+		beyond := ""
+		if noise > 0 {
+			beyond = ", by more than the references' noise explains,"
+		}
+		lines = append(lines, fmt.Sprintf("WARNING: at beta = %.4g the expansion does NOT agree with exact results within %.2g at any order below the patch size%s (smallest largest difference %.2g, at order %d): the temperature is too low for the orders these patches check; do not trust expansion values at this temperature",
+			r.Beta, r.Tol, beyond, best.MaxDiff, best.Order))
+	}
+	if 2*noise > r.Tol && r.NoisyOrder == 0 {
+		lines = append(lines, fmt.Sprintf("WARNING: the typicality references carry statistical errors up to %.2g (2 sigma %.2g > tolerance %.2g): agreement is resolved only to that level; use more random vectors (--vectors)", noise, 2*noise, r.Tol))
 	}
 	if judged > 0 {
 		frac := float64(covered) / float64(judged)
 		line := fmt.Sprintf("the expansion's own truncation estimate bounded the true difference for %d of %d judged values (%.1f%%) below the patch size", covered, judged, 100*frac)
+		if noise > 0 {
+			line += " (within 2 standard errors of the reference; values whose reference noise exceeds their estimate are not judged)"
+		}
 		if frac < 0.9 {
 			line = "WARNING: " + line + ": its trusted flags are optimistic for this model"
 		}
 		lines = append(lines, line)
 	}
 	return lines
+}
+
+// everyPatch says "the patch" or "all N patches".
+func everyPatch(n int) string {
+	if n == 1 {
+		return "the patch"
+	}
+	return fmt.Sprintf("all %d patches", n)
 }

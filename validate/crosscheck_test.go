@@ -186,3 +186,27 @@ func TestCutPatchRefuses(t *testing.T) {
 		}
 	}
 }
+
+// The noise excursion is the Bonferroni point of Student t: for one value
+// the two-sided 5% point with 15 degrees of freedom is 2.131, for ten
+// values the 0.25% point, 3.286 (standard t tables, e.g. Abramowitz &
+// Stegun table 26.10); dense references (no vectors) have none. The vector
+// count rounds up to two digits.
+func TestNoiseExcursionAndRounding(t *testing.T) {
+	for _, c := range []struct {
+		n, vectors int
+		want       float64
+	}{{1, 16, 2.131}, {10, 16, 3.286}, {5, 0, 0}} {
+		if got := noiseExcursion(c.n, c.vectors); math.Abs(got-c.want) > 1e-3 {
+			t.Errorf("noiseExcursion(%d, %d) = %.4f, want %.3f", c.n, c.vectors, got, c.want)
+		}
+	}
+	for _, c := range []struct {
+		x    float64
+		want int
+	}{{7.2, 8}, {16, 16}, {1684.3, 1700}, {310001, 320000}} {
+		if got := roundUp2(c.x); got != c.want {
+			t.Errorf("roundUp2(%g) = %d, want %d", c.x, got, c.want)
+		}
+	}
+}

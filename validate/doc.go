@@ -25,6 +25,15 @@
 // (Pfeuty 1970; Lieb, Schultz, Mattis 1961). They are the references of
 // the long-chain checks, where no dense method reaches.
 //
+// Crosscheck compares the expansion, order by order, with these exact
+// references on patches cut from a model (CutPatch, PatchesOfShape). A
+// value agrees when |expansion - exact| <= Tol + 2 stderr of its own
+// reference; an order whose misses all lie within the largest noise
+// excursion expected among its values (Student t, Bonferroni) is "noisy":
+// the typicality references cannot judge it, and the result says about
+// how many vectors would. The expansion's own truncation estimates are
+// judged only where the reference noise lies below them.
+//
 // Sampler draws exact snapshots of a Gibbs state (or of any mixture of
 // eigenstates) in product bases, seeded and deterministic: the synthetic
 // data of the honesty tests, whose outcome distribution is exactly the one

@@ -58,6 +58,18 @@ type flipGroup struct {
 	realCoef bool
 }
 
+// realSum is the real coefficient of the group's terms on basis state b:
+// kr + sum_j (-1)^{parity(b & z_j)} cr_j.
+func (g *flipGroup) realSum(b uint64) float64 {
+	s := g.kr
+	for j, z := range g.z {
+		// Flip the sign bit for odd parity: branch-free.
+		sb := uint64(bits.OnesCount64(b&z)&1) << 63
+		s += math.Float64frombits(math.Float64bits(g.cr[j]) ^ sb)
+	}
+	return s
+}
+
 // NewOperator builds the operator of H = sum_k terms[k].Coeff P_k on n
 // qubits. Repeated Pauli strings add. It reports a site outside 0..n-1, a
 // bad letter or a coefficient that is not finite. workers <= 0 means
@@ -293,12 +305,7 @@ func (op *Operator) applyComplex(acc, dst, src, psi []complex128, lo, hi int, al
 		case g.realCoef:
 			for i := range acc {
 				b := base ^ uint64(i)
-				s := g.kr
-				for j, z := range g.z {
-					// Flip the sign bit for odd parity: branch-free.
-					sb := uint64(bits.OnesCount64(b&z)&1) << 63
-					s += math.Float64frombits(math.Float64bits(g.cr[j]) ^ sb)
-				}
+				s := g.realSum(b)
 				v := src[b]
 				acc[i] += complex(s*real(v), s*imag(v))
 			}
@@ -356,12 +363,7 @@ func (op *Operator) applyReal(acc, dst, src, psi []float64, lo, hi int, alpha, b
 		}
 		for i := range acc {
 			b := base ^ uint64(i)
-			s := g.kr
-			for j, z := range g.z {
-				sb := uint64(bits.OnesCount64(b&z)&1) << 63
-				s += math.Float64frombits(math.Float64bits(g.cr[j]) ^ sb)
-			}
-			acc[i] += s * src[b]
+			acc[i] += g.realSum(b) * src[b]
 		}
 	}
 	for i, h := range acc {

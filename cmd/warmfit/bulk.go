@@ -32,6 +32,8 @@ type bulkFlags struct {
 	figures     string
 	demo        string
 	csv         csvFlags
+	// orders overrides defaultBulkOrder per lattice (set by the demo).
+	orders map[string]int
 }
 
 // bulkOptions holds the flags of the current invocation; Flags resets
@@ -71,11 +73,11 @@ func init() {
 			fs.StringVar((*string)(&o.phonon), "phonon", string(phononT3), "lattice heat capacity: T3 (a T^3), T3+T5 (a T^3 + b T^5) or none")
 			fs.Float64Var(&o.perFormula, "sites-per-formula", 1, "magnetic spin-1/2 sites per formula unit (molar curves are per mole of formula units)")
 			fs.StringSliceVar(&o.unknownErr, "unknown-stderr", nil, "`QUANTITIES` (chi,C,M) whose errors are unknown: estimated from the residual scatter")
-			fs.Float64Var(&o.cwAbove, "cw-above", 0, "lowest temperature (K) of the Curie–Weiss first look (default: upper half of the chi range)")
+			fs.Float64Var(&o.cwAbove, "cw-above", 0, "lowest temperature (K) of the Curie–Weiss first look (default: a quarter of the hottest chi temperature)")
 			fs.BoolVar(&o.cwChi0, "cw-chi0", true, "fit a temperature-independent chi0 in the Curie–Weiss first look")
 			fs.Float64Var(&o.rejectBelow, "reject-below", bulk.DefaultRejectBelow, "p-value below which a candidate is rejected")
 			fs.StringVar((*string)(&o.engine), "engine", string(engineExpansion), "forward model: expansion (linked-cluster expansion of the infinite lattice) or clusters (exact diagonalisation of 12-site periodic clusters; faster, trusted only higher)")
-			fs.IntVar(&o.order, "order", 0, "expansion order, the largest cluster (default 10 for the chain, 8 otherwise)")
+			fs.IntVar(&o.order, "order", 0, "expansion order, the largest cluster (default: chain 13, honeycomb 11, square 10, triangular 9; with +Delta chain 10, others 8)")
 			fs.Float64Var(&o.sizeTol, "finite-size-tol", bulk.DefaultFiniteSizeTolerance, "relative agreement of the two periodic clusters that marks a curve trusted")
 			addOutputFlag(fs, &o.out, "the fit (JSON)")
 			fs.StringVar(&o.curves, "curves", "", "write data against model curves (CSV) to `FILE`")
@@ -125,7 +127,9 @@ range, and a ranking: candidates with p < --reject-below are rejected, the rest 
 ordered by AIC on the points every candidate trusts. Warnings go to stderr and into the
 JSON.
 
-The --curves CSV: ` + csvOutputHelp
+--curves FILE writes the data against each candidate's curve as CSV, one row per data
+point and candidate.
+` + csvOutputHelp
 
 const bulkExample = `# the invented demo compound: curves, fit, figures in ./orvanite
 warmfit bulk --demo orvanite
@@ -408,12 +412,34 @@ func newForwardModel(lattice string, withJ2, withDelta bool) (bulk.ForwardModel,
 	}
 	order := o.order
 	if order == 0 {
-		order = 8
-		if lattice == "chain" {
-			order = 10
+		order = defaultBulkOrder(lattice, withDelta)
+		if k, ok := o.orders[lattice]; ok {
+			order = k
 		}
 	}
 	return bulk.NewExpansionModel(lattice, order, bulk.ExpansionOptions{J2: withJ2, Anisotropic: withDelta})
+}
+
+// defaultBulkOrder is the expansion order used without --order: an
+// evaluation with derivatives takes about a second of one core for the
+// isotropic models (total-spin blocks); the anisotropic ones need S^z
+// blocks and eigenvectors, so they stay lower.
+func defaultBulkOrder(lattice string, anisotropic bool) int {
+	if anisotropic {
+		if lattice == "chain" {
+			return 10
+		}
+		return 8
+	}
+	switch lattice {
+	case "chain":
+		return 13
+	case "honeycomb":
+		return 11
+	case "square":
+		return 10
+	}
+	return 9
 }
 
 // collectWarnings gathers the warnings of every fit and of the ranking.

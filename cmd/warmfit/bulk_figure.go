@@ -68,16 +68,29 @@ func bulkFigure(r *bulkRun, q bulk.Quantity, series []int) (*plot.Document, erro
 	xlo, xhi := slices.Min(xs), slices.Max(xs)
 	ylo, yhi := slices.Min(ys), slices.Max(ys)
 	logX := q != bulk.Magnetization && xlo > 0 && xhi/xlo > 8
-	pad := 0.06 * (yhi - ylo)
-	d := plot.New(900, 600, "warmfit bulk: "+q.String())
-	sub := fmt.Sprintf("best: %s. Curves are drawn only where the model is trusted; the shaded band is the best candidate's trusted range. Residuals are (data − model)/σ.", cmp.Candidates[best].Name)
+	xAxis := plot.Axis{Label: xLabel, Min: xlo, Max: xhi, Log: logX}
 	if q == bulk.Magnetization {
-		sub = fmt.Sprintf("best: %s, one curve per temperature. Points at temperatures the model does not trust are hollow and were not fitted. Residuals are (data − model)/σ.", cmp.Candidates[best].Name)
+		// Room right of the sweeps for their temperature labels.
+		xAxis = plot.Axis{Label: xLabel, Min: math.Min(0, xlo), Max: xhi + 0.2*(xhi-math.Min(0, xlo)), Tight: true}
+	}
+	pad := 0.06 * (yhi - ylo)
+	yMin := ylo - pad
+	if ylo > 0 {
+		// Positive data (C, and chi or M of an antiferromagnet) keep
+		// the axis at or above zero.
+		yMin = math.Max(0, yMin)
+	}
+	d := plot.New(900, 600, "warmfit bulk: "+q.String())
+	bestFit := cmp.Own[best]
+	global := fmt.Sprintf("best: %s, χ²/dof = %.1f/%d over all curves; the legend gives each candidate's χ² over this quantity's fitted points", cmp.Candidates[best].Name, bestFit.Chi2, bestFit.DOF)
+	sub := fmt.Sprintf("%s. Curves are drawn only where the model is trusted; the shaded band is the best candidate's trusted range. Residuals are (data − model)/σ.", global)
+	if q == bulk.Magnetization {
+		sub = fmt.Sprintf("%s. One curve per temperature, labelled at its right end; hollow points are at temperatures the model does not trust and were not fitted. Residuals are (data − model)/σ.", global)
 	}
 	top := d.Heading(quantityTitles[q][0]+": data and fitted models", sub)
-	ps := d.Stack(plot.Rect{X: 24, Y: top, W: 852, H: 600 - top - 10}, plot.Axis{Label: xLabel, Min: xlo, Max: xhi, Log: logX},
-		plot.Row{Title: quantityTitles[q][0], Y: plot.Axis{Label: quantityTitles[q][1], Min: ylo - pad, Max: yhi + pad}, Weight: 3},
-		plot.Row{Y: plot.Axis{Label: "residual / σ", Min: -4, Max: 4, Tight: true}, Weight: 1.2})
+	ps := d.Stack(plot.Rect{X: 24, Y: top, W: 852, H: 600 - top - 10}, xAxis,
+		plot.Row{Title: quantityTitles[q][0], Y: plot.Axis{Label: quantityTitles[q][1], Min: yMin, Max: yhi + pad}, Weight: 3},
+		plot.Row{Y: plot.Axis{Label: "residual / σ", Min: -4, Max: 4, Tight: true, Step: 2}, Weight: 1.2})
 	shade := plot.Fill{Color: plot.Diverging.At(0.42), Alpha: 0.45}
 	var entries []plot.LegendEntry
 	if q != bulk.Magnetization {
@@ -93,6 +106,9 @@ func bulkFigure(r *bulkRun, q bulk.Quantity, series []int) (*plot.Document, erro
 	dataMarker := plot.MarkerStyle{Shape: plot.Circle, Color: plot.Category(0)}
 	drawBulkData(ps[0], r, series, xOf, dataMarker)
 	entries = append(entries, plot.LegendEntry{Label: "data", Marker: &dataMarker})
+	if q == bulk.Magnetization {
+		labelSweeps(ps[0], r, series)
+	}
 	for rank, i := range cmp.Ranking {
 		e, err := drawBulkCandidate(ps, r, i, rank, q, series, xOf)
 		if err != nil {
@@ -171,11 +187,49 @@ func drawBulkCandidate(ps []*plot.Panel, r *bulkRun, i, rank int, q bulk.Quantit
 		}
 		ps[1].Points(rx, ry, marker)
 	}
-	label := fmt.Sprintf("%s: χ²/dof = %.1f/%d", cmp.Candidates[i].Name, f.Chi2, f.DOF)
+	chi2, used := 0.0, 0
+	for _, s := range series {
+		chi2 += f.Series[s].Chi2
+		used += f.Series[s].Used
+	}
+	label := fmt.Sprintf("%s: χ² = %.1f over %d %s points", cmp.Candidates[i].Name, chi2, used, q)
 	if cmp.Rejected[i] {
 		label += " (rejected)"
 	}
 	return plot.LegendEntry{Label: label, Line: stroke, Marker: &marker}, nil
+}
+
+// labelSweeps writes each M(H) sweep's temperature at its
+// highest-field point, saying when the best fit left it out.
+func labelSweeps(p *plot.Panel, r *bulkRun, series []int) {
+	best := r.cmp.Own[r.cmp.Ranking[0]]
+	for _, s := range series {
+		type end struct {
+			h, m float64
+			used bool
+		}
+		ends := map[float64]end{}
+		var temps []float64
+		for k, pt := range r.job.data[s].Points {
+			e, ok := ends[pt.T]
+			if !ok {
+				temps = append(temps, pt.T)
+			}
+			if !ok || pt.H > e.h {
+				e.h, e.m = pt.H, pt.Value
+			}
+			e.used = e.used || best.Series[s].UsedPoint[k]
+			ends[pt.T] = e
+		}
+		for _, t := range temps {
+			e := ends[t]
+			label := fmt.Sprintf("T = %.3g K", t)
+			if !e.used {
+				label += ", not fitted"
+			}
+			p.Annotate(e.h, e.m, 8, 4, label, plot.TextStyle{Anchor: plot.Start, Halo: true})
+		}
+	}
 }
 
 type denseCurve struct{ xs, ys []float64 }

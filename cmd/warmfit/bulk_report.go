@@ -62,6 +62,7 @@ type bulkCurieWeissJSON struct {
 	DOF        int              `json:"dof"`
 	PValue     jsonNumber       `json:"p_value"`
 	PValueNote string           `json:"p_value_note,omitempty"`
+	ErrorsNote string           `json:"errors_note"`
 	Exchange   []bulkCWExchange `json:"J_from_theta"`
 }
 
@@ -163,6 +164,9 @@ func writeBulkJSON(w io.Writer, r *bulkRun) error {
 	return enc.Encode(doc)
 }
 
+// curieWeissErrorsNote says what the first look's error bars leave out.
+const curieWeissErrorsNote = "errors statistical only; the Curie–Weiss form is exact only as T -> infinity, so theta and g also carry a model bias of relative order theta/T"
+
 func curieWeissJSON(r *bulkRun) *bulkCurieWeissJSON {
 	cw := r.curieWeiss
 	if cw == nil {
@@ -171,7 +175,8 @@ func curieWeissJSON(r *bulkRun) *bulkCurieWeissJSON {
 	g, _ := cw.SpinHalfG(r.job.perFormula)
 	out := &bulkCurieWeissJSON{Form: "chi = C/(T + theta)", Series: cw.Series.Label(), AboveK: jsonNumber(cw.Above), Points: cw.Points,
 		C: jsonNumber(cw.C), CErr: jsonNumber(cw.CErr), ThetaK: jsonNumber(cw.Theta), ThetaErr: jsonNumber(cw.ThetaErr),
-		GSpinHalf: jsonNumber(g), Chi2: jsonNumber(cw.Chi2), DOF: cw.DOF, PValue: jsonNumber(cw.PValue)}
+		GSpinHalf: jsonNumber(g), Chi2: jsonNumber(cw.Chi2), DOF: cw.DOF, PValue: jsonNumber(cw.PValue),
+		ErrorsNote: curieWeissErrorsNote}
 	if math.IsNaN(cw.PValue) {
 		out.PValueNote = "errors unknown: not tested"
 	}
@@ -279,8 +284,8 @@ func fmtG(v float64) string { return strconv.FormatFloat(v, 'g', 10, 64) }
 func printBulkSummary(w io.Writer, r *bulkRun) {
 	if cw := r.curieWeiss; cw != nil {
 		g, ge := cw.SpinHalfG(r.job.perFormula)
-		fmt.Fprintf(w, "Curie–Weiss first look (%s, T >= %.4g K, %d points): C = %.5g +- %.2g emu K/mol (g = %.4g +- %.2g for spin 1/2), theta = %.4g +- %.2g K\n",
-			cw.Series.Label(), cw.Above, cw.Points, cw.C, cw.CErr, g, ge, cw.Theta, cw.ThetaErr)
+		fmt.Fprintf(w, "Curie–Weiss first look (%s, T >= %.4g K, %d points): C = %.5g +- %.2g emu K/mol (g = %.4g +- %.2g for spin 1/2), theta = %.4g +- %.2g K (%s)\n",
+			cw.Series.Label(), cw.Above, cw.Points, cw.C, cw.CErr, g, ge, cw.Theta, cw.ThetaErr, curieWeissErrorsNote)
 	}
 	cmp := r.cmp
 	fmt.Fprintf(w, "\n%-18s %8s %6s %10s %10s %9s  %s\n", "candidate", "chi2", "dof", "p", "dAIC", "verdict", "parameters (own trusted range)")

@@ -3,6 +3,7 @@ package main
 import (
 	"encoding/json"
 	"fmt"
+	"html"
 	"os"
 	"path/filepath"
 	"strings"
@@ -76,10 +77,20 @@ func TestBulkFitsFileAndRefusesColdData(t *testing.T) {
 	}
 	warm := write("warm.csv", 30, 300)
 	curves := filepath.Join(dir, "curves.csv")
-	code, out, stderr := runCmd("bulk", "--start", "J=3meV", "--fix", "chi0=0", "--fix", "rho=0", "--curves", curves, warm)
+	figures := filepath.Join(dir, "figures")
+	sweeps := writeRingSweeps(t, dir, fwd)
+	code, out, stderr := runCmd("bulk", "--order", "10", "--start", "J=3meV", "--fix", "chi0=0", "--fix", "rho=0", "--curves", curves, "--figures", figures, warm, sweeps)
 	if code != exitOK {
 		t.Fatalf("exit %d: %s", code, stderr)
 	}
+	checkBulkFigureText(t, filepath.Join(figures, "bulk_chi.svg"), "trusted (chain): T ≥", "data", "chain: χ² = ", "over 20 chi points", "over all curves")
+	if d := os.Getenv("WARMFIT_KEEP_FIGURES"); d != "" {
+		for _, f := range []string{"bulk_chi.svg", "bulk_M.svg"} {
+			b, _ := os.ReadFile(filepath.Join(figures, f))
+			os.WriteFile(filepath.Join(d, f), b, 0o644)
+		}
+	}
+	checkBulkFigureText(t, filepath.Join(figures, "bulk_M.svg"), "chain: χ² = ", "over 16 M points", "T = 60 K", "T = 150 K", "over all curves")
 	var doc struct {
 		Constants  string
 		Best       string
@@ -113,8 +124,59 @@ func TestBulkFitsFileAndRefusesColdData(t *testing.T) {
 		t.Errorf("curves sidecar: %v", meta)
 	}
 	cold := write("cold.csv", 1, 8)
-	code, _, stderr = runCmd("bulk", "--start", "J=40K", cold)
+	code, _, stderr = runCmd("bulk", "--order", "10", "--start", "J=40K", cold)
 	if code != exitFailure || !strings.Contains(stderr, "lowest usable temperature") {
 		t.Errorf("cold data: exit %d, stderr %q", code, stderr)
+	}
+}
+
+// writeRingSweeps writes M(H) sweeps at 60 K and 150 K of the chain of
+// TestBulkFitsFileAndRefusesColdData, 8 fields each.
+func writeRingSweeps(t *testing.T, dir string, fwd bulk.ForwardModel) string {
+	t.Helper()
+	s := &bulk.Series{Quantity: bulk.Magnetization}
+	for _, T := range []float64{60, 150} {
+		for _, h := range linSpaced(0.5, 7, 8) {
+			s.Points = append(s.Points, bulk.Point{T: T, H: h})
+		}
+	}
+	c, err := bulk.NewCandidate("truth", fwd, []*bulk.Series{s}, nil, false, map[string]float64{bulk.ParamJ: 40, bulk.ParamG: 2.1, bulk.ParamImpurity: 0}, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	vals, _, err := c.Predict([]*bulk.Series{s})
+	if err != nil {
+		t.Fatal(err)
+	}
+	var b strings.Builder
+	b.WriteString("T [K],H [T],M [mu_B/f.u.],M_err [mu_B/f.u.]\n")
+	for i, p := range s.Points {
+		fmt.Fprintf(&b, "%g,%g,%.12g,%.4g\n", p.T, p.H, vals[0][i], 1e-3*vals[0][i])
+	}
+	path := filepath.Join(dir, "sweeps.csv")
+	if err := os.WriteFile(path, []byte(b.String()), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	return path
+}
+
+// checkBulkFigureText checks that the SVG figure says each of want: the
+// legend entries (trusted band, data, each candidate's own chi^2 over
+// the quantity shown), the global chi^2/dof in the heading, and the
+// temperature of each M(H) sweep.
+func checkBulkFigureText(t *testing.T, path string, want ...string) {
+	t.Helper()
+	svg, err := os.ReadFile(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	text := html.UnescapeString(string(svg))
+	for _, w := range want {
+		if !strings.Contains(text, w) {
+			t.Errorf("%s does not say %q", filepath.Base(path), w)
+		}
+	}
+	if strings.Contains(text, "χ²/dof = ") && strings.Count(text, "χ²/dof = ") > 1 {
+		t.Errorf("%s repeats the global χ²/dof %d times", filepath.Base(path), strings.Count(text, "χ²/dof = "))
 	}
 }

@@ -52,19 +52,26 @@ either, a model of at most 24 sites is checked whole. A patch keeps the terms wh
 all lie inside it, with open boundaries where it ends. On each patch every term's
 expectation is computed by the expansion at orders 1, 2, ... and exactly: by dense
 diagonalisation up to --dense-qubits sites (default 11), by thermal typicality with
-random vectors up to 24 sites (the values then carry statistical errors, which enter
-the comparison as 2 standard errors).
+random vectors up to 24 sites (--vectors, default 16; the values then carry statistical
+errors). A value agrees when |expansion - exact| <= --tol + 2 x its own reference standard
+error. An order where some value misses is "disagrees" when a miss exceeds what the
+reference noise explains among that many values, otherwise "noisy": the references are too
+noisy to judge at this tolerance, and the verdict says about how many vectors would bring 2
+standard errors below --tol.
 
 The output has one row per order: how many values were compared, the largest and the
 root-mean-square |expansion - exact|, the largest statistical error of the references,
 whether the order covers whole patches (the expansion is then exact by construction and
-says nothing about convergence), whether every value agrees within --tol, and how often
-the expansion's own truncation estimate bounded the true difference (and the median of
-estimate / true difference: how tight it is). Its metadata
+says nothing about convergence), whether every value agrees and the order's status, and how
+often the expansion's own truncation estimate bounded the true difference within 2
+standard errors of the reference (and the median of estimate / true difference: how tight
+it is); only values whose reference noise (2 standard errors) is below their estimate are
+judged, so noisy references cannot make the estimate look optimistic. Its metadata
 (sidecar, see below) gives the lowest order from which the expansion agrees and a verdict on
 the model's temperature; a WARNING (also on stderr) says when the expansion cannot be
-trusted there or the patches are too small to show it. --format json adds every value
-of every patch. --svg draws the largest and rms difference against the order.
+trusted there, the patches are too small to show it, or the references cannot tell.
+--format json adds every value of every patch. --svg draws the largest and rms difference
+against the order.
 
 Without --order the highest order is the patch size, lowered while the expansion of
 all patches would cost more than about a minute of computing.
@@ -74,7 +81,7 @@ all patches would cost more than about a minute of computing.
     --disorder 0.05 --seed 4 --beta 0.35 -o device.json
 warmfit crosscheck --model device.json --shape 3x3 --svg crosscheck.svg -o crosscheck.csv
 warmfit crosscheck --model device.json --sites 14-16,20-22,26-28 --tol 1e-4 --format json
-warmfit crosscheck --model device.json --shape 4x4 --max-patches 2 --beta 0.6`,
+warmfit crosscheck --model device.json --shape 4x4 --max-patches 2 --beta 0.6 --vectors 64`,
 		Flags: func(fs *pflag.FlagSet) {
 			o = crosscheckFlags{flags: fs}
 			addModelFlag(fs, &o.modelPath, "")
@@ -82,7 +89,7 @@ warmfit crosscheck --model device.json --shape 4x4 --max-patches 2 --beta 0.6`,
 			fs.StringVar(&o.shape, "shape", "", "check every patch of `WxH` unit cells (one size per lattice axis)")
 			fs.StringArrayVar(&o.sites, "sites", nil, "check the patch on these `SITES` (like 0,1,2,6-8); repeat for more patches")
 			fs.IntVar(&o.maxPatches, "max-patches", 0, "check at most `N` of the patches of --shape, evenly spread (default all)")
-			fs.Float64Var(&o.tol, "tol", 1e-3, "largest |expansion - exact| at which a value agrees")
+			fs.Float64Var(&o.tol, "tol", 1e-3, "largest |expansion - exact| at which a value agrees (plus 2 standard errors of a typicality reference)")
 			fs.IntVar(&o.order, "order", 0, "highest expansion order (default: the patch size, within the work limit)")
 			fs.IntVar(&o.dense, "dense-qubits", 11, "largest patch diagonalised densely; larger ones use thermal typicality")
 			fs.IntVar(&o.vectors, "vectors", 0, "random vectors for thermal typicality (default 16)")

@@ -25,13 +25,16 @@ func crosscheckFigure(r *validate.CrosscheckResult, how string) *plot.Document {
 	orders := make([]float64, top)
 	maxDiff := make([]float64, top)
 	rmsDiff := make([]float64, top)
-	lo, hi := r.Tol, r.Tol
+	// The axis runs at least a factor 3 past the tolerance and the
+	// references' 2 sigma both ways, so their lines sit inside the panel,
+	// and a factor 3 below the floor, so markers drawn on it are whole.
+	lo, hi := r.Tol/3, r.Tol*3
 	clamped := false
 	for i, oc := range r.Orders {
 		orders[i] = float64(oc.Order)
 		maxDiff[i], rmsDiff[i] = math.Max(oc.MaxDiff, crosscheckFloor), math.Max(oc.RMSDiff, crosscheckFloor)
 		clamped = clamped || oc.RMSDiff < crosscheckFloor
-		lo, hi = math.Min(lo, rmsDiff[i]), math.Max(hi, maxDiff[i])
+		lo, hi = math.Min(lo, rmsDiff[i]/3), math.Max(hi, maxDiff[i]*1.5)
 	}
 	noise := 0.0
 	firstWhole := 0
@@ -42,7 +45,7 @@ func crosscheckFigure(r *validate.CrosscheckResult, how string) *plot.Document {
 		}
 	}
 	if noise > 0 {
-		lo, hi = math.Min(lo, 2*noise), math.Max(hi, 2*noise)
+		lo, hi = math.Min(lo, 2*noise/3), math.Max(hi, 2*noise*3)
 	}
 	var ticks []plot.Tick // every order, every other one past a dozen
 	for o := 1; o <= top; o++ {
@@ -60,9 +63,13 @@ func crosscheckFigure(r *validate.CrosscheckResult, how string) *plot.Document {
 	}
 	tolStroke := plot.ReferenceStroke(true)
 	p.HLine(r.Tol, tolStroke, fmt.Sprintf("tolerance %s", fmtG3(r.Tol)))
-	noiseStroke := plot.Stroke{Color: plot.Category(4), Width: 1, Dash: []float64{2, 3}}
+	noiseStroke := plot.Stroke{Color: plot.Category(4), Width: 1.5, Dash: []float64{2, 3}}
 	if noise > 0 {
 		p.HLine(2*noise, noiseStroke, "2σ of the references")
+	}
+	floorStroke := plot.Stroke{Color: plot.Category(5), Width: 1, Dash: []float64{1, 4}}
+	if clamped {
+		p.HLine(crosscheckFloor, floorStroke, "") // the legend names it
 	}
 	agreeStroke := plot.CurveStroke(plot.Category(7))
 	if r.AgreeOrder > 0 {
@@ -75,21 +82,41 @@ func crosscheckFigure(r *validate.CrosscheckResult, how string) *plot.Document {
 	p.Line(orders, maxDiff, maxLine)
 	p.Points(orders, maxDiff, maxMarker)
 	entries := []plot.LegendEntry{
-		{Label: "largest difference", Marker: &maxMarker, Line: maxLine},
-		{Label: "rms difference", Marker: &rmsMarker, Line: rmsLine},
-		{Label: "tolerance", Line: tolStroke},
+		{Label: "largest |expansion − exact| over all values", Marker: &maxMarker, Line: maxLine},
+		{Label: "rms |expansion − exact| over all values", Marker: &rmsMarker, Line: rmsLine},
+		{Label: fmt.Sprintf("tolerance (--tol %s)", fmtG3(r.Tol)), Line: tolStroke},
 	}
 	if noise > 0 {
-		entries = append(entries, plot.LegendEntry{Label: "2σ of the typicality references", Line: noiseStroke})
+		entries = append(entries, plot.LegendEntry{Label: "2 standard errors of the noisiest typicality reference", Line: noiseStroke})
+	}
+	if r.AgreeOrder > 0 {
+		entries = append(entries, plot.LegendEntry{Label: "lowest order from which every order agrees", Line: agreeStroke})
+	}
+	if clamped {
+		entries = append(entries, plot.LegendEntry{Label: fmt.Sprintf("floor: differences below %g (rounding)", crosscheckFloor), Line: floorStroke})
 	}
 	if firstWhole > 0 {
 		entries = append(entries, plot.LegendEntry{Label: "order covers whole patches (exact by construction)", Fill: &wholeFill})
 	}
 	p.Legend(entries...)
-	note := r.Verdict[0]
+	note := crosscheckFigureNote(r)
 	if clamped {
 		note += fmt.Sprintf(" (differences below %g are drawn at %g)", crosscheckFloor, crosscheckFloor)
 	}
 	doc.Note(24, height-30, width-48, note)
 	return doc
+}
+
+// crosscheckFigureNote is the verdict in a line or two: the full verdict
+// (in the output files) is too long for the figure.
+func crosscheckFigureNote(r *validate.CrosscheckResult) string {
+	if r.NoisyOrder == 0 {
+		return r.Verdict[0]
+	}
+	note := fmt.Sprintf("inconclusive at β = %s: from order %d on the differences are within the references' noise, which exceeds the tolerance %s",
+		fmtFloat(r.Beta), r.NoisyOrder, fmtG3(r.Tol))
+	if r.VectorsNeeded > 0 {
+		note += fmt.Sprintf("; about %d vectors (--vectors %d) would resolve it", r.VectorsNeeded, r.VectorsNeeded)
+	}
+	return note
 }

@@ -17,7 +17,7 @@ import (
 // included, so that a file read later says what stderr said.
 
 // crosscheckCSVHeader names the columns of the per-order table.
-const crosscheckCSVHeader = "order,values,max_diff,rms_diff,max_stderr,whole_patch,agrees,judged,bounded,median_estimate_ratio"
+const crosscheckCSVHeader = "order,values,max_diff,rms_diff,max_stderr,whole_patch,agrees,status,judged,bounded,median_estimate_ratio"
 
 // crosscheckCSVMeta is the metadata of the per-order table: the setting,
 // the lowest agreeing order and the verdict, warnings included.
@@ -25,6 +25,9 @@ func crosscheckCSVMeta(r *validate.CrosscheckResult, how string) *csvMeta {
 	meta := &csvMeta{Command: "crosscheck", Contents: "one row per expansion order: the expansion against exact results on the patches"}
 	meta.line("warmfit crosscheck: %s at beta = %s, tolerance %s; %s", how, fmtFloat(r.Beta), fmtG3(r.Tol), crosscheckMethods(r))
 	meta.line("agree_order: %d (0: none), trusted: %v", r.AgreeOrder, r.Trusted)
+	if r.NoisyOrder > 0 {
+		meta.line("noisy_order: %d (no disagreement beyond the reference noise from there), vectors_needed: %d", r.NoisyOrder, r.VectorsNeeded)
+	}
 	for _, v := range r.Verdict {
 		if strings.HasPrefix(v, "WARNING") {
 			meta.line("%s", v)
@@ -37,6 +40,8 @@ func crosscheckCSVMeta(r *validate.CrosscheckResult, how string) *csvMeta {
 	meta.set("tolerance", r.Tol)
 	meta.set("agree_order", r.AgreeOrder)
 	meta.set("trusted", r.Trusted)
+	meta.set("noisy_order", r.NoisyOrder)
+	meta.set("vectors_needed", r.VectorsNeeded)
 	meta.set("verdict", r.Verdict)
 	return meta
 }
@@ -47,8 +52,8 @@ func writeCrosscheckCSV(w io.Writer, r *validate.CrosscheckResult) error {
 	bw := bufio.NewWriter(w)
 	fmt.Fprintln(bw, crosscheckCSVHeader)
 	for _, oc := range r.Orders {
-		fmt.Fprintf(bw, "%d,%d,%s,%s,%s,%v,%v,%d,%d,%s\n", oc.Order, oc.Values,
-			csvFloat(oc.MaxDiff), csvFloat(oc.RMSDiff), csvFloat(oc.Noise), oc.Exact, oc.Agrees, oc.Judged, oc.Covered, csvFloat(oc.MedianRatio))
+		fmt.Fprintf(bw, "%d,%d,%s,%s,%s,%v,%v,%s,%d,%d,%s\n", oc.Order, oc.Values,
+			csvFloat(oc.MaxDiff), csvFloat(oc.RMSDiff), csvFloat(oc.Noise), oc.Exact, oc.Agrees, oc.Status, oc.Judged, oc.Covered, csvFloat(oc.MedianRatio))
 	}
 	return bw.Flush()
 }
@@ -79,15 +84,18 @@ func crosscheckMethods(r *validate.CrosscheckResult) string {
 // The JSON document. Truncation estimates the expansion cannot make
 // (+Inf) are written as null.
 type crosscheckJSON struct {
-	Beta       float64               `json:"beta"`
-	Tol        float64               `json:"tol"`
-	Patches    string                `json:"patches"`
-	AgreeOrder int                   `json:"agree_order"`
-	Trusted    bool                  `json:"trusted"`
-	Verdict    []string              `json:"verdict"`
-	Warnings   []string              `json:"warnings"`
-	Orders     []crosscheckOrderJSON `json:"orders"`
-	Patch      []crosscheckPatchJSON `json:"patch_results"`
+	Beta       float64 `json:"beta"`
+	Tol        float64 `json:"tol"`
+	Patches    string  `json:"patches"`
+	AgreeOrder int     `json:"agree_order"`
+	Trusted    bool    `json:"trusted"`
+	// NoisyOrder and VectorsNeeded: see validate.CrosscheckResult.
+	NoisyOrder    int                   `json:"noisy_order"`
+	VectorsNeeded int                   `json:"vectors_needed"`
+	Verdict       []string              `json:"verdict"`
+	Warnings      []string              `json:"warnings"`
+	Orders        []crosscheckOrderJSON `json:"orders"`
+	Patch         []crosscheckPatchJSON `json:"patch_results"`
 }
 
 type crosscheckOrderJSON struct {
@@ -98,8 +106,13 @@ type crosscheckOrderJSON struct {
 	MaxStderr  float64 `json:"max_stderr"`
 	WholePatch bool    `json:"whole_patch"`
 	Agrees     bool    `json:"agrees"`
-	Judged     int     `json:"judged"`
-	Bounded    int     `json:"bounded"`
+	// Status is agrees, noisy or disagrees; Unresolved and Beyond count
+	// the values that miss within and beyond the reference noise.
+	Status     string `json:"status"`
+	Unresolved int    `json:"unresolved"`
+	Beyond     int    `json:"beyond_noise"`
+	Judged     int    `json:"judged"`
+	Bounded    int    `json:"bounded"`
 	// MedianRatio is the median of the truncation estimate over the true
 	// difference (0: none judged).
 	MedianRatio float64 `json:"median_estimate_ratio"`
@@ -127,7 +140,7 @@ type crosscheckValueJSON struct {
 
 func writeCrosscheckJSON(w io.Writer, m *model.Model, r *validate.CrosscheckResult, how string) error {
 	doc := crosscheckJSON{Beta: r.Beta, Tol: r.Tol, Patches: how, AgreeOrder: r.AgreeOrder, Trusted: r.Trusted,
-		Verdict: r.Verdict, Warnings: []string{}}
+		NoisyOrder: r.NoisyOrder, VectorsNeeded: r.VectorsNeeded, Verdict: r.Verdict, Warnings: []string{}}
 	for _, v := range r.Verdict {
 		if strings.HasPrefix(v, "WARNING") {
 			doc.Warnings = append(doc.Warnings, v)
@@ -135,7 +148,7 @@ func writeCrosscheckJSON(w io.Writer, m *model.Model, r *validate.CrosscheckResu
 	}
 	for _, oc := range r.Orders {
 		oj := crosscheckOrderJSON{Order: oc.Order, Values: oc.Values, MaxDiff: oc.MaxDiff, RMSDiff: oc.RMSDiff,
-			MaxStderr: oc.Noise, WholePatch: oc.Exact, Agrees: oc.Agrees, Judged: oc.Judged, Bounded: oc.Covered, MedianRatio: oc.MedianRatio, WorstPatch: oc.WorstPatch}
+			MaxStderr: oc.Noise, WholePatch: oc.Exact, Agrees: oc.Agrees, Status: oc.Status, Unresolved: oc.Unresolved, Beyond: oc.Beyond, Judged: oc.Judged, Bounded: oc.Covered, MedianRatio: oc.MedianRatio, WorstPatch: oc.WorstPatch}
 		if oc.WorstPatch >= 0 {
 			p := &r.Patches[oc.WorstPatch]
 			oj.WorstTerm = m.Terms[p.Patch.Parent[oc.WorstTerm]].Key()

@@ -90,7 +90,7 @@ func TestCrosscheckEqualsDemoTable(t *testing.T) {
 	}
 	for i, w := range want.Orders {
 		g := got.Orders[i]
-		if g.MaxDiff != w.MaxDiff || g.RMSDiff != w.RMSDiff || g.Agrees != w.Agrees || g.WholePatch != w.Exact || g.Bounded != w.Covered {
+		if g.MaxDiff != w.MaxDiff || g.RMSDiff != w.RMSDiff || g.Agrees != w.Agrees || g.Status != w.Status || g.WholePatch != w.Exact || g.Bounded != w.Covered {
 			t.Errorf("order %d: max %g rms %g agrees %v; the demo has %g, %g, %v", w.Order, g.MaxDiff, g.RMSDiff, g.Agrees, w.MaxDiff, w.RMSDiff, w.Agrees)
 		}
 	}

@@ -22,8 +22,8 @@ import (
 
 // csvOutputHelp is the paragraph the help of every CSV-writing command
 // carries.
-const csvOutputHelp = `CSV output: the first line is the header, so any CSV reader loads the file as it
-is. What the run was (command, order, beta, verdicts, every WARNING) goes to a JSON
+const csvOutputHelp = `The CSV's first line is its header, so any CSV reader loads the file as it is.
+What the run was (the command line, its settings, verdicts, every WARNING) goes to a JSON
 sidecar FILE.meta.json written next to -o FILE (atomically, like FILE); with the CSV
 on stdout there is no sidecar unless --meta M.json names one (WARNING lines are on
 stderr either way).

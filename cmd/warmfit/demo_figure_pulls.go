@@ -45,7 +45,7 @@ func pullHistogram(doc *plot.Document, cell plot.Rect, title string, r *demoReco
 		high = math.Max(high, c)
 	}
 	p := doc.Panel(cell, title, plot.Axis{Label: "pull", Min: -lim, Max: lim, Tight: true},
-		plot.Axis{Label: "terms per bin", Min: 0, Max: 1.15 * high})
+		plot.Axis{Label: "terms per bin", Min: 0, Max: 1.15 * high, Integer: true})
 	bars, outline := plot.HistogramStyle()
 	p.Bars(edges, counts, bars, outline)
 	var xs, ys []float64

@@ -8,6 +8,8 @@ import (
 	"slices"
 	"strings"
 
+	"gonum.org/v1/gonum/stat/distuv"
+
 	"warmfit/fit"
 	"warmfit/lattice"
 	"warmfit/lattice/model"
@@ -100,6 +102,7 @@ type demoRecovery struct {
 	// PullMean and Within2 (the fraction of |pull| <= 2) complete the
 	// comparison's rms and largest |pull|.
 	PullMean, Within2    float64
+	Within2Count         int // how many |pull| <= 2
 	MedStderr, MaxStderr float64
 	ByKind               []demoKindStats
 }
@@ -141,7 +144,7 @@ func newDemoRecovery(res *fit.Result, cmp *fit.TruthComparison, truth []lattice.
 	}
 	n := float64(len(res.Terms))
 	r.PullMean /= n
-	r.Within2 = float64(within) / n
+	r.Within2, r.Within2Count = float64(within)/n, within
 	r.MedStderr, r.MaxStderr = medianOf(stderrs), slices.Max(stderrs)
 	r.ByKind = r.kindStats()
 	return r, nil
@@ -199,11 +202,31 @@ func medianOf(v []float64) float64 {
 // Consistency bands for pulls of honest error bars, at three standard
 // deviations of the statistic for n independent standard-normal pulls
 // (common practice): the mean has sd 1/sqrt(n); the rms has sd about
-// 1/sqrt(2n); the fraction within 2 sigma, p = 0.9545, has sd
-// sqrt(p(1-p)/n).
-func pullBands(n int) (mean, rms, within float64) {
+// 1/sqrt(2n). (The fraction within 2 sigma is judged by an exact
+// binomial test, binomialTwoSided.)
+func pullBands(n int) (mean, rms float64) {
 	f := float64(n)
-	return 3 / math.Sqrt(f), 3 / math.Sqrt(2*f), 3 * math.Sqrt(0.9545*0.0455/f)
+	return 3 / math.Sqrt(f), 3 / math.Sqrt(2*f)
+}
+
+// within2Normal is the chance that a standard-normal pull lies within
+// 2 sigma: erf(sqrt 2) = 0.9545.
+var within2Normal = math.Erf(math.Sqrt2)
+
+// binomialTwoSided is the two-sided p-value of k successes in n trials of
+// chance p: the total probability of the outcomes no more likely than k
+// (the "minimum likelihood" rule of the exact binomial test; Hollander,
+// Wolfe and Chicken, Nonparametric Statistical Methods, from memory).
+func binomialTwoSided(k, n int, p float64) float64 {
+	b := distuv.Binomial{N: float64(n), P: p}
+	pk := b.Prob(float64(k))
+	sum := 0.0
+	for i := 0; i <= n; i++ {
+		if q := b.Prob(float64(i)); q <= pk*(1+1e-7) {
+			sum += q
+		}
+	}
+	return math.Min(sum, 1)
 }
 
 // maxPullChance is the probability that the largest of n independent

@@ -216,9 +216,12 @@ func (d *demoRun) reportTemperature(m *mdWriter) {
 	m.p("| operating beta | %s (%.0fx the bound) |\n", fmtFloat(sc.Beta), sc.Beta/t.Bound.Beta)
 	m.p("| unconverged term expectations at the fit (order %d) | %d of %d |\n", t.Order, t.Untrusted, t.Terms)
 	m.p("| truncation error of the coefficients (orders %s) | %s (target %s) |\n", joinInts(t.Truncation.Orders, ", "), fmtMaybePtr(t.Truncation.Error), fmtG3(t.Truncation.Target))
-	edge := "beyond the sweep"
-	if t.Edge > 0 {
-		edge = "beta < " + fmtFloat(t.Edge)
+	edge := "on the whole sweep"
+	switch {
+	case t.Edge > 0 && t.LastGood > 0:
+		edge = t.Judged.trustedLimit()
+	case t.Edge > 0:
+		edge = "nowhere on the sweep"
 	}
 	m.p("| energy and heat capacity per site converged (tolerance %g) | %s |\n\n", sc.SweepTol, edge)
 }

@@ -31,8 +31,11 @@ func (d *demoRun) printSummary(w io.Writer) {
 	}
 	if t := d.temp; t != nil {
 		edge := "converged on the whole sweep"
-		if t.Edge > 0 {
-			edge = "series trusted up to beta " + fmtFloat(t.LastGood)
+		switch {
+		case t.Edge > 0 && t.LastGood > 0:
+			edge = "series trusted " + t.Judged.trustedLimit()
+		case t.Edge > 0:
+			edge = "series trusted nowhere on the sweep"
 		}
 		p("  temperature  %d of %d expectations unconverged at order %d; %s; sufficient bound beta < %.2g",
 			t.Untrusted, t.Terms, t.Order, edge, t.Bound.Beta)
@@ -46,8 +49,11 @@ func (d *demoRun) printSummary(w io.Writer) {
 	}
 	// Warnings go to stderr, as every command's do; the summary counts
 	// them.
-	warn := 0
+	warn, marginal := 0, 0
 	for _, v := range d.verdicts() {
+		if v.Marginal {
+			marginal++
+		}
 		if !v.OK {
 			warn++
 			fmt.Fprintf(d.env.Stderr, "WARNING: %s\n", v.Text)
@@ -60,8 +66,10 @@ func (d *demoRun) printSummary(w io.Writer) {
 	switch {
 	case warn > 0:
 		p("  verdict      %s: see stderr and the report", plural(warn, "warning"))
+	case d.failure == nil && marginal > 0:
+		p("  verdict      every check passed: the expansion is trusted at this temperature; the pulls are only marginally consistent with honest error bars (see the report)")
 	case d.failure == nil:
-		p("  verdict      every check passed: the expansion is trusted at this temperature and the error bars are honest")
+		p("  verdict      every check passed: the expansion is trusted at this temperature and the pulls are consistent with honest error bars")
 	}
 	p("  report       %s", d.path("report.md"))
 }

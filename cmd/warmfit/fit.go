@@ -101,7 +101,7 @@ falls back on the exact Hessian.
 
 The template (--model) gives the lattice and the terms; terms sharing a "group" share
 one coefficient. The data (--data) are an expectation table (pauli,sites,value,stderr;
-an empty stderr marks an exact value) or a snapshot file (basis,outcome,count), from
+stderr "exact" marks a value known exactly; a blank stderr is refused) or a snapshot file (basis,outcome,count), from
 which expectations and their covariance are estimated. Every template term needs
 data unless it shares its group with a measured term: such terms are fitted through
 their group by moment matching on the measured members (A_m^T <E>_m = A_m^T e_m,
@@ -121,8 +121,15 @@ orders L-2 and L-1 are fitted first, each from the solution below, and measure
 the truncation error (the larger of the last two changes
 of any coefficient: partial sums can stall for one order). With --order auto (the
 default), the order rises until that error is at most 0.1 x the median statistical
-error, or --budget runs out (the next order's cost is predicted before it is
-started); the report says plainly when the truncation error is larger. The report also gives the sufficient-temperature bound,
+error, the order reaches the automatic ceiling (8 in two dimensions, or the number of
+sites of a small lattice, where the expansion is exact), or the next order would take
+the fit past its work limit (6e10 units of D^3
+work, about a minute on the reference 2-core machine, counted from the cost model
+and the Newton iterations, so the same data give the same order on any machine);
+the report says plainly when the truncation error is larger. --budget only guards
+the wall time: when this machine is too slow for it and it stops the rise first,
+a WARNING says the order is machine-dependent ("order_stopped_by_budget" in the
+report) and that a larger --budget gives the reproducible result. The report also gives the sufficient-temperature bound,
 the number of term expectations whose expansion has not converged, chi^2/dof for
 tied groups, and, with --truth, z-scores and L2/Linf errors.
 
@@ -295,9 +302,9 @@ func checkFitScale(o *fitFlags, tmpl *model.Model, calibration *fit.Calibration,
 		calibration = &c
 	}
 	switch mo := fitMethodOptions; {
-	case calibration != nil && mo.method == "stationary":
+	case calibration != nil && mo.method == fitMethodStationary:
 		return nil, usagef("--scale-from fixes the scale of the expansion fit at unknown temperature; --method stationary takes its known coefficients from --calibrate NAME=VALUE")
-	case mo.calibrate != "" && mo.method == "expansion":
+	case mo.calibrate != "" && mo.method == fitMethodExpansion:
 		return nil, usagef("--calibrate is for --method stationary (or auto); the expansion fit at unknown temperature fixes its energy scale with --scale-from TERM=VALUE (one calibrated coefficient) or --scale-from beta=B")
 	}
 	if calibration != nil && beta > 0 {
@@ -525,7 +532,7 @@ func fitWriteCSV(w io.Writer, res *fit.Result, cmp *fit.TruthComparison) error {
 		if cmp != nil {
 			z := ""
 			if v := cmp.Z[k]; !math.IsNaN(v) && !math.IsInf(v, 0) {
-				z = strconv.FormatFloat(v, 'g', 6, 64)
+				z = fmtExact(v)
 			}
 			rec = append(rec, strconv.FormatFloat(cmp.True[k], 'g', -1, 64), z)
 		}

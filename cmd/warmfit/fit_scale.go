@@ -132,7 +132,7 @@ func applyEnergyScale(w io.Writer, res *fit.Result, c fit.Calibration) (*fit.Res
 	if !math.IsNaN(es.BetaStderr) {
 		se = "+- " + fmtG3(es.BetaStderr)
 	}
-	fmt.Fprintf(w, "fit: energy scale from %s: beta = %s %s (%s); coefficients are now lambda\n", c, fmtFloat(es.Beta), se, es.Method)
+	fmt.Fprintf(w, "fit: energy scale from %s: beta = %s %s (%s); from here on every coefficient, error and truncation number is in units of lambda\n", c, fmtFloat(es.Beta), se, es.Method)
 	return scaled, nil
 }
 

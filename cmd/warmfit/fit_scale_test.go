@@ -5,6 +5,8 @@ import (
 	"math"
 	"os"
 	"path/filepath"
+	"regexp"
+	"strconv"
 	"strings"
 	"testing"
 
@@ -215,5 +217,45 @@ func TestResolveScaleGroup(t *testing.T) {
 		if err != nil || c.Term != want {
 			t.Errorf("%q: term %q (%v), want %q", spec, c.Term, err, want)
 		}
+	}
+}
+
+// With --scale-from, the fit's stderr summary and its WARNING lines quote
+// the truncation error, its target and beta in one unit system, lambda
+// with the recovered beta (review finding 7): the warning's truncation
+// error equals the summary's, its target is 0.1 x its statistical error,
+// and the convergence-bound warning names the recovered beta, not the
+// convention beta = 1 (common practice: one output, one unit system).
+func TestFitScaleFromOneUnitSystem(t *testing.T) {
+	dir := t.TempDir()
+	_, data, _ := noisyChainFiles(t, dir)
+	tmpl := unknownBetaTemplate(t, dir)
+	code, _, errs := runCmd("fit", "--model", tmpl, "--data", data, "--order", "3", "--scale-from", "ZZ 0 1=0.5", "-o", filepath.Join(dir, "o.json"))
+	if code != exitOK {
+		t.Fatalf("exit %d\n%s", code, errs)
+	}
+	num := func(re string) float64 {
+		t.Helper()
+		m := regexp.MustCompile(re).FindStringSubmatch(errs)
+		if m == nil {
+			t.Fatalf("stderr lacks %s:\n%s", re, errs)
+		}
+		v, err := strconv.ParseFloat(m[1], 64)
+		if err != nil {
+			t.Fatal(err)
+		}
+		return v
+	}
+	beta := num(`beta = ([0-9.e+-]+) \+-`)
+	sumErr := num(`truncation error ([0-9.e+-]+) \(largest change`)
+	sumTarget := num(`vs target ([0-9.e+-]+)`)
+	warnErr := num(`WARNING: truncation error ([0-9.e+-]+) exceeds`)
+	warnStat := num(`x statistical error ([0-9.e+-]+)`)
+	warnBeta := num(`WARNING: beta ([0-9.e+-]+) is above the sufficient`)
+	if math.Abs(warnErr-sumErr) > 1e-3*sumErr || math.Abs(0.1*warnStat-sumTarget) > 1e-2*sumTarget {
+		t.Errorf("summary truncation %g vs target %g, warning %g vs 0.1 x %g: two unit systems\n%s", sumErr, sumTarget, warnErr, warnStat, errs)
+	}
+	if math.Abs(warnBeta-beta) > 1e-3*beta {
+		t.Errorf("bound warning beta %g, recovered beta %g\n%s", warnBeta, beta, errs)
 	}
 }

@@ -23,10 +23,19 @@ import (
 // estimator (the expansion's maximum-entropy fit or the stationarity
 // constraints of fit/stationary).
 var fitMethodOptions struct {
-	method    string
+	method    fitMethod
 	calibrate string
 	farPairs  bool
 }
+
+// fitMethod is the value of fit --method: the estimator.
+type fitMethod string
+
+const (
+	fitMethodExpansion  fitMethod = "expansion"  // maximum entropy on the linked-cluster expansion
+	fitMethodStationary fitMethod = "stationary" // stationarity constraints (fit/stationary)
+	fitMethodAuto       fitMethod = "auto"       // expansion, stationary where it is not trusted
+)
 
 const fitMethodLong = `
 
@@ -64,7 +73,7 @@ For example:
 // addFitMethodFlags registers the method flags on the fit command.
 func addFitMethodFlags(fs *pflag.FlagSet) {
 	o := &fitMethodOptions
-	fs.StringVar(&o.method, "method", "expansion", "estimator: expansion, stationary or auto")
+	fs.StringVar((*string)(&o.method), "method", string(fitMethodExpansion), "estimator: expansion, stationary or auto")
 	fs.StringVar(&o.calibrate, "calibrate", "", "stationary: known coefficients `NAME=VALUE,...` (NAME a term key like ZZ:0:1, or a group)")
 	fs.BoolVar(&o.farPairs, "far-pairs", false, "stationary: also probe pairs of sites at distance two (always on for real models, whose terms have an even number of Y)")
 }
@@ -72,14 +81,15 @@ func addFitMethodFlags(fs *pflag.FlagSet) {
 // fitMethodFirst runs the stationarity method when --method stationary
 // and reports done; for expansion and auto the expansion fit runs first.
 func fitMethodFirst(env *runEnv, tmpl *model.Model, beta float64) (done bool, err error) {
-	switch fitMethodOptions.method {
-	case "expansion", "auto":
-		return false, nil
-	case "stationary":
-		fmt.Fprintln(env.Stderr, "fit: method stationary (--method stationary)")
-		return true, runFitStationary(env, tmpl, beta)
+	method, err := parseChoice("--method", string(fitMethodOptions.method), fitMethodExpansion, fitMethodStationary, fitMethodAuto)
+	if err != nil {
+		return true, err
 	}
-	return true, usagef("--method %q: want expansion, stationary or auto", fitMethodOptions.method)
+	if method != fitMethodStationary {
+		return false, nil
+	}
+	fmt.Fprintln(env.Stderr, "fit: method stationary (--method stationary)")
+	return true, runFitStationary(env, tmpl, beta)
 }
 
 // fitMethodAfter decides, for --method auto, whether the expansion fit
@@ -99,7 +109,7 @@ func fitMethodFirst(env *runEnv, tmpl *model.Model, beta float64) (done bool, er
 // result res and its error fitErr (the refit's when there was one); when
 // done is true err is the outcome of the stationarity method.
 func fitMethodAfter(env *runEnv, tmpl *model.Model, beta float64, res *fit.Result, fitErr error, refit func(order int) (*fit.Result, error)) (done bool, _ *fit.Result, _ error) {
-	if fitMethodOptions.method != "auto" {
+	if fitMethodOptions.method != fitMethodAuto {
 		return false, res, fitErr
 	}
 	n := tmpl.Lattice.NumSites()

@@ -13,13 +13,8 @@ import (
 
 // registerFlags builds a command's flag set the way the runner does.
 func registerFlags(c *command) *pflag.FlagSet {
-	fs := pflag.NewFlagSet(c.Name, pflag.ContinueOnError)
+	fs, _ := commandFlags(c)
 	fs.SetOutput(new(strings.Builder))
-	if c.Flags != nil {
-		c.Flags(fs)
-	}
-	var strict bool
-	addStrictFlag(fs, &strict)
 	checkFreshFlags(fs)
 	return fs
 }

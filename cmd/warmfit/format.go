@@ -18,6 +18,10 @@ func formatG(v float64, digits int) string {
 	return strconv.FormatFloat(v, 'g', digits, 64)
 }
 
+// fmtExact writes v in the shortest form that reads back to the same
+// float64 (formats.md's rule for numbers in output files), or "n/a".
+func fmtExact(v float64) string { return formatG(v, -1) }
+
 // fmtFloat is formatG with 6 digits, for parameters and diagnostics.
 func fmtFloat(v float64) string { return formatG(v, 6) }
 

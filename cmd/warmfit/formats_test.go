@@ -9,6 +9,7 @@ import (
 	"regexp"
 	"slices"
 	"sort"
+	"strconv"
 	"strings"
 	"testing"
 
@@ -238,6 +239,48 @@ func TestFormatsDocumentHasEveryCommand(t *testing.T) {
 	for name := range commands {
 		if !strings.Contains(section, "\n- `"+name+"`") {
 			t.Errorf("formats.md, section commands, has no entry \"- `%s`\"", name)
+		}
+	}
+}
+
+// formats.md promises numbers in output files in the shortest form that
+// reads back to the same float64 (review finding 10): the numeric columns
+// of predict (step, trunc_error, resummed), sweep and plan --format csv
+// are each their own shortest round-trip form, and some need more than 6
+// digits (the precision these columns used to be cut to).
+func TestNumbersWrittenInShortestRoundTripForm(t *testing.T) {
+	dir := t.TempDir()
+	modelPath := writeTestModel(t, dir)
+	runs := map[string][]string{
+		"predict": {"predict", "--model", modelPath, "--order", "4"},
+		"sweep":   {"sweep", "--model", modelPath, "--order", "4", "--beta-grid", "from=0.1,to=0.5,points=5"},
+		"plan":    {"plan", "--model", modelPath, "--order", "4", "--target", "0.05", "--format", "csv"},
+	}
+	for name, args := range runs {
+		code, out, errs := runCmd(args...)
+		if code != exitOK {
+			t.Fatalf("%s: exit %d\n%s", name, code, errs)
+		}
+		long := 0
+		for i, line := range strings.Split(strings.TrimSpace(out), "\n") {
+			if i == 0 || strings.HasPrefix(line, "#") {
+				continue
+			}
+			for _, f := range strings.Split(line, ",") {
+				v, err := strconv.ParseFloat(f, 64)
+				if err != nil || strings.ContainsAny(f, " ") || !strings.ContainsAny(f, ".e") {
+					continue // not a real number (term, sites, count, bool, "exact")
+				}
+				if back := strconv.FormatFloat(v, 'g', -1, 64); back != f {
+					t.Errorf("%s: %q is not the shortest round-trip form %q", name, f, back)
+				}
+				if len(strings.TrimLeft(strings.SplitN(strings.TrimLeft(f, "-"), "e", 2)[0], "0.")) > 7 {
+					long++
+				}
+			}
+		}
+		if long == 0 {
+			t.Errorf("%s: no value needs more than 6 digits; the check proves nothing:\n%s", name, out)
 		}
 	}
 }

@@ -109,8 +109,11 @@ func TestLatticeSVGAndOutputFiles(t *testing.T) {
 		t.Fatalf("exit %d, stdout %q, stderr %q", code, out, errs)
 	}
 	data, err := os.ReadFile(svg)
-	if err != nil || !bytes.HasPrefix(data, []byte("<svg")) || bytes.Count(data, []byte("<circle")) != 12 {
-		t.Errorf("SVG file: %v, %d circles", err, bytes.Count(data, []byte("<circle")))
+	// 12 sites and one legend swatch per sublattice: the three site fills
+	// of kagome are explained (review finding 9).
+	if err != nil || !bytes.HasPrefix(data, []byte("<svg")) || bytes.Count(data, []byte("<circle")) != 12+3 ||
+		!bytes.Contains(data, []byte("sublattice")) || !bytes.Contains(data, []byte("C: sites 2, 5, 8")) {
+		t.Errorf("SVG file: %v, %d circles, sublattice legend %v", err, bytes.Count(data, []byte("<circle")), bytes.Contains(data, []byte("sublattice")))
 	}
 	if data, err := os.ReadFile(csv); err != nil || string(data) != "size,count\n1,12\n" {
 		t.Errorf("CSV file: %q, %v", data, err)

@@ -33,7 +33,7 @@ import (
 const defaultBudget = 60 * time.Second
 
 // budgetUsage is the one help line of --budget.
-const budgetUsage = "longest predicted run time: a request predicted to take longer is refused before it starts, and --order auto stays within it"
+const budgetUsage = "longest predicted run time: a request predicted to take longer is refused before it starts, and --order auto, which chooses by a machine-independent work limit, stops early when this machine would run past it and says so"
 
 // addBudgetFlag registers --budget with the same name, default and
 // meaning on every command.
@@ -221,4 +221,18 @@ func typicalityEstimate(n, vectors, terms int, norm1, beta float64) workEstimate
 		Bytes:    6*dim*16 + float64(vectors)*float64(64+8*terms),
 		Flag:     "--vectors",
 	}
+}
+
+// describeBudgetFlag writes a --budget the way it is typed: "45s", "1m",
+// "2h"; durations with several units as time.Duration writes them.
+func describeBudgetFlag(d time.Duration) string {
+	switch {
+	case d > 0 && d%time.Hour == 0:
+		return fmt.Sprintf("%dh", d/time.Hour)
+	case d > 0 && d%time.Minute == 0:
+		return fmt.Sprintf("%dm", d/time.Minute)
+	case d > 0 && d%time.Second == 0 && d < time.Minute:
+		return fmt.Sprintf("%ds", d/time.Second)
+	}
+	return d.String()
 }

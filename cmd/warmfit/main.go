@@ -8,7 +8,6 @@ import (
 	"fmt"
 	"io"
 	"os"
-	"sort"
 	"strings"
 
 	"github.com/spf13/pflag"
@@ -22,6 +21,8 @@ type command struct {
 	Usage   string // "warmfit NAME [flags]" line
 	Long    string // paragraphs shown by --help
 	Example string // at least one runnable example
+	// NoStrict leaves out --strict: the command prints no WARNING lines.
+	NoStrict bool
 	// Flags adds the command's flags to fs; Run then executes it.
 	Flags func(fs *pflag.FlagSet)
 	Run   func(env *runEnv, args []string) error
@@ -81,7 +82,7 @@ func run(env *runEnv, args []string) int {
 		if len(args) > 1 {
 			c, ok := commands[args[1]]
 			if !ok {
-				fmt.Fprintf(env.Stderr, "warmfit help: unknown command %q\n", args[1])
+				fmt.Fprintf(env.Stderr, "warmfit help: unknown command %q%s\n%s", args[1], didYouMean(args[1], commandNames()), commandListHint)
 				return exitUsage
 			}
 			printCommandHelp(env.Stdout, c, nil)
@@ -92,24 +93,18 @@ func run(env *runEnv, args []string) int {
 	}
 	c, ok := commands[name]
 	if !ok {
-		fmt.Fprintf(env.Stderr, "warmfit: unknown command %q\nRun 'warmfit help' for the list of commands.\n", name)
+		fmt.Fprintf(env.Stderr, "warmfit: unknown command %q%s\n%s", name, didYouMean(name, commandNames()), commandListHint)
 		return exitUsage
 	}
-	fs := pflag.NewFlagSet(c.Name, pflag.ContinueOnError)
+	fs, strict := commandFlags(c)
 	fs.SetOutput(io.Discard)
-	fs.SortFlags = false
-	if c.Flags != nil {
-		c.Flags(fs)
-	}
-	var strict bool
-	addStrictFlag(fs, &strict)
 	checkFreshFlags(fs)
 	if err := fs.Parse(args[1:]); err != nil {
 		if errors.Is(err, pflag.ErrHelp) {
 			printCommandHelp(env.Stdout, c, fs)
 			return exitOK
 		}
-		fmt.Fprintf(env.Stderr, "warmfit %s: %v\nRun 'warmfit help %s' for usage.\n", c.Name, err, c.Name)
+		fmt.Fprintf(env.Stderr, "warmfit %s: %v%s\n%s", c.Name, err, flagSuggestion(err, fs), commandHelpHint(c.Name))
 		return exitUsage
 	}
 	counter := &warningCounter{w: env.Stderr}
@@ -117,7 +112,7 @@ func run(env *runEnv, args []string) int {
 	cmdEnv.Stderr = counter
 	err := c.Run(&cmdEnv, fs.Args())
 	if err == nil {
-		if strict && counter.count > 0 {
+		if *strict && counter.count > 0 {
 			fmt.Fprintf(env.Stderr, "warmfit %s: --strict: %d WARNING line(s) above; the output was written, but the run counts as failed\n", c.Name, counter.count)
 			return exitFailure
 		}
@@ -125,7 +120,7 @@ func run(env *runEnv, args []string) int {
 	}
 	var ue *usageError
 	if errors.As(err, &ue) {
-		fmt.Fprintf(env.Stderr, "warmfit %s: %v\nRun 'warmfit help %s' for usage.\n", c.Name, err, c.Name)
+		fmt.Fprintf(env.Stderr, "warmfit %s: %v\n%s", c.Name, err, commandHelpHint(c.Name))
 		return exitUsage
 	}
 	fmt.Fprintf(env.Stderr, "warmfit %s: %v\n", c.Name, err)
@@ -135,22 +130,26 @@ func run(env *runEnv, args []string) int {
 func printCommandList(w io.Writer) {
 	fmt.Fprint(w, `warmfit learns local Hamiltonians from measurements of their thermal states.
 
-Usage:
-
-	warmfit <command> [flags]
-
-Commands:
+Run it as: warmfit COMMAND [flags] [arguments]. The commands:
 
 `)
-	names := make([]string, 0, len(commands))
-	for n := range commands {
-		names = append(names, n)
-	}
-	sort.Strings(names)
+	names := commandNames()
+	width := 0
 	for _, n := range names {
-		fmt.Fprintf(w, "\t%-10s %s\n", n, commands[n].Short)
+		width = max(width, len(n))
 	}
-	fmt.Fprint(w, "\nUse \"warmfit help <command>\" for more about a command, \"warmfit help formats\" for\nthe file formats, \"warmfit --version\" for the version.\n\n"+exitRule+"\n")
+	for _, n := range names {
+		fmt.Fprintf(w, "\t%-*s  %s\n", width, n, commands[n].Short)
+	}
+	fmt.Fprint(w, "\nEach command explains its flags and gives examples: warmfit help COMMAND.\nThe file formats: warmfit help formats. The version: warmfit --version.\n\n"+exitRule+"\n")
+}
+
+// commandListHint ends the message about a command that does not exist.
+const commandListHint = "The commands are listed by: warmfit help\n"
+
+// commandHelpHint ends the message about a mistake in calling a command.
+func commandHelpHint(name string) string {
+	return fmt.Sprintf("Flags and examples of %s: warmfit help %s\n", name, name)
 }
 
 func printCommandHelp(w io.Writer, c *command, fs *pflag.FlagSet) {
@@ -159,13 +158,7 @@ func printCommandHelp(w io.Writer, c *command, fs *pflag.FlagSet) {
 		fmt.Fprintf(w, "%s\n\n", strings.TrimSpace(c.Long))
 	}
 	if fs == nil {
-		fs = pflag.NewFlagSet(c.Name, pflag.ContinueOnError)
-		fs.SortFlags = false
-		if c.Flags != nil {
-			c.Flags(fs)
-		}
-		var strict bool
-		addStrictFlag(fs, &strict)
+		fs, _ = commandFlags(c)
 	}
 	if fs.HasFlags() {
 		fmt.Fprintf(w, "Flags:\n%s\n", fs.FlagUsages())
@@ -181,4 +174,19 @@ func indent(s, prefix string) string {
 		}
 	}
 	return strings.Join(lines, "\n")
+}
+
+// commandFlags is c's flag set with --strict (unless c.NoStrict); strict
+// points at the --strict value.
+func commandFlags(c *command) (fs *pflag.FlagSet, strict *bool) {
+	fs = pflag.NewFlagSet(c.Name, pflag.ContinueOnError)
+	fs.SortFlags = false
+	if c.Flags != nil {
+		c.Flags(fs)
+	}
+	strict = new(bool)
+	if !c.NoStrict {
+		addStrictFlag(fs, strict)
+	}
+	return fs, strict
 }

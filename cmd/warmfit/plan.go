@@ -243,7 +243,7 @@ func planWriteCSV(w io.Writer, terms []lattice.Term, p *fit.Plan) error {
 		return err
 	}
 	for k, t := range terms {
-		rec := []string{t.Pauli, lattice.SitesString(t.Sites), strconv.Itoa(p.Coverage[k]), strconv.FormatFloat(p.Stderr[k], 'g', 6, 64)}
+		rec := []string{t.Pauli, lattice.SitesString(t.Sites), strconv.Itoa(p.Coverage[k]), fmtExact(p.Stderr[k])}
 		if err := cw.Write(rec); err != nil {
 			return err
 		}

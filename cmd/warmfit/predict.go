@@ -50,14 +50,18 @@ connected clusters of up to --order sites; it works for any lattice size. Four e
 columns say how far each value can be trusted: step (change from the previous
 order), trunc_error (estimated truncation error, from the geometric decay of the
 changes over pairs of orders), resummed (Wynn epsilon acceleration of the partial
-sums) and trusted (trunc_error <= --tol). The stderr column repeats trunc_error,
-the value's uncertainty, so the table can serve as fit data.
+sums) and trusted (trunc_error <= --tol). The stderr column says "exact": the value
+is the expansion's own prediction at that order, which is the Gibbs value only where
+trusted is true. Rows marked trusted=false are NOT exact Gibbs values (their distance
+from one is trunc_error), and fit refuses them as exact data.
 A summary on stderr says plainly when the temperature is too low for the order.
 Without --order the order is chosen automatically, the same way on every machine:
 it starts low (4 in two dimensions) and rises while some value is untrusted, up to
 a ceiling by lattice dimension (12 on a chain, 8 in two dimensions) and while the
-estimated work of the next order stays within about a minute of computing; stderr
-says which order was used and why.
+estimated work of the next order stays within about a minute of computing; on a
+lattice of at most ` + fmt.Sprint(cluster.MaxDenseQubits) + ` sites it may pass the ceiling up to the number of sites, where
+the expansion is exact, when that order costs a few seconds. stderr says which order
+was used and why.
 
 --method exact diagonalises the whole system: densely up to ` + fmt.Sprint(denseExactQubits) + ` qubits (stderr
 "exact"), and by thermal typicality with random vectors up to ` + fmt.Sprint(validate.MaxTypicalityQubits) + ` qubits, in which
@@ -249,11 +253,14 @@ func predictByExpansion(env *runEnv, m *model.Model, beta float64, order int, to
 		}
 		t.Rows = append(t.Rows, fit.Row{
 			Pauli: term.Pauli, Sites: term.Sites, Value: c.Value,
-			Extra: []string{fmtFloat(c.LastStep), fmtFloat(c.Error), fmtFloat(c.Resummed), strconv.FormatBool(c.Trusted)},
+			Extra: []string{fmtExact(c.LastStep), fmtExact(c.Error), fmtExact(c.Resummed), strconv.FormatBool(c.Trusted)},
 		})
 	}
 	bound := cluster.SufficientBeta(m.Terms, coeffs)
 	verdict := expansionVerdict(untrusted-unknown, unknown, len(m.Terms), worst, tol, beta, order)
+	if n := m.Lattice.NumSites(); order >= n {
+		verdict = fmt.Sprintf("converged, exactly: order %d covers all %d sites, so the expansion equals the lattice's Gibbs values (no truncation error)", order, n)
+	}
 	meta["order"] = order
 	meta["clusters"] = sum64(res.Clusters)
 	meta["tolerance"] = tol
@@ -380,15 +387,15 @@ const defaultTypicalityVectors = 16
 
 // admitExpansion predicts an expansion run before it starts: an explicit
 // order is estimated and refused past the memory or --budget; an
-// automatic choice says where it starts and that each further order is
-// predicted before it is started.
+// automatic choice says where it starts, that further orders are chosen
+// by work units and that the budget only guards.
 func admitExpansion(env *runEnv, cmd string, exp *cluster.Expansion, sites, order int, policy cluster.OrderPolicy, budget time.Duration) error {
 	if order > 0 {
 		return admit(env.Stderr, cmd, expansionEstimate(exp, sites, order, "--order"), budget)
 	}
 	e := expansionEstimate(exp, sites, policy.Start, "--order")
-	fmt.Fprintf(env.Stderr, "%s: estimate: %s, about %s to start --order auto; each higher order is predicted before it starts and not begun past --budget %v\n",
-		cmd, e.What, describeTime(e.Duration), budget)
+	fmt.Fprintf(env.Stderr, "%s: estimate: %s, about %s to start --order auto; higher orders are chosen within a machine-independent work limit, and --budget %v only guards the wall time (a stop by it is reported as machine-dependent)\n",
+		cmd, e.What, describeTime(e.Duration), describeBudgetFlag(budget))
 	return nil
 }
 

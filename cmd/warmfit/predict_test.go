@@ -230,3 +230,73 @@ func TestSampleExactSnapshots(t *testing.T) {
 		t.Error("same seed, different snapshots")
 	}
 }
+
+// A prediction table whose rows are marked trusted=false holds unconverged
+// expansion values under stderr "exact": fit must refuse it rather than
+// fit those values as exact Gibbs data (review finding 3), and accept the
+// same rows once their stderr carries the truncation error.
+func TestFitRefusesUntrustedExactRows(t *testing.T) {
+	dir := t.TempDir()
+	modelPath := writeTestModel(t, dir)
+	cold := filepath.Join(dir, "cold.csv")
+	if code, _, stderr := runCmd("predict", "--model", modelPath, "--order", "3", "--beta", "1", "-o", cold); code != 0 {
+		t.Fatalf("predict: exit %d: %s", code, stderr)
+	}
+	out := filepath.Join(dir, "never.json")
+	code, _, stderr := runCmd("fit", "--model", modelPath, "--data", cold, "--order", "3", "-o", out)
+	if code != exitFailure || !strings.Contains(stderr, `field "trusted"`) || !strings.Contains(stderr, "not an exact Gibbs value") {
+		t.Errorf("exit %d, want %d and a refusal naming the trusted field:\n%s", code, exitFailure, stderr)
+	}
+	if _, err := os.Stat(out); !os.IsNotExist(err) {
+		t.Errorf("a refused fit wrote %s", out)
+	}
+	_, help, _ := runCmd("help", "predict")
+	if !strings.Contains(help, "trusted=false are NOT exact Gibbs values") || strings.Contains(help, "repeats trunc_error") {
+		t.Errorf("help predict does not say untrusted rows are not exact:\n%s", help)
+	}
+}
+
+// help fit describes the stderr column as the reader treats it: "exact"
+// marks an exact value, a blank one is refused (review finding 4).
+func TestFitHelpStderrMatchesReader(t *testing.T) {
+	_, help, _ := runCmd("help", "fit")
+	if strings.Contains(help, "empty stderr marks") || !strings.Contains(help, "a blank stderr is refused") {
+		t.Errorf("help fit misdescribes a blank stderr:\n%s", help)
+	}
+	dir := t.TempDir()
+	data := filepath.Join(dir, "blank.csv")
+	if err := os.WriteFile(data, []byte("pauli,sites,value,stderr\nZZ,0 1,0.1,\n"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	code, _, stderr := runCmd("fit", "--model", fitTemplate, "--data", data, "--order", "4")
+	if code != exitFailure || !strings.Contains(stderr, `field "stderr": empty`) {
+		t.Errorf("blank stderr: exit %d:\n%s", code, stderr)
+	}
+}
+
+// On a 9-site lattice at a temperature where order 8 has not converged,
+// the automatic order passes the two-dimensional ceiling 8 to order 9,
+// which covers every site and is exact (review finding 6;
+// inclusion-exclusion, Rigol, Bryant, Singh, arXiv 0706.3254), and stderr
+// says so instead of warning about truncation.
+func TestExpectAutoOrderReachesWholeSmallLattice(t *testing.T) {
+	if testing.Short() {
+		t.Skip("order 9 on 3x3: a few seconds")
+	}
+	dir := t.TempDir()
+	path := filepath.Join(dir, "x3.json")
+	if code, _, stderr := runCmd("model", "--lattice", "square:3x3", "--preset", "xxz", "--set", "Jxy=0.4,Jz=0.3,hz=0.2,hx=0.1",
+		"--disorder", "0.1", "--seed", "3", "--beta", "1.0", "-o", path); code != 0 {
+		t.Fatalf("model: exit %d: %s", code, stderr)
+	}
+	code, out, stderr := runCmd("predict", "--model", path)
+	if code != 0 {
+		t.Fatalf("predict: exit %d: %s", code, stderr)
+	}
+	if !strings.Contains(stderr, "order 9 chosen automatically") || !strings.Contains(stderr, "exactly: order 9 covers all 9 sites") || strings.Contains(stderr, "WARNING") {
+		t.Errorf("the automatic order did not reach the exact order 9:\n%s", stderr)
+	}
+	if strings.Contains(out, ",false\n") {
+		t.Errorf("rows of the exact order marked untrusted:\n%s", out)
+	}
+}

@@ -294,8 +294,15 @@ func (t *sweepTrust) sweepVerdict() string {
 // 0.001 per site) up to beta 0.6 (T = 1.67), the last trusted point of the
 // grid"; only meaningful when LastGood > 0.
 func (t *sweepTrust) rangeText() string {
-	return fmt.Sprintf("converged (tolerance %.2g per site) up to beta %s (T = %s), the last trusted point of the grid",
-		t.Tol, fmtFloat(t.LastGood), fmtFloat(1/t.LastGood))
+	return fmt.Sprintf("converged (tolerance %.2g per site) %s", t.Tol, t.trustedLimit())
+}
+
+// trustedLimit is the one wording of where the trusted range ends, e.g.
+// "up to beta 0.6 (T = 1.67), the last trusted point of the grid"; the
+// sweep, the demo's report, summary and verdicts all use it. Only
+// meaningful when LastGood > 0.
+func (t *sweepTrust) trustedLimit() string {
+	return fmt.Sprintf("up to beta %s (T = %s), the last trusted point of the grid", fmtFloat(t.LastGood), fmtFloat(1/t.LastGood))
 }
 
 // writeSweep writes the sweep table and records its facts and verdict in
@@ -320,10 +327,10 @@ func writeSweep(w io.Writer, env *runEnv, r *cluster.ThermoResult, tol float64, 
 			if math.IsNaN(v) || math.IsInf(v, 0) {
 				return fmt.Errorf("beta %g: non-finite thermodynamic value; the expansion broke down", beta)
 			}
-			bw.WriteString(strconv.FormatFloat(v, 'g', 10, 64))
+			bw.WriteString(fmtExact(v))
 			bw.WriteByte(',')
 		}
-		fmt.Fprintf(bw, "%s,%s,%t\n", fmtFloat(e.Error), fmtFloat(c.Error), trust.Trusted[i])
+		fmt.Fprintf(bw, "%s,%s,%t\n", fmtExact(e.Error), fmtExact(c.Error), trust.Trusted[i])
 	}
 	if trust.Edge > 0 {
 		meta.set("untrusted_from_beta", trust.Edge)

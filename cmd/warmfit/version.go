@@ -17,6 +17,8 @@ func init() {
 		Long:    "Version prints the warmfit version and the Go runtime it was built with.",
 		Example: "warmfit version",
 		Flags:   func(fs *pflag.FlagSet) {},
+		// It prints no warnings, so --strict would mean nothing.
+		NoStrict: true,
 		Run: func(env *runEnv, args []string) error {
 			if len(args) > 0 {
 				return usagef("version takes no arguments")

@@ -21,8 +21,13 @@
 //   - Forward model: a ForwardModel turns couplings into per-site curves
 //     (log Z, E, S, C, m, chi) on a temperature grid, with their
 //     derivatives along requested directions in coupling space and the
-//     lowest temperature it trusts each curve at. PeriodicClusterModel
-//     computes them by exact diagonalisation of a 12-site periodic cluster
+//     lowest temperature it trusts each curve at. ExpansionModel, the
+//     production model, sums the linked-cluster expansion of the infinite
+//     lattice (cluster.UniformExpansion; isotropic models by total spin)
+//     and trusts a curve where its last orders or resummations agree, on a
+//     grid reaching 50 J; it evaluates every field of the M(H) points in
+//     one diagonalisation (MultiFieldModel). PeriodicClusterModel computes
+//     the curves by exact diagonalisation of a 12-site periodic cluster
 //     and trusts a curve where it agrees with a smaller cluster.
 //   - Candidate: NewCandidate joins a forward model, the parameters that
 //     the data can determine and their start values; it predicts molar

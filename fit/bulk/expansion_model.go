@@ -142,14 +142,15 @@ func (m *ExpansionModel) CurvesAtFields(req Request, fields []float64) ([]*Curve
 			return nil, fmt.Errorf("bulk: field %v is not finite", h)
 		}
 	}
+	grid, at := trustGrid(req.Temps, s)
 	res, err := m.exp.Evaluate(scaled(req.Couplings), cluster.UniformOptions{
-		Temperatures: scaled(req.Temps), Fields: scaled(fields), Derivatives: len(req.Tangents) > 0})
+		Temperatures: scaled(grid), Fields: scaled(fields), Derivatives: len(req.Tangents) > 0})
 	if err != nil {
 		return nil, err
 	}
 	all := make([]*Curves, len(fields))
 	for f := range fields {
-		out, err := m.curvesOf(res, f, s, req)
+		out, err := m.curvesOf(res, f, s, req, at)
 		if err != nil {
 			return nil, err
 		}
@@ -158,9 +159,47 @@ func (m *ExpansionModel) CurvesAtFields(req Request, fields []float64) ([]*Curve
 	return all, nil
 }
 
+// trustGrid returns the temperatures to evaluate a request on: the
+// requested ones and, between them and above them up to 50 times the
+// coupling scale, enough more that neighbours are at most 25% apart.
+// Trust is judged on the whole grid (cluster.Curve's reach: every point
+// from the top down must be trusted), because the partial sums can agree
+// at low temperature for the wrong reason, every cluster frozen in its
+// ground state, as in a strong field. at[i] is the grid index of
+// requested temperature i.
+func trustGrid(temps []float64, scale float64) (grid []float64, at []int) {
+	const ratio = 1.25
+	top := max(50*scale, temps[len(temps)-1])
+	for i, t := range temps {
+		grid = append(grid, t)
+		next := top
+		if i+1 < len(temps) {
+			next = temps[i+1]
+		}
+		if next <= t*ratio {
+			continue
+		}
+		steps := int(math.Ceil(math.Log(next/t) / math.Log(ratio)))
+		for k := 1; k < steps; k++ {
+			grid = append(grid, t*math.Pow(next/t, float64(k)/float64(steps)))
+		}
+		if i+1 == len(temps) && next > t {
+			grid = append(grid, next)
+		}
+	}
+	at = make([]int, len(temps))
+	for i, k := 0, 0; i < len(temps); k++ {
+		if grid[k] == temps[i] {
+			at[i] = k
+			i++
+		}
+	}
+	return grid, at
+}
+
 // curvesOf converts the expansion's curves at field index f back to
-// kelvin.
-func (m *ExpansionModel) curvesOf(res *cluster.UniformResult, f int, s float64, req Request) (*Curves, error) {
+// kelvin, at the grid points at of the request's temperatures.
+func (m *ExpansionModel) curvesOf(res *cluster.UniformResult, f int, s float64, req Request, at []int) (*Curves, error) {
 	unit := map[cluster.Quantity]float64{cluster.QuantityEnergy: s, cluster.QuantitySusceptibility: 1 / s}
 	out := &Curves{Temps: slices.Clone(req.Temps)}
 	for q, dst := range map[cluster.Quantity]*Curve{
@@ -173,9 +212,9 @@ func (m *ExpansionModel) curvesOf(res *cluster.UniformResult, f int, s float64, 
 		if u == 0 {
 			u = 1
 		}
-		dst.Value = make([]float64, len(cv.Value))
-		for i, v := range cv.Value {
-			dst.Value[i] = u * v
+		dst.Value = make([]float64, len(at))
+		for i, k := range at {
+			dst.Value[i] = u * cv.Value[k]
 		}
 		dst.TrustedFrom = s * cv.ResummedReach
 		if len(req.Tangents) == 0 {
@@ -188,8 +227,8 @@ func (m *ExpansionModel) curvesOf(res *cluster.UniformResult, f int, s float64, 
 		for k, t := range req.Tangents {
 			dst.Deriv[k] = make([]float64, len(req.Temps))
 			for p, tp := range t {
-				for i := range req.Temps {
-					dst.Deriv[k][i] += tp * u / s * cv.DValue[p][i]
+				for i, g := range at {
+					dst.Deriv[k][i] += tp * u / s * cv.DValue[p][g]
 				}
 			}
 		}

@@ -68,3 +68,24 @@ func compareWithRing(t *testing.T, exp *ExpansionModel, req Request) {
 		}
 	}
 }
+
+// The trust grid holds the requested temperatures, in order, with no
+// neighbours more than 25% apart, up to 50 times the coupling scale.
+func TestTrustGrid(t *testing.T) {
+	for _, temps := range [][]float64{{2, 20}, {5}, {1, 1.1, 1.2, 400}, {100, 3000}} {
+		grid, at := trustGrid(temps, 30)
+		for i, k := range at {
+			if grid[k] != temps[i] {
+				t.Errorf("%v: grid[%d] = %g, want %g", temps, k, grid[k], temps[i])
+			}
+		}
+		for k := 1; k < len(grid); k++ {
+			if !(grid[k] > grid[k-1]) || grid[k] > 1.2500001*grid[k-1] {
+				t.Errorf("%v: grid steps from %g to %g", temps, grid[k-1], grid[k])
+			}
+		}
+		if top := grid[len(grid)-1]; top < 1500 {
+			t.Errorf("%v: grid ends at %g, below 50 x 30", temps, top)
+		}
+	}
+}

@@ -465,8 +465,12 @@ func (f *fitState) noteCutMoves() {
 					lo, hi = min(lo, pt.T), max(hi, pt.T)
 				}
 			}
-			f.warnf("%s: %d of %d points (%.4g-%.4g K) were not fitted: the model trusts this curve from %.4g K at the fitted parameters and is not extrapolated below",
-				ser.Label(), len(ser.Points)-sf.Used, len(ser.Points), lo, hi, sf.TrustedFrom)
+			span := fmt.Sprintf("%.4g-%.4g K", lo, hi)
+			if lo == hi {
+				span = fmt.Sprintf("all at %.4g K", lo)
+			}
+			f.warnf("%s: %d of %d points (%s) were not fitted: the model trusts this curve from %.4g K at the fitted parameters and is not extrapolated below",
+				ser.Label(), len(ser.Points)-sf.Used, len(ser.Points), span, sf.TrustedFrom)
 		}
 		if ser.Quantity != Magnetization && len(r.Rounds) > 1 && sf.TrustedFrom > first.TrustedFrom[s] {
 			f.warnf("%s: the fit walked the trusted range up from %.4g K to %.4g K as the parameters moved, dropping data it had started with", ser.Label(), first.TrustedFrom[s], sf.TrustedFrom)

@@ -2,12 +2,13 @@ package bulk
 
 import (
 	"math"
+	"strings"
 	"testing"
 )
 
 func expansionChain(t testing.TB) *ExpansionModel {
 	t.Helper()
-	m, err := NewExpansionModel("chain", 12, ExpansionOptions{})
+	m, err := NewExpansionModel("chain", 10, ExpansionOptions{})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -45,6 +46,47 @@ func TestFitFromFarStart(t *testing.T) {
 		}
 		if res.PValue < 1e-3 {
 			t.Errorf("start J = %g K: p = %.3g, the fit stopped away from the minimum", j0, res.PValue)
+		}
+	}
+}
+
+// A fit that moves the couplings so that the trusted range climbs above
+// data it started with must say so and leave those points out (the
+// model is never extrapolated): chain data from 5 K with J = 40 K, a
+// first guess J = 12 K under which all of them are trusted.
+func TestFitSaysWhenTrustedRangeWalksUp(t *testing.T) {
+	fwd := expansionChain(t)
+	truth := map[string]float64{ParamJ: 40, ParamG: 2.1, ParamImpurity: 0.01}
+	fixed := map[string]bool{ParamChi0: true}
+	gen, err := NewCandidate("truth", fwd, []*Series{{Quantity: Susceptibility}}, nil, false, truth, fixed)
+	if err != nil {
+		t.Fatal(err)
+	}
+	s := synthSeries(t, gen, Susceptibility, logGrid(5, 300, 40), 0, 0.003, 9)
+	c, err := NewCandidate("chain", fwd, []*Series{s}, nil, false, map[string]float64{ParamJ: 12, ParamG: 2.1, ParamImpurity: 0.01}, fixed)
+	if err != nil {
+		t.Fatal(err)
+	}
+	res, err := FitCandidate(c, []*Series{s}, FitOptions{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	sf := res.Series[0]
+	first := res.Rounds[0].TrustedFrom[0]
+	t.Logf("trusted from %.3g K at the start, %.3g K at the end; %d of %d points used; warnings %q", first, sf.TrustedFrom, sf.Used, len(s.Points), res.Warnings)
+	if !(sf.TrustedFrom > first) || sf.Used == len(s.Points) {
+		t.Fatalf("the range did not walk up (%.3g K -> %.3g K, %d points used)", first, sf.TrustedFrom, sf.Used)
+	}
+	walked := false
+	for _, w := range res.Warnings {
+		walked = walked || strings.Contains(w, "walked the trusted range up")
+	}
+	if !walked {
+		t.Errorf("no warning that the trusted range walked up: %q", res.Warnings)
+	}
+	for k, pt := range s.Points {
+		if sf.UsedPoint[k] && pt.T < sf.TrustedFrom {
+			t.Errorf("point at %.3g K used below the trusted range (%.3g K)", pt.T, sf.TrustedFrom)
 		}
 	}
 }

@@ -99,7 +99,7 @@ func patchEstimates(tb testing.TB, sys *System, lx, ly int, beta float64, totalS
 	shots := fit.ShotsPerTerm(bases, perBasis, sys.Strings)
 	rng := rand.New(rand.NewPCG(seed, 5))
 	m := len(sys.Strings)
-	est := &fit.Estimates{Values: make([]float64, m), Stderr: make([]float64, m), Shots: shots, Cov: fit.NewSparseSym(m)}
+	est := &fit.Estimates{Values: make([]float64, m), Stderr: make([]float64, m), Shots: shots, Cov: cluster.NewSparseSym(m)}
 	for j, v := range values {
 		varj := (1 - v*v) / float64(max(shots[j], 2))
 		est.Values[j] = v + math.Sqrt(varj)*rng.NormFloat64()

@@ -10,6 +10,7 @@ import (
 	"testing"
 	"time"
 
+	"warmfit/cluster"
 	"warmfit/fit"
 	"warmfit/lattice/model"
 	"warmfit/validate"
@@ -19,7 +20,7 @@ import (
 // their covariances) from the estimates of sys.Strings.
 func termEstimates(sys *System, est *fit.Estimates) *fit.Estimates {
 	nt := len(sys.Terms())
-	out := &fit.Estimates{Values: make([]float64, nt), Stderr: make([]float64, nt), Shots: make([]int64, nt), Cov: fit.NewSparseSym(nt)}
+	out := &fit.Estimates{Values: make([]float64, nt), Stderr: make([]float64, nt), Shots: make([]int64, nt), Cov: cluster.NewSparseSym(nt)}
 	for k := range nt {
 		j := sys.TermString[k]
 		out.Values[k], out.Stderr[k], out.Shots[k] = est.Values[j], est.Stderr[j], est.Shots[j]
@@ -63,7 +64,7 @@ func patchFits(t *testing.T, m *model.Model, data *fit.Estimates, beta float64, 
 			return nil, err
 		}
 		pt := len(p.Model.Terms)
-		pe := &fit.Estimates{Values: make([]float64, pt), Stderr: make([]float64, pt), Shots: make([]int64, pt), Cov: fit.NewSparseSym(pt)}
+		pe := &fit.Estimates{Values: make([]float64, pt), Stderr: make([]float64, pt), Shots: make([]int64, pt), Cov: cluster.NewSparseSym(pt)}
 		for i, k := range p.Parent {
 			pe.Values[i], pe.Stderr[i], pe.Shots[i] = data.Values[k], data.Stderr[k], data.Shots[k]
 			for j := i; j < pt; j++ {

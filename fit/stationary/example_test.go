@@ -32,7 +32,7 @@ func ExampleSolve() {
 		panic(err)
 	}
 	est := &fit.Estimates{Values: make([]float64, len(sys.Strings)), Stderr: make([]float64, len(sys.Strings)),
-		Shots: make([]int64, len(sys.Strings)), Cov: fit.NewSparseSym(len(sys.Strings))}
+		Shots: make([]int64, len(sys.Strings)), Cov: cluster.NewSparseSym(len(sys.Strings))}
 	for j, s := range sys.Strings {
 		p, _ := cluster.TermPauli(s)
 		est.Values[j], est.Stderr[j] = th.Expect(p), 1e-4

@@ -4,6 +4,7 @@ import (
 	"errors"
 	"testing"
 
+	"warmfit/cluster"
 	"warmfit/fit"
 	"warmfit/validate"
 )
@@ -30,7 +31,7 @@ func TestSolveExactData(t *testing.T) {
 		t.Fatal(err)
 	}
 	vals := exactStrings(t, th, sys.Strings)
-	est := &fit.Estimates{Values: vals, Stderr: make([]float64, len(vals)), Shots: make([]int64, len(vals)), Cov: fit.NewSparseSym(len(vals))}
+	est := &fit.Estimates{Values: vals, Stderr: make([]float64, len(vals)), Shots: make([]int64, len(vals)), Cov: cluster.NewSparseSym(len(vals))}
 	for j := range vals {
 		est.Cov.Set(j, j, 1e-8)
 		est.Stderr[j] = 1e-4

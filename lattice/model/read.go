@@ -61,6 +61,9 @@ func (p *modelParser) errAt(off int, path string, err error) *Error {
 
 func (p *modelParser) parse() (*Model, error) {
 	if !json.Valid(p.doc) {
+		if what, line := csvLooking(p.doc); what != "" {
+			return nil, &Error{File: p.name, Line: line, Col: 1, Err: fmt.Errorf("this looks like %s, not a model file (JSON): were the model and the data swapped?", what)}
+		}
 		var v any
 		err := json.Unmarshal(p.doc, &v)
 		var se *json.SyntaxError
@@ -336,4 +339,29 @@ func parseIndex(b []byte) (int, bool) {
 		v = -v
 	}
 	return v, true
+}
+
+// csvLooking names the kind of CSV table doc seems to be ("a CSV table",
+// or an expectation table or snapshot file by its header) and the line of
+// that header, or returns "" when its first line that is neither blank
+// nor a '#' comment does not look like a CSV header: no JSON opening, and
+// fields separated by commas.
+func csvLooking(doc []byte) (what string, lineNo int) {
+	for i, line := range strings.Split(string(doc), "\n") {
+		line = strings.TrimSpace(strings.TrimPrefix(line, "\ufeff"))
+		if line == "" || line[0] == '#' {
+			continue
+		}
+		if line[0] == '{' || line[0] == '[' || !strings.Contains(line, ",") {
+			return "", 0
+		}
+		switch h := strings.ToLower(strings.ReplaceAll(line, " ", "")); {
+		case strings.HasPrefix(h, "pauli,sites,value,stderr"):
+			return "a CSV table (an expectation table: pauli,sites,value,stderr)", i + 1
+		case strings.HasPrefix(h, "basis,outcome,count"):
+			return "a CSV table (a snapshot file: basis,outcome,count)", i + 1
+		}
+		return "a CSV table", i + 1
+	}
+	return "", 0
 }

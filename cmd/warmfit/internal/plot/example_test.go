@@ -95,6 +95,6 @@ func ExampleLatticeFigure() {
 		fmt.Println(err)
 		return
 	}
-	fmt.Println(strings.Count(out.String(), "<circle"), "sites")
-	// Output: 12 sites
+	fmt.Println(strings.Count(out.String(), "<circle"), "circles: 12 sites and a legend swatch for each of the 3 sublattices")
+	// Output: 15 circles: 12 sites and a legend swatch for each of the 3 sublattices
 }

@@ -7,6 +7,7 @@ import (
 	"math"
 	"slices"
 	"strconv"
+	"strings"
 
 	"warmfit/lattice"
 )
@@ -54,6 +55,7 @@ type latticeLayout struct {
 	g      Geometry
 	pts    [][2]float64
 	segs   []segment
+	drawn  []segment // the segments drawn (drawLattice)
 	lo, hi [2]float64 // bounding box of sites and stubs, lattice units
 	scale  float64    // pixels per lattice unit
 	ox, oy float64    // pixel of the box's upper left corner (lo[0], hi[1])
@@ -134,14 +136,70 @@ func LatticeFigure(g Geometry) *Document {
 	l.bond = 2.5
 	pad := latticeMargin + l.radius
 	caption := g.caption()
+	keys := sublatticeKeys(g)
 	content := (l.hi[0]-l.lo[0])*l.scale + 2*pad
 	width := math.Max(content, textWidth(caption, sizeNote, false)+latticeMargin)
 	height := (l.hi[1]-l.lo[1])*l.scale + 2*pad + latticeCaption
+	if len(keys) > 0 {
+		width = math.Max(width, sublatticeLegendWidth(keys)+latticeMargin)
+		height += latticeCaption
+	}
 	l.ox, l.oy = pad+(width-content)/2, pad
 	d := New(math.Ceil(width), math.Ceil(height), g.Name)
 	d.drawLattice(l, LatticeLayers{Numbers: true})
+	if len(keys) > 0 {
+		d.sublatticeLegend(latticeMargin/2, height-latticeCaption*1.5, keys)
+	}
 	d.Text(latticeMargin/2, height-latticeCaption/2, caption, TextStyle{Size: sizeNote, Color: mutedColor})
 	return d
+}
+
+// sublatticeKeys are the legend texts of the site fills of the plain
+// style, one per position in the unit cell ("A: sites 0, 3, 6, …"), or
+// none for one site per cell or more positions than fills.
+func sublatticeKeys(g Geometry) []string {
+	cell := g.CellSites
+	if cell < 2 || cell > len(cellFills) {
+		return nil
+	}
+	keys := make([]string, cell)
+	for k := range keys {
+		var sites []string
+		for i := k; i < len(g.Coords) && len(sites) < 3; i += cell {
+			sites = append(sites, fmt.Sprint(i))
+		}
+		keys[k] = fmt.Sprintf("%c: sites %s, …", 'A'+k, strings.Join(sites, ", "))
+	}
+	return keys
+}
+
+const (
+	sublatticeSwatch = 7.0  // radius of a legend circle
+	sublatticeGap    = 18.0 // between legend entries
+	sublatticeTitle  = "sublattice (position in the unit cell):"
+)
+
+func sublatticeLegendWidth(keys []string) float64 {
+	w := textWidth(sublatticeTitle, sizeNote, false)
+	for _, k := range keys {
+		w += sublatticeGap + 2*sublatticeSwatch + 4 + textWidth(k, sizeNote, false)
+	}
+	return w
+}
+
+// sublatticeLegend explains the site fills of the plain style on one line
+// whose text baseline is at y.
+func (d *Document) sublatticeLegend(x, y float64, keys []string) {
+	st := TextStyle{Size: sizeNote, Color: mutedColor}
+	d.Text(x, y, sublatticeTitle, st)
+	x += textWidth(sublatticeTitle, sizeNote, false)
+	for k, key := range keys {
+		x += sublatticeGap
+		d.Circle(x+sublatticeSwatch, y-sizeNote/3, sublatticeSwatch, &Fill{Color: cellFills[k]}, Stroke{Color: inkColor, Width: 1})
+		x += 2*sublatticeSwatch + 4
+		d.Text(x, y, key, st)
+		x += textWidth(key, sizeNote, false)
+	}
 }
 
 // Lattice draws the geometry scaled to fit box, coloured by the layers,
@@ -244,8 +302,8 @@ func (v *LatticeView) Site(i int) (x, y float64, ok bool) {
 }
 
 // Outline draws a dashed frame around the given sites, with an optional
-// label above its left corner: the patch checked against exact methods,
-// say.
+// label beside it where it touches no bond or site (freeLabelSpot): the
+// patch checked against exact methods, say.
 func (v *LatticeView) Outline(sites []int, label string) {
 	if v.layout == nil || len(sites) == 0 {
 		return
@@ -264,15 +322,60 @@ func (v *LatticeView) Outline(sites []int, label string) {
 	r := Rect{x0 - pad, y0 - pad, x1 - x0 + 2*pad, y1 - y0 + 2*pad}
 	v.d.Rect(r, nil, Stroke{Color: inkColor, Width: 1.2, Dash: []float64{5, 3}})
 	if label != "" {
-		v.d.Text(r.X+2, r.Y-4, label, TextStyle{Size: sizeLegend, Color: mutedColor, Halo: true})
+		x, y := v.layout.freeLabelSpot(r, textWidth(label, sizeLegend, false), sizeLegend)
+		v.d.Text(x, y, label, TextStyle{Size: sizeLegend, Color: mutedColor, Halo: true})
 	}
+}
+
+// freeLabelSpot finds the baseline of a label of width w and font size
+// size next to the frame r where it touches no drawn bond and no site:
+// along the outside of the top edge first, then of the bottom edge, left
+// to right. Without a free spot it falls back on the top left corner.
+func (l *latticeLayout) freeLabelSpot(r Rect, w, size float64) (x, baseline float64) {
+	const clear = 5.0 // pixels between the label and any bond or site
+	free := func(box Rect) bool {
+		box = Rect{box.X - clear, box.Y - clear, box.W + 2*clear, box.H + 2*clear}
+		inside := func(px, py, grow float64) bool {
+			return px >= box.X-grow && px <= box.Right()+grow && py >= box.Y-grow && py <= box.Bottom()+grow
+		}
+		for _, s := range l.drawn {
+			ax, ay := l.at(s.a)
+			bx, by := l.at(s.b)
+			for k := 0; k <= 32; k++ {
+				t := float64(k) / 32
+				if inside(ax+t*(bx-ax), ay+t*(by-ay), l.bond) {
+					return false
+				}
+			}
+		}
+		for _, p := range l.pts {
+			if px, py := l.at(p); inside(px, py, l.radius) {
+				return false
+			}
+		}
+		return true
+	}
+	for _, base := range []float64{r.Y - 4, r.Bottom() + size + 2} {
+		for x := r.X + 2; x+w <= r.Right()-2; x += 4 {
+			if free(Rect{x, base - size, w, size * 1.2}) {
+				return x, base
+			}
+		}
+	}
+	return r.X + 2, r.Y - 4
 }
 
 // drawLattice paints the bonds, then the sites, far ones first.
 func (d *Document) drawLattice(l *latticeLayout, ls LatticeLayers) {
 	d.group(func(e elem) { e.str("stroke-linecap", "round") })
+	l.drawn = l.drawn[:0]
 	for _, s := range l.segs {
 		d.drawSegment(l, ls, s)
+		// Bonds without a value are left out, except nearest neighbours
+		// (drawn faint); labels keep clear of what is drawn.
+		if _, ok := ls.BondValues[s.bond]; ls.BondValues == nil || ok || !s.nnn {
+			l.drawn = append(l.drawn, s)
+		}
 	}
 	d.endGroup()
 	order := make([]int, len(l.pts))

@@ -59,9 +59,11 @@ func TestLatticeFigure(t *testing.T) {
 				labels[k] = true
 			}
 		}
-		if st.elements["circle"] != l.NumSites() || len(labels) != l.NumSites() || st.elements["line"] != wantLines {
+		// One circle per site, and a legend swatch per sublattice.
+		wantCircles := l.NumSites() + len(sublatticeKeys(LatticeGeometry(l)))
+		if st.elements["circle"] != wantCircles || len(labels) != l.NumSites() || st.elements["line"] != wantLines {
 			t.Errorf("%s: %d circles, %d labels, %d lines; want %d, %d, %d",
-				tt.spec, st.elements["circle"], len(labels), st.elements["line"], l.NumSites(), l.NumSites(), wantLines)
+				tt.spec, st.elements["circle"], len(labels), st.elements["line"], wantCircles, l.NumSites(), wantLines)
 		}
 	}
 }
@@ -111,6 +113,7 @@ func TestLatticeFigureSitePositions(t *testing.T) {
 	for _, spec := range []string{"honeycomb:3x3:periodic:shells=2", "kagome:2x3", "triangular:4x3", "square:3x3"} {
 		l := mustOpen(t, spec)
 		c := circleCentres(t, render(t, spec, LatticeFigure(LatticeGeometry(l))))
+		c = c[:min(len(c), l.NumSites())] // the sublattice legend's swatches follow the sites
 		if len(c) != l.NumSites() {
 			t.Fatalf("%s: %d circles for %d sites", spec, len(c), l.NumSites())
 		}
@@ -198,5 +201,24 @@ func TestLatticeLayers(t *testing.T) {
 	}
 	if _, _, ok := v.Site(9); ok {
 		t.Error("site 9 of 9 was placed")
+	}
+}
+
+// An outline's label keeps clear of the drawn bonds and sites (review
+// finding 9: the demo's "patch" label sat on a bond; common practice for
+// labels). Here a vertical bond runs through the frame's top left corner,
+// where the label used to go, so the label moves right along the edge.
+func TestOutlineLabelAvoidsBonds(t *testing.T) {
+	l := &latticeLayout{scale: 1, hi: [2]float64{0, 200}, radius: 10, bond: 2.5,
+		pts: [][2]float64{{30, 100}, {30, 180}, {130, 100}}}
+	l.drawn = []segment{{a: l.pts[0], b: l.pts[1]}, {a: l.pts[0], b: l.pts[2]}}
+	frame := Rect{X: 15, Y: 85, W: 130, H: 40} // around sites 0 and 2 (pixel y 100)
+	w := textWidth("patch", sizeLegend, false)
+	x, base := l.freeLabelSpot(frame, w, sizeLegend)
+	if base != frame.Y-4 {
+		t.Fatalf("label baseline %v, want above the frame at %v", base, frame.Y-4)
+	}
+	if bondX := 30.0; x <= bondX+l.bond && x+w >= bondX-l.bond {
+		t.Errorf("label [%v, %v] crosses the vertical bond at x = %v", x, x+w, bondX)
 	}
 }

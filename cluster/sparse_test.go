@@ -1,4 +1,4 @@
-package fit
+package cluster
 
 import (
 	"math"
@@ -73,7 +73,18 @@ func TestSparseSymAgainstDense(t *testing.T) {
 		}
 	}
 
-	dense := toDense(s)
+	dense := s.SymDense()
+	diag := s.Diag()
+	for i := range n {
+		if diag[i] != ref[i][i] {
+			t.Errorf("Diag[%d] = %v, want %v", i, diag[i], ref[i][i])
+		}
+		for j := range n {
+			if dense.At(i, j) != ref[i][j] {
+				t.Fatalf("SymDense (%d,%d) = %v, want %v", i, j, dense.At(i, j), ref[i][j])
+			}
+		}
+	}
 	a := mat.NewDense(3, n, nil)
 	for i := range 3 {
 		for j := range n {
@@ -88,6 +99,44 @@ func TestSparseSymAgainstDense(t *testing.T) {
 	}
 }
 
+func TestNewSparseSymCSR(t *testing.T) {
+	// The 3×3 matrix [[2 1 0] [1 3 4] [0 4 5]] in compressed rows;
+	// inserting into row 0 must not overwrite row 1, which shares the
+	// arrays.
+	s := NewSparseSymCSR(3, []int{0, 2, 5, 7}, []int32{0, 1, 0, 1, 2, 1, 2}, []float64{2, 1, 1, 3, 4, 4, 5})
+	want := [3][3]float64{{2, 1, 0}, {1, 3, 4}, {0, 4, 5}}
+	s.Set(0, 2, 7)
+	want[0][2], want[2][0] = 7, 7
+	for i := range 3 {
+		for j := range 3 {
+			if s.At(i, j) != want[i][j] {
+				t.Errorf("At(%d,%d) = %v, want %v", i, j, s.At(i, j), want[i][j])
+			}
+		}
+	}
+	if s.NNZ() != 6 {
+		t.Errorf("NNZ = %d, want 6", s.NNZ())
+	}
+	for _, bad := range []struct {
+		rowPtr []int
+		col    []int32
+	}{
+		{[]int{0, 2, 1, 2}, []int32{0, 1}},
+		{[]int{0, 2, 2, 2}, []int32{1, 0}},
+		{[]int{0, 1, 1, 1}, []int32{3}},
+		{[]int{0, 1}, []int32{0}},
+	} {
+		func() {
+			defer func() {
+				if recover() == nil {
+					t.Errorf("NewSparseSymCSR(%v, %v) did not panic", bad.rowPtr, bad.col)
+				}
+			}()
+			NewSparseSymCSR(3, bad.rowPtr, bad.col, make([]float64, len(bad.col)))
+		}()
+	}
+}
+
 func TestSparseSymPanics(t *testing.T) {
 	s := NewSparseSym(2)
 	defer func() {
@@ -96,12 +145,4 @@ func TestSparseSymPanics(t *testing.T) {
 		}
 	}()
 	s.At(0, 2)
-}
-
-// toDense returns S as a dense matrix (dimension at least 1: gonum
-// cannot represent 0).
-func toDense(s *SparseSym) *mat.SymDense {
-	d := mat.NewSymDense(s.n, nil)
-	s.Do(func(i, j int, v float64) { d.SetSym(i, j, v) })
-	return d
 }
