@@ -66,7 +66,8 @@ uses it only when its checks pass (resolved spectrum, consistent thermal match,
 finite error bars), else the converged expansion; stderr says which and why.
 For example:
 
-  warmfit sample --model device.json --shots 50000 --bases covering:3 -o shots.csv
+  warmfit model --lattice square:3x3 --preset xxz --set Jxy=0.4,Jz=0.3,hz=0.2,hx=0.1 --beta 1 -o device.json
+  warmfit sample --model device.json --shots 200000 --bases covering:3 -o shots.csv
   warmfit fit --model device.json --data shots.csv --method stationary -o fitted.json
   warmfit fit --model template.json --data shots.csv --method stationary --calibrate ZZ:0:1=0.2`
 

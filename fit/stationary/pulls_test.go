@@ -81,9 +81,10 @@ func matchedAtBeta(beta float64) func(*System) Gauge {
 // bars (the direction's noise propagated through the match,
 // directionNoise) are as large as the seeded-repetition spread: pull rms
 // within 0.8-1.25 (issue 12's acceptance band) on a disordered TFIM chain
-// and, with WARMFIT_STATIONARY_HEAVY=1 (minutes), on review finding 1's
-// 3x3 XXZ model at beta 1 with exact snapshots (dense ED sampler), whose
-// error bars were 5 times too small before far pairs were probed.
+// and, with WARMFIT_STATIONARY_HEAVY=1 (minutes), on the 3x3 XXZ model
+// of review finding 1 (its couplings and disorder width, the tests'
+// disorder seed) at beta 1 with exact snapshots (dense ED sampler), where
+// nearest-pair probes alone gave pull rms about 2 and errors of 0.4-0.5.
 func TestPullsThermalMatch(t *testing.T) {
 	cases := []struct {
 		sc    scenario
