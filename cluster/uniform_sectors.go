@@ -95,25 +95,33 @@ func binomial(n, k int) int {
 // basis fills w.states with the block's basis in ascending order and
 // w.idx with their positions.
 func (w *sectorWork) basis(b u1Block) int {
-	if len(w.idx) < 1<<b.n {
-		w.idx = make([]int32, 1<<b.n)
+	full := uint64(1)<<uint(b.n) - 1
+	return w.fillBasis(b.n, b.ones, func(s uint64) bool { return b.parity == 0 || s < s^full })
+}
+
+// fillBasis fills w.states with the n-bit masks of ones set bits that keep
+// accepts, in ascending order, and w.idx with their positions: the one
+// enumeration behind the S^z blocks and the total-spin tableaux.
+func (w *sectorWork) fillBasis(n, ones int, keep func(uint64) bool) int {
+	if len(w.idx) < 1<<n {
+		w.idx = make([]int32, 1<<n)
 	}
 	w.states = w.states[:0]
-	full := uint64(1)<<uint(b.n) - 1
-	if b.ones == 0 {
+	if ones == 0 {
 		w.idx[0] = 0
 		w.states = append(w.states, 0)
-	} else {
-		// Gosper's hack walks the states with ones set bits in order.
-		for s := uint64(1)<<uint(b.ones) - 1; s <= full; {
-			if b.parity == 0 || s < s^full {
-				w.idx[s] = int32(len(w.states))
-				w.states = append(w.states, s)
-			}
-			c := s & -s
-			r := s + c
-			s = (((r ^ s) >> 2) / c) | r
+		return 1
+	}
+	full := uint64(1)<<uint(n) - 1
+	// Gosper's hack walks the masks with ones set bits in order.
+	for s := uint64(1)<<uint(ones) - 1; s <= full; {
+		if keep(s) {
+			w.idx[s] = int32(len(w.states))
+			w.states = append(w.states, s)
 		}
+		c := s & -s
+		r := s + c
+		s = (((r ^ s) >> 2) / c) | r
 	}
 	return len(w.states)
 }

@@ -169,26 +169,7 @@ func su2Blocks(n int) []su2Block {
 // bit masks of the second row (bit k set: k is in the second row), in
 // ascending order, and w.idx with their positions.
 func (w *sectorWork) su2Basis(b su2Block) int {
-	if len(w.idx) < 1<<b.n {
-		w.idx = make([]int32, 1<<b.n)
-	}
-	w.states = w.states[:0]
-	full := uint64(1)<<uint(b.n) - 1
-	if b.low == 0 {
-		w.idx[0] = 0
-		w.states = append(w.states, 0)
-		return 1
-	}
-	for s := uint64(1)<<uint(b.low) - 1; s <= full; {
-		if ballot(s, b.n) {
-			w.idx[s] = int32(len(w.states))
-			w.states = append(w.states, s)
-		}
-		c := s & -s
-		r := s + c
-		s = (((r ^ s) >> 2) / c) | r
-	}
-	return len(w.states)
+	return w.fillBasis(b.n, b.low, func(s uint64) bool { return ballot(s, b.n) })
 }
 
 // ballot reports that every prefix of the n entries has no more in the

@@ -55,7 +55,7 @@ type latticeLayout struct {
 	g      Geometry
 	pts    [][2]float64
 	segs   []segment
-	drawn  []segment // the segments drawn (drawLattice)
+	drawn  []segment  // the segments drawn (drawLattice)
 	lo, hi [2]float64 // bounding box of sites and stubs, lattice units
 	scale  float64    // pixels per lattice unit
 	ox, oy float64    // pixel of the box's upper left corner (lo[0], hi[1])
