@@ -269,7 +269,7 @@ func writeBulkCurves(w io.Writer, r *bulkRun) error {
 					}
 				}
 				cw.Write([]string{c.Name, s.Quantity.String(), s.Quantity.Unit(), s.File, strconv.Itoa(pt.Line),
-					fmtG(pt.T), fmtG(pt.H), fmtG(pt.Value), fmtG(sd), src, fmtG(m), fmtG(pull),
+					fmtExact(pt.T), fmtExact(pt.H), fmtExact(pt.Value), fmtExact(sd), src, fmtExact(m), fmtExact(pull),
 					strconv.FormatBool(sf.Trusted[k]), strconv.FormatBool(sf.UsedPoint[k])})
 			}
 		}
@@ -277,8 +277,6 @@ func writeBulkCurves(w io.Writer, r *bulkRun) error {
 	cw.Flush()
 	return cw.Error()
 }
-
-func fmtG(v float64) string { return strconv.FormatFloat(v, 'g', 10, 64) }
 
 // printBulkSummary writes the human-readable summary to stderr.
 func printBulkSummary(w io.Writer, r *bulkRun) {
