@@ -3,6 +3,7 @@ package cluster
 import (
 	"fmt"
 	"math"
+	"sync"
 
 	"gonum.org/v1/gonum/blas"
 	"gonum.org/v1/gonum/blas/blas64"
@@ -29,9 +30,9 @@ type GridResult struct {
 // Expect[i], LogZ[i], Energy[i] and HeatCapacity[i] equal those of
 // Evaluate(coeffs, betas[i], opt) to rounding (Evaluate drops states of
 // weight below 1e-18/Dim, this sum keeps them). Options.Response is not
-// supported and returns an error. Memory grows with the number of
-// temperatures: every anchor block keeps len(betas) x Order partial sums
-// of the terms its clusters reach until the blocks are merged.
+// supported and returns an error. The result holds len(betas) x Order x
+// len(Terms) values; while the pass runs, each block in flight holds
+// len(betas) x Order partial sums of the terms its clusters reach.
 func (e *Expansion) EvaluateGrid(coeffs []float64, betas []float64, opt Options) (*GridResult, error) {
 	if opt.Response {
 		return nil, fmt.Errorf("the response is not available on a temperature grid; use Evaluate")
@@ -43,7 +44,7 @@ func (e *Expansion) EvaluateGrid(coeffs []float64, betas []float64, opt Options)
 // false: eigenvalues only, through Levels) and EvaluateGrid (withExpect
 // true: full spectra and the diagonal elements of the terms). Each block
 // accumulates in a blockAcc whose order-indexed slices hold beta i,
-// order o at i*L+o.
+// order o at i*L+o, and a gridMerger adds the blocks in order.
 func (e *Expansion) sumGrid(coeffs []float64, betas []float64, opt Options, withExpect bool) (*GridResult, error) {
 	if len(coeffs) != len(e.terms) {
 		panic(fmt.Sprintf("cluster: %d coefficients for %d terms", len(coeffs), len(e.terms)))
@@ -59,7 +60,7 @@ func (e *Expansion) sumGrid(coeffs []float64, betas []float64, opt Options, with
 	}
 	nb := len(betas)
 	blocks := e.lat.AnchorBlocks()
-	accs := make([]*blockAcc, len(blocks))
+	m := e.newGridMerger(len(blocks), L, betas, sym, withExpect)
 	err = e.runBlocks(blocks, workers, opt.Progress, func(w *clusterWork, b int) error {
 		acc := &blockAcc{
 			lo:     int(e.bySite[blocks[b][0]]),
@@ -70,8 +71,7 @@ func (e *Expansion) sumGrid(coeffs []float64, betas []float64, opt Options, with
 		if withExpect {
 			acc.expect = make([][]float64, nb*L)
 		}
-		accs[b] = acc
-		return e.eachBlockCluster(w, blocks[b], coeffs, L, func(c *clusterView) error {
+		err := e.eachBlockCluster(w, blocks[b], coeffs, L, func(c *clusterView) error {
 			if len(c.pos) == 0 {
 				return nil
 			}
@@ -87,11 +87,16 @@ func (e *Expansion) sumGrid(coeffs []float64, betas []float64, opt Options, with
 			acc.addGrid(w, c, nb, L, withExpect)
 			return nil
 		})
+		if err != nil {
+			return err
+		}
+		m.add(b, acc)
+		return nil
 	})
 	if err != nil {
 		return nil, err
 	}
-	return e.mergeGrid(accs, L, betas, sym, withExpect), nil
+	return m.result(), nil
 }
 
 // gridWork is the part of a worker's scratch space a temperature grid
@@ -183,10 +188,26 @@ func (a *blockAcc) addGrid(w *clusterWork, c *clusterView, nb, L int, withExpect
 	}
 }
 
-// mergeGrid adds the block accumulators in block order.
-func (e *Expansion) mergeGrid(accs []*blockAcc, L int, betas []float64, sym Symmetry, withExpect bool) *GridResult {
-	nb, K := len(betas), len(e.terms)
-	r := &GridResult{ThermoResult: ThermoResult{
+// gridMerger adds the block accumulators of a grid pass in block order
+// as they arrive: a finished block waits only until every block before it
+// is done, so the result is the same for any schedule while memory stays
+// at a few blocks' partial sums instead of all of them (each holds
+// len(betas) x Order sums of the terms its clusters reach).
+type gridMerger struct {
+	e          *Expansion
+	mu         sync.Mutex
+	pending    []*blockAcc // finished blocks not yet added
+	next       int         // the first block not yet added
+	nb, L      int
+	withExpect bool
+	r          *GridResult
+	bySorted   []float64 // [beta][order][sorted position]
+}
+
+func (e *Expansion) newGridMerger(blocks, L int, betas []float64, sym Symmetry, withExpect bool) *gridMerger {
+	nb := len(betas)
+	m := &gridMerger{e: e, pending: make([]*blockAcc, blocks), nb: nb, L: L, withExpect: withExpect}
+	m.r = &GridResult{ThermoResult: ThermoResult{
 		Order: L, NumSites: e.lat.NumSites(), Betas: append([]float64(nil), betas...), Symmetry: sym,
 	}}
 	grid := func() [][]float64 {
@@ -196,20 +217,30 @@ func (e *Expansion) mergeGrid(accs []*blockAcc, L int, betas []float64, sym Symm
 		}
 		return g
 	}
-	r.LogZ, r.Energy, r.HeatCapacity = grid(), grid(), grid()
-	var bySorted []float64 // [beta][order][sorted position]
+	m.r.LogZ, m.r.Energy, m.r.HeatCapacity = grid(), grid(), grid()
 	if withExpect {
-		bySorted = make([]float64, nb*L*K)
+		m.bySorted = make([]float64, nb*L*len(e.terms))
 	}
-	for _, a := range accs {
-		for i := 0; i < nb; i++ {
-			for o := 0; o < L; o++ {
-				at := i*L + o
-				r.LogZ[i][o] += a.logZ[at]
-				r.Energy[i][o] += a.energy[at]
-				r.HeatCapacity[i][o] += a.heat[at]
-				if withExpect {
-					dst := bySorted[at*K+a.lo:]
+	return m
+}
+
+// add records block b and adds every block that is now next in order.
+func (m *gridMerger) add(b int, acc *blockAcc) {
+	m.mu.Lock()
+	defer m.mu.Unlock()
+	m.pending[b] = acc
+	K := len(m.e.terms)
+	for ; m.next < len(m.pending) && m.pending[m.next] != nil; m.next++ {
+		a := m.pending[m.next]
+		m.pending[m.next] = nil
+		for i := 0; i < m.nb; i++ {
+			for o := 0; o < m.L; o++ {
+				at := i*m.L + o
+				m.r.LogZ[i][o] += a.logZ[at]
+				m.r.Energy[i][o] += a.energy[at]
+				m.r.HeatCapacity[i][o] += a.heat[at]
+				if m.withExpect {
+					dst := m.bySorted[at*K+a.lo:]
 					for p, v := range a.expect[at] {
 						dst[p] += v
 					}
@@ -217,14 +248,23 @@ func (e *Expansion) mergeGrid(accs []*blockAcc, L int, betas []float64, sym Symm
 			}
 		}
 	}
-	if withExpect {
-		r.Expect = make([][][]float64, nb)
+}
+
+// result returns the sums once every block has been added, with the
+// expectations in the caller's term order.
+func (m *gridMerger) result() *GridResult {
+	if m.next != len(m.pending) {
+		panic("cluster: grid result before every block was added")
+	}
+	r, K := m.r, len(m.e.terms)
+	if m.withExpect {
+		r.Expect = make([][][]float64, m.nb)
 		for i := range r.Expect {
-			r.Expect[i] = make([][]float64, L)
+			r.Expect[i] = make([][]float64, m.L)
 			for o := range r.Expect[i] {
 				row := make([]float64, K)
-				src := bySorted[(i*L+o)*K:]
-				for p, k := range e.sorted {
+				src := m.bySorted[(i*m.L+o)*K:]
+				for p, k := range m.e.sorted {
 					row[k] = src[p]
 				}
 				r.Expect[i][o] = row
