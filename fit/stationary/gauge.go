@@ -52,6 +52,11 @@ type Result struct {
 	// not computed).
 	Warnings  []string
 	Direction *Direction
+	// ErrorMethod says how StdErr was computed: "dense" (the sandwich
+	// with dense matrices, up to Options.DenseLimit parameters),
+	// "sparse" (conjugate gradients and probing, beyond it), or "" when
+	// not computed.
+	ErrorMethod string
 }
 
 // ErrUnderdetermined is returned (wrapped) when the gauge leaves a
