@@ -38,22 +38,8 @@ func (res *Result) errorBars(sys *System, est *fit.Estimates, calRows []int, bas
 	clear(ws.r)
 	x := ws.dense()
 	copy(ws.r, saved)
-	// U columns per string.
-	u := make(map[int32]map[int32]float64)
-	for a := range ws.rows() {
-		lo, hi, _ := ws.block(a)
-		for e := lo; e < hi; e++ {
-			c := ws.coef[e] * theta[ws.param[e]] * ws.w[a]
-			col := u[ws.str[e]]
-			if col == nil {
-				col = map[int32]float64{}
-				u[ws.str[e]] = col
-			}
-			for f := lo; f < hi; f++ {
-				col[ws.param[f]] += c * ws.val[f]
-			}
-		}
-	}
+	// U columns per string (per-row or full-covariance weights).
+	u := ws.influence(theta)
 	s := make([]float64, np*np)
 	est.Cov.Do(func(i, j int, v float64) {
 		ci, cj := u[int32(i)], u[int32(j)]
