@@ -113,7 +113,7 @@ type tableModel struct {
 }
 
 var tableModels = map[string]tableModel{
-	"tfim": {spec: "chain:%d", preset: "tfim", values: map[string]float64{"J": 1, "hx": 0.8, "hz": 0.3}, disorder: 0.3, patch: []int{8}, largeOrder: 8},
+	"tfim":   {spec: "chain:%d", preset: "tfim", values: map[string]float64{"J": 1, "hx": 0.8, "hz": 0.3}, disorder: 0.3, patch: []int{8}, largeOrder: 8},
 	"xxz3x4": {spec: "square:3x4", preset: "xxz", values: map[string]float64{"Jxy": 1, "Jz": 0.6, "hz": 0.4, "hx": 0.3}, disorder: 0.2, patch: []int{3, 3}, largeOrder: 6},
 	"xxz3x3": {spec: "square:3x3", preset: "xxz", values: map[string]float64{"Jxy": 1, "Jz": 0.6, "hz": 0.4, "hx": 0.3}, disorder: 0.2, patch: []int{2, 3}, largeOrder: 6},
 }
