@@ -131,7 +131,7 @@ var tableModels = map[string]tableModel{
 // chain of WARMFIT_STATIONARY_TABLE_N sites, default 12; xxz3x4; xxz3x3),
 // WARMFIT_STATIONARY_TABLE_SHOTS (shots per covering:3 basis, default
 // 20000), WARMFIT_STATIONARY_TABLE_BETAS (beta x max|coeff|, default
-// "0.1,0.3,0.5,1"), WARMFIT_STATIONARY_TABLE_SEEDS (default 1; errors are
+// "1,0.5,0.3,0.1"), WARMFIT_STATIONARY_TABLE_SEEDS (default 1; errors are
 // averaged, pulls pooled). Stationarity's scale: the thermal match at the
 // known beta (exact evaluator) up to 10 qubits; on 12 qubits one ED takes
 // minutes, so the first coefficient is calibrated instead (said in the
@@ -160,7 +160,7 @@ func TestComparisonTable(t *testing.T) {
 	if v, err := strconv.Atoi(os.Getenv("WARMFIT_STATIONARY_TABLE_SEEDS")); err == nil {
 		seeds = v
 	}
-	xs := []float64{0.1, 0.3, 0.5, 1.0}
+	xs := []float64{1, 0.5, 0.3, 0.1} // the colder, the more the table is about
 	if v := os.Getenv("WARMFIT_STATIONARY_TABLE_BETAS"); v != "" {
 		xs = nil
 		for _, f := range strings.Split(v, ",") {
@@ -198,17 +198,19 @@ func TestComparisonTable(t *testing.T) {
 	var table []string
 	table = append(table, fmt.Sprintf("%s %s %v disorder %.2g (max|coeff| %.3f), %d bases x %d shots, %d seed(s), full weights %v; %d coefficients, %d rows; stationarity scale: %s",
 		spec, tm.preset, tm.values, tm.disorder, maxc, len(bases), shots, seeds, fullWeights, len(terms), sys.NumRows(), gaugeName))
-	table = append(table, fmt.Sprintf("| beta*max|c| | stationarity max/rms, dir (pull rms) | expansion order <= %d max/rms, dir | patches %v max/rms, dir |", tm.largeOrder, tm.patch))
+	table = append(table, fmt.Sprintf("| beta*max|c| | stationarity max/rms, dir (pull rms; with the plain sandwich) | expansion order <= %d max/rms, dir | patches %v max/rms, dir |", tm.largeOrder, tm.patch))
 	table = append(table, "|---|---|---|---|")
 	for _, x := range xs {
 		beta := x / maxc
 		start := time.Now()
-		sampler, err := validate.NewSampler(n, terms, beta)
+		th, err := cluster.NewThermal(cachedSpectrum(t, "table "+name+spec, n, terms), beta)
 		if err != nil {
 			t.Fatal(err)
 		}
+		sampler := validate.NewSamplerFromThermal(th)
 		var st, ex, pa [4]float64 // max, rms², direction, (stationarity) pull²
-		var nst, nex, npa, pulls int
+		var nst, nex, npa, pulls, plainN int
+		var plain2 float64
 		var order int
 		var trust, stNote, exNote, paNote string
 		for s := range seeds {
@@ -232,6 +234,19 @@ func TestComparisonTable(t *testing.T) {
 						}
 					}
 					nst++
+					// The same with the plain sandwich (noise inflation
+					// kept), for the measurement of sandwichParts.
+					sandwichCorrected = !sandwichCorrected
+					if rp, err := Fix(sys, est, d, g, Options{}); err == nil {
+						for k := range truth {
+							if se := rp.StdErr[sys.Params().Of[k]]; se > 0 {
+								z := (rp.Lambda[k] - truth[k]) / se
+								plain2 += z * z
+								plainN++
+							}
+						}
+					}
+					sandwichCorrected = !sandwichCorrected
 				}
 			}
 			if err != nil {
@@ -271,7 +286,11 @@ func TestComparisonTable(t *testing.T) {
 		}
 		row := fmt.Sprintf("| %.2g | %s", x, cell(st, nst, stNote))
 		if pulls > 0 {
-			row += fmt.Sprintf(" (%.2f)", math.Sqrt(st[3]/float64(pulls)))
+			row += fmt.Sprintf(" (%.2f", math.Sqrt(st[3]/float64(pulls)))
+			if plainN > 0 {
+				row += fmt.Sprintf("; plain sandwich %.2f", math.Sqrt(plain2/float64(plainN)))
+			}
+			row += ")"
 		}
 		row += " | " + cell(ex, nex, exNote)
 		if nex > 0 {
@@ -367,17 +386,37 @@ func TestWeightingEffect(t *testing.T) {
 	}
 	saved := fullWeights
 	defer func() { fullWeights = saved }()
+	type variant struct {
+		name     string
+		full     bool
+		pairDist int
+	}
+	variants := []variant{{"diag", false, 0}, {"full", true, 0}}
+	if v := os.Getenv("WARMFIT_STATIONARY_EFFECT_VARIANTS"); v != "" {
+		variants = nil
+		// name:full:pairDist, comma separated, e.g. "full3:1:3".
+		for _, f := range strings.Split(v, ",") {
+			parts := strings.Split(f, ":")
+			if len(parts) != 3 {
+				t.Fatalf("variant %q: want name:full:pairDist", f)
+			}
+			pd, _ := strconv.Atoi(parts[2])
+			variants = append(variants, variant{parts[0], parts[1] == "1", pd})
+		}
+	}
 	for _, c := range cases {
 		g := calibrateFirst
 		if c.gauge == "match" {
 			g = matchedAtBeta(c.sc.beta)
 		}
-		for _, full := range []bool{false, true} {
-			fullWeights = full
+		for _, v := range variants {
+			fullWeights = v.full
+			sc := c.sc
+			sc.pairDist = v.pairDist
 			start := time.Now()
-			de, ce, pr, ref := effectStats(t, c.sc, c.shots, seeds, g)
-			t.Logf("%s %d shots, %d seeds, gauge %s, full weights %v: direction error %.4g, coefficient rms error %.4g, pull rms %.3g, refused %d [%.0fs]",
-				c.sc.name, c.shots, seeds, c.gauge, full, de, ce, pr, ref, time.Since(start).Seconds())
+			de, ce, pr, ref := effectStats(t, sc, c.shots, seeds, g)
+			t.Logf("%s %d shots, %d seeds, gauge %s, variant %s (full weights %v, pair distance %d): direction error %.4g, coefficient rms error %.4g, pull rms %.3g, refused %d [%.0fs]",
+				c.sc.name, c.shots, seeds, c.gauge, v.name, v.full, v.pairDist, de, ce, pr, ref, time.Since(start).Seconds())
 		}
 	}
 }

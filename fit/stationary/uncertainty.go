@@ -55,6 +55,12 @@ func (res *Result) errorBars(sys *System, est *fit.Estimates, calRows []int, bas
 			}
 		}
 	})
+	// With full-covariance weights the sandwich's two parts are one
+	// matrix, the normal matrix without its noise inflation
+	// (weighted_full.go, sandwichParts).
+	if xs, ok := ws.sandwichParts(); ok {
+		x, s = xs, xs
+	}
 	calibrated := make([]bool, np)
 	for _, q := range calRows {
 		calibrated[q] = true

@@ -329,3 +329,68 @@ func (ws *weighted) influence(theta []float64) map[int32]map[int32]float64 {
 	}
 	return u
 }
+
+// fullExpectedCorrection returns N = E[dM^T W dM] = sum_ab W_ab C_ab, the
+// expected inflation of M^T W M by the noise in the entries (np×np).
+func (ws *weighted) fullExpectedCorrection() []float64 {
+	n, np := ws.rows(), ws.np
+	ns := ws.scov.Dim()
+	out := make([]float64, np*np)
+	tmp := make([]float64, ns)
+	for a := range n {
+		lo, hi, _ := ws.block(a)
+		for e := lo; e < hi; e++ {
+			var touched []int
+			ws.scov.DoRow(int(ws.str[e]), func(l int, v float64) {
+				if tmp[l] == 0 {
+					touched = append(touched, l)
+				}
+				tmp[l] += ws.coef[e] * v
+			})
+			pe := int(ws.param[e])
+			for b := range n {
+				w := ws.winv[a*n+b]
+				if w == 0 {
+					continue
+				}
+				blo, bhi, _ := ws.block(b)
+				for f := blo; f < bhi; f++ {
+					out[pe*np+int(ws.param[f])] += w * ws.coef[f] * tmp[ws.str[f]]
+				}
+			}
+			for _, l := range touched {
+				tmp[l] = 0
+			}
+		}
+	}
+	return out
+}
+
+// sandwichParts returns, with full-covariance weights, the bread and
+// meat of the delta-method sandwich: both X = M^T W M - N with the
+// expected noise inflation N removed. With W = Sigma^-1 the meat
+// U C U^T equals M^T W M identically, and both estimate the noise-free
+// normal matrix only after N is taken out: without it, where the noise
+// inflation is comparable to the signal (small gaps, weak signal), the
+// error bars come out too small. ok is false with per-row weights.
+func (ws *weighted) sandwichParts() (x []float64, ok bool) {
+	if !ws.haveFull {
+		return nil, false
+	}
+	saved := ws.corr
+	ws.corr = noCorrection
+	x = ws.dense()
+	ws.corr = saved
+	if !sandwichCorrected {
+		return x, true
+	}
+	for i, v := range ws.fullExpectedCorrection() {
+		x[i] -= v
+	}
+	return x, true
+}
+
+// sandwichCorrected removes the expected noise inflation from the
+// sandwich (default); WARMFIT_STATIONARY_SANDWICH=plain keeps it, for the
+// measurements in compare_test.go.
+var sandwichCorrected = os.Getenv("WARMFIT_STATIONARY_SANDWICH") != "plain"
