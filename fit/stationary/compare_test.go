@@ -198,8 +198,8 @@ func TestComparisonTable(t *testing.T) {
 	var table []string
 	table = append(table, fmt.Sprintf("%s %s %v disorder %.2g (max|coeff| %.3f), %d bases x %d shots, %d seed(s), full weights %v; %d coefficients, %d rows; stationarity scale: %s",
 		spec, tm.preset, tm.values, tm.disorder, maxc, len(bases), shots, seeds, fullWeights, len(terms), sys.NumRows(), gaugeName))
-	table = append(table, fmt.Sprintf("| beta*max|c| | stationarity max/rms, dir (pull rms; with the plain sandwich) | expansion order <= %d max/rms, dir | patches %v max/rms, dir |", tm.largeOrder, tm.patch))
-	table = append(table, "|---|---|---|---|")
+	table = append(table, fmt.Sprintf("| beta*max|c| | stationarity max/rms, dir (pull rms; with the plain sandwich) | expansion order <= %d max/rms, dir | patches %v max/rms, dir | expansion on exact data (bias) max/rms, dir; crossover |", tm.largeOrder, tm.patch))
+	table = append(table, "|---|---|---|---|---|")
 	for _, x := range xs {
 		beta := x / maxc
 		start := time.Now()
@@ -277,6 +277,34 @@ func TestComparisonTable(t *testing.T) {
 				npa++
 			}
 		}
+		// The expansion's bias alone: the same fit on exact term
+		// expectations (the sampled standard errors as weights). Its
+		// error does not shrink with shots; stationarity's does, like
+		// 1/sqrt(shots), which gives the crossover.
+		biasNote := ""
+		{
+			te := termEstimates(sys, sampleEstimates(t, sampler, sys, bases, shots, 7))
+			ops, err := cluster.TermPaulis(terms)
+			if err != nil {
+				t.Fatal(err)
+			}
+			th.ExpectAll(ops, te.Values)
+			fr, err := fit.Fit(&fit.Problem{Lattice: l, Terms: slices.Clone(terms), Data: te, Beta: beta}, fit.Options{Budget: 10 * time.Minute, MaxOrder: tm.largeOrder})
+			switch {
+			case err != nil:
+				biasNote = "failed: " + firstWords(err.Error(), 8)
+			case !fr.Converged:
+				biasNote = "not converged"
+			default:
+				w, r := errorsAgainst(fr.Coeffs, truth)
+				biasNote = fmt.Sprintf("%.3g/%.3g, %.3g", w, r, directionError(fr.Coeffs, truth))
+				if nst > 0 && r > 0 {
+					// rms error of stationarity at shots N0 falls like
+					// sqrt(N0/N): equal to the bias at N0 (e_st/bias)².
+					biasNote += fmt.Sprintf("; crossover ~%.2g shots/basis", float64(shots)*math.Pow(math.Sqrt(st[1]/float64(nst))/r, 2))
+				}
+			}
+		}
 		cell := func(v [4]float64, cnt int, note string) string {
 			if cnt == 0 {
 				return note
@@ -296,7 +324,7 @@ func TestComparisonTable(t *testing.T) {
 		if nex > 0 {
 			row += fmt.Sprintf(" (order %d%s)", order, trust)
 		}
-		row += " | " + cell(pa, npa, paNote) + " |"
+		row += " | " + cell(pa, npa, paNote) + " | " + biasNote + " |"
 		table = append(table, row+fmt.Sprintf("   [%.0fs]", time.Since(start).Seconds()))
 		t.Log(table[len(table)-1])
 	}
