@@ -59,13 +59,17 @@ func (c combinedCase) run(t *testing.T, seed uint64) combinedRun {
 	}
 	truth := coeffs(sys.Terms())
 	l, _ := testModel(t, c.sc.spec, c.sc.preset, c.sc.values, c.sc.disorder, 11)
-	fr, err := fit.Fit(&fit.Problem{Lattice: l, Terms: sys.Terms(), Data: termEstimates(sys, est), Beta: c.sc.beta}, fit.Options{Order: c.order, SkipTruncation: true})
-	if err != nil || !fr.Converged {
-		t.Fatalf("%s seed %d: expansion fit: %v %v", c.sc.name, seed, err, fr != nil && fr.Converged)
-	}
 	sr, err := Fix(sys, est, d, Gauge{Beta: c.sc.beta, Evaluate: exactEvaluator(sys.NumQubits(), sys.Terms())}, Options{})
 	if err != nil {
 		t.Fatalf("%s seed %d: stationarity fix: %v", c.sc.name, seed, err)
+	}
+	stat := errorsOf(sr.Lambda, sr.StdErr, truth)
+	fr, err := fit.Fit(&fit.Problem{Lattice: l, Terms: sys.Terms(), Data: termEstimates(sys, est), Beta: c.sc.beta}, fit.Options{Order: c.order, SkipTruncation: true})
+	if err != nil || !fr.Converged {
+		// The expansion fails (not convex at this order and temperature):
+		// the combined estimator is stationarity alone.
+		nan := combinedErrors{math.NaN(), math.NaN(), math.NaN()}
+		return combinedRun{expansion: nan, stationarity: stat, combined: stat, choice: UseStationary}
 	}
 	comb, err := Combine(sys, est, d, ExpansionEstimate{Theta: fr.Theta, Propagate: fr.Propagate}, CombineOptions{})
 	if err != nil {
@@ -75,7 +79,7 @@ func (c combinedCase) run(t *testing.T, seed uint64) combinedRun {
 	choice, _ := comb.Choose(trusted)
 	out := combinedRun{
 		expansion:    errorsOf(fr.Coeffs, fr.ThetaStderr, truth),
-		stationarity: errorsOf(sr.Lambda, sr.StdErr, truth),
+		stationarity: stat,
 		choice:       choice,
 		comb:         comb,
 	}
@@ -104,7 +108,14 @@ func TestCombinedNeverWorse(t *testing.T) {
 		{scenario{name: "tfim8-b0.3", spec: "chain:8", preset: "tfim", values: tfim, disorder: 0.3, beta: 0.3}, 8, 20000},
 		{scenario{name: "tfim8-b0.7", spec: "chain:8", preset: "tfim", values: tfim, disorder: 0.3, beta: 0.7}, 8, 20000},
 		{scenario{name: "tfim8-b0.7", spec: "chain:8", preset: "tfim", values: tfim, disorder: 0.3, beta: 0.7}, 3, 20000},
-		{scenario{name: "tfim8-b1.2", spec: "chain:8", preset: "tfim", values: tfim, disorder: 0.3, beta: 1.2}, 4, 20000},
+		{scenario{name: "tfim8-b1.2", spec: "chain:8", preset: "tfim", values: tfim, disorder: 0.3, beta: 1.2}, 8, 20000},
+		{scenario{name: "tfim8-b1.2", spec: "chain:8", preset: "tfim", values: tfim, disorder: 0.3, beta: 1.2}, 6, 20000},
+		{scenario{name: "tfim8-b1.2", spec: "chain:8", preset: "tfim", values: tfim, disorder: 0.3, beta: 1.2}, 5, 20000},
+		{scenario{name: "tfim8-b0.7", spec: "chain:8", preset: "tfim", values: tfim, disorder: 0.3, beta: 0.7}, 5, 20000},
+		{scenario{name: "tfim8-b0.7", spec: "chain:8", preset: "tfim", values: tfim, disorder: 0.3, beta: 0.7}, 6, 20000},
+	}
+	if os.Getenv("WARMFIT_COMBINED_ONLY") != "" {
+		cases = cases[4:]
 	}
 	seeds := 6
 	if s := os.Getenv("WARMFIT_COMBINED_SEEDS"); s != "" {
@@ -121,6 +132,10 @@ func TestCombinedNeverWorse(t *testing.T) {
 				mean[i].worst += e.worst / float64(seeds)
 				mean[i].rms += e.rms / float64(seeds)
 				pull2[i] += e.pull * e.pull / float64(seeds)
+			}
+			if r.comb == nil {
+				t.Logf("%s order %d seed %d: the expansion fit failed; stat %.4g/%.4g", c.sc.name, c.order, s, r.stationarity.worst, r.stationarity.rms)
+				continue
 			}
 			t.Logf("%s order %d seed %d: chi2 %.3g/%d p %.3g var ratio %.3g, choice %s; exp %.4g/%.4g stat %.4g/%.4g comb %.4g/%.4g (pull %.3g)",
 				c.sc.name, c.order, s, r.comb.Chi2, r.comb.DOF, r.comb.P, r.comb.VarianceRatio, r.choice,
