@@ -23,6 +23,11 @@ type ExpansionEstimate struct {
 	// Propagate maps a change of the term expectations (aligned with
 	// System.Terms) to the first-order change of Theta.
 	Propagate func(de []float64) ([]float64, error)
+	// Systematic is a standard error added to every parameter of the
+	// expansion, independent of the shots: its truncation error where
+	// the series has not converged (fit.Truncation.Error), 0 where it is
+	// exact or converged.
+	Systematic float64
 }
 
 // CombineOptions tune Combine. The zero value gives the defaults.
@@ -219,6 +224,20 @@ func Combine(sys *System, est *fit.Estimates, d *Direction, exp ExpansionEstimat
 	}
 	var joint mat.Dense
 	joint.Mul(y, tmat)
+	// The expansion's systematic error: s² I on theta_e, hence s² V on
+	// its covariance with delta = V^T theta_e and s² I_r on delta's.
+	if s2 := exp.Systematic * exp.Systematic; s2 > 0 {
+		for p := range np {
+			joint.Set(p, p, joint.At(p, p)+s2)
+			for c := range r {
+				joint.Set(p, np+c, joint.At(p, np+c)+s2*v.At(p, c))
+				joint.Set(np+c, p, joint.At(np+c, p)+s2*v.At(p, c))
+			}
+		}
+		for c := range r {
+			joint.Set(np+c, np+c, joint.At(np+c, np+c)+s2)
+		}
+	}
 	cee := joint.Slice(0, np, 0, np)
 	ced := joint.Slice(0, np, np, ny)
 	cdd := mat.NewSymDense(r, nil)

@@ -64,18 +64,22 @@ func (c combinedCase) run(t *testing.T, seed uint64) combinedRun {
 		t.Fatalf("%s seed %d: stationarity fix: %v", c.sc.name, seed, err)
 	}
 	stat := errorsOf(sr.Lambda, sr.StdErr, truth)
-	fr, err := fit.Fit(&fit.Problem{Lattice: l, Terms: sys.Terms(), Data: termEstimates(sys, est), Beta: c.sc.beta}, fit.Options{Order: c.order, SkipTruncation: true})
+	fr, err := fit.Fit(&fit.Problem{Lattice: l, Terms: sys.Terms(), Data: termEstimates(sys, est), Beta: c.sc.beta}, fit.Options{Order: c.order})
 	if err != nil || !fr.Converged {
 		// The expansion fails (not convex at this order and temperature):
 		// the combined estimator is stationarity alone.
 		nan := combinedErrors{math.NaN(), math.NaN(), math.NaN()}
 		return combinedRun{expansion: nan, stationarity: stat, combined: stat, choice: UseStationary}
 	}
-	comb, err := Combine(sys, est, d, ExpansionEstimate{Theta: fr.Theta, Propagate: fr.Propagate}, CombineOptions{})
+	trusted := fr.Truncation.Exact || fr.Truncation.OK && len(fr.Untrusted) == 0
+	systematic := 0.0
+	if !trusted && fr.Truncation.Known {
+		systematic = fr.Truncation.Error
+	}
+	comb, err := Combine(sys, est, d, ExpansionEstimate{Theta: fr.Theta, Propagate: fr.Propagate, Systematic: systematic}, CombineOptions{})
 	if err != nil {
 		t.Fatalf("%s seed %d: combine: %v", c.sc.name, seed, err)
 	}
-	trusted := c.order >= l.NumSites()
 	choice, _ := comb.Choose(trusted)
 	out := combinedRun{
 		expansion:    errorsOf(fr.Coeffs, fr.ThetaStderr, truth),
