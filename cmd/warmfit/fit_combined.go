@@ -49,8 +49,11 @@ type combinationReport struct {
 	Consistent  bool    `json:"consistent"`
 	// VarianceRatio is the median combined variance over the
 	// expansion's.
-	VarianceRatio    float64  `json:"variance_ratio"`
-	ExpansionTrusted bool     `json:"expansion_trusted"`
+	VarianceRatio    float64 `json:"variance_ratio"`
+	ExpansionTrusted bool    `json:"expansion_trusted"`
+	// Systematic is the truncation error added to every parameter of an
+	// expansion that is not trusted (0 when trusted).
+	Systematic       float64  `json:"expansion_systematic"`
 	StationaryChecks bool     `json:"stationary_checks_passed"`
 	StationaryIssues []string `json:"stationary_problems"`
 }
@@ -125,7 +128,13 @@ func fitCombine(env *runEnv, tmpl *model.Model, beta float64, res *fit.Result, r
 	if len(run.problems) > 0 && !explicit {
 		return keep("the stationarity direction fails its own checks (" + strings.Join(run.problems, "; ") + ")")
 	}
-	comb, err := stationary.Combine(run.sys, run.est, run.d, stationary.ExpansionEstimate{Theta: res.Theta, Propagate: res.Propagate}, stationary.CombineOptions{})
+	// An expansion that is not trusted carries its truncation error as
+	// a systematic error on every parameter.
+	systematic := 0.0
+	if t := res.Truncation; !trusted && t.Known && !t.Exact {
+		systematic = t.Error
+	}
+	comb, err := stationary.Combine(run.sys, run.est, run.d, stationary.ExpansionEstimate{Theta: res.Theta, Propagate: res.Propagate, Systematic: systematic}, stationary.CombineOptions{})
 	if err != nil {
 		return keep("the combination failed: " + err.Error())
 	}
@@ -134,7 +143,7 @@ func fitCombine(env *runEnv, tmpl *model.Model, beta float64, res *fit.Result, r
 		Method:      "generalised least squares of the expansion's estimate on its components off the stationarity direction (fit/stationary Combine)",
 		Correlation: "estimated: first-order delta method on the covariance of the shared shots",
 		Chi2:        comb.Chi2, DOF: comb.DOF, P: comb.P, Consistent: comb.Consistent, VarianceRatio: comb.VarianceRatio,
-		ExpansionTrusted: trusted, StationaryChecks: len(run.problems) == 0, StationaryIssues: append([]string{}, run.problems...),
+		ExpansionTrusted: trusted, Systematic: systematic, StationaryChecks: len(run.problems) == 0, StationaryIssues: append([]string{}, run.problems...),
 	}
 	raw, err := json.Marshal(rec)
 	if err != nil {

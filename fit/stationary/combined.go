@@ -224,8 +224,36 @@ func Combine(sys *System, est *fit.Estimates, d *Direction, exp ExpansionEstimat
 	}
 	var joint mat.Dense
 	joint.Mul(y, tmat)
-	// The expansion's systematic error: s² I on theta_e, hence s² V on
-	// its covariance with delta = V^T theta_e and s² I_r on delta's.
+	delta := mat.NewVecDense(r, nil)
+	delta.MulVec(v.T(), mat.NewVecDense(np, exp.Theta))
+	cddOf := func() *mat.SymDense {
+		c := mat.NewSymDense(r, nil)
+		for i := range r {
+			for j := i; j < r; j++ {
+				c.SetSym(i, j, (joint.At(np+i, np+j)+joint.At(np+j, np+i))/2)
+			}
+		}
+		return c
+	}
+	var ch mat.Cholesky
+	if !ch.Factorize(cddOf()) {
+		return nil, errors.New("stationary: the covariance of the expansion's components off the learned direction is not positive definite")
+	}
+	var w mat.VecDense
+	if err := ch.SolveVecTo(&w, delta); err != nil {
+		return nil, err
+	}
+	// The consistency test counts the shots' noise only: a systematic
+	// error as large as a truncation estimate would hide the very bias
+	// the test is for.
+	res := &Combination{DOF: r}
+	res.Chi2 = mat.Dot(delta, &w)
+	res.P = distuv.ChiSquared{K: float64(r)}.Survival(res.Chi2)
+	res.Consistent = res.P >= opt.Alpha
+
+	// The expansion's systematic error, for the estimate and its error
+	// bars: s² I on theta_e, hence s² V on its covariance with
+	// delta = V^T theta_e and s² I_r on delta's.
 	if s2 := exp.Systematic * exp.Systematic; s2 > 0 {
 		for p := range np {
 			joint.Set(p, p, joint.At(p, p)+s2)
@@ -237,30 +265,15 @@ func Combine(sys *System, est *fit.Estimates, d *Direction, exp ExpansionEstimat
 		for c := range r {
 			joint.Set(np+c, np+c, joint.At(np+c, np+c)+s2)
 		}
+		if !ch.Factorize(cddOf()) {
+			return nil, errors.New("stationary: the covariance of the expansion's components off the learned direction is not positive definite")
+		}
+		if err := ch.SolveVecTo(&w, delta); err != nil {
+			return nil, err
+		}
 	}
 	cee := joint.Slice(0, np, 0, np)
 	ced := joint.Slice(0, np, np, ny)
-	cdd := mat.NewSymDense(r, nil)
-	for i := range r {
-		for j := i; j < r; j++ {
-			cdd.SetSym(i, j, (joint.At(np+i, np+j)+joint.At(np+j, np+i))/2)
-		}
-	}
-	delta := mat.NewVecDense(r, nil)
-	delta.MulVec(v.T(), mat.NewVecDense(np, exp.Theta))
-
-	var ch mat.Cholesky
-	if !ch.Factorize(cdd) {
-		return nil, errors.New("stationary: the covariance of the expansion's components off the learned direction is not positive definite")
-	}
-	var w mat.VecDense
-	if err := ch.SolveVecTo(&w, delta); err != nil {
-		return nil, err
-	}
-	res := &Combination{DOF: r}
-	res.Chi2 = mat.Dot(delta, &w)
-	res.P = distuv.ChiSquared{K: float64(r)}.Survival(res.Chi2)
-	res.Consistent = res.P >= opt.Alpha
 
 	var shift mat.VecDense
 	shift.MulVec(ced, &w)

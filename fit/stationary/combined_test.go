@@ -98,34 +98,54 @@ func (c combinedCase) run(t *testing.T, seed uint64) combinedRun {
 	return out
 }
 
-// TestCombinedNeverWorse: on exact Gibbs snapshots, over temperatures
-// where the expansion is exact (order = sites) and where it is biased
-// (order capped below its convergence), the combined estimator's largest
-// and rms errors, averaged over seeds, are at most those of the better
-// of the expansion and stationarity alone (within the seeds' scatter),
-// and its pulls have rms within 0.8-1.25 (issue 12's band; a pull is
-// (estimate - truth)/stderr, unit variance for honest error bars, common
-// practice).
+// TestCombinedNeverWorse: on exact Gibbs snapshots (validate's exact
+// sampler, dense ED; covering:3 bases), over temperatures where the
+// expansion is exact (order = sites), where it is not trusted (order
+// below its convergence: kept with its truncation error when the
+// consistency test passes, dropped when it fails) and where it fails
+// (not convex), the combined estimator's largest and rms errors,
+// averaged over seeds, are at most those of the better of the expansion
+// and stationarity alone (within 10%, the seeds' scatter), and its pulls
+// have rms within issue 12's band 0.8-1.25 (a pull is (estimate -
+// truth)/stderr, unit variance for honest error bars: common practice).
+// Where the untrusted expansion is combined, its truncation error (the
+// largest change of any coefficient, applied to all) makes the error
+// bars conservative: pulls down to 0.6 are accepted there.
+// WARMFIT_COMBINED_SEEDS sets the seeds (default 4; 2 with -short, with
+// loose bounds); WARMFIT_STATIONARY_HEAVY=1 adds the 3x3 XXZ model of
+// review finding 1 at beta 1 (minutes).
 func TestCombinedNeverWorse(t *testing.T) {
 	tfim := map[string]float64{"J": 1, "hx": 0.8, "hz": 0.3}
-	cases := []combinedCase{
-		{scenario{name: "tfim8-b0.3", spec: "chain:8", preset: "tfim", values: tfim, disorder: 0.3, beta: 0.3}, 8, 20000},
-		{scenario{name: "tfim8-b0.7", spec: "chain:8", preset: "tfim", values: tfim, disorder: 0.3, beta: 0.7}, 8, 20000},
-		{scenario{name: "tfim8-b0.7", spec: "chain:8", preset: "tfim", values: tfim, disorder: 0.3, beta: 0.7}, 3, 20000},
-		{scenario{name: "tfim8-b1.2", spec: "chain:8", preset: "tfim", values: tfim, disorder: 0.3, beta: 1.2}, 8, 20000},
-		{scenario{name: "tfim8-b1.2", spec: "chain:8", preset: "tfim", values: tfim, disorder: 0.3, beta: 1.2}, 6, 20000},
-		{scenario{name: "tfim8-b1.2", spec: "chain:8", preset: "tfim", values: tfim, disorder: 0.3, beta: 1.2}, 5, 20000},
-		{scenario{name: "tfim8-b0.7", spec: "chain:8", preset: "tfim", values: tfim, disorder: 0.3, beta: 0.7}, 5, 20000},
-		{scenario{name: "tfim8-b0.7", spec: "chain:8", preset: "tfim", values: tfim, disorder: 0.3, beta: 0.7}, 6, 20000},
+	xxz := map[string]float64{"Jxy": 0.4, "Jz": 0.3, "hz": 0.2, "hx": 0.1}
+	tfimAt := func(beta float64) scenario {
+		return scenario{name: fmt.Sprintf("tfim8-b%g", beta), spec: "chain:8", preset: "tfim", values: tfim, disorder: 0.3, beta: beta}
 	}
-	if os.Getenv("WARMFIT_COMBINED_ONLY") != "" {
-		cases = cases[4:]
+	cases := []struct {
+		combinedCase
+		pullLo float64
+		heavy  bool
+	}{
+		{combinedCase{tfimAt(0.3), 8, 20000}, 0.8, false},
+		{combinedCase{tfimAt(0.7), 8, 20000}, 0.8, false},
+		{combinedCase{tfimAt(0.7), 6, 20000}, 0.6, false},
+		{combinedCase{tfimAt(0.7), 3, 20000}, 0.8, false},
+		{combinedCase{tfimAt(1.2), 6, 20000}, 0.8, false},
+		{combinedCase{scenario{name: "xxz3x3", spec: "square:3x3", preset: "xxz", values: xxz, disorder: 0.1, beta: 1}, 9, 200000}, 0.8, true},
 	}
-	seeds := 6
+	seeds := 4
+	tolerance, lo, hi := 1.1, 1.0, 1.25
+	if testing.Short() {
+		seeds, tolerance, lo, hi = 2, 1.5, 0.5, 2
+		cases = cases[1:2]
+	}
 	if s := os.Getenv("WARMFIT_COMBINED_SEEDS"); s != "" {
 		fmt.Sscan(s, &seeds)
 	}
 	for _, c := range cases {
+		if c.heavy && os.Getenv("WARMFIT_STATIONARY_HEAVY") == "" {
+			t.Logf("%s skipped: set WARMFIT_STATIONARY_HEAVY=1 (minutes)", c.sc.name)
+			continue
+		}
 		var mean [3]combinedErrors
 		var pull2 [3]float64
 		counts := map[Choice]int{}
@@ -138,17 +158,33 @@ func TestCombinedNeverWorse(t *testing.T) {
 				pull2[i] += e.pull * e.pull / float64(seeds)
 			}
 			if r.comb == nil {
-				t.Logf("%s order %d seed %d: the expansion fit failed; stat %.4g/%.4g", c.sc.name, c.order, s, r.stationarity.worst, r.stationarity.rms)
+				t.Logf("%s order %d seed %d: the expansion fit failed; stationarity %.4g/%.4g", c.sc.name, c.order, s, r.stationarity.worst, r.stationarity.rms)
 				continue
 			}
-			t.Logf("%s order %d seed %d: chi2 %.3g/%d p %.3g var ratio %.3g, choice %s; exp %.4g/%.4g stat %.4g/%.4g comb %.4g/%.4g (pull %.3g)",
+			t.Logf("%s order %d seed %d: chi2 %.3g/%d (p %.3g), variance ratio %.3g, choice %s; expansion %.4g/%.4g, stationarity %.4g/%.4g, combined %.4g/%.4g (pull %.3g)",
 				c.sc.name, c.order, s, r.comb.Chi2, r.comb.DOF, r.comb.P, r.comb.VarianceRatio, r.choice,
 				r.expansion.worst, r.expansion.rms, r.stationarity.worst, r.stationarity.rms, r.combined.worst, r.combined.rms, r.combined.pull)
 		}
 		for i := range pull2 {
 			mean[i].pull = math.Sqrt(pull2[i])
 		}
-		t.Logf("%s order %d, %d seeds: expansion %.4g/%.4g (pull %.3g), stationarity %.4g/%.4g (pull %.3g), combined %.4g/%.4g (pull %.3g), choices %v",
-			c.sc.name, c.order, seeds, mean[0].worst, mean[0].rms, mean[0].pull, mean[1].worst, mean[1].rms, mean[1].pull, mean[2].worst, mean[2].rms, mean[2].pull, counts)
+		t.Logf("%s order %d, %d seeds x %d shots/basis: max/rms error (pull rms): expansion %.4g/%.4g (%.3g), stationarity %.4g/%.4g (%.3g), combined %.4g/%.4g (%.3g); choices %v",
+			c.sc.name, c.order, seeds, c.shots, mean[0].worst, mean[0].rms, mean[0].pull, mean[1].worst, mean[1].rms, mean[1].pull, mean[2].worst, mean[2].rms, mean[2].pull, counts)
+		best := func(i func(combinedErrors) float64) float64 {
+			a, b := i(mean[0]), i(mean[1])
+			if math.IsNaN(a) {
+				return b
+			}
+			return min(a, b)
+		}
+		if w, b := mean[2].worst, best(func(e combinedErrors) float64 { return e.worst }); w > tolerance*b {
+			t.Errorf("%s order %d: combined largest error %.4g above %.2g x the better alone (%.4g)", c.sc.name, c.order, w, tolerance, b)
+		}
+		if r, b := mean[2].rms, best(func(e combinedErrors) float64 { return e.rms }); r > tolerance*b {
+			t.Errorf("%s order %d: combined rms error %.4g above %.2g x the better alone (%.4g)", c.sc.name, c.order, r, tolerance, b)
+		}
+		if p, plo := mean[2].pull, c.pullLo*lo; p < plo || p > hi {
+			t.Errorf("%s order %d: combined pull rms %.3g outside %.2g-%.2g", c.sc.name, c.order, p, plo, hi)
+		}
 	}
 }
