@@ -307,7 +307,7 @@ func checkFitScale(o *fitFlags, tmpl *model.Model, calibration *fit.Calibration,
 	case calibration != nil && mo.method == fitMethodStationary:
 		return nil, usagef("--scale-from fixes the scale of the expansion fit at unknown temperature; --method stationary takes its known coefficients from --calibrate NAME=VALUE")
 	case mo.calibrate != "" && mo.method == fitMethodExpansion:
-		return nil, usagef("--calibrate is for --method stationary (or auto); the expansion fit at unknown temperature fixes its energy scale with --scale-from TERM=VALUE (one calibrated coefficient) or --scale-from beta=B")
+		return nil, usagef("--calibrate is for --method stationary (or auto, combined); the expansion fit at unknown temperature fixes its energy scale with --scale-from TERM=VALUE (one calibrated coefficient) or --scale-from beta=B")
 	}
 	if calibration != nil && beta > 0 {
 		return nil, usagef("--scale-from fixes the energy scale of a fit without beta, but beta is %s (%s): drop --scale-from, or fit at unknown temperature (no --beta, no beta in the template)", fmtFloat(beta), betaSource)

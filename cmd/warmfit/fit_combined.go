@@ -51,17 +51,17 @@ type combinationReport struct {
 	// expansion's.
 	VarianceRatio    float64 `json:"variance_ratio"`
 	ExpansionTrusted bool    `json:"expansion_trusted"`
-	// Systematic is the truncation error added to every parameter of an
-	// expansion that is not trusted (0 when trusted).
+	// Systematic is the largest truncation error added to the parameters
+	// of an expansion that is not trusted (0 when trusted).
 	Systematic       float64  `json:"expansion_systematic"`
 	StationaryChecks bool     `json:"stationary_checks_passed"`
 	StationaryIssues []string `json:"stationary_problems"`
 }
 
 // combinedMaxEntries bounds the dense influence matrices of the
-// combination (parameters times correlators) that --method auto tries:
-// beyond it auto keeps the expansion without trying.
-const combinedMaxEntries = 4e7
+// combination (parameters times correlators, about 40 MB each) that
+// --method auto tries: beyond it auto keeps the expansion without trying.
+const combinedMaxEntries = 5e6
 
 // expansionTrusted says whether the expansion fit res is trusted on a
 // lattice of n sites: converged with every series trusted, or at an
@@ -130,9 +130,16 @@ func fitCombine(env *runEnv, tmpl *model.Model, beta float64, res *fit.Result, r
 	}
 	// An expansion that is not trusted carries its truncation error as
 	// a systematic error on every parameter.
-	systematic := 0.0
+	var systematic []float64
+	largest := 0.0
 	if t := res.Truncation; !trusted && t.Known && !t.Exact {
-		systematic = t.Error
+		if systematic = t.ParamError; systematic == nil {
+			systematic = make([]float64, len(res.Theta))
+			for q := range systematic {
+				systematic[q] = t.Error
+			}
+		}
+		largest = t.Error
 	}
 	comb, err := stationary.Combine(run.sys, run.est, run.d, stationary.ExpansionEstimate{Theta: res.Theta, Propagate: res.Propagate, Systematic: systematic}, stationary.CombineOptions{})
 	if err != nil {
@@ -143,7 +150,7 @@ func fitCombine(env *runEnv, tmpl *model.Model, beta float64, res *fit.Result, r
 		Method:      "generalised least squares of the expansion's estimate on its components off the stationarity direction (fit/stationary Combine)",
 		Correlation: "estimated: first-order delta method on the covariance of the shared shots",
 		Chi2:        comb.Chi2, DOF: comb.DOF, P: comb.P, Consistent: comb.Consistent, VarianceRatio: comb.VarianceRatio,
-		ExpansionTrusted: trusted, Systematic: systematic, StationaryChecks: len(run.problems) == 0, StationaryIssues: append([]string{}, run.problems...),
+		ExpansionTrusted: trusted, Systematic: largest, StationaryChecks: len(run.problems) == 0, StationaryIssues: append([]string{}, run.problems...),
 	}
 	raw, err := json.Marshal(rec)
 	if err != nil {

@@ -23,11 +23,11 @@ type ExpansionEstimate struct {
 	// Propagate maps a change of the term expectations (aligned with
 	// System.Terms) to the first-order change of Theta.
 	Propagate func(de []float64) ([]float64, error)
-	// Systematic is a standard error added to every parameter of the
-	// expansion, independent of the shots: its truncation error where
-	// the series has not converged (fit.Truncation.Error), 0 where it is
-	// exact or converged.
-	Systematic float64
+	// Systematic holds standard errors added to the parameters of the
+	// expansion, independent of the shots: their truncation errors where
+	// the series has not converged (fit.Truncation.ParamError); nil
+	// where it is exact or converged.
+	Systematic []float64
 }
 
 // CombineOptions tune Combine. The zero value gives the defaults.
@@ -36,7 +36,7 @@ type CombineOptions struct {
 	// estimators are called inconsistent (default 1e-3).
 	Alpha float64
 	// MaxEntries bounds the dense influence matrices (parameters times
-	// strings; default 4e7, about 320 MB each).
+	// strings; default 2e7, about 160 MB each: several are held at once).
 	MaxEntries int
 }
 
@@ -104,7 +104,7 @@ func Combine(sys *System, est *fit.Estimates, d *Direction, exp ExpansionEstimat
 		opt.Alpha = 1e-3
 	}
 	if opt.MaxEntries <= 0 {
-		opt.MaxEntries = 4e7
+		opt.MaxEntries = 2e7
 	}
 	ws := d.ws
 	np, ns, nt := ws.np, len(sys.Strings), len(sys.terms)
@@ -252,18 +252,22 @@ func Combine(sys *System, est *fit.Estimates, d *Direction, exp ExpansionEstimat
 	res.Consistent = res.P >= opt.Alpha
 
 	// The expansion's systematic error, for the estimate and its error
-	// bars: s² I on theta_e, hence s² V on its covariance with
-	// delta = V^T theta_e and s² I_r on delta's.
-	if s2 := exp.Systematic * exp.Systematic; s2 > 0 {
-		for p := range np {
+	// bars: S = diag(s²) on theta_e, hence S V on its covariance with
+	// delta = V^T theta_e and V^T S V on delta's.
+	if exp.Systematic != nil {
+		if len(exp.Systematic) != np {
+			panic(fmt.Sprintf("stationary: Combine: %d systematic errors for %d parameters", len(exp.Systematic), np))
+		}
+		for p, sp := range exp.Systematic {
+			s2 := sp * sp
 			joint.Set(p, p, joint.At(p, p)+s2)
 			for c := range r {
 				joint.Set(p, np+c, joint.At(p, np+c)+s2*v.At(p, c))
 				joint.Set(np+c, p, joint.At(np+c, p)+s2*v.At(p, c))
+				for c2 := range r {
+					joint.Set(np+c, np+c2, joint.At(np+c, np+c2)+s2*v.At(p, c)*v.At(p, c2))
+				}
 			}
-		}
-		for c := range r {
-			joint.Set(np+c, np+c, joint.At(np+c, np+c)+s2)
 		}
 		if !ch.Factorize(cddOf()) {
 			return nil, errors.New("stationary: the covariance of the expansion's components off the learned direction is not positive definite")
