@@ -61,7 +61,8 @@ that of the data; a failed match, an unresolved direction or error bars that
 cannot be computed give WARNING lines (and checks_passed false in the report).
 auto runs the expansion fit and keeps it when it converged with every series
 trusted; on lattices of at most 12 sites it refits at the order of the lattice,
-where the expansion is exact, and keeps that. Otherwise it runs stationary and
+where the expansion is exact, and keeps that (combined with the stationarity
+constraints where both hold: see combined below). Otherwise it runs stationary and
 uses it only when its checks pass (resolved spectrum, consistent thermal match,
 finite error bars), else the converged expansion; stderr says which and why.
 For example:
