@@ -130,6 +130,7 @@ func TestCombinedNeverWorse(t *testing.T) {
 		pullLo float64
 		heavy  bool
 	}{
+		{combinedCase{tfimAt(0.1), 8, 20000}, 0.8, false},
 		{combinedCase{tfimAt(0.3), 8, 20000}, 0.8, false},
 		{combinedCase{tfimAt(0.7), 8, 20000}, 0.8, false},
 		{combinedCase{tfimAt(0.7), 6, 20000}, 0.6, false},
@@ -144,7 +145,7 @@ func TestCombinedNeverWorse(t *testing.T) {
 	tolerance, lo, hi := 1.1, 1.0, 1.25
 	if testing.Short() {
 		seeds, tolerance, lo, hi = 2, 1.5, 0.5, 2
-		cases = cases[1:2]
+		cases = cases[2:3]
 	}
 	if s := os.Getenv("WARMFIT_COMBINED_SEEDS"); s != "" {
 		fmt.Sscan(s, &seeds)
