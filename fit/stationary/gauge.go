@@ -52,6 +52,12 @@ type Result struct {
 	// not computed).
 	Warnings  []string
 	Direction *Direction
+
+	// freeCov is the delta-method covariance of the parameters free[i]
+	// when calibrations fix every multiplier (errorBars; nil otherwise):
+	// the planner (PlanShots) projects it onto the direction's errors.
+	freeCov *mat.Dense
+	free    []int
 }
 
 // ErrUnderdetermined is returned (wrapped) when the gauge leaves a

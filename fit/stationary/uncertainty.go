@@ -105,6 +105,7 @@ func (res *Result) errorBars(sys *System, est *fit.Estimates, calRows []int, bas
 		for i, p := range free {
 			res.StdErr[p] = math.Sqrt(max(cov.At(i, i), 0))
 		}
+		res.freeCov, res.free = &cov, free
 		return nil
 	}
 	// Thermal match: pseudo-inverse of X off the span of the basis.
