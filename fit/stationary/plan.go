@@ -31,9 +31,11 @@ type PlanOptions struct {
 	// ScaleTarget, when positive, is the relative standard error the
 	// overall scale should reach (thermal match at Beta; needs Evaluate).
 	ScaleTarget float64
-	// Beta and Evaluate, when both set, give the thermal match that fixes
-	// the scale in 'warmfit fit --method stationary': the plan then also
-	// predicts the scale's error and the full error bars.
+	// Beta is the model's inverse temperature (reported as
+	// beta x max|coeff|, how the signal scales). Beta and Evaluate, when
+	// both set, give the thermal match that fixes the scale in 'warmfit
+	// fit --method stationary': the plan then also predicts the scale's
+	// error and the full error bars.
 	Beta     float64
 	Evaluate Evaluator
 	System   SystemOptions
@@ -170,7 +172,9 @@ func PlanShots(n int, terms []lattice.Term, bases []string, probs BasisProbabili
 		BetaMaxCoeff: opt.Beta * floats.Norm(lambda, math.Inf(1)),
 	}
 	// Solve at a reference number of shots, raised until every
-	// eigen-direction the constraints can see is resolved.
+	// eigen-direction the constraints can see is resolved; directions
+	// still unresolved at maxPlanShots are structural (the probes cannot
+	// see them) and are named like conserved quantities.
 	var d *Direction
 	var est *fit.Estimates
 	ref := 1e6
@@ -184,10 +188,10 @@ func PlanShots(n int, terms []lattice.Term, bases []string, probs BasisProbabili
 			break
 		}
 		if ref >= maxPlanShots {
-			if err == nil {
-				err = fmt.Errorf("%w: %d direction(s) stay unresolved", ErrNoInformation, len(d.Invisible))
+			if err != nil {
+				return nil, fmt.Errorf("%w; even %.0g shots per basis resolve nothing%s: the constraints vanish like beta at high temperature, and symmetric models with few probes (free couplings of a U(1) model) leave directions invisible at any temperature", err, maxPlanShots, pl.betaText())
 			}
-			return nil, fmt.Errorf("%w; even %.0g shots per basis resolve nothing at beta x max|coeff| = %.3g (the constraints vanish like beta)", err, maxPlanShots, pl.BetaMaxCoeff)
+			break
 		}
 	}
 	pl.Rows = d.Rows
@@ -260,11 +264,19 @@ func PlanShots(n int, terms []lattice.Term, bases []string, probs BasisProbabili
 	pl.ShotsLinear = ceilShots(math.Pow(pl.WeakestStderrPerShot/weakStdErr, 2))
 	shots := max(pl.ShotsDirection, pl.ShotsScale, pl.ShotsLinear)
 	if float64(shots) > maxPlanShots {
-		return nil, fmt.Errorf("%w: about %.3g shots per basis needed at beta x max|coeff| = %.3g: the constraints vanish like beta, so the signal is too weak at this temperature", ErrNoInformation, float64(shots), pl.BetaMaxCoeff)
+		return nil, fmt.Errorf("%w: about %.3g shots per basis needed%s: the constraints vanish like beta, so the signal is too weak at this temperature", ErrNoInformation, float64(shots), pl.betaText())
 	}
 	pl.setShots(shots)
 	pl.notes(opt, ref)
 	return pl, nil
+}
+
+// betaText is " at beta x max|coeff| = B" when beta is known.
+func (pl *Plan) betaText() string {
+	if pl.BetaMaxCoeff > 0 {
+		return fmt.Sprintf(" at beta x max|coeff| = %.3g", pl.BetaMaxCoeff)
+	}
+	return ""
 }
 
 // directionVariances returns Var(P dlambda)_k times ref (one shot per
