@@ -58,6 +58,9 @@ type Result struct {
 	// the planner (PlanShots) projects it onto the direction's errors.
 	freeCov *mat.Dense
 	free    []int
+	// matchCov holds the parts of the covariance with a thermal match
+	// (errorBars; nil otherwise), for the planner's scale error.
+	matchCov *matchCovariance
 }
 
 // ErrUnderdetermined is returned (wrapped) when the gauge leaves a

@@ -8,6 +8,7 @@ import (
 	"strings"
 
 	"gonum.org/v1/gonum/floats"
+	"gonum.org/v1/gonum/mat"
 	"gonum.org/v1/gonum/stat/distuv"
 
 	"warmfit/fit"
@@ -72,8 +73,11 @@ type Plan struct {
 	DirectionVarPerShot []float64
 	DirectionStderr     []float64
 	// ScaleRelVarPerShot is the squared relative standard error of the
-	// scale from the thermal match with one shot per basis (0 without a
-	// match); ScaleStderr its relative standard error at ShotsPerBasis.
+	// scale, u . lambda^ / |lambda| (u the model's unit coefficient
+	// vector), fixed by the thermal match, with one shot per basis (0
+	// without a match): the term expectations' noise and the direction's
+	// own noise propagated through the match. ScaleStderr is its relative
+	// standard error at ShotsPerBasis.
 	ScaleRelVarPerShot float64
 	ScaleStderr        float64
 	// VarPerShot and Stderr are the full error bars of the coefficients
@@ -239,9 +243,16 @@ func PlanShots(n int, terms []lattice.Term, bases []string, probs BasisProbabili
 		if err != nil {
 			return nil, fmt.Errorf("stationary: plan: thermal match: %w", err)
 		}
-		if m := mres.Match; m != nil && m.tCov != nil && len(m.a) > 0 && m.a[0] != 0 {
-			pl.ScaleRelVarPerShot = m.tCov.At(0, 0) / (m.a[0] * m.a[0]) * ref
+		if mres.matchCov == nil {
+			return nil, fmt.Errorf("stationary: plan: the thermal match's error bars were not computed (%s)", strings.Join(mres.Warnings, "; "))
 		}
+		// The scale is u . lambda^ / |lambda|: w = the terms' u summed per
+		// parameter.
+		w := make([]float64, sys.params.NumParams())
+		for k, q := range sys.params.Of {
+			w[q] += lambda[k] / norm
+		}
+		pl.ScaleRelVarPerShot = mres.matchCov.quadratic(w) / (norm * norm) * ref
 		pl.VarPerShot = make([]float64, len(terms))
 		for k := range terms {
 			se := mres.StdErr[sys.params.Of[k]]
@@ -269,6 +280,37 @@ func PlanShots(n int, terms []lattice.Term, bases []string, probs BasisProbabili
 	pl.setShots(shots)
 	pl.notes(opt, ref)
 	return pl, nil
+}
+
+// matchCovariance is the covariance of the parameters with a thermal
+// match, in the parts errorBars assembles: the sandwich cov off the
+// matched span, the direction's error directions g_j replacing
+// sigma_j² v_j v_j^T, and the matched multipliers' covariance along dirs.
+type matchCovariance struct {
+	cov   *mat.Dense
+	g, v  [][]float64
+	sigma []float64
+	dirs  [][]float64
+	tCov  *mat.SymDense
+}
+
+// quadratic returns w^T Cov w.
+func (c *matchCovariance) quadratic(w []float64) float64 {
+	wv := mat.NewVecDense(len(w), w)
+	q := mat.Inner(wv, c.cov, wv)
+	for j := range c.g {
+		a, b := floats.Dot(w, c.g[j]), c.sigma[j]*floats.Dot(w, c.v[j])
+		q += a*a - b*b
+	}
+	wd := make([]float64, len(c.dirs))
+	for i, d := range c.dirs {
+		wd[i] = floats.Dot(w, d)
+	}
+	x := mat.NewVecDense(len(wd), wd)
+	if len(wd) > 0 {
+		q += mat.Inner(x, c.tCov, x)
+	}
+	return max(q, 0)
 }
 
 // betaText is " at beta x max|coeff| = B" when beta is known.

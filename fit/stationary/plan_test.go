@@ -118,6 +118,9 @@ type planCase struct {
 	target float64
 	seeds  int
 	heavy  bool
+	// scale also checks the scale's error (thermal match, exact
+	// evaluator; dozens of diagonalisations per seed).
+	scale bool
 }
 
 // TestPlanAchieved plans the shots for a target rms direction error,
@@ -128,9 +131,9 @@ type planCase struct {
 // runs with WARMFIT_STATIONARY_HEAVY=1.
 func TestPlanAchieved(t *testing.T) {
 	cases := []planCase{
-		{scenario{name: "tfim8", spec: "chain:8", preset: "tfim", values: map[string]float64{"J": 1, "hx": 0.8, "hz": 0.3}, disorder: 0.3, beta: 0.7}, 0.02, 24, false},
-		{scenario{name: "xxz3x3", spec: "square:3x3", preset: "xxz", values: map[string]float64{"Jxy": 0.4, "Jz": 0.3, "hz": 0.2, "hx": 0.1}, disorder: 0.1, beta: 1}, 0.02, 16, true},
-		{scenario{name: "xxz3x3b2", spec: "square:3x3", preset: "xxz", values: map[string]float64{"Jxy": 0.4, "Jz": 0.3, "hz": 0.2, "hx": 0.1}, disorder: 0.1, beta: 2}, 0.02, 16, true},
+		{scenario{name: "tfim8", spec: "chain:8", preset: "tfim", values: map[string]float64{"J": 1, "hx": 0.8, "hz": 0.3}, disorder: 0.3, beta: 0.7}, 0.02, 24, false, true},
+		{scenario{name: "xxz3x3", spec: "square:3x3", preset: "xxz", values: map[string]float64{"Jxy": 0.4, "Jz": 0.3, "hz": 0.2, "hx": 0.1}, disorder: 0.1, beta: 1}, 0.02, 16, true, false},
+		{scenario{name: "xxz3x3b2", spec: "square:3x3", preset: "xxz", values: map[string]float64{"Jxy": 0.4, "Jz": 0.3, "hz": 0.2, "hx": 0.1}, disorder: 0.1, beta: 2}, 0.02, 16, true, false},
 	}
 	for _, c := range cases {
 		if c.heavy && os.Getenv("WARMFIT_STATIONARY_HEAVY") == "" {
@@ -141,7 +144,8 @@ func TestPlanAchieved(t *testing.T) {
 		if testing.Short() {
 			seeds = 6
 		}
-		achieved, pl := planAndMeasure(t, c.sc, c.target, seeds)
+		withScale := c.scale && !testing.Short()
+		achieved, scale, pl := planAndMeasure(t, c.sc, c.target, seeds, withScale)
 		t.Logf("%s (beta x max|c| %.3g): target rms %.3g -> %d shots/basis x %d bases (direction %d, linear regime %d); predicted rms %.4g, achieved %.4g over %d seeds (ratio %.3g)",
 			c.sc.name, pl.BetaMaxCoeff, c.target, pl.ShotsPerBasis, len(pl.Bases), pl.ShotsDirection, pl.ShotsLinear, pl.DirectionRMS(), achieved, seeds, achieved/pl.DirectionRMS())
 		lo, hi := 0.75, 1.25
@@ -151,12 +155,20 @@ func TestPlanAchieved(t *testing.T) {
 		if r := achieved / pl.DirectionRMS(); r < lo || r > hi {
 			t.Errorf("%s: achieved rms direction error %.4g for target %.4g (ratio %.3g, want %.2g-%.2g)", c.sc.name, achieved, c.target, r, lo, hi)
 		}
+		if withScale {
+			t.Logf("%s: relative scale error (thermal match) predicted %.4g, achieved rms %.4g (ratio %.3g)", c.sc.name, pl.ScaleStderr, scale, scale/pl.ScaleStderr)
+			if r := scale / pl.ScaleStderr; r < lo || r > hi {
+				t.Errorf("%s: achieved scale error %.4g, predicted %.4g (ratio %.3g, want %.2g-%.2g)", c.sc.name, scale, pl.ScaleStderr, r, lo, hi)
+			}
+		}
 	}
 }
 
 // planAndMeasure plans sc for an rms direction target and returns the
-// rms direction error achieved over seeds with the planned shots.
-func planAndMeasure(t *testing.T, sc scenario, target float64, seeds int) (float64, *Plan) {
+// rms direction error achieved over seeds with the planned shots, and
+// with scale the rms relative error of the scale fixed by the thermal
+// match (u . lambda^ / |lambda| - 1).
+func planAndMeasure(t *testing.T, sc scenario, target float64, seeds int, scale bool) (dirRMS, scaleRMS float64, pl *Plan) {
 	t.Helper()
 	l, terms := testModel(t, sc.spec, sc.preset, sc.values, sc.disorder, 11)
 	n := l.NumSites()
@@ -165,7 +177,11 @@ func planAndMeasure(t *testing.T, sc scenario, target float64, seeds int) (float
 		t.Fatal(err)
 	}
 	sampler := cachedSampler(t, sc, n, terms)
-	pl, err := PlanShots(n, terms, bases, sampler.Distribution, PlanOptions{Target: target, Beta: sc.beta, Source: "exact outcome distributions (dense ED)"})
+	opt := PlanOptions{Target: target, Beta: sc.beta, Source: "exact outcome distributions (dense ED)"}
+	if scale {
+		opt.Evaluate = exactEvaluator(n, terms)
+	}
+	pl, err = PlanShots(n, terms, bases, sampler.Distribution, opt)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -173,7 +189,9 @@ func planAndMeasure(t *testing.T, sc scenario, target float64, seeds int) (float
 	if err != nil {
 		t.Fatal(err)
 	}
-	var sum2 float64
+	truth := coeffs(terms)
+	norm := floats.Norm(truth, 2)
+	var sum2, scale2 float64
 	for s := range seeds {
 		est := sampleEstimates(t, sampler, sys, bases, int(pl.ShotsPerBasis), uint64(500+s))
 		d, err := Solve(sys, est, Options{})
@@ -182,8 +200,16 @@ func planAndMeasure(t *testing.T, sc scenario, target float64, seeds int) (float
 		}
 		e := directionErrors(sys, d.Theta, terms)
 		sum2 += floats.Dot(e, e) / float64(len(e))
+		if scale {
+			res, err := Fix(sys, est, d, Gauge{Beta: sc.beta, Evaluate: opt.Evaluate}, Options{})
+			if err != nil {
+				t.Fatal(err)
+			}
+			x := floats.Dot(res.Lambda, truth)/(norm*norm) - 1
+			scale2 += x * x
+		}
 	}
-	return math.Sqrt(sum2 / float64(seeds)), pl
+	return math.Sqrt(sum2 / float64(seeds)), math.Sqrt(scale2 / float64(seeds)), pl
 }
 
 // directionErrors returns |lambda| (u^_k - u_k) per term: the

@@ -158,6 +158,7 @@ func (res *Result) errorBars(sys *System, est *fit.Estimates, calRows []int, bas
 			return fmt.Errorf("direction noise through the thermal match: %w", err)
 		}
 	}
+	res.matchCov = &matchCovariance{cov: &cov, g: g, v: vs, sigma: sig, dirs: dirs, tCov: m.tCov}
 	for p := range np {
 		v := cov.At(p, p)
 		for j := range g {
