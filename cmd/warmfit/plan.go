@@ -94,7 +94,9 @@ term, --format json the whole plan.
 
 const planExample = `warmfit model --lattice square:6x6 --preset xxz --set Jxy=0.4,Jz=0.3,hz=0.2 --beta 0.5 -o m.json
 warmfit plan --model m.json --target 0.01
-warmfit plan --model m.json --target 0.05 --norm l2 --bases random:200 --format csv -o plan.csv`
+warmfit plan --model m.json --target 0.05 --norm l2 --bases random:200 --format csv -o plan.csv
+warmfit model --lattice chain:8 --preset tfim --set J=1,hx=0.8,hz=0.3 --beta 0.7 -o chain.json
+warmfit plan --model chain.json --method stationary --bases covering:3 --target 0.02`
 
 func runPlan(env *runEnv, args []string) error {
 	o := planOptions
