@@ -21,8 +21,9 @@ const planStationaryLong = `
 Method (--method): expansion (the default) plans the expansion's maximum-entropy fit as
 above. stationary plans 'warmfit fit --method stationary' instead: the stationarity
 constraints Tr(rho [A, H]) = 0 (Bairey, Arad, Lindner, PRL 122, 020504 (2019)). From the
-model's Gibbs state (exact outcome distributions of every basis by dense diagonalisation,
-up to 12 qubits) it predicts the constraint entries and their covariance for one shot per
+model's Gibbs state (exact outcome distributions of every basis by dense diagonalisation
+up to 12 qubits, by thermal typicality with 16 random vectors up to 20; the output says
+which) it predicts the constraint entries and their covariance for one shot per
 basis, runs the stationarity solver and its delta-method error bars on them, and scales
 the variances by 1/shots. --target is then the direction error: the coefficient error
 once the overall scale is fixed to the model's norm, in --norm rms (the default here:
@@ -40,6 +41,15 @@ constraints need; random:K works too. For example:
   warmfit model --lattice chain:8 --preset tfim --set J=1,hx=0.8,hz=0.3 --beta 0.7 -o device.json
   warmfit plan --model device.json --method stationary --bases covering:3 --target 0.02
   warmfit plan --model device.json --method stationary --bases covering:3 --target 0.02 --scale-target 0.01 --format json -o plan.json`
+
+// maxPlanTypicalQubits is the largest lattice the stationarity plan
+// predicts (thermal typicality above cluster.MaxDenseQubits: its vectors
+// take 16 bytes per amplitude each), and planTypicalVectors the number
+// of random vectors it uses.
+const (
+	maxPlanTypicalQubits = 20
+	planTypicalVectors   = 16
+)
 
 // planStationary is a stationarity plan with what the output needs.
 type planStationary struct {
@@ -66,8 +76,8 @@ type planComparison struct {
 func runPlanStationary(env *runEnv, m *model.Model, beta float64, bases []string, scheme string, format outputFormat) error {
 	o := planOptions
 	n := m.Lattice.NumSites()
-	if n > cluster.MaxDenseQubits {
-		return fmt.Errorf("plan --method stationary: %d sites: the prediction needs the exact outcome distributions of every basis, available up to %d qubits (dense diagonalisation); plan a patch of the lattice instead (the constraints are local, so a patch with the same neighbourhoods needs about the same shots per basis)", n, cluster.MaxDenseQubits)
+	if n > maxPlanTypicalQubits {
+		return fmt.Errorf("plan --method stationary: %d sites: the prediction needs the outcome distributions of every basis, exact up to %d qubits and by thermal typicality up to %d; plan a patch of the lattice instead (the constraints are local, so a patch with the same neighbourhoods needs about the same shots per basis)", n, cluster.MaxDenseQubits, maxPlanTypicalQubits)
 	}
 	if o.norm == "" || !o.flags.Changed("norm") {
 		o.norm = string(stationary.NormRMS)
@@ -79,17 +89,30 @@ func runPlanStationary(env *runEnv, m *model.Model, beta float64, bases []string
 	if o.scaleTarget < 0 || math.IsNaN(o.scaleTarget) || math.IsInf(o.scaleTarget, 0) {
 		return usagef("--scale-target %v: must be a positive number (relative error of the scale)", o.scaleTarget)
 	}
-	source := fmt.Sprintf("exact outcome distributions of the %d-qubit Gibbs state (dense diagonalisation)", n)
-	fmt.Fprintf(env.Stderr, "plan: stationarity: %d sites, %d terms, beta %s, %d bases (%s); expectations from %s\n", n, len(m.Terms), fmtFloat(beta), len(bases), scheme, source)
-	sampler, err := validate.NewSampler(n, m.Terms, beta)
-	if err != nil {
-		return err
+	var probs stationary.BasisProbabilities
+	var source string
+	if n <= cluster.MaxDenseQubits {
+		source = fmt.Sprintf("exact outcome distributions of the %d-qubit Gibbs state (dense diagonalisation)", n)
+		fmt.Fprintf(env.Stderr, "plan: stationarity: %d sites, %d terms, beta %s, %d bases (%s); expectations from %s\n", n, len(m.Terms), fmtFloat(beta), len(bases), scheme, source)
+		sampler, err := validate.NewSampler(n, m.Terms, beta)
+		if err != nil {
+			return err
+		}
+		probs = sampler.Distribution
+	} else {
+		source = fmt.Sprintf("outcome distributions of the %d-qubit Gibbs state by thermal typicality (%d random vectors, seed %d; Hams and De Raedt, PRE 62, 4365 (2000)), statistical error a few percent on the variances", n, planTypicalVectors, o.seed)
+		fmt.Fprintf(env.Stderr, "plan: stationarity: %d sites, %d terms, beta %s, %d bases (%s); expectations from %s\n", n, len(m.Terms), fmtFloat(beta), len(bases), scheme, source)
+		sampler, err := validate.NewTypicalSampler(n, m.Terms, beta, validate.TypicalityOptions{Vectors: planTypicalVectors, Seed: o.seed, Workers: o.workers})
+		if err != nil {
+			return err
+		}
+		probs = sampler.Distribution
 	}
 	eval, evalSource, err := stationaryEvaluator(m)
 	if err != nil {
 		return err
 	}
-	pl, err := stationary.PlanShots(n, m.Terms, bases, sampler.Distribution, stationary.PlanOptions{
+	pl, err := stationary.PlanShots(n, m.Terms, bases, probs, stationary.PlanOptions{
 		Target: o.target, Norm: norm, Confidence: o.confidence, ScaleTarget: o.scaleTarget,
 		Beta: beta, Evaluate: eval, System: stationary.SystemOptions{FarPairs: o.farPairs},
 		Source: source + "; scale by the thermal match (" + evalSource + ")",

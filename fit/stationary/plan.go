@@ -170,6 +170,10 @@ func PlanShots(n int, terms []lattice.Term, bases []string, probs BasisProbabili
 	if norm == 0 {
 		return nil, errors.New("stationary: the model's coefficients are all zero: there is nothing to plan for")
 	}
+	moved, err := pred.makeStationary(sys, lambda)
+	if err != nil {
+		return nil, err
+	}
 	pl := &Plan{
 		Bases: bases, Norm: opt.Norm, Target: opt.Target, Confidence: opt.Confidence, ScaleTarget: opt.ScaleTarget,
 		Params: sys.params.NumParams(), Strings: len(sys.Strings), MissingStrings: len(pred.Missing),
@@ -279,6 +283,9 @@ func PlanShots(n int, terms []lattice.Term, bases []string, probs BasisProbabili
 	}
 	pl.setShots(shots)
 	pl.notes(opt, ref)
+	if moved > 1e-9 {
+		pl.Notes = append(pl.Notes, fmt.Sprintf("predicted correlators moved by up to %.2g to make the model exactly stationary (the size of the prediction's own error, as with thermal typicality)", moved))
+	}
 	return pl, nil
 }
 

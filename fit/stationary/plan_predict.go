@@ -4,6 +4,8 @@ import (
 	"fmt"
 	"math"
 
+	"gonum.org/v1/gonum/mat"
+
 	"warmfit/cluster"
 	"warmfit/fit"
 )
@@ -172,4 +174,81 @@ func (p *Prediction) Estimates(shots float64) *fit.Estimates {
 	}
 	est.Cov = cluster.NewSparseSymCSR(ns, rowPtr, col, val)
 	return est
+}
+
+// makeStationary moves the values by the least-squares correction that
+// makes the coefficients lambda an exact null vector of the constraints
+// (M(values) lambda = 0 in every row with data), and returns the largest
+// change. Exact Gibbs expectations need none (up to rounding); those of
+// thermal typicality do: a typicality state is not exactly stationary,
+// and its small residuals would turn the planned direction and its error
+// bars (Solve at many shots) away from the model's.
+func (p *Prediction) makeStationary(sys *System, lambda []float64) (float64, error) {
+	missing := make([]bool, len(p.Values))
+	for _, j := range p.Missing {
+		missing[j] = true
+	}
+	// Rows with data, and the columns (strings) they use.
+	var rows []int
+	col := map[int32]int{}
+	var cols []int32
+	for a := range sys.NumRows() {
+		ok := true
+		for _, e := range sys.row(a) {
+			if missing[e.str] {
+				ok = false
+				break
+			}
+		}
+		if !ok {
+			continue
+		}
+		rows = append(rows, a)
+		for _, e := range sys.row(a) {
+			if _, seen := col[e.str]; !seen {
+				col[e.str] = len(cols)
+				cols = append(cols, e.str)
+			}
+		}
+	}
+	if len(rows) == 0 {
+		return 0, nil
+	}
+	// r = A v with A[a, j] = sum of sign lambda_k over the entries of row
+	// a on string j; the correction is -A^T (A A^T)^+ r.
+	am := mat.NewDense(len(rows), len(cols), nil)
+	r := mat.NewVecDense(len(rows), nil)
+	for i, a := range rows {
+		var ra float64
+		for _, e := range sys.row(a) {
+			c := e.sign * lambda[e.term]
+			am.Set(i, col[e.str], am.At(i, col[e.str])+c)
+			ra += c * p.Values[e.str]
+		}
+		r.SetVec(i, ra)
+	}
+	var svd mat.SVD
+	if !svd.Factorize(am, mat.SVDThin) {
+		return 0, fmt.Errorf("stationary: SVD of the constraint map failed")
+	}
+	var u, v mat.Dense
+	svd.UTo(&u)
+	svd.VTo(&v)
+	sv := svd.Values(nil)
+	delta := make([]float64, len(cols))
+	for k, s := range sv {
+		if s <= 1e-12*sv[0] {
+			continue
+		}
+		f := mat.Dot(u.ColView(k), r) / s
+		for j := range delta {
+			delta[j] -= f * v.At(j, k)
+		}
+	}
+	var largest float64
+	for j, d := range delta {
+		p.Values[cols[j]] += d
+		largest = max(largest, math.Abs(d))
+	}
+	return largest, nil
 }

@@ -320,3 +320,43 @@ func TestPlanRetarget(t *testing.T) {
 		t.Errorf("a loose target: %d shots, want the linear-regime floor %d", big.ShotsPerBasis, big.ShotsLinear)
 	}
 }
+
+// TestPlanTypicalityAgreesWithExact: the plan from thermal-typicality
+// distributions (validate.TypicalSampler, 16 vectors as the command
+// line uses above 12 qubits) agrees with the exact one (dense ED) on a
+// 10-site chain, where both exist: the shots per basis within 15% (the
+// typicality error of the variances; Hams and De Raedt, PRE 62, 4365
+// (2000)).
+func TestPlanTypicalityAgreesWithExact(t *testing.T) {
+	if testing.Short() {
+		t.Skip("dense ED of 10 qubits")
+	}
+	l, terms := testModel(t, "chain:10", "tfim", map[string]float64{"J": 1, "hx": 0.8, "hz": 0.3}, 0.3, 11)
+	n, beta := l.NumSites(), 0.7
+	bases, _, err := fit.SchemeBases("covering:3", n, terms, 1)
+	if err != nil {
+		t.Fatal(err)
+	}
+	exact, err := validate.NewSampler(n, terms, beta)
+	if err != nil {
+		t.Fatal(err)
+	}
+	typ, err := validate.NewTypicalSampler(n, terms, beta, validate.TypicalityOptions{Vectors: 16, Seed: 1})
+	if err != nil {
+		t.Fatal(err)
+	}
+	opt := PlanOptions{Target: 0.02, Beta: beta}
+	pe, err := PlanShots(n, terms, bases, exact.Distribution, opt)
+	if err != nil {
+		t.Fatal(err)
+	}
+	pt, err := PlanShots(n, terms, bases, typ.Distribution, opt)
+	if err != nil {
+		t.Fatal(err)
+	}
+	r := float64(pt.ShotsDirection) / float64(pe.ShotsDirection)
+	t.Logf("chain:10: exact %d shots per basis, typicality %d (ratio %.3g)", pe.ShotsDirection, pt.ShotsDirection, r)
+	if math.Abs(r-1) > 0.15 {
+		t.Errorf("typicality plan %d shots, exact %d (ratio %.3g)", pt.ShotsDirection, pe.ShotsDirection, r)
+	}
+}
