@@ -97,6 +97,7 @@ func (res *Result) errorBars(sys *System, est *fit.Estimates, calRows []int, bas
 		for i, p := range free {
 			res.StdErr[p] = math.Sqrt(max(cov.At(i, i), 0))
 		}
+		res.freeCov, res.free = &cov, free
 		return nil
 	}
 	// Thermal match: pseudo-inverse of X off the span of the basis.
@@ -153,6 +154,7 @@ func (res *Result) errorBars(sys *System, est *fit.Estimates, calRows []int, bas
 				directionNoiseBudget, m.DirectionRank, 100*m.DirectionShare))
 		}
 	}
+	res.matchCov = &matchCovariance{cov: &cov, g: g, v: vs, sigma: sig, dirs: dirs, tCov: m.tCov}
 	for p := range np {
 		v := cov.At(p, p)
 		for j := range g {
