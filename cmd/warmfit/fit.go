@@ -90,8 +90,8 @@ func init() {
 	})
 }
 
-const fitLong = `Fit finds the coefficients lambda of H = sum_k lambda_k E_k whose Gibbs state
-exp(-beta H)/Z reproduces the measured expectation values e_k, by minimising the
+const fitLong = `The coefficients lambda of H = sum_k lambda_k E_k are those whose Gibbs state
+exp(-beta H)/Z reproduces the measured expectation values e_k, found by minimising the
 convex maximum-entropy dual G(lambda) = log Z(lambda) + beta sum_k lambda_k e_k with
 log Z from the numerical linked-cluster expansion. Newton steps are solved by
 conjugate gradients on the sparse Hessian and damped by a line search on G. On
@@ -525,18 +525,18 @@ func fitWriteCSV(w io.Writer, res *fit.Result, cmp *fit.TruthComparison) error {
 		}
 		se, sig := "", ""
 		if t.HasStderr {
-			se = strconv.FormatFloat(t.Stderr, 'g', -1, 64)
+			se = fmtExact(t.Stderr)
 		}
 		if res.Significance != nil {
 			sig = strconv.FormatBool(res.Significance.Significant[res.Params.Of[k]])
 		}
-		rec := []string{t.Pauli, lattice.SitesString(t.Sites), strconv.FormatFloat(t.Coeff, 'g', -1, 64), se, sig}
+		rec := []string{t.Pauli, lattice.SitesString(t.Sites), fmtExact(t.Coeff), se, sig}
 		if cmp != nil {
 			z := ""
 			if v := cmp.Z[k]; !math.IsNaN(v) && !math.IsInf(v, 0) {
 				z = fmtExact(v)
 			}
-			rec = append(rec, strconv.FormatFloat(cmp.True[k], 'g', -1, 64), z)
+			rec = append(rec, fmtExact(cmp.True[k]), z)
 		}
 		if err := cw.Write(rec); err != nil {
 			return err
@@ -567,8 +567,16 @@ func fitSummary(w io.Writer, res *fit.Result, rep *fit.Report, cmp *fit.TruthCom
 	if res.Exact {
 		grad = "mean residual " + fmtG3(res.GradientAbs) + " (exact data)"
 	}
-	p("%s at order %d (%s selection, orders %v) after %s, %s, %.1fs",
-		status, res.Order, rep.OrderMode, rep.Truncation.Orders, newtonIterations(res.TotalIterations, res.Iterations, res.Order), grad, res.Elapsed.Seconds())
+	how := "order given by --order"
+	if rep.OrderMode == "auto" {
+		word := "orders"
+		if len(rep.Truncation.Orders) == 1 {
+			word = "order"
+		}
+		how = "order chosen automatically; fitted at " + word + " " + joinInts(rep.Truncation.Orders, ", ")
+	}
+	p("%s at order %d (%s) after %s, %s, %.1fs",
+		status, res.Order, how, newtonIterations(res.TotalIterations, res.Iterations, res.Order), grad, res.Elapsed.Seconds())
 	p("%d terms, %d fitted parameters", len(res.Terms), res.Params.NumParams())
 	if n := len(res.Unmeasured); n > 0 {
 		p("%d terms had no data and were fitted through their group (moment matching on measured members)", n)
@@ -581,7 +589,7 @@ func fitSummary(w io.Writer, res *fit.Result, rep *fit.Report, cmp *fit.TruthCom
 	case tr.Exact:
 		p("truncation: none, the order covers the whole lattice")
 	case tr.Known:
-		p("truncation error %s (largest change of a coefficient over the last orders) vs target %s", fmtG3(tr.Error), fmtG3(tr.Target))
+		p("truncation error %s (largest change of a coefficient over the last orders) vs target %s (from the final error bars; each order line above compared with the target of its own fit)", fmtG3(tr.Error), fmtG3(tr.Target))
 	case res.Converged:
 		p("truncation error unknown")
 	}
