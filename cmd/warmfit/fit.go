@@ -1,6 +1,7 @@
 package main
 
 import (
+	"bytes"
 	"encoding/csv"
 	"fmt"
 	"io"
@@ -68,7 +69,7 @@ func init() {
 			addBetaFlag(fs, &o.beta, "inverse temperature (overrides the template's; without either, beta*lambda is fitted)")
 			o.beta.omitted = betaOmittedFits
 			addOrderFlag(fs, &o.order, "expansion order (largest cluster), or auto")
-			fs.IntVar(&o.maxOrder, "max-order", 0, "highest order --order auto may use (default: sites, at most 12)")
+			fs.IntVar(&o.maxOrder, "max-order", 0, "highest order --order auto may use (default: the automatic ceiling, "+autoCeilingText+")")
 			addBudgetFlag(fs, &o.budget)
 			fs.StringVar(&o.truth, "truth", "", "true model `FILE`: report z-scores and L2/Linf errors against it")
 			fs.StringVar(&o.scale, "scale-from", "", "without beta: fix the energy scale from `TERM=VALUE` (a calibrated coefficient, e.g. \"ZZ 0 1=0.25\") or beta=B; VALUE may be V+-ERR")
@@ -121,8 +122,8 @@ orders L-2 and L-1 are fitted first, each from the solution below, and measure
 the truncation error (the larger of the last two changes
 of any coefficient: partial sums can stall for one order). With --order auto (the
 default), the order rises until that error is at most 0.1 x the median statistical
-error, the order reaches the automatic ceiling (8 in two dimensions, or the number of
-sites of a small lattice, where the expansion is exact), or the next order would take
+error, the order reaches the automatic ceiling (` + autoCeilingText + `; past it, the
+number of sites of a small lattice when that is cheap, where the expansion is exact), or the next order would take
 the fit past its work limit (6e10 units of D^3
 work, about a minute on the reference 2-core machine, counted from the cost model
 and the Newton iterations, so the same data give the same order on any machine);
@@ -136,9 +137,6 @@ tied groups, and, with --truth, z-scores and L2/Linf errors.
 Structure learning: every coefficient gets "significant": true/false from the
 two-sided z = |coeff|/stderr with the Benjamini-Hochberg rule at false-discovery
 rate --fdr (default q = 0.05).
-
-Without beta (neither --beta nor the template's), the products beta*lambda are
-fitted and written with beta = 1; the report says so.
 
 ` + scaleFromHelp + `
 
@@ -169,7 +167,7 @@ func runFit(env *runEnv, args []string) error {
 	if err := checkOutputs(withCSV("-o", o.out, o.csv), o.model, o.data, o.truth); err != nil {
 		return err
 	}
-	tmpl, err := model.ReadFile(o.model)
+	tmpl, err := readModelFlag("--model", o.model, "the template model")
 	if err != nil {
 		return err
 	}
@@ -184,14 +182,19 @@ func runFit(env *runEnv, args []string) error {
 	if err != nil {
 		return err
 	}
-	if err := admitFit(env, &o, tmpl, order); err != nil {
+	// A request past the limits is refused before the data are read, but
+	// the estimate line waits for the data to parse: a file that does not
+	// parse fails before any line about the work to come.
+	var estimate bytes.Buffer
+	if err := admitFit(&runEnv{Stdout: env.Stdout, Stderr: &estimate, Stdin: env.Stdin}, &o, tmpl, order); err != nil {
+		env.Stderr.Write(estimate.Bytes())
 		return err
 	}
-
 	est, dataSummary, err := fit.LoadEstimates(o.data, tmpl.Lattice, tmpl.Terms, fit.CovarianceOptions{Distance: o.covDist})
 	if err != nil {
 		return err
 	}
+	env.Stderr.Write(estimate.Bytes())
 	kind := dataSummary.Kind
 	opt, bar := fitRunOptions(env, &o, tmpl, order)
 	announceFit(env, &o, tmpl, kind, beta, betaSource, calibration)
@@ -321,7 +324,7 @@ func readFitTruth(o *fitFlags, tmpl *model.Model) (*model.Model, error) {
 	if o.truth == "" {
 		return nil, nil
 	}
-	truth, err := model.ReadFile(o.truth)
+	truth, err := readModelFlag("--truth", o.truth, "the true model")
 	if err != nil {
 		return nil, err
 	}

@@ -36,6 +36,10 @@ import (
 // time and space of each request below it.
 const typicalityQubits = validate.MaxTypicalityQubits
 
+// autoCeilingText is the automatic order ceiling of cluster.NewOrderPolicy
+// in words, for the help of fit (a test checks it against the policy).
+const autoCeilingText = "12 on a chain, 9 on a ladder, 8 in two dimensions, 6 in three, never above the number of sites"
+
 // defaultBudget is the --budget of every command that can run long.
 const defaultBudget = 60 * time.Second
 

@@ -123,12 +123,13 @@ func run(env *runEnv, args []string) int {
 		}
 		return exitOK
 	}
+	hint := nameSuggestion(err.Error())
 	var ue *usageError
 	if errors.As(err, &ue) {
-		fmt.Fprintf(env.Stderr, "warmfit %s: %v\n%s", c.Name, err, commandHelpHint(c.Name))
+		fmt.Fprintf(env.Stderr, "warmfit %s: %v%s\n%s", c.Name, err, hint, commandHelpHint(c.Name))
 		return exitUsage
 	}
-	fmt.Fprintf(env.Stderr, "warmfit %s: %v\n", c.Name, err)
+	fmt.Fprintf(env.Stderr, "warmfit %s: %v%s\n", c.Name, err, hint)
 	return exitFailure
 }
 

@@ -281,7 +281,9 @@ func modelSummary(name string, m *model.Model) string {
 		}
 	}
 	unit := ""
-	if m.Units != "" {
+	if m.Units != "" && !fittedWithoutScale(m) {
+		// A fit without beta has units "dimensionless: beta*lambda ...";
+		// the sentence on beta*lambda below says it once.
 		unit = " " + m.Units
 	}
 	fmt.Fprintf(&b, ". Coefficients from %s to %s%s (max |coeff| %s)", formatG(lo, 4), formatG(hi, 4), unit, formatG(maxAbs, 4))
