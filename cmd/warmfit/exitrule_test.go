@@ -194,11 +194,16 @@ func TestRefusedRequestsAreUsageErrors(t *testing.T) {
 	if code, _, errs := runCmd("model", "--lattice", "square:6x6", "--preset", "xxz", "--set", "Jxy=0.2,Jz=0.15,hz=0.4,hx=0.2", "--beta", "0.35", "-o", big); code != exitOK {
 		t.Fatalf("model: exit %d: %s", code, errs)
 	}
+	chain := filepath.Join(dir, "chain.json")
+	if code, _, errs := runCmd("model", "--lattice", "chain:10", "--preset", "tfim", "--beta", "0.5", "-o", chain); code != exitOK {
+		t.Fatalf("model: exit %d: %s", code, errs)
+	}
 	for _, tc := range []struct {
 		args    []string
 		want    string // in the message
 		notSaid string // a plan line that must not come first
 	}{
+		{[]string{"sample", "--model", chain, "--shots", "1000000000", "--generator", "exact"}, "--budget", "sample: 10 qubits"},
 		{[]string{"sample", "--model", big, "--shots", "100", "--generator", "exact"}, "--generator exact", "sample: 36 qubits"},
 		{[]string{"sample", "--model", big, "--shots", "100", "--bases", "covering:3", "--generator", "binomial"}, "covering:3", "sample: 36 qubits"},
 		{[]string{"predict", "--model", big, "--method", "exact"}, "--method exact", "exact:"},

@@ -122,9 +122,10 @@ orders L-2 and L-1 are fitted first, each from the solution below, and measure
 the truncation error (the larger of the last two changes
 of any coefficient: partial sums can stall for one order). With --order auto (the
 default), the order rises until that error is at most 0.1 x the median statistical
-error, the order reaches the automatic ceiling (` + autoCeilingText + `; past it, the
-number of sites of a small lattice when that is cheap, where the expansion is exact), or the next order would take
-the fit past its work limit (6e10 units of D^3
+error, until it reaches the automatic ceiling
+(` + autoCeilingText + `;
+past that, all the sites of a small lattice when that is cheap: there the expansion is
+exact), or until the next order would take the fit past its work limit (6e10 units of D^3
 work, about a minute on the reference 2-core machine, counted from the cost model
 and the Newton iterations, so the same data give the same order on any machine);
 the report says plainly when the truncation error is larger. --budget only guards

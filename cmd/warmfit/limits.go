@@ -38,7 +38,7 @@ const typicalityQubits = validate.MaxTypicalityQubits
 
 // autoCeilingText is the automatic order ceiling of cluster.NewOrderPolicy
 // in words, for the help of fit (a test checks it against the policy).
-const autoCeilingText = "12 on a chain, 9 on a ladder, 8 in two dimensions, 6 in three, never above the number of sites"
+const autoCeilingText = "12 on a chain, 9 on a ladder, 8 in 2D, 6 in 3D, at most the number of sites"
 
 // defaultBudget is the --budget of every command that can run long.
 const defaultBudget = 60 * time.Second

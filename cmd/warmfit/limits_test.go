@@ -109,9 +109,9 @@ func TestAutoCeilingTextMatchesPolicy(t *testing.T) {
 	}{
 		{"chain:40", "12 on a chain"},
 		{"ladder:20", "9 on a ladder"},
-		{"square:10x10", "8 in two dimensions"},
-		{"triangular:10x10", "8 in two dimensions"},
-		{"cubic:5x5x5", "6 in three"},
+		{"square:10x10", "8 in 2D"},
+		{"triangular:10x10", "8 in 2D"},
+		{"cubic:5x5x5", "6 in 3D"},
 	} {
 		lat, err := lattice.Open(tc.spec)
 		if err != nil {

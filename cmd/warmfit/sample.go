@@ -127,6 +127,11 @@ warmfit sample --model big.json --shots 100000 --generator binomial -o big-data.
 			if gen == generatorExact && n > cluster.MaxDenseQubits {
 				return usagef("--generator exact draws snapshots by dense diagonalisation, at most %d qubits; this model has %d: use --generator binomial", cluster.MaxDenseQubits, n)
 			}
+			if gen == generatorExact {
+				if err := admit(env.Stderr, "sample", exactSampleEstimate(n, len(basisList), shots), budget); err != nil {
+					return err
+				}
+			}
 			fmt.Fprintf(env.Stderr, "sample: %d qubits, %d bases x %d shots, %s generator, seed %d\n", n, len(basisList), shots, gen, seed)
 			meta := &csvMeta{Command: "sample"}
 			meta.set("model", modelPath)
@@ -136,9 +141,6 @@ warmfit sample --model big.json --shots 100000 --generator binomial -o big-data.
 			meta.set("shots_per_basis", shots)
 			meta.set("seed", seed)
 			if gen == generatorExact {
-				if err := admit(env.Stderr, "sample", exactSampleEstimate(n, len(basisList), shots), budget); err != nil {
-					return err
-				}
 				return sampleExact(env, m, b, basisList, shots, seed, out, csvOut, meta)
 			}
 			return sampleBinomial(env, m, b, basisList, shots, seed, order.L, budget, workers, out, csvOut, meta)

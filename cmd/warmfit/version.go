@@ -14,7 +14,7 @@ func init() {
 		Name:    "version",
 		Short:   "which warmfit this is, and the Go toolchain that built it",
 		Usage:   "warmfit version",
-		Long:    "One line: the warmfit release, then the Go toolchain, operating system and architecture of this build.",
+		Long:    "One line: the warmfit release, then the Go toolchain, operating system and\narchitecture of this build.",
 		Example: "warmfit version",
 		Flags:   func(fs *pflag.FlagSet) {},
 		// It prints no warnings, so --strict would mean nothing.
