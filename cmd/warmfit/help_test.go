@@ -46,7 +46,7 @@ func TestHelpHintsAndStrict(t *testing.T) {
 	if !strings.Contains(badFlag, "warmfit help fit") || !strings.Contains(unknownCmd, "warmfit help") {
 		t.Errorf("hints do not name the help command:\n%s\n%s", badFlag, unknownCmd)
 	}
-	if code, _, errs := runCmd("version", "--strict"); code != exitUsage {
+	if code, _, errs := runCmd("version", "--strict"); code != exitUsage || !strings.Contains(errs, "never prints a WARNING") {
 		t.Errorf("version --strict: exit %d, want %d\n%s", code, exitUsage, errs)
 	}
 	_, help, _ := runCmd("help", "bulk")

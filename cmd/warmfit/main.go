@@ -109,7 +109,11 @@ func run(env *runEnv, args []string) int {
 			printCommandHelp(env.Stdout, c, fs)
 			return exitOK
 		}
-		fmt.Fprintf(env.Stderr, "warmfit %s: %v%s\n%s", c.Name, err, flagSuggestion(err, fs), commandHelpHint(c.Name))
+		hint := flagSuggestion(err, fs)
+		if c.NoStrict && err.Error() == "unknown flag: --strict" {
+			hint = fmt.Sprintf(": %s never prints a WARNING line, so it has no --strict", c.Name)
+		}
+		fmt.Fprintf(env.Stderr, "warmfit %s: %v%s\n%s", c.Name, err, hint, commandHelpHint(c.Name))
 		return exitUsage
 	}
 	counter := &warningCounter{w: env.Stderr}
