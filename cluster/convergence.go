@@ -36,9 +36,12 @@ type Convergence struct {
 // truncationThreeSteps) are fitted to exact references, the 95th
 // percentile of the true error, in TestTruncationCalibration; README.md
 // "Truncation estimates against exact results" gives the measured
-// coverage. Two guards keep the estimate safe: it is never below
-// truncationFloor times the larger of |d_L| and a fifth of |d_{L-1}|, and
-// when the last two steps are not smaller than the two before the series
+// coverage. Guards keep the estimate safe: it is never below
+// truncationFloor |d_L|; when the ratio of steps is not falling it is at
+// least the geometric tail with the last ratio; when the last step falls
+// far faster than the one before (likely a step passing through zero) it
+// is at least a fraction of the step before at that step's rate; and when
+// the last two steps are not much smaller than the two before the series
 // is not converging and the estimate is at least the larger of them.
 //
 // With only two steps the estimate is truncationTwoSteps times the
@@ -103,6 +106,12 @@ const (
 	// least this fraction of the larger of the two before, the series is
 	// not converging and the error is at least that step.
 	truncationStalled = 0.75
+	// truncationDrop and truncationDropWeight: a last step that falls
+	// more than truncationDrop times faster than the one before gets at
+	// least truncationDropWeight times the step before, at that step's
+	// rate of fall.
+	truncationDrop       = 5
+	truncationDropWeight = 0.2
 	// truncationNothing: a step at most this fraction of the one before
 	// is an order that adds nothing (the smallest such ratio of genuine
 	// steps in the calibration data is 6e-6).
@@ -176,6 +185,13 @@ func truncationEstimate(s []float64) float64 {
 		case 3:
 			e = math.Max(e, a(0)*r1/(1+r1))
 		}
+	}
+	// A last step that falls far faster than the one before is more
+	// likely a step passing through zero (with temperature) than a
+	// sudden convergence: the step before, at its own rate of fall,
+	// bounds the estimate from below.
+	if r1, r2 := a(0)/a(1), a(1)/a(2); r1*truncationDrop < r2 {
+		e = math.Max(e, truncationDropWeight*a(1)*math.Min(r2, 1))
 	}
 	if k >= 4 {
 		if last := math.Max(a(0), a(1)); last >= truncationStalled*math.Max(a(2), a(3)) {
