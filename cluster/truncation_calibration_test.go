@@ -317,6 +317,12 @@ func TestTruncationCalibration(t *testing.T) {
 	}
 	fmt.Println("| reference | beta x max|coeff| | order | values | bounded | median estimate/true | p90 estimate/true | wrong flagged |")
 	fmt.Println("|---|---|---|---|---|---|---|---|")
+	type refOrder struct {
+		ref   string
+		order int
+	}
+	var roKeys []refOrder
+	byRefOrder := map[refOrder][]truncationSample{}
 	var all []truncationSample
 	split := map[bool][]truncationSample{}
 	for _, k := range keys {
@@ -324,7 +330,33 @@ func TestTruncationCalibration(t *testing.T) {
 		r := summariseTruncation(k.ref, k.betaJ, k.order, s)
 		all = append(all, s...)
 		split[heldOut[k.ref]] = append(split[heldOut[k.ref]], s...)
+		ro := refOrder{k.ref, k.order}
+		if _, ok := byRefOrder[ro]; !ok {
+			roKeys = append(roKeys, ro)
+		}
+		byRefOrder[ro] = append(byRefOrder[ro], s...)
 		fmt.Printf("| %s | %.3g | %d | %d | %.1f%% | %.3g | %.3g | %d/%d |\n", r.reference, r.betaJ, r.order, r.values, 100*r.bounded, r.medianRatio, r.p90Ratio, r.flagged, r.wrong)
+	}
+	fmt.Println()
+	fmt.Println("| reference | order | values | bounded | median estimate/true | p90 estimate/true | wrong flagged |")
+	fmt.Println("|---|---|---|---|---|---|---|")
+	slices.SortStableFunc(roKeys, func(a, b refOrder) int { return a.order - b.order })
+	slices.SortStableFunc(roKeys, func(a, b refOrder) int {
+		switch {
+		case heldOut[a.ref] != heldOut[b.ref] && heldOut[b.ref]:
+			return -1
+		case heldOut[a.ref] != heldOut[b.ref]:
+			return 1
+		}
+		return 0
+	})
+	for _, ro := range roKeys {
+		r := summariseTruncation(ro.ref, 0, ro.order, byRefOrder[ro])
+		name := r.reference
+		if heldOut[ro.ref] {
+			name += " (held out)"
+		}
+		fmt.Printf("| %s | %d | %d | %.1f%% | %.3g | %.3g | %d/%d |\n", name, r.order, r.values, 100*r.bounded, r.medianRatio, r.p90Ratio, r.flagged, r.wrong)
 	}
 	for _, part := range []struct {
 		name    string
