@@ -340,16 +340,20 @@ func TestTruncationCalibration(t *testing.T) {
 	fmt.Println()
 	fmt.Println("| reference | order | values | bounded | median estimate/true | p90 estimate/true | wrong flagged |")
 	fmt.Println("|---|---|---|---|---|---|---|")
-	slices.SortStableFunc(roKeys, func(a, b refOrder) int { return a.order - b.order })
-	slices.SortStableFunc(roKeys, func(a, b refOrder) int {
-		switch {
-		case heldOut[a.ref] != heldOut[b.ref] && heldOut[b.ref]:
-			return -1
-		case heldOut[a.ref] != heldOut[b.ref]:
-			return 1
+	refIndex := map[string]int{}
+	for _, ro := range roKeys {
+		if _, ok := refIndex[ro.ref]; !ok {
+			refIndex[ro.ref] = len(refIndex)
 		}
-		return 0
-	})
+	}
+	rank := func(ro refOrder) int {
+		r := 1000*refIndex[ro.ref] + ro.order
+		if heldOut[ro.ref] {
+			r += 1000000
+		}
+		return r
+	}
+	slices.SortStableFunc(roKeys, func(a, b refOrder) int { return rank(a) - rank(b) })
 	for _, ro := range roKeys {
 		r := summariseTruncation(ro.ref, 0, ro.order, byRefOrder[ro])
 		name := r.reference
