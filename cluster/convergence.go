@@ -106,6 +106,9 @@ const (
 	// least this fraction of the larger of the two before, the series is
 	// not converging and the error is at least that step.
 	truncationStalled = 0.75
+	// truncationRatioCap caps the ratio of the geometric guard (a tail of
+	// at most 4 times the last step).
+	truncationRatioCap = 0.8
 	// truncationDrop and truncationDropWeight: a last step that falls
 	// more than truncationDrop times faster than the one before gets at
 	// least truncationDropWeight times the step before, at that step's
@@ -177,11 +180,14 @@ func truncationEstimate(s []float64) float64 {
 	}
 	e := math.Max(a(0)*math.Exp(y), truncationFloor*a(0))
 	// A ratio of steps that is not falling means a tail at least as
-	// long as the geometric one with the last ratio.
+	// long as the geometric one with the last ratio (capped: two nearly
+	// equal steps after a fast fall are more often a pause than a tail
+	// of hundreds of steps).
 	if r1, r2 := a(0)/a(1), a(1)/a(2); r1 < 1 && r1 >= r2*(1-1e-9) {
 		switch class {
 		case 0:
-			e = math.Max(e, a(0)*r1/(1-r1))
+			r := math.Min(r1, truncationRatioCap)
+			e = math.Max(e, a(0)*r/(1-r))
 		case 3:
 			e = math.Max(e, a(0)*r1/(1+r1))
 		}
