@@ -48,8 +48,8 @@ of the model, with its value <E_k> = tr(rho E_k) in rho = exp(-beta H)/Z.
 --method expansion (the default) sums the numerical linked-cluster expansion over
 connected clusters of up to --order sites; it works for any lattice size. Four extra
 columns say how far each value can be trusted: step (change from the previous
-order), trunc_error (estimated truncation error, from the geometric decay of the
-changes over pairs of orders), resummed (Wynn epsilon acceleration of the partial
+order), trunc_error (estimated truncation error, extrapolated from the last
+changes between orders), resummed (Wynn epsilon acceleration of the partial
 sums) and trusted (trunc_error <= --tol). The stderr column says "exact": the value
 is the expansion's own prediction at that order, which is the Gibbs value only where
 trusted is true. Rows marked trusted=false are NOT exact Gibbs values (their distance
