@@ -167,16 +167,17 @@ func parameterTruncation(thetas [][]float64) (est, rates []float64) {
 	}
 	// single is the squared ratio of the last two steps: a floor on
 	// both rates, for series whose decay slows down (seen on chains).
-	single := truncationRateCeiling
-	switch {
-	case steps[1] > 0:
+	var single float64
+	if steps[1] > 0 {
 		single = math.Pow(steps[0]/steps[1], 2)
-	case steps[0] == 0:
-		single = 0
 	}
 	rhoL, okL := rate(0)
 	rhoL1, okL1 := rate(1)
 	switch {
+	case !okL && !okL1 && steps[1] == 0 && steps[0] > 0:
+		// Nothing moved at order L-1 but something at L: no rate to
+		// extrapolate with.
+		rhoL, rhoL1 = truncationRateCeiling, truncationRateCeiling
 	case !okL && !okL1:
 		rhoL, rhoL1 = single, single
 	case !okL1:
