@@ -131,6 +131,7 @@ func ScaleEnergy(r *Result, c Calibration) (*Result, error) {
 		out.ErrorMethod = r.ErrorMethod + "; energy scale by the delta method"
 	}
 	out.covColumn = nil // the covariance of lambda is not that of theta
+	out.propagate = nil
 	return &out, nil
 }
 
@@ -248,10 +249,10 @@ func rescaleDerived(out, r *Result) {
 		out.Truncation.Steps[i] = s * inv
 	}
 	out.Truncation.Error *= inv
-	if e := r.Truncation.PerParameter; e != nil {
-		out.Truncation.PerParameter = make([]float64, len(e))
+	if e := r.Truncation.ParamError; e != nil {
+		out.Truncation.ParamError = make([]float64, len(e))
 		for q, x := range e {
-			out.Truncation.PerParameter[q] = x * inv
+			out.Truncation.ParamError[q] = x * inv
 		}
 	}
 	out.Truncation.StatError *= inv

@@ -48,9 +48,10 @@ type Truncation struct {
 	// Rates are the two-order decay rates of the last two steps'
 	// parities, rho_L and rho_{L-1} (nil when not extrapolated).
 	Rates []float64
-	// PerParameter is the truncation estimate e_q of each parameter, in
-	// units of the coefficients (nil when unknown).
-	PerParameter []float64
+	// ParamError is the truncation estimate e_q of each parameter, in
+	// units of the coefficients (nil when unknown or exact); Combine
+	// (package stationary) carries it as a systematic error.
+	ParamError []float64
 	// Error is the largest e_q, in units of the coefficients.
 	Error float64
 	// StatError is the median statistical standard error of the
@@ -121,8 +122,8 @@ func (f *fitter) truncation(history []*orderFit, statErr float64) Truncation {
 	if len(t.Steps) == 0 {
 		return t
 	}
-	t.PerParameter, t.Rates = parameterTruncation(thetas)
-	for _, e := range t.PerParameter {
+	t.ParamError, t.Rates = parameterTruncation(thetas)
+	for _, e := range t.ParamError {
 		t.Error = math.Max(t.Error, e)
 	}
 	t.Known = true
@@ -211,12 +212,12 @@ func rms(v []float64) float64 {
 // perParameterRatio sets MaxRatio and OverStderr from the per-parameter
 // estimates and the parameters' standard errors.
 func (t *Truncation) perParameterRatio(stderr []float64) {
-	if !t.Known || t.Exact || t.PerParameter == nil {
+	if !t.Known || t.Exact || t.ParamError == nil {
 		return
 	}
 	for q, s := range stderr {
 		if s > 0 {
-			r := t.PerParameter[q] / s
+			r := t.ParamError[q] / s
 			t.MaxRatio = math.Max(t.MaxRatio, r)
 			if r > 1 {
 				t.OverStderr++
