@@ -593,7 +593,7 @@ func fitSummary(w io.Writer, res *fit.Result, rep *fit.Report, cmp *fit.TruthCom
 	case tr.Exact:
 		p("truncation: none, the order covers the whole lattice")
 	case tr.Known:
-		p("truncation error %s (largest change of a coefficient over the last orders) vs target %s (from the final error bars; each order line above compared with the target of its own fit)", fmtG3(tr.Error), fmtG3(tr.Target))
+		p("truncation error %s (largest of a coefficient, extrapolated from the changes over the last orders) vs target %s (from the final error bars; each order line above compared with the target of its own fit); %d parameters with truncation error above their stderr", fmtG3(tr.Error), fmtG3(tr.Target), tr.OverStderr)
 	case res.Converged:
 		p("truncation error unknown")
 	}
