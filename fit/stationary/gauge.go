@@ -69,6 +69,15 @@ type Result struct {
 	// "sparse" (conjugate gradients and probing, beyond it), or "" when
 	// not computed.
 	ErrorMethod string
+
+	// freeCov is the delta-method covariance of the parameters free[i]
+	// when calibrations fix every multiplier (errorBars; nil otherwise):
+	// the planner (PlanShots) projects it onto the direction's errors.
+	freeCov *mat.Dense
+	free    []int
+	// matchCov holds the parts of the covariance with a thermal match
+	// (errorBars; nil otherwise), for the planner's scale error.
+	matchCov *matchCovariance
 }
 
 // ErrUnderdetermined is returned (wrapped) when the gauge leaves a
