@@ -90,8 +90,10 @@
 // state that is not a Gibbs state gives the right direction but fails it.
 // Its chi² (ThermalMatch.Chi2Direction) counts the noise of the learned
 // direction, propagated through the Gibbs state along every error
-// direction (two evaluations each, within a time budget; Inconclusive
-// when the budget cut it short), as well as that of the data: a direction
+// direction (from one linear-response evaluation when Gauge.Response is
+// given; otherwise two evaluations each, within a time budget, and
+// Inconclusive when the budget cut it short; not beyond DenseLimit, with
+// a warning), as well as that of the data: a direction
 // off by its own error bars moves the term expectations by much more than
 // their shot noise. The same propagation gives the matched scale its
 // share of the direction's noise in the error bars.

@@ -67,11 +67,12 @@ var (
 	sparseProbeSigns = 1
 )
 
-// sparseCGTolerance is the relative residual of each solve.
-const (
-	sparseCGTolerance = 1e-7
-	sparseCGMaxIter   = 5000
-)
+// sparseCGTolerance is the relative residual of each solve: 1e-4 gives
+// the same standard errors as 1e-7 to four digits on 6x6 (rms 0.0073
+// from dense either way) at 30% less time.
+var sparseCGTolerance = 1e-4
+
+const sparseCGMaxIter = 5000
 
 // sparseOperator is A of the sparse delta method with its deflation.
 type sparseOperator struct {
