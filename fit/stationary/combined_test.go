@@ -130,9 +130,8 @@ func (c combinedCase) run(t *testing.T, seed uint64) combinedRun {
 // loose bounds); WARMFIT_STATIONARY_HEAVY=1 adds the 3x3 XXZ model of
 // review finding 1 at beta 1, a U(1) XXZ chain (total Z invisible to
 // stationarity, fixed by the expansion) and the 10-site chain at beta
-// 0.3 and 1,
-// exact and at order 7 (minutes); WARMFIT_COMBINED_ONLY=NAME runs only
-// the cases of that scenario.
+// 0.3 and 1, exact and at order 7 (minutes to hours under load);
+// WARMFIT_COMBINED_ONLY=NAME runs only the cases of that scenario.
 func TestCombinedNeverWorse(t *testing.T) {
 	tfim := map[string]float64{"J": 1, "hx": 0.8, "hz": 0.3}
 	xxz := map[string]float64{"Jxy": 0.4, "Jz": 0.3, "hz": 0.2, "hx": 0.1}
