@@ -341,11 +341,11 @@ func admitFit(env *runEnv, o *fitFlags, tmpl *model.Model, order int) error {
 	}
 	policy := cluster.NewOrderPolicy(tmpl.Lattice, tmpl.Terms)
 	if order > 0 {
-		e := expansionEstimate(exp, tmpl.Lattice.NumSites(), order, "--order")
+		e := expansionEstimate(exp, tmpl.Lattice.NumSites(), order, true, "--order")
 		e.What = "one evaluation of the " + e.What + " (a fit makes several)"
 		return admit(env.Stderr, "fit", e, o.budget)
 	}
-	return admitExpansion(env, "fit", exp, tmpl.Lattice.NumSites(), 0, policy, o.budget)
+	return admitExpansion(env, "fit", exp, tmpl.Lattice.NumSites(), 0, true, policy, o.budget)
 }
 
 // fitRunOptions are the fitter's options from the flags, with the log

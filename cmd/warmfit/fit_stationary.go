@@ -214,6 +214,14 @@ type stationaryReport struct {
 	NotThermal         bool      `json:"not_thermal,omitempty"`
 	Reason             string    `json:"method_reason,omitempty"`
 	Warnings           []string  `json:"warnings"`
+	// Converged: the reweighting settled (stationary.Direction.Converged);
+	// Order: the expansion order of the thermal match, 0 when none was
+	// used (calibrations only, or exact diagonalisation).
+	Converged    bool   `json:"converged"`
+	Order        int    `json:"order"`
+	Solver       string `json:"solver"`
+	Reweightings int    `json:"reweightings"`
+	ErrorBars    string `json:"error_bars"`
 }
 
 func runFitStationary(env *runEnv, tmpl *model.Model, beta float64) error {
@@ -233,6 +241,8 @@ type stationaryRun struct {
 	res      *stationary.Result // nil until fix
 	reason   string             // why a method choice took it (empty for --method stationary)
 	warnings []string
+	// order is the expansion order of the thermal match (0: none).
+	order int
 	// problems are the failed checks that make the result untrustworthy
 	// (also in warnings): --method auto does not choose such a result.
 	problems []string
@@ -326,6 +336,9 @@ func solveStationary(env *runEnv, tmpl *model.Model) (*stationaryRun, error) {
 	if d.Misfit {
 		problem("constraint chi2 too large", fmt.Sprintf("constraint chi2 %s far above its degrees of freedom: the data fit no stationary state of these terms well (a term missing from the template, systematic errors, or a non-stationary state)", fmtG3(d.Chi2)))
 	}
+	if !d.Converged {
+		problem("reweighting not settled", fmt.Sprintf("the reweighting did not settle in %d iterations (last change of a component %s): the direction is not a fixed point of the noise-weighted objective", d.Iterations, fmtG3(d.LastChange)))
+	}
 	if d.Weak {
 		problem("weak signal", fmt.Sprintf("weak signal: a resolved direction has a standard error of %s of the unit direction; the direction error is not in its linear regime and error bars may be too small (seeded repetitions at beta x max|coeff| = 0.1 gave pull rms 2.2): use more shots", fmtG3(maxResolvedStdErr(d))))
 	}
@@ -348,6 +361,7 @@ func (run *stationaryRun) fix(tmpl *model.Model, beta float64) error {
 		if err != nil {
 			return err
 		}
+		run.order = stationaryMatchOrder(tmpl)
 	}
 	res, err := stationary.Fix(sys, est, d, g, stationary.Options{})
 	if err != nil {
@@ -355,7 +369,14 @@ func (run *stationaryRun) fix(tmpl *model.Model, beta float64) error {
 	}
 	run.res = res
 	for _, w := range res.Warnings {
-		problem("error bars not computed", w)
+		// Error bars that are missing fail the checks; error bars that
+		// leave out the direction's noise through the match only warn
+		// (the consistency test then says whether it is conclusive).
+		if strings.Contains(w, "not computed") {
+			problem("error bars not computed", w)
+		} else {
+			run.warnings = append(run.warnings, w)
+		}
 	}
 	if m := res.Match; m != nil {
 		dof := max(m.DOF, 1)
@@ -433,6 +454,10 @@ func writeStationary(env *runEnv, tmpl *model.Model, beta float64, run *stationa
 		Constraints: d.Rows, LeftOut: d.Dropped, Chi2: d.Chi2, Spectrum: d.Spectrum, Fixed: res.Fixed,
 		FarPairs: sys.FarPairs, Checks: len(run.problems) == 0, ErrorScale: res.ErrorScale,
 		Warnings: append([]string{}, warnings...), Invisible: []string{}, Reason: run.reason,
+		Converged: d.Converged, Order: run.order, Solver: d.Method, Reweightings: d.Iterations, ErrorBars: res.ErrorMethod,
+	}
+	if rep.ErrorBars == "" {
+		rep.ErrorBars = "not computed"
 	}
 	for _, inv := range d.Invisible {
 		rep.Invisible = append(rep.Invisible, inv.Name)
@@ -463,6 +488,8 @@ func writeStationary(env *runEnv, tmpl *model.Model, beta float64, run *stationa
 		meta.set("template", o.model)
 		meta.set("data", o.data)
 		meta.set("fit", json.RawMessage(raw))
+		meta.set("converged", rep.Converged)
+		meta.set("order", rep.Order)
 		return writeCSVResult(env, o.out, o.csv, meta, func(w io.Writer) error { return stationaryWriteCSV(w, terms) })
 	}
 	return writeOutput(env, o.out, func(w io.Writer) error { return model.Write(w, m) })
@@ -554,10 +581,7 @@ func stationaryEvaluator(tmpl *model.Model) (stationary.Evaluator, string, error
 			return out, nil
 		}, "exact diagonalisation of the whole system", nil
 	}
-	order := 5
-	if fitOptions.order.L > 0 {
-		order = fitOptions.order.L
-	}
+	order := stationaryMatchOrder(tmpl)
 	exp, err := cluster.NewExpansion(tmpl.Lattice, terms)
 	if err != nil {
 		return nil, "", err
@@ -569,6 +593,18 @@ func stationaryEvaluator(tmpl *model.Model) (stationary.Evaluator, string, error
 		}
 		return r.Expect[len(r.Expect)-1], nil
 	}, fmt.Sprintf("the linked-cluster expansion at order %d", order), nil
+}
+
+// stationaryMatchOrder is the expansion order stationaryEvaluator uses
+// for the template: 0 when it diagonalises exactly.
+func stationaryMatchOrder(tmpl *model.Model) int {
+	if tmpl.Lattice.NumSites() <= cluster.MaxDenseQubits {
+		return 0
+	}
+	if fitOptions.order.L > 0 {
+		return fitOptions.order.L
+	}
+	return 5
 }
 
 func withCoeffs(terms []lattice.Term, lambda []float64) []lattice.Term {
