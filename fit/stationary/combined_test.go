@@ -218,8 +218,11 @@ func TestCombinedNeverWorse(t *testing.T) {
 		if r, b := mean[2].rms, best(func(e combinedErrors) float64 { return e.rms }); r > tolerance*b {
 			t.Errorf("%s order %d: combined rms error %.4g above %.2g x the better alone (%.4g)", c.sc.name, c.order, r, tolerance, b)
 		}
-		if p, plo := mean[2].pull, c.pullLo*lo; p < plo || p > hi {
-			t.Errorf("%s order %d: combined pull rms %.3g outside %.2g-%.2g", c.sc.name, c.order, p, plo, hi)
+		// The band applies where the combination was used; where every
+		// seed fell back to one estimator alone its own tests check its
+		// pulls (stationarity: TestPullsThermalMatch), logged above.
+		if p, plo := mean[2].pull, c.pullLo*lo; counts[UseCombined] > 0 && (p < plo || p > hi) {
+			t.Errorf("%s order %d: combined pull rms %.3g outside %.3g-%.3g", c.sc.name, c.order, p, plo, hi)
 		}
 	}
 }
