@@ -158,6 +158,8 @@ func TestFormatsDocumentNamesEveryOutputField(t *testing.T) {
 	// Members left out of these runs (omitempty, other data) come from the types.
 	for what, typ := range map[string]reflect.Type{
 		"fit report":           reflect.TypeOf(fit.Report{}),
+		"combination":          reflect.TypeOf(combinationReport{}),
+		"stationary report":    reflect.TypeOf(stationaryReport{}),
 		"plan json":            reflect.TypeOf(planJSON{}),
 		"plan stationary json": reflect.TypeOf(planStationaryJSON{}),
 		"plan comparison":      reflect.TypeOf(planComparison{}),

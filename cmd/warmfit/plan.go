@@ -175,7 +175,7 @@ func runPlan(env *runEnv, args []string) error {
 	}
 	policy := cluster.NewOrderPolicy(m.Lattice, m.Terms)
 	policy.Budget = o.budget
-	if err := admitExpansion(env, "plan", exp, n, order, policy, o.budget); err != nil {
+	if err := admitExpansion(env, "plan", exp, n, order, true, policy, o.budget); err != nil {
 		return err
 	}
 	bar := newProgressBar(env, "expanding")

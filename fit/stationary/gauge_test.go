@@ -1,6 +1,7 @@
 package stationary
 
 import (
+	"fmt"
 	"math"
 	"testing"
 
@@ -47,6 +48,8 @@ type scenario struct {
 	tied bool
 	// far adds the probes on pairs at distance two.
 	far bool
+	// pairDist probes every pair within that distance (SystemOptions.PairDistance).
+	pairDist int
 }
 
 // run samples shots per basis (covering:3 bases) and solves.
@@ -67,7 +70,7 @@ func (sc scenario) run(t testing.TB, shots int, seed uint64) (*System, *fit.Esti
 		}
 	}
 	n := l.NumSites()
-	sys, err := NewSystemWith(n, terms, SystemOptions{FarPairs: sc.far})
+	sys, err := NewSystemWith(n, terms, SystemOptions{FarPairs: sc.far, PairDistance: sc.pairDist})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -81,18 +84,42 @@ func (sc scenario) run(t testing.TB, shots int, seed uint64) (*System, *fit.Esti
 	return sys, est, d, err
 }
 
-var samplers = map[string]*validate.Sampler{}
+var (
+	samplers = map[string]*validate.Sampler{}
+	spectra  = map[string]*cluster.Spectrum{}
+)
 
+// cachedSampler samples the scenario's Gibbs state; the spectrum (dense
+// ED, minutes at 12 qubits) is shared by scenarios that differ only in
+// beta.
 func cachedSampler(t testing.TB, sc scenario, n int, terms []lattice.Term) *validate.Sampler {
 	key := sc.name
 	if s, ok := samplers[key]; ok {
 		return s
 	}
-	s, err := validate.NewSampler(n, terms, sc.beta)
+	th, err := cluster.NewThermal(cachedSpectrum(t, fmt.Sprintf("%s %s %v %g %v %v", sc.spec, sc.preset, sc.values, sc.disorder, sc.u1, sc.tied), n, terms), sc.beta)
 	if err != nil {
 		t.Fatal(err)
 	}
+	s := validate.NewSamplerFromThermal(th)
 	samplers[key] = s
+	return s
+}
+
+// cachedSpectrum diagonalises the Hamiltonian of terms once per key.
+func cachedSpectrum(t testing.TB, key string, n int, terms []lattice.Term) *cluster.Spectrum {
+	if s, ok := spectra[key]; ok {
+		return s
+	}
+	h, err := cluster.NewHamiltonian(n, terms)
+	if err != nil {
+		t.Fatal(err)
+	}
+	s, err := cluster.Diagonalize(h)
+	if err != nil {
+		t.Fatal(err)
+	}
+	spectra[key] = s
 	return s
 }
 

@@ -72,6 +72,11 @@ type SystemOptions struct {
 	// NearOnly turns off the far pairs that real models get by default
 	// (see NewSystemWith).
 	NearOnly bool
+	// PairDistance, when above 2, probes every pair of sites within that
+	// distance on the graph of the terms (1: pairs sharing a term, 2: the
+	// far pairs). Their commutators stay 3-local, so covering:3 bases
+	// still measure every string.
+	PairDistance int
 }
 
 // isReal reports whether every term is a real matrix (an even number of
@@ -133,6 +138,31 @@ func NewSystemWith(n int, terms []lattice.Term, opt SystemOptions) (*System, err
 				p := [2]int{min(a, b), max(a, b)}
 				if !pairSet[p] {
 					far[p] = true
+				}
+			}
+		}
+	}
+	if opt.PairDistance > 2 {
+		sys.FarPairs = true
+		for s := range adj {
+			dist := map[int]int{s: 0}
+			queue := []int{s}
+			for len(queue) > 0 {
+				a := queue[0]
+				queue = queue[1:]
+				if dist[a] == opt.PairDistance {
+					continue
+				}
+				for _, b := range adj[a] {
+					if _, seen := dist[b]; !seen {
+						dist[b] = dist[a] + 1
+						queue = append(queue, b)
+					}
+				}
+			}
+			for b, d := range dist {
+				if d >= 2 && s < b {
+					far[[2]int{s, b}] = true
 				}
 			}
 		}

@@ -38,22 +38,8 @@ func (res *Result) errorBars(sys *System, est *fit.Estimates, calRows []int, bas
 	clear(ws.r)
 	x := ws.dense()
 	copy(ws.r, saved)
-	// U columns per string.
-	u := make(map[int32]map[int32]float64)
-	for a := range ws.rows() {
-		lo, hi, _ := ws.block(a)
-		for e := lo; e < hi; e++ {
-			c := ws.coef[e] * theta[ws.param[e]] * ws.w[a]
-			col := u[ws.str[e]]
-			if col == nil {
-				col = map[int32]float64{}
-				u[ws.str[e]] = col
-			}
-			for f := lo; f < hi; f++ {
-				col[ws.param[f]] += c * ws.val[f]
-			}
-		}
-	}
+	// U columns per string (per-row or full-covariance weights).
+	u := ws.influence(theta)
 	s := make([]float64, np*np)
 	est.Cov.Do(func(i, j int, v float64) {
 		ci, cj := u[int32(i)], u[int32(j)]
@@ -69,6 +55,12 @@ func (res *Result) errorBars(sys *System, est *fit.Estimates, calRows []int, bas
 			}
 		}
 	})
+	// With full-covariance weights the sandwich's two parts are one
+	// matrix, the normal matrix without its noise inflation
+	// (weighted_full.go, sandwichParts).
+	if xs, ok := ws.sandwichParts(); ok {
+		x, s = xs, xs
+	}
 	calibrated := make([]bool, np)
 	for _, q := range calRows {
 		calibrated[q] = true
@@ -156,6 +148,10 @@ func (res *Result) errorBars(sys *System, est *fit.Estimates, calRows []int, bas
 	if m.evaluate != nil {
 		if g, vs, sig, err = m.directionNoise(sys, theta, &cov, dirs); err != nil {
 			return fmt.Errorf("direction noise through the thermal match: %w", err)
+		}
+		if !m.directionComplete {
+			res.Warnings = append(res.Warnings, fmt.Sprintf("the time budget (%v) let the thermal match propagate only %d of the learned direction's error directions (%.0f%% of its variance; two Gibbs-state evaluations each): the consistency test is inconclusive, and the error bars leave out the correlation of the matched scale with the other directions",
+				directionNoiseBudget, m.DirectionRank, 100*m.DirectionShare))
 		}
 	}
 	res.matchCov = &matchCovariance{cov: &cov, g: g, v: vs, sigma: sig, dirs: dirs, tCov: m.tCov}

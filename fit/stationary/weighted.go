@@ -7,6 +7,7 @@ import (
 
 	"gonum.org/v1/gonum/floats"
 
+	"warmfit/cluster"
 	"warmfit/fit"
 )
 
@@ -29,6 +30,15 @@ type weighted struct {
 	floor    []float64 // per row: the smallest variance a weight may use
 	// penalty directions are lifted out of the low spectrum.
 	penalty []conservedDirection
+
+	// Full-covariance weights (weighted_full.go): scov is the string
+	// covariance; full enables them, haveFull says whether winv (W =
+	// Sigma^-1, rows×rows) holds the weights at the current direction.
+	scov           *cluster.SparseSym
+	full, haveFull bool
+	winv           []float64
+	// nullRows counts the row combinations the pseudo-inverse left out.
+	nullRows int
 }
 
 // correction is the noise correction subtracted from the normal matrix.
@@ -106,6 +116,8 @@ func newWeighted(sys *System, est *fit.Estimates) (*weighted, error) {
 	}
 	ws.w = make([]float64, ws.rows())
 	ws.r = make([]float64, ws.rows())
+	ws.scov = est.Cov
+	ws.full = fullWeights && est.Cov != nil && ws.rows() <= fullRowLimit
 	return ws, nil
 }
 
@@ -168,11 +180,18 @@ func (ws *weighted) reweight(theta []float64) {
 		ws.floor[a] = max(0.01*iso[a], 1e-12*mean, math.SmallestNonzeroFloat64)
 		ws.w[a] = 1 / max(v, ws.floor[a])
 	}
+	ws.haveFull = false
+	if ws.full && theta != nil {
+		ws.setFull(theta)
+	}
 }
 
 // chi2 returns sum_a w_a r_a², the weighted residual at the current
 // weights and residuals.
 func (ws *weighted) chi2() float64 {
+	if ws.haveFull {
+		return ws.fullChi2()
+	}
 	var s float64
 	for a, r := range ws.r {
 		s += ws.w[a] * r * r
@@ -192,6 +211,10 @@ func (ws *weighted) mulVec(dst, v []float64) {
 			ws.addPenalty(dst, v, ws.penaltyWeight())
 		}
 	}()
+	if ws.haveFull {
+		ws.fullMulVec(dst, v)
+		return
+	}
 	for a := range ws.rows() {
 		lo, hi, c := ws.block(a)
 		var t float64
@@ -220,18 +243,11 @@ func (ws *weighted) mulVec(dst, v []float64) {
 // dense returns X (see mulVec) as a dense row-major np×np matrix.
 func (ws *weighted) dense() []float64 {
 	n := ws.np
-	x := make([]float64, n*n)
-	for a := range ws.rows() {
-		lo, hi, c := ws.block(a)
-		k := hi - lo
-		bias := ws.biasOf(a)
-		for i := 0; i < k; i++ {
-			pi := int(ws.param[lo+i])
-			for j := 0; j < k; j++ {
-				pj := int(ws.param[lo+j])
-				x[pi*n+pj] += ws.w[a]*ws.val[lo+i]*ws.val[lo+j] - bias*c[i*k+j]
-			}
-		}
+	var x []float64
+	if ws.haveFull {
+		x = ws.fullDense()
+	} else {
+		x = ws.diagDense()
 	}
 	if len(ws.penalty) > 0 {
 		pw := ws.penaltyWeight()
@@ -243,6 +259,25 @@ func (ws *weighted) dense() []float64 {
 				for j, uj := range c.vector {
 					x[i*n+j] += pw * ui * uj
 				}
+			}
+		}
+	}
+	return x
+}
+
+// diagDense is dense with per-row weights.
+func (ws *weighted) diagDense() []float64 {
+	n := ws.np
+	x := make([]float64, n*n)
+	for a := range ws.rows() {
+		lo, hi, c := ws.block(a)
+		k := hi - lo
+		bias := ws.biasOf(a)
+		for i := 0; i < k; i++ {
+			pi := int(ws.param[lo+i])
+			for j := 0; j < k; j++ {
+				pj := int(ws.param[lo+j])
+				x[pi*n+pj] += ws.w[a]*ws.val[lo+i]*ws.val[lo+j] - bias*c[i*k+j]
 			}
 		}
 	}
