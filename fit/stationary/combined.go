@@ -316,9 +316,10 @@ func Combine(sys *System, est *fit.Estimates, d *Direction, exp ExpansionEstimat
 
 // influenceAt returns, at parameters theta (not normalised), the normal
 // matrix G = sum_a w_a M_a M_a^T (no noise correction, no penalty) and
-// the influence U[p, j] = sum_a w_a M_ap d r_a/d m_j of the string
+// the influence U[p, j] = sum_ab M_ap W_ab d r_b/d m_j of the string
 // estimates on the stationarity condition G theta = 0 (np × strings),
-// with the weights w_a = 1/Var(r_a(theta)); ns is the number of strings. The weights, residuals and
+// with the weights W of the solve (1/Var(r_a(theta)) per row, or the
+// inverse of the rows' full covariance); ns is the number of strings. The weights, residuals and
 // settings of ws are restored.
 func (ws *weighted) influenceAt(theta []float64, ns int) (g, u *mat.Dense) {
 	np := ws.np
@@ -332,16 +333,13 @@ func (ws *weighted) influenceAt(theta []float64, ns int) (g, u *mat.Dense) {
 	ws.reweight(theta)
 	ws.corr, ws.penalty = noCorrection, nil
 	g = mat.NewDense(np, np, ws.dense())
+	// The influence under the same weights as G (per row, or the full
+	// covariance of the rows when the solve used it): one implementation
+	// with the error bars' sandwich.
 	u = mat.NewDense(np, ns, nil)
-	for a := range ws.rows() {
-		lo, hi, _ := ws.block(a)
-		for e := lo; e < hi; e++ {
-			c := ws.coef[e] * theta[ws.param[e]] * ws.w[a]
-			j := int(ws.str[e])
-			for f := lo; f < hi; f++ {
-				p := int(ws.param[f])
-				u.Set(p, j, u.At(p, j)+c*ws.val[f])
-			}
+	for j, col := range ws.influence(theta) {
+		for p, x := range col {
+			u.Set(int(p), int(j), x)
 		}
 	}
 	return g, u
