@@ -134,7 +134,7 @@
 // 0.1 of the unit direction), refuses with ErrNoInformation when the
 // signal is too weak at any number of shots, and names the directions
 // no shots fix. Seeded repetitions reach the planned rms direction error
-// within 4-13% on chain:8 TFIM and 3x3 XXZ (plan_test.go).
+// within 7% on chain:8 TFIM and 3x3 XXZ (plan_test.go).
 //
 //	pl, err := stationary.PlanShots(n, terms, bases, sampler.Distribution, stationary.PlanOptions{Target: 0.02, Beta: beta})
 //	// pl.ShotsPerBasis, pl.DirectionStderr, pl.Invisible, pl.Warnings
