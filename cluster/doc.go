@@ -104,6 +104,18 @@
 // diagonalised and enters every order through its perimeter multiplier
 // (expansion.go). Its results are lattice totals.
 //
+// A cluster's eigendecomposition does not depend on the temperature, so
+// a grid of temperatures is one pass (grid.go): Expansion.EvaluateGrid
+// diagonalises each cluster once, computes the diagonal elements
+// <n|E_k|n> of its terms once (eigen_diagonal.go), and sums every beta as
+// Boltzmann weights times those elements; Expansion.Thermodynamics is the
+// same pass on eigenvalues alone. Both add their blocks in block order,
+// so grids are as deterministic as Evaluate, and equal to Evaluate at
+// each beta to rounding.
+//
+//	res, err := exp.EvaluateGrid(coeffs, []float64{0.1, 0.3, 0.5}, cluster.Options{Order: 6})
+//	// res.Expect[i][o][k]: <E_k> at res.Betas[i], order o+1
+//
 // # Uniform (bulk) expansion
 //
 // UniformExpansion sums a translation-invariant model on the infinite

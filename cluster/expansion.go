@@ -284,6 +284,7 @@ type clusterWork struct {
 	resp   []float64
 	mult   []float64
 	lresp  *localResponse // the response of the current block
+	grid   gridWork       // sums over a temperature grid
 }
 
 func newClusterWork(n int) *clusterWork {

@@ -97,5 +97,8 @@
 // Sub-packages: fit/bulk fits uniform couplings to bulk thermodynamic
 // curves of materials; fit/stationary learns coefficients from the
 // stationarity of the thermal state, where the expansion does not
-// converge.
+// converge, and combines them with a converged fit: Result.Propagate
+// (the fit's first-order map from data to parameters) gives the
+// correlation of the two, and Result.WithParameters writes the
+// combination back into a Result.
 package fit

@@ -131,6 +131,7 @@ func ScaleEnergy(r *Result, c Calibration) (*Result, error) {
 		out.ErrorMethod = r.ErrorMethod + "; energy scale by the delta method"
 	}
 	out.covColumn = nil // the covariance of lambda is not that of theta
+	out.propagate = nil
 	return &out, nil
 }
 

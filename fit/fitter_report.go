@@ -48,6 +48,9 @@ type Report struct {
 	Series       ReportSeries        `json:"series"`
 	Significance *ReportSignificance `json:"significance,omitempty"`
 	Truth        *ReportTruth        `json:"truth,omitempty"`
+	// Estimator says which estimator produced the coefficients and why,
+	// when the caller chose among several (nil: the expansion fit alone).
+	Estimator *ReportEstimator `json:"estimator,omitempty"`
 
 	Warnings       []string `json:"warnings"`
 	Notes          []string `json:"notes,omitempty"`

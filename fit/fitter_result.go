@@ -92,6 +92,9 @@ type Result struct {
 	// covColumn gives columns of Cov(Theta) (nil without error bars);
 	// ScaleEnergy needs the covariance of the calibrated parameter.
 	covColumn covColumnFunc
+	// propagate maps a change of the data to the first-order change of
+	// Theta (nil when not available; see Propagate).
+	propagate func(de []float64) ([]float64, error)
 	// scaleWarnings holds the positions in Warnings of the warnings that
 	// quote numbers in the coefficients' units or beta; ScaleEnergy
 	// writes them again in units of lambda with the recovered beta.
@@ -169,6 +172,9 @@ func (f *fitter) finish(main *orderFit, history []*orderFit, notes []string) (*R
 		} else {
 			r.ThetaStderr, r.ErrorMethod, r.ResponseOrder = se, method, out.responseOrder
 			r.covColumn = f.covColumn(out, usedCov)
+			if h := out.hessian; out.jacobian == nil && h != nil {
+				r.propagate = func(de []float64) ([]float64, error) { return propagate(f.params, h, de) }
+			}
 			if out.responseOrder < main.order {
 				r.Notes = append(r.Notes, fmt.Sprintf("error bars use the response at order %d, not %d (its evaluation costs several forward passes at this size; the difference is the truncation of the response series, under 1%% in the tests where the expansion converges, 1.4%% for tied parameters)", out.responseOrder, main.order))
 			}

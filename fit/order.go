@@ -36,6 +36,10 @@ type Truncation struct {
 	// MaxRatio is the largest per-parameter ratio of the truncation
 	// change to the parameter's standard error (0 when unknown).
 	MaxRatio float64
+	// ParamError is the truncation estimate of every parameter, the
+	// larger of its last two changes between orders (nil when unknown
+	// or exact, or without error bars).
+	ParamError []float64
 }
 
 // exactTruncationTarget is the default truncation target for exact data,
@@ -91,9 +95,11 @@ func (t *Truncation) perParameterRatio(history []*orderFit, stderr []float64) {
 	}
 	n := len(history)
 	from := max(1, n-2)
+	t.ParamError = make([]float64, len(stderr))
 	for i := from; i < n; i++ {
 		a, b := history[i-1].out.state.theta, history[i].out.state.theta
 		for q, s := range stderr {
+			t.ParamError[q] = math.Max(t.ParamError[q], math.Abs(b[q]-a[q]))
 			if s > 0 {
 				t.MaxRatio = math.Max(t.MaxRatio, math.Abs(b[q]-a[q])/s)
 			}

@@ -460,6 +460,13 @@ func (r *CrosscheckResult) verdict(lastOpen int) []string {
 	case r.Trusted:
 		lines = append(lines, fmt.Sprintf("trusted: at beta = %.4g the expansion agrees with exact results within %.2g on %s from order %d on (checked up to order %d, the last below the patch size)",
 			r.Beta, r.Tol, everyPatch(np), r.AgreeOrder, lastOpen))
+		if r.AgreeOrder > lastOpen-2 {
+			// Only the orders next to the patch size confirm it, and a
+			// patch holds few of the large clusters those orders add on
+			// a big lattice.
+			lines = append(lines, fmt.Sprintf("WARNING: the agreement from order %d is confirmed only by order %d, next to the patch size: these patches are too small to show that order %d converges on a large lattice at beta = %.4g; cut larger patches (--shape) to confirm",
+				r.AgreeOrder, lastOpen, r.AgreeOrder, r.Beta))
+		}
 	case r.AgreeOrder > 0:
 		lines = append(lines, fmt.Sprintf("WARNING: at beta = %.4g the expansion agrees with exact results within %.2g only at order %d, the last below the patch size: these patches are too small to show convergence at this temperature; use larger patches or a higher temperature",
 			r.Beta, r.Tol, r.AgreeOrder))

@@ -90,6 +90,16 @@ func Typical(n int, terms []lattice.Term, beta float64, observables []cluster.Pa
 // (real when H is) plus the diagonal of H. A negative beta is allowed.
 // Observables must act on qubits 0..n-1; the identity is allowed.
 func TypicalThermal(n int, terms []lattice.Term, beta float64, observables []cluster.PauliString, opt TypicalityOptions) (*TypicalResult, error) {
+	run, err := newTypicalRun(n, terms, beta, observables, opt)
+	if err != nil {
+		return nil, err
+	}
+	return run.do()
+}
+
+// newTypicalRun checks the arguments of TypicalThermal and prepares its
+// run (options with their defaults, the operator).
+func newTypicalRun(n int, terms []lattice.Term, beta float64, observables []cluster.PauliString, opt TypicalityOptions) (*typicalRun, error) {
 	if n < 1 || n > MaxTypicalityQubits {
 		return nil, fmt.Errorf("validate: typicality for %d qubits: supported range is 1..%d (MaxTypicalityQubits)", n, MaxTypicalityQubits)
 	}
@@ -130,13 +140,12 @@ func TypicalThermal(n int, terms []lattice.Term, beta float64, observables []clu
 	if err != nil {
 		return nil, err
 	}
-	run := &typicalRun{
+	return &typicalRun{
 		o:    newVecOps(op, op.IsReal()),
 		beta: beta,
 		opt:  opt,
 		obs:  observables,
-	}
-	return run.do()
+	}, nil
 }
 
 // TypicalityMemory returns the bytes of vectors Typical allocates for n
@@ -155,6 +164,9 @@ type typicalRun struct {
 	beta float64
 	opt  TypicalityOptions
 	obs  []cluster.PauliString
+	// visit, when set, sees every thermal vector psi (squared norm npsi,
+	// log weight logW as in vectorSample) before it is overwritten.
+	visit func(r int, psi stateVec, npsi, logW float64)
 }
 
 // vectorSample holds what one random vector contributes: the logarithm of
@@ -213,6 +225,9 @@ func (t *typicalRun) do() (*TypicalResult, error) {
 			return nil, fmt.Errorf("validate: thermal vector %d has squared norm %v (beta %v too large for float64 range?)", r, npsi, t.beta)
 		}
 		s := vectorSample{logW: 2*logScale + math.Log(npsi), obs: make([]float64, len(t.obs))}
+		if t.visit != nil {
+			t.visit(r, psi, npsi, s.logW)
+		}
 		for i, p := range t.obs {
 			s.obs[i] = o.expect(p, psi) / npsi
 		}

@@ -7,6 +7,7 @@ import (
 	"path/filepath"
 	"slices"
 	"strings"
+	"sync"
 
 	"github.com/spf13/pflag"
 
@@ -361,7 +362,13 @@ func (j *bulkJob) fit(env *runEnv) (*bulkRun, error) {
 		cands = append(cands, c)
 	}
 	fmt.Fprintf(env.Stderr, "fitting %d candidate(s) to %d curve(s)...\n", len(cands), len(j.data))
-	cmp, err := bulk.Compare(cands, j.data, bulk.FitOptions{}, o.rejectBelow)
+	var progressMu sync.Mutex
+	progress := func(name string, round, used int, trustedFromK float64) {
+		progressMu.Lock()
+		defer progressMu.Unlock()
+		fmt.Fprintf(env.Stderr, "  %s: round %d fitted %d points (model trusted from %s K)\n", name, round, used, fmtG3(trustedFromK))
+	}
+	cmp, err := bulk.Compare(cands, j.data, bulk.FitOptions{Progress: progress}, o.rejectBelow)
 	if err != nil {
 		return nil, err
 	}

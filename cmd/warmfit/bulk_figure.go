@@ -83,9 +83,9 @@ func bulkFigure(r *bulkRun, q bulk.Quantity, series []int) (*plot.Document, erro
 	d := plot.New(900, 600, "warmfit bulk: "+q.String())
 	bestFit := cmp.Own[best]
 	global := fmt.Sprintf("best: %s, χ²/dof = %.1f/%d over all curves; the legend gives each candidate's χ² over this quantity's fitted points", cmp.Candidates[best].Name, bestFit.Chi2, bestFit.DOF)
-	sub := fmt.Sprintf("%s. Curves are drawn only where the model is trusted; the shaded band is the best candidate's trusted range. Residuals are (data − model)/σ.", global)
+	sub := fmt.Sprintf("%s. Curves are drawn only where the model is trusted; the shaded band is the best candidate's trusted range. Residuals are (data − model)/σ; the grey band is ±1.", global)
 	if q == bulk.Magnetization {
-		sub = fmt.Sprintf("%s. One curve per temperature, labelled at its right end; hollow points are at temperatures the model does not trust and were not fitted. Residuals are (data − model)/σ.", global)
+		sub = fmt.Sprintf("%s. One curve per temperature, labelled at its right end; hollow points are at temperatures the model does not trust and were not fitted. Residuals are (data − model)/σ; the grey band is ±1.", global)
 	}
 	top := d.Heading(quantityTitles[q][0]+": data and fitted models", sub)
 	ps := d.Stack(plot.Rect{X: 24, Y: top, W: 852, H: 600 - top - 10}, xAxis,
@@ -95,8 +95,14 @@ func bulkFigure(r *bulkRun, q bulk.Quantity, series []int) (*plot.Document, erro
 	var entries []plot.LegendEntry
 	if q != bulk.Magnetization {
 		if from := trustedFromOf(cmp.Own[best], series); from < xhi {
+			// The range is open above: the band runs to the panel's edge
+			// (the plot area clips it), not only to the last point.
+			beyond := xhi + 10*(xhi-xlo)
+			if logX {
+				beyond = 1e3 * xhi
+			}
 			for _, p := range ps {
-				p.ShadeX(math.Max(from, xlo), xhi, shade)
+				p.ShadeX(math.Max(from, xlo), beyond, shade)
 			}
 			entries = append(entries, plot.LegendEntry{Label: fmt.Sprintf("trusted (%s): T ≥ %.3g K", cmp.Candidates[best].Name, from), Fill: &shade})
 		}
@@ -106,6 +112,9 @@ func bulkFigure(r *bulkRun, q bulk.Quantity, series []int) (*plot.Document, erro
 	dataMarker := plot.MarkerStyle{Shape: plot.Circle, Color: plot.Category(0)}
 	drawBulkData(ps[0], r, series, xOf, dataMarker)
 	entries = append(entries, plot.LegendEntry{Label: "data", Marker: &dataMarker})
+	if hollow := unfittedMarker(); anyUnfitted(r, series) {
+		entries = append(entries, plot.LegendEntry{Label: "data not fitted (outside the trusted range)", Marker: &hollow})
+	}
 	if q == bulk.Magnetization {
 		labelSweeps(ps[0], r, series)
 	}
@@ -130,11 +139,27 @@ func trustedFromOf(f *bulk.FitResult, series []int) float64 {
 	return from
 }
 
+// unfittedMarker marks the data points the best fit did not use.
+func unfittedMarker() plot.MarkerStyle {
+	return plot.MarkerStyle{Shape: plot.Circle, Color: plot.Diverging.At(0.5), Size: 2.6}
+}
+
+// anyUnfitted says whether the best fit left out a point of the series.
+func anyUnfitted(r *bulkRun, series []int) bool {
+	best := r.cmp.Own[r.cmp.Ranking[0]]
+	for _, s := range series {
+		if slices.Contains(best.Series[s].UsedPoint, false) {
+			return true
+		}
+	}
+	return false
+}
+
 // drawBulkData draws the measured points with their error bars; points
 // the best fit did not use are hollow.
 func drawBulkData(p *plot.Panel, r *bulkRun, series []int, xOf func(bulk.Point) float64, m plot.MarkerStyle) {
 	best := r.cmp.Own[r.cmp.Ranking[0]]
-	hollow := plot.MarkerStyle{Shape: plot.Circle, Color: plot.Diverging.At(0.5), Size: 2.6}
+	hollow := unfittedMarker()
 	for _, s := range series {
 		sf := best.Series[s]
 		var ux, uy, ue, nx, ny []float64

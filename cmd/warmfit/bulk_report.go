@@ -261,15 +261,21 @@ func writeBulkCurves(w io.Writer, r *bulkRun) error {
 				if s.StderrUnknown {
 					sd, src = sf.Sigma, "estimated"
 				}
-				m := sf.Model[k]
-				pull := (pt.Value - m) / sd
-				for _, v := range []float64{m, sd, pull} {
-					if math.IsNaN(v) || math.IsInf(v, 0) {
-						return fmt.Errorf("candidate %s, %s line %d: the model or its error is not finite", c.Name, s.File, pt.Line)
+				// Outside the forward model's trusted range the model is
+				// not given: a value there would be an extrapolation.
+				model, pull := "", ""
+				if sf.Trusted[k] {
+					m := sf.Model[k]
+					p := (pt.Value - m) / sd
+					for _, v := range []float64{m, sd, p} {
+						if math.IsNaN(v) || math.IsInf(v, 0) {
+							return fmt.Errorf("candidate %s, %s line %d: the model or its error is not finite", c.Name, s.File, pt.Line)
+						}
 					}
+					model, pull = fmtExact(m), fmtExact(p)
 				}
 				cw.Write([]string{c.Name, s.Quantity.String(), s.Quantity.Unit(), s.File, strconv.Itoa(pt.Line),
-					fmtG(pt.T), fmtG(pt.H), fmtG(pt.Value), fmtG(sd), src, fmtG(m), fmtG(pull),
+					fmtExact(pt.T), fmtExact(pt.H), fmtExact(pt.Value), fmtExact(sd), src, model, pull,
 					strconv.FormatBool(sf.Trusted[k]), strconv.FormatBool(sf.UsedPoint[k])})
 			}
 		}
@@ -277,8 +283,6 @@ func writeBulkCurves(w io.Writer, r *bulkRun) error {
 	cw.Flush()
 	return cw.Error()
 }
-
-func fmtG(v float64) string { return strconv.FormatFloat(v, 'g', 10, 64) }
 
 // printBulkSummary writes the human-readable summary to stderr.
 func printBulkSummary(w io.Writer, r *bulkRun) {

@@ -1,6 +1,7 @@
 package main
 
 import (
+	"encoding/csv"
 	"encoding/json"
 	"fmt"
 	"html"
@@ -119,6 +120,17 @@ func TestBulkFitsFileAndRefusesColdData(t *testing.T) {
 	head, err := os.ReadFile(curves)
 	if err != nil || !strings.HasPrefix(string(head), "candidate,quantity,unit,file,line,T_K,") {
 		t.Errorf("curves CSV header: %.80q, %v", head, err)
+	}
+	// Outside the trusted range the model is not extrapolated (formats.md, bulk).
+	rows, err := csv.NewReader(strings.NewReader(string(head))).ReadAll()
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, row := range rows[1:] {
+		trusted, model, pull := row[12] == "true", row[10], row[11]
+		if trusted == (model == "") || trusted == (pull == "") {
+			t.Errorf("curves row %v: model %q and pull %q with trusted=%v", row, model, pull, trusted)
+		}
 	}
 	if meta := readSidecar(t, curves+".meta.json"); meta["best"] != "chain" || meta["candidates"] == nil {
 		t.Errorf("curves sidecar: %v", meta)

@@ -3,6 +3,7 @@ package main
 import (
 	"fmt"
 	"math"
+	"strings"
 
 	"warmfit/cmd/warmfit/internal/plot"
 	"warmfit/validate"
@@ -111,7 +112,9 @@ func crosscheckFigure(r *validate.CrosscheckResult, how string) *plot.Document {
 // (in the output files) is too long for the figure.
 func crosscheckFigureNote(r *validate.CrosscheckResult) string {
 	if r.NoisyOrder == 0 {
-		return r.Verdict[0]
+		// The verdict is written for text files; the figure's title
+		// says β, and so does its note.
+		return strings.Replace(r.Verdict[0], "beta = ", "β = ", 1)
 	}
 	note := fmt.Sprintf("inconclusive at β = %s: from order %d on the differences are within the references' noise, which exceeds the tolerance %s",
 		fmtFloat(r.Beta), r.NoisyOrder, fmtG3(r.Tol))

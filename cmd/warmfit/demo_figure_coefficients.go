@@ -29,10 +29,11 @@ func (d *demoRun) figCoefficients() (*plot.Document, error) {
 func coefficientScatter(doc *plot.Document, cell plot.Rect, r *demoRecovery, kinds []string) {
 	lo, hi := math.Inf(1), math.Inf(-1)
 	for k, t := range r.Terms {
-		lo = math.Min(lo, math.Min(r.Truth[k], t.Coeff))
-		hi = math.Max(hi, math.Max(r.Truth[k], t.Coeff))
+		// The range holds the error bars too, so that none is clipped.
+		lo = math.Min(lo, math.Min(r.Truth[k], t.Coeff-t.Stderr))
+		hi = math.Max(hi, math.Max(r.Truth[k], t.Coeff+t.Stderr))
 	}
-	step := plot.NiceStep(hi-lo, 6)
+	step := plot.NiceStep(hi-lo, 8)
 	p := doc.Panel(cell, "fitted vs true",
 		plot.Axis{Label: "true coefficient", Min: lo, Max: hi, Step: step},
 		plot.Axis{Label: "fitted coefficient", Min: lo, Max: hi, Step: step})

@@ -41,7 +41,7 @@ func (d *demoRun) figLattice() (*plot.Document, error) {
 	if err != nil {
 		return nil, err
 	}
-	d.latticePanel(doc, cells[3], "pulls, the largest |pull| of each bond and site", g, pulls, []plot.ColorMap{pulls.BondMap})
+	d.latticePanel(doc, cells[3], "pulls (signed): worst term of each bond and site", g, pulls, []plot.ColorMap{pulls.BondMap})
 	return doc, nil
 }
 
@@ -106,37 +106,35 @@ func latticeValuesOf(r *demoRecovery) *latticeValues {
 }
 
 // layers colours the bonds by one kind of coupling and the sites by one
-// kind of field, each on a scale of its own.
+// kind of field. Both are coefficients in the same unit, so a panel with
+// both shares one scale: one colour means one value anywhere in it.
 func (v *latticeValues) layers(bond, site string) (plot.LatticeLayers, []plot.ColorMap, error) {
 	ls := plot.LatticeLayers{WidenBonds: true}
-	var maps []plot.ColorMap
-	bondMap, err := autoColorMapOf("bonds: "+bond+" coupling", v.bonds[bond])
+	bonds, sites := v.bonds[bond], v.sites[site]
+	var label string
+	var all []float64
+	switch {
+	case bonds != nil && sites != nil:
+		label = "bonds: " + bond + " coupling, sites: " + site + " field"
+		all = append(mapValues(bonds), mapValues(sites)...)
+	case bonds != nil:
+		label, all = "bonds: "+bond+" coupling", mapValues(bonds)
+	case sites != nil:
+		label, all = "sites: "+site+" field", mapValues(sites)
+	default:
+		return ls, nil, nil
+	}
+	m, err := plot.AutoColorMap(label, all)
 	if err != nil {
 		return ls, nil, err
 	}
-	siteMap, err := autoColorMapOf("sites: "+site+" field", v.sites[site])
-	if err != nil {
-		return ls, nil, err
+	if bonds != nil {
+		ls.BondValues, ls.BondMap = bonds, m
 	}
-	if bondMap != nil {
-		ls.BondValues, ls.BondMap = v.bonds[bond], *bondMap
-		maps = append(maps, *bondMap)
+	if sites != nil {
+		ls.SiteValues, ls.SiteMap = sites, m
 	}
-	if siteMap != nil {
-		ls.SiteValues, ls.SiteMap = v.sites[site], *siteMap
-		maps = append(maps, *siteMap)
-	}
-	return ls, maps, nil
-}
-
-// autoColorMapOf returns the colour map of a layer's values, nil for a
-// layer the model does not have.
-func autoColorMapOf[K comparable](label string, values map[K]float64) (*plot.ColorMap, error) {
-	if values == nil {
-		return nil, nil
-	}
-	m, err := plot.AutoColorMap(label, mapValues(values))
-	return &m, err
+	return ls, []plot.ColorMap{m}, nil
 }
 
 // pullLayers colours bonds and sites by their signed pulls on one

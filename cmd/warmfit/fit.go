@@ -59,7 +59,7 @@ func init() {
 		Name:    "fit",
 		Short:   "learn a Hamiltonian's coefficients from measurements of its Gibbs state",
 		Usage:   "warmfit fit --model TEMPLATE.json --data FILE [--beta B] [--order L|auto] [--budget 60s] [--truth M.json] [--format json|csv] [-o OUT.json]",
-		Long:    fitLong + fitMethodLong,
+		Long:    fitLong + fitMethodLong + fitCombinedLong,
 		Example: fitExample,
 		Flags: func(fs *pflag.FlagSet) {
 			o := &fitOptions
@@ -206,7 +206,8 @@ func runFit(env *runEnv, args []string) error {
 		return fit.Fit(&fit.Problem{Lattice: tmpl.Lattice, Terms: tmpl.Terms, Data: est, Beta: beta}, ropt)
 	}
 	var done bool
-	if done, res, err = fitMethodAfter(env, tmpl, beta, res, err, refit); done {
+	var estimator *fit.ReportEstimator
+	if done, res, estimator, err = fitMethodAfter(env, tmpl, beta, res, err, refit); done {
 		return err
 	}
 	if err != nil {
@@ -221,6 +222,7 @@ func runFit(env *runEnv, args []string) error {
 	if err != nil {
 		return err
 	}
+	rep.Estimator = estimator
 	fitSummary(env.Stderr, res, rep, cmp)
 	return writeFitResult(env, &o, tmpl, res, rep, cmp)
 }
@@ -305,7 +307,7 @@ func checkFitScale(o *fitFlags, tmpl *model.Model, calibration *fit.Calibration,
 	case calibration != nil && mo.method == fitMethodStationary:
 		return nil, usagef("--scale-from fixes the scale of the expansion fit at unknown temperature; --method stationary takes its known coefficients from --calibrate NAME=VALUE")
 	case mo.calibrate != "" && mo.method == fitMethodExpansion:
-		return nil, usagef("--calibrate is for --method stationary (or auto); the expansion fit at unknown temperature fixes its energy scale with --scale-from TERM=VALUE (one calibrated coefficient) or --scale-from beta=B")
+		return nil, usagef("--calibrate is for --method stationary (or auto, combined); the expansion fit at unknown temperature fixes its energy scale with --scale-from TERM=VALUE (one calibrated coefficient) or --scale-from beta=B")
 	}
 	if calibration != nil && beta > 0 {
 		return nil, usagef("--scale-from fixes the energy scale of a fit without beta, but beta is %s (%s): drop --scale-from, or fit at unknown temperature (no --beta, no beta in the template)", fmtFloat(beta), betaSource)
@@ -339,11 +341,11 @@ func admitFit(env *runEnv, o *fitFlags, tmpl *model.Model, order int) error {
 	}
 	policy := cluster.NewOrderPolicy(tmpl.Lattice, tmpl.Terms)
 	if order > 0 {
-		e := expansionEstimate(exp, tmpl.Lattice.NumSites(), order, "--order")
+		e := expansionEstimate(exp, tmpl.Lattice.NumSites(), order, true, "--order")
 		e.What = "one evaluation of the " + e.What + " (a fit makes several)"
 		return admit(env.Stderr, "fit", e, o.budget)
 	}
-	return admitExpansion(env, "fit", exp, tmpl.Lattice.NumSites(), 0, policy, o.budget)
+	return admitExpansion(env, "fit", exp, tmpl.Lattice.NumSites(), 0, true, policy, o.budget)
 }
 
 // fitRunOptions are the fitter's options from the flags, with the log

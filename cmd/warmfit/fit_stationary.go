@@ -61,7 +61,8 @@ that of the data; a failed match, an unresolved direction or error bars that
 cannot be computed give WARNING lines (and checks_passed false in the report).
 auto runs the expansion fit and keeps it when it converged with every series
 trusted; on lattices of at most 12 sites it refits at the order of the lattice,
-where the expansion is exact, and keeps that. Otherwise it runs stationary and
+where the expansion is exact, and keeps that (combined with the stationarity
+constraints where both hold: see combined below). Otherwise it runs stationary and
 uses it only when its checks pass (resolved spectrum, consistent thermal match,
 finite error bars), else the converged expansion; stderr says which and why.
 For example:
@@ -74,7 +75,7 @@ For example:
 // addFitMethodFlags registers the method flags on the fit command.
 func addFitMethodFlags(fs *pflag.FlagSet) {
 	o := &fitMethodOptions
-	fs.StringVar((*string)(&o.method), "method", string(fitMethodExpansion), "estimator: expansion, stationary or auto")
+	fs.StringVar((*string)(&o.method), "method", string(fitMethodExpansion), "estimator: expansion, stationary, combined or auto")
 	fs.StringVar(&o.calibrate, "calibrate", "", "stationary: known coefficients `NAME=VALUE,...` (NAME a term key like ZZ:0:1, or a group)")
 	fs.BoolVar(&o.farPairs, "far-pairs", false, "stationary: also probe pairs of sites at distance two (always on for real models, whose terms have an even number of Y)")
 }
@@ -82,7 +83,7 @@ func addFitMethodFlags(fs *pflag.FlagSet) {
 // fitMethodFirst runs the stationarity method when --method stationary
 // and reports done; for expansion and auto the expansion fit runs first.
 func fitMethodFirst(env *runEnv, tmpl *model.Model, beta float64) (done bool, err error) {
-	method, err := parseChoice("--method", string(fitMethodOptions.method), fitMethodExpansion, fitMethodStationary, fitMethodAuto)
+	method, err := parseChoice("--method", string(fitMethodOptions.method), fitMethodExpansion, fitMethodStationary, fitMethodCombined, fitMethodAuto)
 	if err != nil {
 		return true, err
 	}
@@ -93,33 +94,58 @@ func fitMethodFirst(env *runEnv, tmpl *model.Model, beta float64) (done bool, er
 	return true, runFitStationary(env, tmpl, beta)
 }
 
-// fitMethodAfter decides, for --method auto, whether the expansion fit
-// (res, err) is kept. The expansion is kept when it converged with every
-// series trusted, or when its order covers the whole lattice (then it is
-// exact). Otherwise the stationarity method runs, and its result is used
-// only when its own checks pass (stationaryRun.problems); when they do
-// not, the expansion fit is kept if it converged, and the choice and its
-// reasons go to stderr either way.
+// fitMethodAfter decides, for --method auto and combined, what becomes
+// of the expansion fit (res, err).
 //
-// On lattices of at most cluster.MaxDenseQubits sites an expansion that
-// stopped short of the whole lattice is first refitted at the order of
-// the lattice, where it is exact (the fit at order 9 of review finding
-// 1's 3x3 model has largest error 0.0037, stationarity 0.1).
+// combined: the expansion fit is combined with the stationarity
+// constraints (fitCombine), or, when the two disagree, kept if trusted
+// and dropped for stationarity if not.
 //
-// When done is false the caller goes on with the returned expansion
-// result res and its error fitErr (the refit's when there was one); when
-// done is true err is the outcome of the stationarity method.
-func fitMethodAfter(env *runEnv, tmpl *model.Model, beta float64, res *fit.Result, fitErr error, refit func(order int) (*fit.Result, error)) (done bool, _ *fit.Result, _ error) {
-	if fitMethodOptions.method != fitMethodAuto {
-		return false, res, fitErr
+// auto: the expansion is chosen when it converged with every series
+// trusted, or when its order covers the whole lattice (then it is
+// exact), and then combined with the stationarity constraints wherever
+// their checks pass (fitCombine keeps it otherwise). On lattices of at
+// most cluster.MaxDenseQubits sites an expansion that stopped short of
+// the whole lattice is first refitted at the order of the lattice, where
+// it is exact (the fit at order 9 of review finding 1's 3x3 model has
+// largest error 0.0037, stationarity 0.1). Otherwise the stationarity
+// method runs; its result is used only when its own checks pass
+// (stationaryRun.problems), combined with an expansion that converged
+// when the two agree, and when the checks fail the expansion fit is kept
+// if it converged. The choice and its reasons go to stderr either way,
+// and est records them for the report.
+//
+// When done is false the caller goes on with the returned result res
+// and its error fitErr (the refit's when there was one); when done is
+// true err is the outcome of the stationarity method.
+func fitMethodAfter(env *runEnv, tmpl *model.Model, beta float64, res *fit.Result, fitErr error, refit func(order int) (*fit.Result, error)) (done bool, _ *fit.Result, est *fit.ReportEstimator, _ error) {
+	switch fitMethodOptions.method {
+	case fitMethodCombined:
+		if fitErr != nil {
+			if done, _, _, err := fitCombine(env, tmpl, beta, nil, nil, true); done {
+				return true, nil, nil, err
+			}
+			return false, res, nil, fitErr
+		}
+		return fitCombine(env, tmpl, beta, res, nil, true)
+	case fitMethodAuto:
+	default:
+		return false, res, nil, fitErr
+	}
+	chose := func(r *fit.Result, why string) (bool, *fit.Result, *fit.ReportEstimator, error) {
+		fmt.Fprintf(env.Stderr, "fit: method auto chose the expansion: %s\n", why)
+		done, out, est, err := fitCombine(env, tmpl, beta, r, nil, false)
+		if est != nil && est.Method == "expansion" {
+			est.Reason = why + "; " + est.Reason
+		}
+		return done, out, est, err
 	}
 	n := tmpl.Lattice.NumSites()
 	if n <= cluster.MaxDenseQubits && refit != nil && fitOptions.order.L == 0 && (fitErr != nil || res.Order < n) &&
 		(fitErr != nil || !res.Converged || len(res.Untrusted) > 0) {
 		fmt.Fprintf(env.Stderr, "fit: method auto: %d sites: refitting the expansion at order %d, where it covers the whole lattice and is exact\n", n, n)
 		if r, err := refit(n); err == nil && r.Converged {
-			fmt.Fprintf(env.Stderr, "fit: method auto chose the expansion: order %d covers all %d sites, so it is exact here\n", n, n)
-			return false, r, nil
+			return chose(r, fmt.Sprintf("order %d covers all %d sites, so it is exact here", n, n))
 		} else if err != nil {
 			fmt.Fprintf(env.Stderr, "fit: method auto: the exact-order refit failed (%v)\n", err)
 		} else {
@@ -133,33 +159,38 @@ func fitMethodAfter(env *runEnv, tmpl *model.Model, beta float64, res *fit.Resul
 	case !res.Converged:
 		why = "the expansion fit did not converge: " + res.Reason
 	case res.Order >= n:
-		fmt.Fprintf(env.Stderr, "fit: method auto chose the expansion: order %d covers all %d sites, so the expansion is exact here\n", res.Order, n)
-		return false, res, nil
+		return chose(res, fmt.Sprintf("order %d covers all %d sites, so the expansion is exact here", res.Order, n))
 	case len(res.Untrusted) > 0:
 		why = fmt.Sprintf("%d term expectations of the expansion have not converged at order %d", len(res.Untrusted), res.Order)
 	}
 	if why == "" {
-		fmt.Fprintf(env.Stderr, "fit: method auto chose the expansion (converged, every series trusted at order %d)\n", res.Order)
-		return false, res, nil
+		return chose(res, fmt.Sprintf("converged, every series trusted at order %d", res.Order))
 	}
 	fmt.Fprintf(env.Stderr, "fit: method auto tries stationary: %s\n", why)
 	run, serr := computeStationary(env, tmpl, beta)
 	expansionUsable := fitErr == nil && res.Converged
 	switch {
 	case serr != nil && expansionUsable:
-		fmt.Fprintf(env.Stderr, "fit: method auto chose the expansion after all: the stationarity method failed (%v)\n", serr)
-		return false, res, nil
+		reason := fmt.Sprintf("the stationarity method failed (%v)", serr)
+		fmt.Fprintf(env.Stderr, "fit: method auto chose the expansion after all: %s\n", reason)
+		return false, res, &fit.ReportEstimator{Method: "expansion", Reason: why + "; " + reason}, nil
 	case serr != nil:
-		return true, nil, fmt.Errorf("%s; the stationarity method failed too: %w", why, serr)
+		return true, nil, nil, fmt.Errorf("%s; the stationarity method failed too: %w", why, serr)
 	case len(run.problems) > 0 && expansionUsable:
-		fmt.Fprintf(env.Stderr, "fit: method auto chose the expansion after all: the stationarity result fails its own checks (%s)\n", strings.Join(run.problems, "; "))
-		return false, res, nil
+		reason := fmt.Sprintf("the stationarity result fails its own checks (%s)", strings.Join(run.problems, "; "))
+		fmt.Fprintf(env.Stderr, "fit: method auto chose the expansion after all: %s\n", reason)
+		return false, res, &fit.ReportEstimator{Method: "expansion", Reason: why + "; " + reason}, nil
 	case len(run.problems) > 0:
 		fmt.Fprintf(env.Stderr, "fit: method auto chose stationary although it fails its own checks (%s): %s\n", strings.Join(run.problems, "; "), why)
+		run.reason = why + "; it fails its own checks (" + strings.Join(run.problems, "; ") + ")"
+	case expansionUsable:
+		fmt.Fprintf(env.Stderr, "fit: method auto: %s, but the expansion converged: combining it with the stationarity result, which passes its checks\n", why)
+		return fitCombine(env, tmpl, beta, res, run, false)
 	default:
 		fmt.Fprintf(env.Stderr, "fit: method auto chose stationary: %s, and the stationarity result passes its checks (resolved spectrum, consistent thermal match, finite error bars)\n", why)
+		run.reason = why + "; the stationarity result passes its checks"
 	}
-	return true, nil, writeStationary(env, tmpl, beta, run)
+	return true, nil, nil, writeStationary(env, tmpl, beta, run)
 }
 
 // stationaryReport is the "fit" object of a model written by the
@@ -181,7 +212,16 @@ type stationaryReport struct {
 	MatchChi2Direction *float64  `json:"thermal_match_chi2_with_direction_noise,omitempty"`
 	MatchDOF           int       `json:"thermal_match_dof,omitempty"`
 	NotThermal         bool      `json:"not_thermal,omitempty"`
+	Reason             string    `json:"method_reason,omitempty"`
 	Warnings           []string  `json:"warnings"`
+	// Converged: the reweighting settled (stationary.Direction.Converged);
+	// Order: the expansion order of the thermal match, 0 when none was
+	// used (calibrations only, or exact diagonalisation).
+	Converged    bool   `json:"converged"`
+	Order        int    `json:"order"`
+	Solver       string `json:"solver"`
+	Reweightings int    `json:"reweightings"`
+	ErrorBars    string `json:"error_bars"`
 }
 
 func runFitStationary(env *runEnv, tmpl *model.Model, beta float64) error {
@@ -196,8 +236,13 @@ func runFitStationary(env *runEnv, tmpl *model.Model, beta float64) error {
 type stationaryRun struct {
 	sys      *stationary.System
 	d        *stationary.Direction
-	res      *stationary.Result
+	est      *fit.Estimates
+	cal      map[string]float64
+	res      *stationary.Result // nil until fix
+	reason   string             // why a method choice took it (empty for --method stationary)
 	warnings []string
+	// order is the expansion order of the thermal match (0: none).
+	order int
 	// problems are the failed checks that make the result untrustworthy
 	// (also in warnings): --method auto does not choose such a result.
 	problems []string
@@ -207,6 +252,27 @@ type stationaryRun struct {
 // printing its progress lines to stderr (warnings are printed by
 // writeStationary).
 func computeStationary(env *runEnv, tmpl *model.Model, beta float64) (*stationaryRun, error) {
+	run, err := solveStationary(env, tmpl)
+	if err != nil {
+		return nil, err
+	}
+	if err := run.fix(tmpl, beta); err != nil {
+		return nil, err
+	}
+	return run, nil
+}
+
+// problem records a failed check: short for the list of problems, long
+// as a warning.
+func (run *stationaryRun) problem(short, long string) {
+	run.problems = append(run.problems, short)
+	run.warnings = append(run.warnings, long)
+}
+
+// solveStationary reads the data into the constraints and solves for the
+// direction, with the checks of the direction (the scale is fixed by
+// fix; the combination with the expansion does not need it).
+func solveStationary(env *runEnv, tmpl *model.Model) (*stationaryRun, error) {
 	o, mo := fitOptions, fitMethodOptions
 	n := tmpl.Lattice.NumSites()
 	sys, err := stationary.NewSystemWith(n, tmpl.Terms, stationary.SystemOptions{FarPairs: mo.farPairs})
@@ -265,13 +331,13 @@ func computeStationary(env *runEnv, tmpl *model.Model, beta float64) (*stationar
 		}
 		return nil, fmt.Errorf("%s: %w", o.data, err)
 	}
-	run := &stationaryRun{sys: sys, d: d}
-	problem := func(short, long string) {
-		run.problems = append(run.problems, short)
-		run.warnings = append(run.warnings, long)
-	}
+	run := &stationaryRun{sys: sys, d: d, est: est, cal: cal}
+	problem := run.problem
 	if d.Misfit {
 		problem("constraint chi2 too large", fmt.Sprintf("constraint chi2 %s far above its degrees of freedom: the data fit no stationary state of these terms well (a term missing from the template, systematic errors, or a non-stationary state)", fmtG3(d.Chi2)))
+	}
+	if !d.Converged {
+		problem("reweighting not settled", fmt.Sprintf("the reweighting did not settle in %d iterations (last change of a component %s): the direction is not a fixed point of the noise-weighted objective", d.Iterations, fmtG3(d.LastChange)))
 	}
 	if d.Weak {
 		problem("weak signal", fmt.Sprintf("weak signal: a resolved direction has a standard error of %s of the unit direction; the direction error is not in its linear regime and error bars may be too small (seeded repetitions at beta x max|coeff| = 0.1 gave pull rms 2.2): use more shots", fmtG3(maxResolvedStdErr(d))))
@@ -279,22 +345,38 @@ func computeStationary(env *runEnv, tmpl *model.Model, beta float64) (*stationar
 	if d.Dropped > 0 {
 		run.warnings = append(run.warnings, fmt.Sprintf("%d of %d constraints left out: %s", d.Dropped, d.Dropped+d.Rows, missingStringsMessage(sys, est)))
 	}
-	g := stationary.Gauge{Calibrated: cal}
+	return run, nil
+}
+
+// fix fixes the scale and the invisible directions of a solved run
+// (calibrations, or the thermal match at a known beta) with its checks.
+func (run *stationaryRun) fix(tmpl *model.Model, beta float64) error {
+	sys, d, est, problem := run.sys, run.d, run.est, run.problem
+	g := stationary.Gauge{Calibrated: run.cal}
 	source := ""
+	var err error
 	if beta > 0 {
 		g.Beta = beta
 		g.Evaluate, source, err = stationaryEvaluator(tmpl)
 		if err != nil {
-			return nil, err
+			return err
 		}
+		run.order = stationaryMatchOrder(tmpl)
 	}
 	res, err := stationary.Fix(sys, est, d, g, stationary.Options{})
 	if err != nil {
-		return nil, err
+		return err
 	}
 	run.res = res
 	for _, w := range res.Warnings {
-		problem("error bars not computed", w)
+		// Error bars that are missing fail the checks; error bars that
+		// leave out the direction's noise through the match only warn
+		// (the consistency test then says whether it is conclusive).
+		if strings.Contains(w, "not computed") {
+			problem("error bars not computed", w)
+		} else {
+			run.warnings = append(run.warnings, w)
+		}
 	}
 	if m := res.Match; m != nil {
 		dof := max(m.DOF, 1)
@@ -328,7 +410,7 @@ func computeStationary(env *runEnv, tmpl *model.Model, beta float64) (*stationar
 		}
 		run.warnings = append(run.warnings, "invisible direction: "+inv.Name)
 	}
-	return run, nil
+	return nil
 }
 
 // writeStationary prints the scale, the comparison with --truth and the
@@ -371,7 +453,11 @@ func writeStationary(env *runEnv, tmpl *model.Model, beta float64, run *stationa
 		Method: "stationary", Source: "Bairey, Arad, Lindner, PRL 122, 020504 (2019)", Data: o.data,
 		Constraints: d.Rows, LeftOut: d.Dropped, Chi2: d.Chi2, Spectrum: d.Spectrum, Fixed: res.Fixed,
 		FarPairs: sys.FarPairs, Checks: len(run.problems) == 0, ErrorScale: res.ErrorScale,
-		Warnings: append([]string{}, warnings...), Invisible: []string{},
+		Warnings: append([]string{}, warnings...), Invisible: []string{}, Reason: run.reason,
+		Converged: d.Converged, Order: run.order, Solver: d.Method, Reweightings: d.Iterations, ErrorBars: res.ErrorMethod,
+	}
+	if rep.ErrorBars == "" {
+		rep.ErrorBars = "not computed"
 	}
 	for _, inv := range d.Invisible {
 		rep.Invisible = append(rep.Invisible, inv.Name)
@@ -402,6 +488,8 @@ func writeStationary(env *runEnv, tmpl *model.Model, beta float64, run *stationa
 		meta.set("template", o.model)
 		meta.set("data", o.data)
 		meta.set("fit", json.RawMessage(raw))
+		meta.set("converged", rep.Converged)
+		meta.set("order", rep.Order)
 		return writeCSVResult(env, o.out, o.csv, meta, func(w io.Writer) error { return stationaryWriteCSV(w, terms) })
 	}
 	return writeOutput(env, o.out, func(w io.Writer) error { return model.Write(w, m) })
@@ -493,10 +581,7 @@ func stationaryEvaluator(tmpl *model.Model) (stationary.Evaluator, string, error
 			return out, nil
 		}, "exact diagonalisation of the whole system", nil
 	}
-	order := 5
-	if fitOptions.order.L > 0 {
-		order = fitOptions.order.L
-	}
+	order := stationaryMatchOrder(tmpl)
 	exp, err := cluster.NewExpansion(tmpl.Lattice, terms)
 	if err != nil {
 		return nil, "", err
@@ -508,6 +593,18 @@ func stationaryEvaluator(tmpl *model.Model) (stationary.Evaluator, string, error
 		}
 		return r.Expect[len(r.Expect)-1], nil
 	}, fmt.Sprintf("the linked-cluster expansion at order %d", order), nil
+}
+
+// stationaryMatchOrder is the expansion order stationaryEvaluator uses
+// for the template: 0 when it diagonalises exactly.
+func stationaryMatchOrder(tmpl *model.Model) int {
+	if tmpl.Lattice.NumSites() <= cluster.MaxDenseQubits {
+		return 0
+	}
+	if fitOptions.order.L > 0 {
+		return fitOptions.order.L
+	}
+	return 5
 }
 
 func withCoeffs(terms []lattice.Term, lambda []float64) []lattice.Term {

@@ -113,6 +113,8 @@ func TestFormatsDocumentNamesEveryOutputField(t *testing.T) {
 		{"fit", "--model", p("m.json"), "--data", p("shots.csv"), "--order", "4", "--truth", p("m.json"), "--format", "csv", "-o", p("fitted-truth.csv")},
 		{"plan", "--model", p("fitted.json"), "--target", "0.1", "--format", "csv", "-o", p("plan.csv")},
 		{"plan", "--model", p("fitted.json"), "--target", "0.1", "--format", "json", "-o", p("plan.json")},
+		{"plan", "--model", p("m.json"), "--method", "stationary", "--bases", "covering:3", "--target", "0.1", "--scale-target", "0.05", "--format", "json", "-o", p("plan-stationary.json")},
+		{"plan", "--model", p("m.json"), "--method", "stationary", "--bases", "covering:3", "--target", "0.1", "--format", "csv", "-o", p("plan-stationary.csv")},
 	}
 	for _, args := range runs {
 		if code, _, stderr := runCmd(args...); code != exitOK {
@@ -126,13 +128,13 @@ func TestFormatsDocumentNamesEveryOutputField(t *testing.T) {
 		}
 		written[what][name] = true
 	}
-	csvs := []string{"clusters.csv", "predict.csv", "exact.csv", "sweep.csv", "shots.csv", "binomial.csv", "fitted.csv", "fitted-truth.csv", "plan.csv"}
+	csvs := []string{"clusters.csv", "predict.csv", "exact.csv", "sweep.csv", "shots.csv", "binomial.csv", "fitted.csv", "fitted-truth.csv", "plan.csv", "plan-stationary.csv"}
 	for _, f := range csvs {
 		for _, c := range csvHeader(t, p(f)) {
 			add(f, c)
 		}
 	}
-	jsons := []string{"m.json", "lattice.json", "fitted.json", "fitted-tied.json", "plan.json"}
+	jsons := []string{"m.json", "lattice.json", "fitted.json", "fitted-tied.json", "plan.json", "plan-stationary.json"}
 	for _, f := range csvs {
 		if _, err := os.Stat(p(f + ".meta.json")); err == nil {
 			jsons = append(jsons, f+".meta.json")
@@ -155,9 +157,13 @@ func TestFormatsDocumentNamesEveryOutputField(t *testing.T) {
 	}
 	// Members left out of these runs (omitempty, other data) come from the types.
 	for what, typ := range map[string]reflect.Type{
-		"fit report": reflect.TypeOf(fit.Report{}),
-		"plan json":  reflect.TypeOf(planJSON{}),
-		"bulk json":  reflect.TypeOf(bulkJSON{}),
+		"fit report":           reflect.TypeOf(fit.Report{}),
+		"combination":          reflect.TypeOf(combinationReport{}),
+		"stationary report":    reflect.TypeOf(stationaryReport{}),
+		"plan json":            reflect.TypeOf(planJSON{}),
+		"plan stationary json": reflect.TypeOf(planStationaryJSON{}),
+		"plan comparison":      reflect.TypeOf(planComparison{}),
+		"bulk json":            reflect.TypeOf(bulkJSON{}),
 	} {
 		names := map[string]bool{}
 		jsonTagNames(typ, names)

@@ -128,7 +128,7 @@ func runLattice(env *runEnv, args []string) error {
 		return err
 	}
 	if comps := l.Components(); len(comps) > 1 {
-		fmt.Fprintf(env.Stderr, "warmfit lattice: warning: %s has %d disconnected components; no cluster joins two of them\n",
+		fmt.Fprintf(env.Stderr, "warmfit lattice: note: %s has %d disconnected components; no cluster joins two of them\n",
 			o.lattice, len(comps))
 	}
 	// Refusals come before any file is written.

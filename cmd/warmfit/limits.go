@@ -183,15 +183,17 @@ func suggestBudget(d time.Duration) time.Duration {
 }
 
 // expansionEstimate predicts one evaluation of exp at order, by the one
-// cost model. Memory of the expansion is small and streaming; its clusters
-// are counted, not stored.
-func expansionEstimate(exp *cluster.Expansion, sites, order int, flag string) workEstimate {
-	nc, work := exp.EstimateWork(order)
-	return workEstimate{
-		What:     fmt.Sprintf("order-%d expansion of %d sites (about %.3g clusters)", order, sites, float64(nc)),
-		Duration: cluster.PredictDuration(work),
-		Flag:     flag,
+// calibrated cost model, with the response matrix when the command needs
+// it (fit and plan do: it costs several times the expectations). Memory
+// of the expansion is small and streaming; its clusters are counted, not
+// stored.
+func expansionEstimate(exp *cluster.Expansion, sites, order int, response bool, flag string) workEstimate {
+	nc, _ := exp.EstimateWork(order)
+	what := fmt.Sprintf("order-%d expansion of %d sites (about %.3g clusters)", order, sites, float64(nc))
+	if response {
+		what += " with its response matrix"
 	}
+	return workEstimate{What: what, Duration: exp.PredictEvaluation(order, response), Flag: flag}
 }
 
 // denseEstimate predicts the dense diagonalisation of n qubits: work

@@ -20,28 +20,32 @@ import (
 // planOptions holds the flags of "warmfit plan"; Flags resets them on
 // every invocation.
 var planOptions struct {
-	model      string
-	beta       betaFlag
-	target     float64
-	norm       string
-	bases      string
-	seed       uint64
-	order      orderFlag
-	confidence float64
-	format     string
-	out        string
-	workers    int
-	budget     time.Duration
-	csv        csvFlags
-	flags      *pflag.FlagSet
+	model       string
+	beta        betaFlag
+	target      float64
+	norm        string
+	bases       string
+	seed        uint64
+	order       orderFlag
+	confidence  float64
+	format      string
+	out         string
+	workers     int
+	budget      time.Duration
+	csv         csvFlags
+	method      string
+	scaleTarget float64
+	compare     bool
+	farPairs    bool
+	flags       *pflag.FlagSet
 }
 
 func init() {
 	register(&command{
 		Name:    "plan",
 		Short:   "how many shots learn a model's coefficients to a target precision",
-		Usage:   "warmfit plan --model M.json [--beta B] --target EPS [--norm linf|l2] [--bases covering|random:K] [--format text|csv|json] [-o FILE]",
-		Long:    planLong,
+		Usage:   "warmfit plan --model M.json [--beta B] --target EPS [--method expansion|stationary] [--norm linf|l2|rms] [--bases covering|covering:3|random:K] [--format text|csv|json] [-o FILE]",
+		Long:    planLong + planStationaryLong,
 		Example: planExample,
 		Flags: func(fs *pflag.FlagSet) {
 			o := &planOptions
@@ -49,8 +53,12 @@ func init() {
 			addModelFlag(fs, &o.model, "model `FILE` whose coefficients are to be learned (a best guess)")
 			addBetaFlag(fs, &o.beta)
 			fs.Float64Var(&o.target, "target", 0, "target error `EPS` of the coefficients")
-			fs.StringVar(&o.norm, "norm", string(fit.NormLinf), "linf: every coefficient within eps at 95% (Bonferroni); l2: expected squared L2 error <= eps^2")
-			fs.StringVar(&o.bases, "bases", "covering", "measurement `SCHEME`: covering (few bases serving every term) or random:K")
+			fs.StringVar(&o.norm, "norm", string(fit.NormLinf), "linf: every coefficient within eps at 95% (Bonferroni); l2: expected squared L2 error <= eps^2; rms (stationary, its default): root mean square over the terms")
+			fs.StringVar(&o.bases, "bases", "covering", "measurement `SCHEME`: covering (few bases serving every term), covering:3 (every correlator stationarity needs) or random:K")
+			fs.StringVar(&o.method, "method", "expansion", "estimator to plan for: expansion or stationary")
+			fs.Float64Var(&o.scaleTarget, "scale-target", 0, "stationary: relative error `REL` of the overall scale (thermal match at beta); 0: none")
+			fs.BoolVar(&o.compare, "compare", true, "stationary: also plan the expansion fit for the same bases and precision, and say which is cheaper")
+			fs.BoolVar(&o.farPairs, "far-pairs", false, "stationary: also probe pairs of sites at distance two (as fit --far-pairs)")
 			fs.Uint64Var(&o.seed, "seed", 1, "seed of random:K bases")
 			addOrderFlag(fs, &o.order, "expansion order of the prediction, or auto (the order stored in a fitted model, else chosen as in predict)")
 			fs.Float64Var(&o.confidence, "confidence", 0.95, "confidence of the linf guarantee")
@@ -86,7 +94,9 @@ term, --format json the whole plan.
 
 const planExample = `warmfit model --lattice square:6x6 --preset xxz --set Jxy=0.4,Jz=0.3,hz=0.2 --beta 0.5 -o m.json
 warmfit plan --model m.json --target 0.01
-warmfit plan --model m.json --target 0.05 --norm l2 --bases random:200 --format csv -o plan.csv`
+warmfit plan --model m.json --target 0.05 --norm l2 --bases random:200 --format csv -o plan.csv
+warmfit model --lattice chain:8 --preset tfim --set J=1,hx=0.8,hz=0.3 --beta 0.7 -o chain.json
+warmfit plan --model chain.json --method stationary --bases covering:3 --target 0.02`
 
 func runPlan(env *runEnv, args []string) error {
 	o := planOptions
@@ -99,9 +109,20 @@ func runPlan(env *runEnv, args []string) error {
 	if !(o.target > 0) || math.IsInf(o.target, 0) {
 		return usagef("--target is required and must be a positive number")
 	}
-	norm, err := parseChoice("--norm", o.norm, fit.NormLinf, fit.NormL2)
+	method, err := parseChoice("--method", o.method, "expansion", "stationary")
 	if err != nil {
 		return err
+	}
+	norm := fit.NormLinf
+	if method == "expansion" {
+		if norm, err = parseChoice("--norm", o.norm, fit.NormLinf, fit.NormL2); err != nil {
+			return err
+		}
+		for _, f := range []string{"scale-target", "compare", "far-pairs"} {
+			if o.flags.Changed(f) {
+				return usagef("--%s applies to --method stationary", f)
+			}
+		}
 	}
 	format, err := parseChoice("--format", o.format, formatText, formatCSV, formatJSON)
 	if err != nil {
@@ -138,6 +159,9 @@ func runPlan(env *runEnv, args []string) error {
 	if err != nil {
 		return usagef("--%v", err)
 	}
+	if method == "stationary" {
+		return runPlanStationary(env, m, beta, bases, scheme, format)
+	}
 	order := o.order.L
 	if order == 0 {
 		order = fittedOrder(m)
@@ -151,7 +175,7 @@ func runPlan(env *runEnv, args []string) error {
 	}
 	policy := cluster.NewOrderPolicy(m.Lattice, m.Terms)
 	policy.Budget = o.budget
-	if err := admitExpansion(env, "plan", exp, n, order, policy, o.budget); err != nil {
+	if err := admitExpansion(env, "plan", exp, n, order, true, policy, o.budget); err != nil {
 		return err
 	}
 	bar := newProgressBar(env, "expanding")

@@ -204,7 +204,7 @@ func predictByExpansion(env *runEnv, m *model.Model, beta float64, order int, to
 	}
 	policy := cluster.NewOrderPolicy(m.Lattice, m.Terms)
 	policy.Budget = budget
-	if err := admitExpansion(env, "predict", exp, m.Lattice.NumSites(), order, policy, budget); err != nil {
+	if err := admitExpansion(env, "predict", exp, m.Lattice.NumSites(), order, false, policy, budget); err != nil {
 		return nil, err
 	}
 	coeffs := modelCoeffs(m)
@@ -389,11 +389,11 @@ const defaultTypicalityVectors = 16
 // order is estimated and refused past the memory or --budget; an
 // automatic choice says where it starts, that further orders are chosen
 // by work units and that the budget only guards.
-func admitExpansion(env *runEnv, cmd string, exp *cluster.Expansion, sites, order int, policy cluster.OrderPolicy, budget time.Duration) error {
+func admitExpansion(env *runEnv, cmd string, exp *cluster.Expansion, sites, order int, response bool, policy cluster.OrderPolicy, budget time.Duration) error {
 	if order > 0 {
-		return admit(env.Stderr, cmd, expansionEstimate(exp, sites, order, "--order"), budget)
+		return admit(env.Stderr, cmd, expansionEstimate(exp, sites, order, response, "--order"), budget)
 	}
-	e := expansionEstimate(exp, sites, policy.Start, "--order")
+	e := expansionEstimate(exp, sites, policy.Start, response, "--order")
 	fmt.Fprintf(env.Stderr, "%s: estimate: %s, about %s to start --order auto; higher orders are chosen within a machine-independent work limit, and --budget %v only guards the wall time (a stop by it is reported as machine-dependent)\n",
 		cmd, e.What, describeTime(e.Duration), describeBudgetFlag(budget))
 	return nil

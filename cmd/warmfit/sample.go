@@ -217,7 +217,7 @@ func sampleBinomial(env *runEnv, m *model.Model, beta float64, bases []string, s
 	}
 	policy := cluster.NewOrderPolicy(m.Lattice, m.Terms)
 	policy.Budget = budget
-	if err := admitExpansion(env, "sample", exp, m.Lattice.NumSites(), order, policy, budget); err != nil {
+	if err := admitExpansion(env, "sample", exp, m.Lattice.NumSites(), order, false, policy, budget); err != nil {
 		return err
 	}
 	bar := newProgressBar(env, "expanding")

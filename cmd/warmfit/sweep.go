@@ -211,7 +211,11 @@ func retiredBetaRange(old string) error {
 // 2^|c| levels, and per anchor block an accumulator of 3 x points x order
 // numbers.
 func sweepEstimate(exp *cluster.Expansion, lat *lattice.Lattice, order, points int) workEstimate {
-	e := expansionEstimate(exp, lat.NumSites(), order, "--order or --beta-grid points")
+	e := expansionEstimate(exp, lat.NumSites(), order, false, "--order or --beta-grid points")
+	// A sweep needs eigenvalues only: the diagonalisations' D^3 work, not
+	// the expectations the calibrated evaluation includes.
+	_, work := exp.EstimateWork(order)
+	e.Duration = cluster.PredictDuration(work)
 	var levels, clusters float64
 	for s, c := range lat.EstimateClusterSizes(order) {
 		levels += c * math.Exp2(float64(s+1))

@@ -80,7 +80,7 @@ func Compare(cands []*Candidate, data []*Series, opt FitOptions, rejectBelow flo
 		if err := parallel(len(ok), func(j int) error {
 			i := ok[j]
 			refit := withStart(cands[i], cmp.Own[i])
-			r, err := FitCandidate(refit, data, FitOptions{Cut: common})
+			r, err := FitCandidate(refit, data, FitOptions{Cut: common, Progress: opt.Progress})
 			if err != nil {
 				return fmt.Errorf("candidate %s on the common range: %w", cands[i].Name, err)
 			}

@@ -19,6 +19,11 @@ type FitOptions struct {
 	// range: Cut[s][k] says whether point k of series s is used. Compare
 	// uses it to fit every candidate on a common range.
 	Cut [][]bool
+	// Progress, when not nil, is told after each round of a candidate's
+	// fit how many points it used and the lowest temperature (K) at which
+	// the model then trusts any curve. Compare fits candidates in parallel, so it may be
+	// called from several goroutines at once.
+	Progress func(candidate string, round, used int, trustedFromK float64)
 }
 
 // ParamEstimate is one fitted (or fixed) parameter.
@@ -131,6 +136,9 @@ func FitCandidate(c *Candidate, data []*Series, opt FitOptions) (*FitResult, err
 		}
 		if pr, err = c.predict(data, f.p); err != nil {
 			return nil, err
+		}
+		if opt.Progress != nil {
+			opt.Progress(c.Name, round+1, countTrue(used), slices.Min(f.trustedFrom(pr)))
 		}
 		next := f.cutFrom(pr, opt.Cut)
 		if equalCut(next, used) || (round > 0 && subsetCut(used, next) && slices.Contains(seen, cutKey(next))) {

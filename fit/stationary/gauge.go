@@ -52,6 +52,20 @@ type Result struct {
 	// not computed).
 	Warnings  []string
 	Direction *Direction
+	// ErrorMethod says how StdErr was computed: "dense" (the sandwich
+	// with dense matrices, up to Options.DenseLimit parameters),
+	// "sparse" (conjugate gradients and probing, beyond it), or "" when
+	// not computed.
+	ErrorMethod string
+
+	// freeCov is the delta-method covariance of the parameters free[i]
+	// when calibrations fix every multiplier (errorBars; nil otherwise):
+	// the planner (PlanShots) projects it onto the direction's errors.
+	freeCov *mat.Dense
+	free    []int
+	// matchCov holds the parts of the covariance with a thermal match
+	// (errorBars; nil otherwise), for the planner's scale error.
+	matchCov *matchCovariance
 }
 
 // ErrUnderdetermined is returned (wrapped) when the gauge leaves a
@@ -59,8 +73,9 @@ type Result struct {
 var ErrUnderdetermined = errors.New("stationary: the scale or an invisible direction is not fixed")
 
 // Fix turns a direction into coefficients using the gauge, and computes
-// delta-method error bars on the constraint noise (dense systems only:
-// up to Options.DenseLimit parameters).
+// delta-method error bars on the constraint noise: with dense matrices up
+// to Options.DenseLimit parameters, by deflated conjugate gradients and
+// probing beyond (sparseErrorBars; Result.ErrorMethod says which).
 func Fix(sys *System, est *fit.Estimates, d *Direction, g Gauge, opt Options) (*Result, error) {
 	opt = opt.withDefaults()
 	p := sys.params
@@ -181,20 +196,18 @@ func Fix(sys *System, est *fit.Estimates, d *Direction, g Gauge, opt Options) (*
 		res.Fixed += fmt.Sprintf("; invisible directions fixed with the scale: %s", strings.Join(invNames, "; "))
 	}
 	res.StdErr = make([]float64, np)
+	errorBars, method := res.errorBars, "dense"
 	if np > opt.DenseLimit {
-		for i := range res.StdErr {
-			res.StdErr[i] = math.NaN()
-		}
-		res.Warnings = append(res.Warnings, fmt.Sprintf("error bars not computed: %d parameters exceed the dense limit %d", np, opt.DenseLimit))
-		return res, nil
+		errorBars, method = res.sparseErrorBars, "sparse"
 	}
-	if err := res.errorBars(sys, est, calRows, basis, null); err != nil {
-		res.Warnings = append(res.Warnings, "error bars not computed: "+err.Error())
+	if err := errorBars(sys, est, calRows, basis, null); err != nil {
+		res.Warnings = append(res.Warnings, method+" error bars not computed: "+err.Error())
 		for i := range res.StdErr {
 			res.StdErr[i] = math.NaN()
 		}
 		return res, nil
 	}
+	res.ErrorMethod = method
 	// A thermal match whose chi² (the direction's noise included) exceeds
 	// its degrees of freedom means the error model is too small: scale the
 	// error bars by sqrt(chi²/dof) (the scale factor of the Particle Data

@@ -88,10 +88,18 @@ type Direction struct {
 	// Method is "dense" or "lanczos"; Iterations counts reweightings.
 	Method     string
 	Iterations int
+	// Converged is set when the reweighting settled: the largest change
+	// of a component of Theta between two reweightings fell below 1e-9
+	// within Options.MaxIterations (LastChange is the last such change).
+	// An unsettled direction is still returned, with a WARNING in
+	// Summary: it minimises the objective less well than it could.
+	Converged  bool
+	LastChange float64
 
 	ws     *weighted
 	low    lowEigen
 	params *fit.Params
+	asm    *assembled // nil when dense
 }
 
 // InvisibleDirection is an eigen-direction of the constraints that the
@@ -132,11 +140,18 @@ func Solve(sys *System, est *fit.Estimates, opt Options) (*Direction, error) {
 	np := ws.np
 	k := min(opt.Low, np)
 	d := &Direction{ws: ws, Rows: ws.rows(), Dropped: ws.dropped, params: sys.params}
+	// The sparse path (assembled X) has per-row weights only.
+	ws.full = ws.full && np <= opt.DenseLimit
+	var asm *assembled // the pattern of X, built once for Lanczos
 	eig := func(w *weighted, start [][]float64) (lowEigen, error) {
 		if np <= opt.DenseLimit {
 			return denseLowest(w.dense(), np, k)
 		}
-		return lanczosLowest(w.mulVec, np, k, start, 1e-9, 20000)
+		if asm == nil {
+			asm = newAssembled(w)
+		}
+		asm.fill(w)
+		return lanczosLowest(asm.mulVec, np, k, start, 1e-9, 20000)
 	}
 	// Conserved quantities the terms can express (uniform fields) whose
 	// constraints vanish within noise are invisible exactly; they are
@@ -169,7 +184,9 @@ func Solve(sys *System, est *fit.Estimates, opt Options) (*Direction, error) {
 			change = max(change, math.Abs(next[i]-theta[i]))
 		}
 		theta = next
+		d.LastChange = change
 		if change < 1e-9 {
+			d.Converged = true
 			break
 		}
 	}
@@ -187,7 +204,7 @@ func Solve(sys *System, est *fit.Estimates, opt Options) (*Direction, error) {
 	if dof := float64(max(d.Rows-np+1, 1)); d.Chi2 > dof+5*math.Sqrt(2*dof) {
 		d.Misfit = true
 	}
-	d.Theta, d.low, d.Method = theta, low, low.method
+	d.Theta, d.low, d.Method, d.asm = theta, low, low.method, asm
 	d.Spectrum = low.values
 	nlow, err := eig(ws.noiseOnly(theta), nil)
 	if err != nil {
@@ -408,6 +425,9 @@ func (d *Direction) Summary() string {
 	if d.Misfit {
 		fmt.Fprintf(&b, "WARNING: constraint chi2 %.4g far above its %d degrees of freedom: the data fit no stationary state of these terms well (a term missing from the template, systematic errors, or a non-stationary state)\n",
 			d.Chi2, max(d.Rows-len(d.Theta)+1, 1))
+	}
+	if !d.Converged {
+		fmt.Fprintf(&b, "WARNING: the reweighting did not settle in %d iterations (last change of a component %.3g, wanted below 1e-9): the direction is not a fixed point of the noise-weighted objective\n", d.Iterations, d.LastChange)
 	}
 	if d.Weak {
 		fmt.Fprintf(&b, "WARNING: weak signal: a resolved direction has a standard error of %.3g of the unit direction; error bars may be too small (seeded repetitions at beta x max|coeff| = 0.1 gave pull rms 2.2); more shots or a lower temperature help\n", maxFinite(d.StdErr))

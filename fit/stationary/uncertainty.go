@@ -97,6 +97,7 @@ func (res *Result) errorBars(sys *System, est *fit.Estimates, calRows []int, bas
 		for i, p := range free {
 			res.StdErr[p] = math.Sqrt(max(cov.At(i, i), 0))
 		}
+		res.freeCov, res.free = &cov, free
 		return nil
 	}
 	// Thermal match: pseudo-inverse of X off the span of the basis.
@@ -148,7 +149,12 @@ func (res *Result) errorBars(sys *System, est *fit.Estimates, calRows []int, bas
 		if g, vs, sig, err = m.directionNoise(sys, theta, &cov, dirs); err != nil {
 			return fmt.Errorf("direction noise through the thermal match: %w", err)
 		}
+		if !m.directionComplete {
+			res.Warnings = append(res.Warnings, fmt.Sprintf("the time budget (%v) let the thermal match propagate only %d of the learned direction's error directions (%.0f%% of its variance; two Gibbs-state evaluations each): the consistency test is inconclusive, and the error bars leave out the correlation of the matched scale with the other directions",
+				directionNoiseBudget, m.DirectionRank, 100*m.DirectionShare))
+		}
 	}
+	res.matchCov = &matchCovariance{cov: &cov, g: g, v: vs, sigma: sig, dirs: dirs, tCov: m.tCov}
 	for p := range np {
 		v := cov.At(p, p)
 		for j := range g {

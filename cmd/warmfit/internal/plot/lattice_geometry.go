@@ -240,10 +240,27 @@ func (g Geometry) caption() string {
 	s := fmt.Sprintf("%s: %d sites, %d NN bonds (solid), %d NNN bonds (dashed", g.Name, len(g.Coords), len(g.NN), len(g.NNN))
 	if g.NNNInteract {
 		s += ", interacting"
+	} else if len(g.NNN) > 0 {
+		s += ", no terms"
 	}
 	s += ")"
 	if len(g.Coords) > 0 && len(g.Coords[0]) == 3 {
 		s += ", z drawn obliquely"
 	}
+	if g.wraps() {
+		s += "; the stubs at the edges are bonds that wrap around the periodic boundary"
+	}
 	return s
+}
+
+// wraps says whether any bond is drawn as two stubs.
+func (g Geometry) wraps() bool {
+	for _, bonds := range [][]lattice.Bond{g.NN, g.NNN} {
+		for _, b := range bonds {
+			if _, wrapped := g.bondVector(b); wrapped {
+				return true
+			}
+		}
+	}
+	return false
 }
