@@ -316,30 +316,29 @@ func Combine(sys *System, est *fit.Estimates, d *Direction, exp ExpansionEstimat
 
 // influenceAt returns, at parameters theta (not normalised), the normal
 // matrix G = sum_a w_a M_a M_a^T (no noise correction, no penalty) and
-// the influence U[p, j] = sum_ab M_ap W_ab d r_b/d m_j of the string
+// the influence U[p, j] = sum_a w_a M_ap d r_a/d m_j of the string
 // estimates on the stationarity condition G theta = 0 (np × strings),
-// with the weights W of the solve (1/Var(r_a(theta)) per row, or the
-// inverse of the rows' full covariance); ns is the number of strings. The weights, residuals and
+// with the weights w_a = 1/Var(r_a(theta)); ns is the number of strings. The weights, residuals and
 // settings of ws are restored.
 func (ws *weighted) influenceAt(theta []float64, ns int) (g, u *mat.Dense) {
 	np := ws.np
 	savedW, savedR := append([]float64(nil), ws.w...), append([]float64(nil), ws.r...)
 	savedCorr, savedPen := ws.corr, ws.penalty
+	savedFull, savedWinv := ws.haveFull, ws.winv
 	defer func() {
 		copy(ws.w, savedW)
 		copy(ws.r, savedR)
 		ws.corr, ws.penalty = savedCorr, savedPen
+		ws.haveFull, ws.winv = savedFull, savedWinv
 	}()
 	ws.reweight(theta)
 	ws.corr, ws.penalty = noCorrection, nil
 	g = mat.NewDense(np, np, ws.dense())
-	// The influence under the same weights as G (per row, or the full
-	// covariance of the rows when the solve used it): one implementation
-	// with the error bars' sandwich.
 	u = mat.NewDense(np, ns, nil)
+	// Per-row or full-covariance weights, as G (weighted_full.go).
 	for j, col := range ws.influence(theta) {
-		for p, x := range col {
-			u.Set(int(p), int(j), x)
+		for p, v := range col {
+			u.Set(int(p), int(j), v)
 		}
 	}
 	return g, u
