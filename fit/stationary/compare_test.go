@@ -402,6 +402,9 @@ func TestWeightingEffect(t *testing.T) {
 		{scenario{name: "tfim8-1", spec: "chain:8", preset: "tfim", values: tfim, disorder: 0.3, beta: 1 / 1.3}, 20000, "cal"},
 		{scenario{name: "xxz3x3-1", spec: "square:3x3", preset: "xxz", values: xxz, disorder: 0.1, beta: 1}, 200000, "cal"},
 		{scenario{name: "xxz3x3-0.35", spec: "square:3x3", preset: "xxz", values: xxz, disorder: 0.1, beta: 0.35}, 200000, "cal"},
+		// The heavy checks' XXZ couplings (heavy_test.go) on 3x3.
+		{scenario{name: "xxzh3x3-1", spec: "square:3x3", preset: "xxz", values: map[string]float64{"Jxy": 1, "Jz": 0.6, "hz": 0.4, "hx": 0.3}, disorder: 0.2, beta: 1 / 1.2}, 20000, "cal"},
+		{scenario{name: "xxzh3x3-1-320k", spec: "square:3x3", preset: "xxz", values: map[string]float64{"Jxy": 1, "Jz": 0.6, "hz": 0.4, "hx": 0.3}, disorder: 0.2, beta: 1 / 1.2}, 320000, "cal"},
 	}
 	if f := os.Getenv("WARMFIT_STATIONARY_EFFECT_CASES"); f != "" {
 		cases = slices.DeleteFunc(cases, func(c struct {
