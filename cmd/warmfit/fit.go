@@ -118,17 +118,19 @@ writes its last iterate to OUT.unconverged.json.
 Error bars: delta method, Cov(theta) = M Cov(e) M^T with M = (A^T R A)^{-1} A^T,
 R = d<E>/d lambda at the solution, of order L or, on large lattices, L-1 (the
 report's "error_bars_response_order"; the two differ by about 1%). The lower
-orders L-2 and L-1 are fitted first, each from the solution below, and measure
-the truncation error (the larger of the last two changes
-of any coefficient: partial sums can stall for one order). With --order auto (the
-default), the order rises until that error is at most 0.1 x the median statistical
-error, until it reaches the automatic ceiling
+orders L-4 to L-1 are fitted first, each from the solution below, and estimate
+every coefficient's truncation error: its changes over those orders extrapolated
+per parity (even and odd cluster sizes contribute unequally), times a safety
+factor 2, calibrated against exact results (README). A WARNING says when some
+coefficient's estimate exceeds its stderr. With --order auto (the default), the
+order rises until the largest estimate is at most 0.1 x the median statistical
+error and the fitted expectations' series have converged, until it reaches the automatic ceiling
 (` + autoCeilingText + `;
 past that, all the sites of a small lattice when that is cheap: there the expansion is
 exact), or until the next order would take the fit past its work limit (6e10 units of D^3
 work, about a minute on the reference 2-core machine, counted from the cost model
 and the Newton iterations, so the same data give the same order on any machine);
-the report says plainly when the truncation error is larger. --budget only guards
+the report says plainly when the truncation error matters. --budget only guards
 the wall time: when this machine is too slow for it and it stops the rise first,
 a WARNING says the order is machine-dependent ("order_stopped_by_budget" in the
 report) and that a larger --budget gives the reproducible result. The report also gives the sufficient-temperature bound,
