@@ -357,7 +357,7 @@ func (run *stationaryRun) fix(tmpl *model.Model, beta float64) error {
 	var err error
 	if beta > 0 {
 		g.Beta = beta
-		g.Evaluate, source, err = stationaryEvaluator(tmpl)
+		g.Evaluate, g.Response, source, err = stationaryEvaluator(tmpl)
 		if err != nil {
 			return err
 		}
@@ -529,9 +529,9 @@ func stationaryWriteCSV(w io.Writer, terms []lattice.Term) error {
 	for _, t := range terms {
 		se := ""
 		if t.HasStderr {
-			se = strconv.FormatFloat(t.Stderr, 'g', -1, 64)
+			se = fmtExact(t.Stderr)
 		}
-		fmt.Fprintf(w, "%s,%s,%s,%s\n", t.Pauli, lattice.SitesString(t.Sites), strconv.FormatFloat(t.Coeff, 'g', -1, 64), se)
+		fmt.Fprintf(w, "%s,%s,%s,%s\n", t.Pauli, lattice.SitesString(t.Sites), fmtExact(t.Coeff), se)
 	}
 	return nil
 }
@@ -559,18 +559,19 @@ func parseCalibrations(s string) (map[string]float64, error) {
 }
 
 // stationaryEvaluator returns the term expectations of the template's
-// lattice and terms at given coefficients: exact (dense) up to
-// cluster.MaxDenseQubits qubits, the expansion at --order (5 when auto)
-// otherwise.
-func stationaryEvaluator(tmpl *model.Model) (stationary.Evaluator, string, error) {
+// lattice and terms at given coefficients, and their linear response
+// (for the direction's noise through the thermal match): exact (dense)
+// up to cluster.MaxDenseQubits qubits, the expansion at --order (5 when
+// auto) otherwise.
+func stationaryEvaluator(tmpl *model.Model) (stationary.Evaluator, stationary.ResponseEvaluator, string, error) {
 	n := tmpl.Lattice.NumSites()
 	terms := tmpl.Terms
 	if n <= cluster.MaxDenseQubits {
 		ops, err := cluster.TermPaulis(terms)
 		if err != nil {
-			return nil, "", err
+			return nil, nil, "", err
 		}
-		return func(lambda []float64, beta float64) ([]float64, error) {
+		eval := func(lambda []float64, beta float64) ([]float64, error) {
 			tt := withCoeffs(terms, lambda)
 			th, err := validate.ExactThermal(n, tt, beta)
 			if err != nil {
@@ -579,20 +580,47 @@ func stationaryEvaluator(tmpl *model.Model) (stationary.Evaluator, string, error
 			out := make([]float64, len(ops))
 			th.ExpectAll(ops, out)
 			return out, nil
-		}, "exact diagonalisation of the whole system", nil
+		}
+		resp := func(lambda []float64, beta float64) (*cluster.SparseSym, error) {
+			th, err := validate.ExactThermal(n, withCoeffs(terms, lambda), beta)
+			if err != nil {
+				return nil, err
+			}
+			k := len(ops)
+			dense := make([]float64, k*k)
+			th.Response(ops, dense)
+			out := cluster.NewSparseSym(k)
+			for a := range k {
+				for b := a; b < k; b++ {
+					if x := dense[a*k+b]; x != 0 {
+						out.Set(a, b, x)
+					}
+				}
+			}
+			return out, nil
+		}
+		return eval, resp, "exact diagonalisation of the whole system", nil
 	}
 	order := stationaryMatchOrder(tmpl)
 	exp, err := cluster.NewExpansion(tmpl.Lattice, terms)
 	if err != nil {
-		return nil, "", err
+		return nil, nil, "", err
 	}
-	return func(lambda []float64, beta float64) ([]float64, error) {
+	eval := func(lambda []float64, beta float64) ([]float64, error) {
 		r, err := exp.Evaluate(lambda, beta, cluster.Options{Order: order, Workers: fitOptions.workers})
 		if err != nil {
 			return nil, err
 		}
 		return r.Expect[len(r.Expect)-1], nil
-	}, fmt.Sprintf("the linked-cluster expansion at order %d", order), nil
+	}
+	resp := func(lambda []float64, beta float64) (*cluster.SparseSym, error) {
+		r, err := exp.Evaluate(lambda, beta, cluster.Options{Order: order, Workers: fitOptions.workers, Response: true})
+		if err != nil {
+			return nil, err
+		}
+		return r.Response, nil
+	}
+	return eval, resp, fmt.Sprintf("the linked-cluster expansion at order %d", order), nil
 }
 
 // stationaryMatchOrder is the expansion order stationaryEvaluator uses

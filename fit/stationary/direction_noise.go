@@ -41,6 +41,10 @@ const (
 //
 // Delta method on a composite estimator (common practice, from memory):
 // first order in the direction's noise, the rest of cov is kept as is.
+// With m.response the shifts are J_w sigma_j v_j from the whitened
+// Jacobian of one response evaluation, for every direction (the Gibbs
+// state's response is local: the expansion's is sparse); without it
+// each costs two evaluations and the time budget bounds their number.
 func (m *ThermalMatch) directionNoise(sys *System, theta []float64, cov *mat.Dense, dirs [][]float64) (g [][]float64, v [][]float64, sigma []float64, err error) {
 	np := len(theta)
 	sym := mat.NewSymDense(np, nil)
@@ -87,8 +91,33 @@ func (m *ThermalMatch) directionNoise(sys *System, theta []float64, cov *mat.Den
 		}
 		return out, nil
 	}
+	// With the response, u_j = J_w sigma_j v_j for every direction from
+	// one evaluation (first order, as the central differences are).
+	var jw *mat.Dense // whitened Jacobian, terms used × parameters
+	if m.response != nil {
+		th := append([]float64(nil), theta...)
+		sys.params.Expand(lambda, th)
+		resp, err := m.response(lambda, m.Beta)
+		if err != nil {
+			return nil, nil, nil, fmt.Errorf("linear response: %w", err)
+		}
+		jw = mat.NewDense(nu, np, nil)
+		for i, k := range m.use {
+			resp.DoRow(k, func(j int, x float64) {
+				q := int(sys.params.Of[j])
+				jw.Set(i, q, jw.At(i, q)+x/m.stderr[i])
+			})
+		}
+		for i := range nu {
+			for q := range np {
+				if x := jw.At(i, q); math.IsNaN(x) || math.IsInf(x, 0) {
+					return nil, nil, nil, fmt.Errorf("linear response of term %s is %v", sys.terms[m.use[i]].Key(), x)
+				}
+			}
+		}
+	}
 	maxRank := np
-	if m.Evaluations > 0 {
+	if m.Evaluations > 0 && jw == nil {
 		per := m.evalTime / time.Duration(m.Evaluations)
 		if per > 0 {
 			maxRank = min(np, max(minDirectionRank, int(directionNoiseBudget/(2*per))))
@@ -111,18 +140,22 @@ func (m *ThermalMatch) directionNoise(sys *System, theta []float64, cov *mat.Den
 		vj := mat.Col(nil, idx, &vecs)
 		step := append([]float64(nil), vj...)
 		floats.Scale(s, step)
-		fp, err := shifted(step)
-		if err != nil {
-			return nil, nil, nil, err
-		}
-		floats.Scale(-1, step)
-		fm, err := shifted(step)
-		if err != nil {
-			return nil, nil, nil, err
-		}
 		u := make([]float64, nu)
-		for i := range u {
-			u[i] = (fp[i] - fm[i]) / 2
+		if jw != nil {
+			mat.NewVecDense(nu, u).MulVec(jw, mat.NewVecDense(np, step))
+		} else {
+			fp, err := shifted(step)
+			if err != nil {
+				return nil, nil, nil, err
+			}
+			floats.Scale(-1, step)
+			fm, err := shifted(step)
+			if err != nil {
+				return nil, nil, nil, err
+			}
+			for i := range u {
+				u[i] = (fp[i] - fm[i]) / 2
+			}
 		}
 		// dt = -(J^T J)^-1 J^T u; H u = J (-dt) ... the refit absorbs J dt.
 		jtu := make([]float64, nt)

@@ -101,8 +101,10 @@
 // state that is not a Gibbs state gives the right direction but fails it.
 // Its chi² (ThermalMatch.Chi2Direction) counts the noise of the learned
 // direction, propagated through the Gibbs state along every error
-// direction (two evaluations each, within a time budget; Inconclusive
-// when the budget cut it short), as well as that of the data: a direction
+// direction (from one linear-response evaluation when Gauge.Response is
+// given; otherwise two evaluations each, within a time budget, and
+// Inconclusive when the budget cut it short; not beyond DenseLimit, with
+// a warning), as well as that of the data: a direction
 // off by its own error bars moves the term expectations by much more than
 // their shot noise. The same propagation gives the matched scale its
 // share of the direction's noise in the error bars.
@@ -143,7 +145,7 @@
 // 0.1 of the unit direction), refuses with ErrNoInformation when the
 // signal is too weak at any number of shots, and names the directions
 // no shots fix. Seeded repetitions reach the planned rms direction error
-// within 4-13% on chain:8 TFIM and 3x3 XXZ (plan_test.go).
+// within 7% on chain:8 TFIM and 3x3 XXZ (plan_test.go).
 //
 //	pl, err := stationary.PlanShots(n, terms, bases, sampler.Distribution, stationary.PlanOptions{Target: 0.02, Beta: beta})
 //	// pl.ShotsPerBasis, pl.DirectionStderr, pl.Invisible, pl.Warnings

@@ -10,6 +10,7 @@ import (
 	"gonum.org/v1/gonum/floats"
 	"gonum.org/v1/gonum/mat"
 
+	"warmfit/cluster"
 	"warmfit/fit"
 )
 
@@ -31,7 +32,18 @@ type Gauge struct {
 	// so that the Gibbs state reproduces the measured term expectations.
 	Beta     float64
 	Evaluate Evaluator
+	// Response, when set, gives the Jacobian of Evaluate in one pass
+	// (the expansion's or the exact state's linear response): the
+	// direction's noise is then propagated through the match along every
+	// error direction at the cost of one evaluation, instead of two
+	// evaluations per direction within a time budget.
+	Response ResponseEvaluator
 }
+
+// ResponseEvaluator returns d<E_k>/d lambda_j of the Gibbs state at
+// lambda and beta (terms × terms, aligned with System.Terms): sparse for
+// the expansion, whose response vanishes beyond its clusters.
+type ResponseEvaluator func(lambda []float64, beta float64) (*cluster.SparseSym, error)
 
 // Result is a learned Hamiltonian.
 type Result struct {

@@ -47,6 +47,7 @@ type ThermalMatch struct {
 	z        []float64
 	jac      [][]float64
 	evaluate Evaluator
+	response ResponseEvaluator
 	evalTime time.Duration // spent in evaluate
 	// directionComplete: every error direction was propagated.
 	directionComplete bool
@@ -175,7 +176,7 @@ func thermalMatch(sys *System, est *fit.Estimates, g Gauge, aPart []float64, nul
 		}
 	}
 	m.a, m.Chi2 = aOf(t), chi2
-	m.use, m.z, m.jac, m.evaluate = use, z, jac, g.Evaluate
+	m.use, m.z, m.jac, m.evaluate, m.response = use, z, jac, g.Evaluate, g.Response
 	m.stderr = make([]float64, len(use))
 	for i, k := range use {
 		m.stderr[i] = est.Stderr[sys.TermString[k]]
