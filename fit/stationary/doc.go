@@ -55,9 +55,11 @@
 // Delta-method error bars (Fix) sandwich the string covariance between
 // the influence of each string on the stationarity conditions and the
 // inverse normal matrix; with full weights both are the normal matrix
-// less its expected noise inflation, without which the error bars of a
-// weakly resolved system come out too small (3x3 XXZ at beta 1, 2x10^5
-// shots: pull rms 2.4 before, 1.4 after).
+// M^T W M. Removing its expected noise inflation (sandwichCorrected, off
+// by default) helps weakly resolved systems (3x3 XXZ at Jxy 0.4, beta 1,
+// 2x10^5 shots: pull rms 2.4 to 1.2-1.4) but over-corrects well
+// resolved ones (0.57 against 1.15), so error bars of weak systems
+// (Direction.Weak) remain too small by up to about 2.
 // Beyond DenseLimit the sandwich's diagonal comes from deflated conjugate
 // gradients and probing (uncertainty_sparse.go; within 1% rms of the
 // dense one at 739 parameters), and Lanczos multiplies by X assembled as

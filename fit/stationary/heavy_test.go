@@ -19,7 +19,8 @@ import (
 //	WARMFIT_STATIONARY_HEAVY=1 go test -run TestHeavyScenarios -v -timeout 100m ./fit/stationary/
 //
 // (WARMFIT_STATIONARY_HEAVY_CASES picks cases by name,
-// WARMFIT_STATIONARY_HEAVY_SEEDS sets the seeds, default 4; the cases
+// WARMFIT_STATIONARY_HEAVY_SEEDS sets the seeds, default 4,
+// WARMFIT_STATIONARY_HEAVY_SHOTS the two shot counts; the cases
 // with the same Hamiltonian share one diagonalisation).
 func TestHeavyScenarios(t *testing.T) {
 	if os.Getenv("WARMFIT_STATIONARY_HEAVY") == "" {
@@ -38,12 +39,22 @@ func TestHeavyScenarios(t *testing.T) {
 	if v, err := strconv.Atoi(os.Getenv("WARMFIT_STATIONARY_HEAVY_SEEDS")); err == nil {
 		seeds = v
 	}
+	lo, hi := 20000, 320000
+	if v := strings.Split(os.Getenv("WARMFIT_STATIONARY_HEAVY_SHOTS"), ","); len(v) == 2 {
+		// Two shot counts 16x apart, e.g. "320000,5120000" where 20000
+		// is too few (every seed refused).
+		a, err1 := strconv.Atoi(v[0])
+		b, err2 := strconv.Atoi(v[1])
+		if err1 == nil && err2 == nil {
+			lo, hi = a, b
+		}
+	}
 	for _, sc := range cases {
 		start := time.Now()
-		p1, o1, e1, c1 := pullStatsBoth(t, sc, 20000, seeds, calibrateFirst)
-		p2, o2, e2, c2 := pullStatsBoth(t, sc, 320000, seeds, calibrateFirst)
-		t.Logf("%s (%d seeds): 20000 shots/basis pull rms %.3g (plain sandwich %.3g), direction error %.4g, coefficient rms error %.4g; 320000: pull rms %.3g (plain %.3g), direction error %.4g, coefficient rms error %.4g (ratio %.3g, 1/sqrt says 4) [%.0fs]",
-			sc.name, seeds, p1, o1, e1, c1, p2, o2, e2, c2, e1/e2, time.Since(start).Seconds())
+		p1, o1, e1, c1 := pullStatsBoth(t, sc, lo, seeds, calibrateFirst)
+		p2, o2, e2, c2 := pullStatsBoth(t, sc, hi, seeds, calibrateFirst)
+		t.Logf("%s (%d seeds): %d shots/basis pull rms %.3g (plain sandwich %.3g), direction error %.4g, coefficient rms error %.4g; %d: pull rms %.3g (plain %.3g), direction error %.4g, coefficient rms error %.4g (ratio %.3g, 1/sqrt says 4) [%.0fs]",
+			sc.name, seeds, lo, p1, o1, e1, c1, hi, p2, o2, e2, c2, e1/e2, time.Since(start).Seconds())
 		if r := e1 / e2; r < 2.8 || r > 5.7 {
 			t.Errorf("%s: direction error ratio %.3g", sc.name, r)
 		}

@@ -56,8 +56,8 @@ func (res *Result) errorBars(sys *System, est *fit.Estimates, calRows []int, bas
 		}
 	})
 	// With full-covariance weights the sandwich's two parts are one
-	// matrix, the normal matrix without its noise inflation
-	// (weighted_full.go, sandwichParts).
+	// matrix, M^T W M (optionally without its noise inflation;
+	// weighted_full.go, sandwichParts).
 	if xs, ok := ws.sandwichParts(); ok {
 		x, s = xs, xs
 	}
