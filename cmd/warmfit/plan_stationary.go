@@ -108,7 +108,7 @@ func runPlanStationary(env *runEnv, m *model.Model, beta float64, bases []string
 		}
 		probs = sampler.Distribution
 	}
-	eval, evalSource, err := stationaryEvaluator(m)
+	eval, _, evalSource, err := stationaryEvaluator(m)
 	if err != nil {
 		return err
 	}
