@@ -8,9 +8,10 @@ import (
 )
 
 // For a geometric series the tail after S_L is known exactly, r^{L+1}/(1-r)
-// (closed form). The estimate must not be below the true error and not
-// wildly above it; for a series whose odd orders add nothing (as on
-// bipartite lattices) the same must hold.
+// (closed form). The estimate must not be below the true error (beyond
+// rounding: for a steady ratio it is that geometric tail) and not wildly
+// above it; for a series whose odd orders add nothing (as on bipartite
+// lattices) the same must hold.
 func TestConvergeGeometricTail(t *testing.T) {
 	for _, r := range []float64{0.1, 0.3, 0.6} {
 		for _, pairs := range []bool{false, true} {
@@ -28,7 +29,7 @@ func TestConvergeGeometricTail(t *testing.T) {
 			}
 			c := cluster.Converge(series, 1, 1e-3)
 			trueErr := math.Abs(limit - c.Value)
-			if c.Error < trueErr || c.Error > 10*trueErr {
+			if c.Error < trueErr*(1-1e-9) || c.Error > 10*trueErr {
 				t.Errorf("r=%g pairs=%v: error estimate %.3g, true error %.3g", r, pairs, c.Error, trueErr)
 			}
 			if got := cluster.Converge(series, 1, 2*c.Error).Trusted; !got {

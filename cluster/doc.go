@@ -180,4 +180,15 @@
 // reaches are the lower ends of the trusted ranges contiguous with the
 // highest temperature. A caller writing curves must pass the Trust marks
 // on: untrusted points carry the bare sum only as a placeholder.
+//
+// Site-resolved series (Result.TermConvergence, and every command's
+// trunc_error and trusted columns) are judged by Converge: its truncation
+// estimate extrapolates the last three or four steps of the series from
+// the quantity's first order on, skipping orders that add nothing, with
+// coefficients per sign pattern of the steps fitted to exact references
+// (free-fermion chains, dense patches) so that it bounds about 95% of true
+// errors while sitting about 3 times above them; guards keep it at least
+// the geometric tail of a steady ratio and at least the last step of a
+// series that stalls. README.md "Truncation estimates against exact
+// results" has the measured table.
 package cluster

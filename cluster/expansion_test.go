@@ -281,8 +281,11 @@ func TestExpansionIsingSquareOnsager(t *testing.T) {
 // true error against Onsager's exact energy, including close to T_c where
 // the bare series converges slowly (error 0.026 at T = 3, order 6), and
 // must then refuse trust. Onsager 1944; measured ratios of estimate to
-// true error are 1.15 (T = 5), 1.06 (T = 4) and 0.84 (T = 3); the band
-// [0.5, 3] leaves room without letting a blind estimate pass.
+// true error are 2.24 (T = 5), 1.65 (T = 4) and 0.97 (T = 3); the band
+// [0.5, 3] leaves room without letting a blind estimate pass. At T = 5
+// the true error (7.1e-4) is below the tolerance but the estimate
+// (1.6e-3) is not: trust is then allowed, not required, since an
+// estimate that bounds the error 95% of the time sits 2-3 times above it.
 func TestTruncationEstimateAgainstOnsager(t *testing.T) {
 	l := mustLattice(t, "square:14x14:periodic")
 	terms := transverseIsingTerms(l, 0)
@@ -291,9 +294,9 @@ func TestTruncationEstimateAgainstOnsager(t *testing.T) {
 		t.Fatal(err)
 	}
 	for _, c := range []struct {
-		T       float64
-		trusted bool // at tolerance 1e-3
-	}{{5, true}, {4, false}, {3, false}} {
+		T     float64
+		wrong bool // true error above the tolerance 1e-3: must not be trusted
+	}{{5, false}, {4, true}, {3, true}} {
 		res, err := exp.Evaluate(coeffsOf(terms), 1/c.T, cluster.Options{Order: 6})
 		if err != nil {
 			t.Fatal(err)
@@ -303,8 +306,8 @@ func TestTruncationEstimateAgainstOnsager(t *testing.T) {
 		if ratio := conv.Error / trueErr; ratio < 0.5 || ratio > 3 {
 			t.Errorf("T=%g: estimated error %.3g, true error %.3g (ratio %.2f)", c.T, conv.Error, trueErr, ratio)
 		}
-		if conv.Trusted != c.trusted {
-			t.Errorf("T=%g: trusted = %v, want %v (true error %.3g)", c.T, conv.Trusted, c.trusted, trueErr)
+		if c.wrong && conv.Trusted {
+			t.Errorf("T=%g: trusted with true error %.3g above the tolerance", c.T, trueErr)
 		}
 	}
 }

@@ -49,11 +49,13 @@
 // covariance, every coefficient converted to lambda with error bars that
 // include the scale's.
 //
-// The expansion order is the fit's main approximation. The orders L-2
-// and L-1 are fitted first, each from the solution below it, and the
-// change of the coefficients measures the truncation error, which the
-// Result compares with the statistical error; the automatic order rises
-// until truncation is negligible against statistics, within
+// The expansion order is the fit's main approximation. The orders L-4
+// to L-1 are fitted first, each from the solution below it, and the
+// changes of the coefficients, extrapolated per parity (Truncation),
+// estimate each coefficient's truncation error, which the Result
+// compares with the statistical error: a WARNING when it exceeds some
+// coefficient's standard error, and the automatic order rises until the
+// largest estimate is below a tenth of the median one, within
 // cluster.OrderPolicy's ceiling and per-evaluation work limit and the
 // fit's own limit Options.MaxFitWork on the work of all its evaluations
 // (order_work.go): work units and Newton iteration counts, so that the

@@ -249,6 +249,12 @@ func rescaleDerived(out, r *Result) {
 		out.Truncation.Steps[i] = s * inv
 	}
 	out.Truncation.Error *= inv
+	if e := r.Truncation.ParamError; e != nil {
+		out.Truncation.ParamError = make([]float64, len(e))
+		for q, x := range e {
+			out.Truncation.ParamError[q] = x * inv
+		}
+	}
 	out.Truncation.StatError *= inv
 	out.Truncation.Target *= inv
 	out.Bound = cluster.SufficientBeta(out.Terms, out.Coeffs)

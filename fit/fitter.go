@@ -446,17 +446,19 @@ func (f *fitter) fitOrderUntil(L int, theta0 []float64, deadline time.Time, from
 // the expansion equals the exact log Z.
 func (f *fitter) exactOrder(L int) bool { return L >= f.sites }
 
-// fixedOrder fits at order L. Unless SkipTruncation, the orders L-2 and
-// L-1 are fitted first, each from the solution below it: they measure the
-// truncation error, and each hands the next a start whose gradient is
-// small enough for the lower-order curvature to finish in a few steps
-// (with SkipTruncation, only L-1 and only for that).
+// fixedOrder fits at order L. Unless SkipTruncation, the orders L-4 to
+// L-1 (those that hold every term) are fitted first, each from the
+// solution below it: they measure the truncation error (two orders per
+// parity, see Truncation; the lowest are cheap next to order L), and
+// each hands the next a start whose gradient is small enough for the
+// lower-order curvature to finish in a few steps (with SkipTruncation,
+// only L-1 and only for that).
 // Only an unbroken run of converged orders ending at L enters the
 // truncation estimate.
 func (f *fitter) fixedOrder(L int, theta0 []float64) (*Result, error) {
 	var lower []*orderFit
 	theta := theta0
-	first := max(f.minL, L-2)
+	first := max(f.minL, L-truncationOrdersBelow)
 	if f.opt.SkipTruncation {
 		// No truncation estimate, but a start for the lower-order
 		// curvature: the order-(L-1) solution, at a tenth of the cost.
@@ -556,7 +558,15 @@ func (f *fitter) autoOrder(theta0 []float64, start time.Time) (*Result, error) {
 			f.opt.logf("order %d: truncation error %s against target %.3g%s (this order: %s, took %s)", L, fmtMaybe(tr.Error, tr.Known), tr.Target, units,
 				describeWork(of.work), roundDuration(of.elapsed))
 			if tr.Known && tr.OK {
-				break
+				// The coefficients have settled; the order still rises
+				// while some fitted expectation's series has not (the
+				// result would warn about it), work limit permitting.
+				_, seriesStderr := f.termStderr()
+				_, _, untrusted := f.seriesConvergence(of, seriesStderr)
+				if len(untrusted) == 0 {
+					break
+				}
+				f.opt.logf("order %d: %d expectation series not yet converged", L, len(untrusted))
 			}
 		} else {
 			// A truncated expansion can fail to be convex at one order

@@ -81,6 +81,10 @@ type ReportTruncation struct {
 	Target    float64   `json:"target"`
 	OK        bool      `json:"ok"`
 	MaxRatio  *float64  `json:"max_ratio,omitempty"`
+	// OverStderr counts the parameters whose truncation estimate exceeds
+	// their stderr; Rates are the two-order decay rates extrapolated.
+	OverStderr int       `json:"over_stderr"`
+	Rates      []float64 `json:"decay_rates,omitempty"`
 }
 
 // ReportChi2 is the goodness of fit of tied parameters.
@@ -241,6 +245,12 @@ func NewReport(r *Result, mode OrderMode, dataKind DataKind, dataFile string, to
 	}
 	if t.MaxRatio > 0 {
 		rep.Truncation.MaxRatio = finitePtr(t.MaxRatio)
+	}
+	rep.Truncation.OverStderr = t.OverStderr
+	for _, x := range t.Rates {
+		if !math.IsNaN(x) && !math.IsInf(x, 0) {
+			rep.Truncation.Rates = append(rep.Truncation.Rates, x)
+		}
 	}
 	if r.Dof > 0 {
 		rep.Chi2 = &ReportChi2{

@@ -115,6 +115,39 @@ const betaUnknownNote = "beta not given: the coefficients are the products beta*
 // data (there is no data noise to compare with).
 const exactSeriesTol = 1e-6
 
+// seriesConvergence judges every term's expectation series at the
+// solution of one order against a tenth of its data stderr (nil when the
+// evaluation kept no per-order series).
+func (f *fitter) seriesConvergence(of *orderFit, seriesStderr []float64) (conv []cluster.Convergence, tols []float64, untrusted []int) {
+	raw := of.out.state.ev.raw
+	if raw == nil {
+		return nil, nil, nil
+	}
+	K := len(f.prob.Terms)
+	conv = make([]cluster.Convergence, K)
+	tols = make([]float64, K)
+	series := make([]float64, raw.Order)
+	for k, t := range f.prob.Terms {
+		for o := range series {
+			series[o] = raw.Expect[o][k]
+		}
+		tol := 0.1 * seriesStderr[k]
+		if tol == 0 {
+			tol = exactSeriesTol
+		}
+		tols[k] = tol
+		c := cluster.Converge(series, len(t.Sites), tol)
+		if f.exactOrder(of.order) {
+			c.Trusted = true
+		}
+		conv[k] = c
+		if !c.Trusted {
+			untrusted = append(untrusted, k)
+		}
+	}
+	return conv, tols, untrusted
+}
+
 // finish assembles the result of the fit at main (the answer) with the
 // fits at lower orders in history (sorted by order, main last).
 func (f *fitter) finish(main *orderFit, history []*orderFit, notes []string) (*Result, error) {
@@ -204,34 +237,12 @@ func (f *fitter) finish(main *orderFit, history []*orderFit, notes []string) (*R
 	if r.Converged {
 		r.Truncation = f.truncation(history, statErr)
 		if r.ThetaStderr != nil {
-			r.Truncation.perParameterRatio(history, r.ThetaStderr)
+			r.Truncation.perParameterRatio(r.ThetaStderr)
 		}
 	}
 
 	// Convergence of every term's expectation series at the solution.
-	if raw := st.ev.raw; raw != nil {
-		r.Series = make([]cluster.Convergence, K)
-		r.SeriesTol = make([]float64, K)
-		series := make([]float64, raw.Order)
-		for k, t := range f.prob.Terms {
-			for o := range series {
-				series[o] = raw.Expect[o][k]
-			}
-			tol := 0.1 * seriesStderr[k]
-			if tol == 0 {
-				tol = exactSeriesTol
-			}
-			r.SeriesTol[k] = tol
-			c := cluster.Converge(series, len(t.Sites), tol)
-			if f.exactOrder(main.order) {
-				c.Trusted = true
-			}
-			r.Series[k] = c
-			if !c.Trusted {
-				r.Untrusted = append(r.Untrusted, k)
-			}
-		}
-	}
+	r.Series, r.SeriesTol, r.Untrusted = f.seriesConvergence(main, seriesStderr)
 	r.Bound = cluster.SufficientBeta(r.Terms, st.lambda)
 
 	if f.params.Tied() && r.Converged {
@@ -260,12 +271,22 @@ func (f *fitter) addWarnings(r *Result) {
 		r.Notes = append(r.Notes, fmt.Sprintf("order %d covers all %d sites: the expansion is exact, no truncation error", r.Order, f.sites))
 	case !tr.Known:
 		r.Warnings = append(r.Warnings, fmt.Sprintf("truncation error unknown: no lower order than %d could be fitted to compare with (the smallest order holding every term is %d)", r.Order, f.minL))
-	case !tr.OK && tr.StatError > 0 && f.opt.TruncationTarget <= 0:
-		fraction := f.opt.TruncationFraction
-		r.addScaleWarning(func(r *Result) string {
-			return fmt.Sprintf("truncation error %.3g exceeds %g x statistical error %.3g%s: the temperature may be too low for this order (%d)",
-				r.Truncation.Error, fraction, r.Truncation.StatError, r.unitsNote(), r.Order)
-		})
+	case tr.StatError > 0 && f.opt.TruncationTarget <= 0:
+		// Against statistics the warning asks whether truncation moves a
+		// coefficient by more than its error bar; the target (a tenth of
+		// the median stderr) only decides how far the automatic order
+		// rises.
+		switch {
+		case tr.OverStderr > 0:
+			r.addScaleWarning(func(r *Result) string {
+				return fmt.Sprintf("truncation error %.3g exceeds the standard error of %d of %d parameters (up to %.3g times; median statistical error %.3g%s): the temperature may be too low for this order (%d)",
+					r.Truncation.Error, r.Truncation.OverStderr, len(r.Truncation.ParamError), r.Truncation.MaxRatio, r.Truncation.StatError, r.unitsNote(), r.Order)
+			})
+		case !tr.OK:
+			// Dimensionless, so that ScaleEnergy need not rewrite it.
+			r.Notes = append(r.Notes, fmt.Sprintf("the truncation error is above the target (%g x the median statistical error) but below every parameter's standard error (at most %.2f of it): a higher order would move no coefficient beyond its error bar",
+				f.opt.TruncationFraction, tr.MaxRatio))
+		}
 	case !tr.OK:
 		r.addScaleWarning(func(r *Result) string {
 			return fmt.Sprintf("truncation error %.3g exceeds the target %.3g%s: the temperature may be too low for this order (%d)",

@@ -90,10 +90,10 @@ func init() {
 	})
 }
 
-const bulkLong = `Bulk fits the few uniform couplings of a spin-1/2 model to bulk thermodynamic curves
-of a magnetic material: the molar susceptibility chi(T), the specific heat C(T) and the
-magnetisation M(H) at fixed T. The model, in the materials convention (S = sigma/2,
-energies in kelvin, J > 0 antiferromagnetic), is
+const bulkLong = `Materials mode: the few uniform couplings of a spin-1/2 model are fitted to bulk
+thermodynamic curves of a magnetic material: the molar susceptibility chi(T), the
+specific heat C(T) and the magnetisation M(H) at fixed T. The model, in the materials
+convention (S = sigma/2, energies in kelvin, J > 0 antiferromagnetic), is
 
     H = J sum_<ij> (S^x S^x + S^y S^y + Delta S^z S^z) + J2 sum_<<ij>> S_i.S_j - g mu_B B sum_i S^z_i
 

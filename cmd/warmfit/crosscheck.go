@@ -32,6 +32,7 @@ type crosscheckFlags struct {
 	out        string
 	svg        string
 	csv        csvFlags
+	budget     time.Duration
 	flags      *pflag.FlagSet
 }
 
@@ -41,18 +42,18 @@ func init() {
 		Name:  "crosscheck",
 		Short: "the expansion against exact results on patches cut from a model",
 		Usage: "warmfit crosscheck --model M.json (--shape WxH | --sites LIST ...) [--tol T] [--format csv|json] [-o FILE] [--svg FILE]",
-		Long: `Crosscheck tests whether the linked-cluster expansion can be trusted for a model at
-its temperature, by comparing it with exact results where both can be computed. (It is
+		Long: `Can the linked-cluster expansion be trusted for this model at its temperature? The
+answer comes from comparing it with exact results where both can be computed. (It is
 not "warmfit model --check", which only validates a model file.)
 
 It cuts patches out of the model: every box of --shape unit cells (on a periodic lattice
 every origin, boxes may wrap; on an open one the boxes that fit), or the site sets given
 by --sites, one patch per flag (comma-separated sites, ranges a-b allowed). Without
-either, a model of at most 24 sites is checked whole. A patch keeps the terms whose sites
+either, a model of at most ` + fmt.Sprint(typicalityQubits) + ` sites is checked whole. A patch keeps the terms whose sites
 all lie inside it, with open boundaries where it ends. On each patch every term's
 expectation is computed by the expansion at orders 1, 2, ... and exactly: by dense
 diagonalisation up to --dense-qubits sites (default 11), by thermal typicality with
-random vectors up to 24 sites (--vectors, default 16; the values then carry statistical
+random vectors up to ` + fmt.Sprint(typicalityQubits) + ` sites (--vectors, default 16; the values then carry statistical
 errors). A value agrees when |expansion - exact| <= --tol + 2 x its own reference standard
 error. An order where some value misses is "disagrees" when a miss exceeds what the
 reference noise explains among that many values, otherwise "noisy": the references are too
@@ -95,6 +96,7 @@ warmfit crosscheck --model device.json --shape 4x4 --max-patches 2 --beta 0.6 --
 			fs.IntVar(&o.vectors, "vectors", 0, "random vectors for thermal typicality (default 16)")
 			fs.Uint64Var(&o.seed, "seed", 1, "seed of the random vectors")
 			addWorkersFlag(fs, &o.workers)
+			addBudgetFlag(fs, &o.budget)
 			fs.StringVar((*string)(&o.format), "format", string(formatCSV), "csv (the per-order table) or json (with every value)")
 			addOutputFlag(fs, &o.out, "the result")
 			fs.StringVar(&o.svg, "svg", "", "draw the difference against the order into `FILE` (SVG)")
@@ -103,10 +105,6 @@ warmfit crosscheck --model device.json --shape 4x4 --max-patches 2 --beta 0.6 --
 		Run: func(env *runEnv, args []string) error { return runCrosscheck(env, &o, args) },
 	})
 }
-
-// maxCrosscheckQubits is the largest patch crosscheck accepts: thermal
-// typicality beyond it costs more than a check should.
-const maxCrosscheckQubits = 24
 
 func runCrosscheck(env *runEnv, o *crosscheckFlags, args []string) error {
 	if len(args) > 0 {
@@ -153,8 +151,16 @@ func runCrosscheck(env *runEnv, o *crosscheckFlags, args []string) error {
 		return err
 	}
 	for _, s := range sets {
-		if len(s) > maxCrosscheckQubits {
-			return usagef("patch %s has %d sites; exact references reach %d (use a smaller --shape)", siteList(s), len(s), maxCrosscheckQubits)
+		if len(s) > typicalityQubits {
+			return usagef("patch %s has %d sites; exact references reach %d (use a smaller --shape)", siteList(s), len(s), typicalityQubits)
+		}
+	}
+	if err := checkBudgetFlag(o.budget); err != nil {
+		return err
+	}
+	if e, ok := crosscheckTypicalityEstimate(m, beta, sets, o); ok {
+		if err := admit(env.Stderr, "crosscheck", e, o.budget); err != nil {
+			return err
 		}
 	}
 	opt := validate.CrosscheckOptions{
@@ -170,7 +176,7 @@ func runCrosscheck(env *runEnv, o *crosscheckFlags, args []string) error {
 	if err != nil {
 		return err
 	}
-	fmt.Fprintf(env.Stderr, "crosscheck: %d patches, orders 1..%d, in %s\n", len(res.Patches), len(res.Orders), time.Since(start).Round(time.Millisecond))
+	fmt.Fprintf(env.Stderr, "crosscheck: %d patch%s, orders 1..%d, in %s\n", len(res.Patches), pluralES(len(res.Patches)), len(res.Orders), time.Since(start).Round(time.Millisecond))
 	for _, v := range res.Verdict {
 		fmt.Fprintln(env.Stderr, v)
 	}
@@ -191,6 +197,48 @@ func runCrosscheck(env *runEnv, o *crosscheckFlags, args []string) error {
 		}
 	}
 	return nil
+}
+
+// crosscheckTypicalityEstimate predicts the thermal typicality of the
+// patches past --dense-qubits (the references that can take long), by the
+// one typicality cost model; ok is false when every patch is dense.
+func crosscheckTypicalityEstimate(m *model.Model, beta float64, sets [][]int, o *crosscheckFlags) (e workEstimate, ok bool) {
+	vectors := o.vectors
+	if vectors == 0 {
+		vectors = defaultTypicalityVectors
+	}
+	count, largest := 0, 0
+	for _, s := range sets {
+		if len(s) <= o.dense {
+			continue
+		}
+		in := map[int]bool{}
+		for _, q := range s {
+			in[q] = true
+		}
+		terms, norm1 := 0, 0.0
+		for _, t := range m.Terms {
+			inside := true
+			for _, q := range t.Sites {
+				inside = inside && in[q]
+			}
+			if inside {
+				terms++
+				norm1 += math.Abs(t.Coeff)
+			}
+		}
+		pe := typicalityEstimate(len(s), vectors, terms, norm1, beta)
+		e.Duration += pe.Duration
+		e.Bytes = max(e.Bytes, pe.Bytes)
+		count++
+		largest = max(largest, len(s))
+	}
+	if count == 0 {
+		return e, false
+	}
+	e.What = fmt.Sprintf("thermal typicality of %d patch(es) of up to %d qubits with %d random vectors", count, largest, vectors)
+	e.Flag = "--shape or --vectors"
+	return e, true
 }
 
 // crosscheckPatches returns the site sets to check and a phrase saying
@@ -230,7 +278,7 @@ func crosscheckPatches(m *model.Model, o *crosscheckFlags) ([][]int, string, err
 			how = fmt.Sprintf("%d of the %d patches of shape %s", len(sets), all, o.shape)
 		}
 		return sets, how, nil
-	case n <= maxCrosscheckQubits:
+	case n <= typicalityQubits:
 		all := make([]int, n)
 		for i := range all {
 			all[i] = i

@@ -53,14 +53,10 @@ func writeCrosscheckCSV(w io.Writer, r *validate.CrosscheckResult) error {
 	fmt.Fprintln(bw, crosscheckCSVHeader)
 	for _, oc := range r.Orders {
 		fmt.Fprintf(bw, "%d,%d,%s,%s,%s,%v,%v,%s,%d,%d,%s\n", oc.Order, oc.Values,
-			csvFloat(oc.MaxDiff), csvFloat(oc.RMSDiff), csvFloat(oc.Noise), oc.Exact, oc.Agrees, oc.Status, oc.Judged, oc.Covered, csvFloat(oc.MedianRatio))
+			fmtExact(oc.MaxDiff), fmtExact(oc.RMSDiff), fmtExact(oc.Noise), oc.Exact, oc.Agrees, oc.Status, oc.Judged, oc.Covered, fmtExact(oc.MedianRatio))
 	}
 	return bw.Flush()
 }
-
-// csvFloat writes a finite value exactly enough to read back; the
-// crosscheck's differences are always finite (validate refuses others).
-func csvFloat(v float64) string { return formatG(v, 10) }
 
 // crosscheckMethods says which exact methods made the references.
 func crosscheckMethods(r *validate.CrosscheckResult) string {

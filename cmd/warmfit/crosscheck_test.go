@@ -231,7 +231,8 @@ func TestCrosscheckUsageErrors(t *testing.T) {
 		{[]string{"--model", small, "--vectors", "1"}, "--vectors"},
 		{[]string{"--model", small, "--format", "xml"}, "--format"},
 		{[]string{"--model", big}, "give --shape"},
-		{[]string{"--model", big, "--shape", "5x5"}, "25 sites"},
+		{[]string{"--model", big, "--shape", "6x5"}, "30 sites"},
+		{[]string{"--model", big, "--shape", "5x5"}, "--budget"},
 	} {
 		args := append([]string{"crosscheck"}, c.args...)
 		code, _, stderr := runCmd(append(args, "-o", out)...)

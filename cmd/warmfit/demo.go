@@ -47,7 +47,7 @@ func init() {
 	})
 }
 
-const demoLong = `Demo runs the whole job on a made-up calibration problem and writes a report: a
+const demoLong = `The whole job, run on a made-up calibration problem, with a report at the end: a
 lab operates an analog quantum simulator, a square array of coupled qubits with XXZ
 exchange on every bond and X and Z fields on every site, each coefficient off its
 design value by a seeded random amount, held at an effective temperature 1/beta.

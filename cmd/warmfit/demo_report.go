@@ -19,6 +19,10 @@ type mdWriter struct{ strings.Builder }
 
 func (m *mdWriter) p(format string, args ...any) { fmt.Fprintf(&m.Builder, format, args...) }
 
+// mdCell escapes the text of one table cell: a bare '|' would end the
+// cell, so it is written as the HTML entity &#124;, as README's tables do.
+func mdCell(s string) string { return strings.ReplaceAll(s, "|", "&#124;") }
+
 // writeReport writes report.md.
 func (d *demoRun) writeReport() error {
 	return d.write("report.md", func(w io.Writer) error {
@@ -70,10 +74,10 @@ func (d *demoRun) reportScenario(m *mdWriter) {
 	m.p("independent calibration (without it, `warmfit fit` learns the products beta x coefficient).\n\n")
 	m.p("| parameter | design value | meaning |\n|---|---|---|\n")
 	for _, q := range sc.Params {
-		m.p("| %s | %s | %s |\n", q.Name, fmtFloat(q.Value), q.Doc)
+		m.p("| %s | %s | %s |\n", mdCell(q.Name), fmtFloat(q.Value), mdCell(q.Doc))
 	}
 	m.p("| disorder | +-%s | uniform shift of every coefficient, seed %d |\n", fmtFloat(sc.Disorder), sc.Seed)
-	m.p("| beta | %s | inverse temperature; beta x max|coefficient| = %.3f |\n", fmtFloat(sc.Beta), sc.Beta*d.maxTrueCoeff())
+	m.p("| beta | %s | inverse temperature; beta x max&#124;coefficient&#124; = %.3f |\n", fmtFloat(sc.Beta), sc.Beta*d.maxTrueCoeff())
 	m.p("| shots | %d per basis | measurement budget |\n\n", sc.Shots)
 	if sc.Quick {
 		m.p("This is the --quick variant (a %dx%d array).\n\n", sc.Width, sc.Height)
@@ -149,9 +153,9 @@ func (d *demoRun) reportRecovery(m *mdWriter) {
 	}
 	m.p("\n|---|---|%s\n", strings.Repeat("---|", len(fits)-1))
 	row := func(name string, cell func(f *demoFit, r *demoRecovery) string) {
-		m.p("| %s |", name)
+		m.p("| %s |", mdCell(name))
 		for _, f := range fits {
-			m.p(" %s |", cell(f, f.Recovery))
+			m.p(" %s |", mdCell(cell(f, f.Recovery)))
 		}
 		m.p("\n")
 	}

@@ -233,12 +233,5 @@ func (s *demoScenario) sweepGrid() (lo, hi float64, points int) {
 // LO..HI --points N": N evenly spaced values, both ends included.
 func (s *demoScenario) sweepBetas() []float64 {
 	lo, hi, n := s.sweepGrid()
-	betas := make([]float64, n)
-	for i := range betas {
-		betas[i] = lo
-		if n > 1 {
-			betas[i] = lo + (hi-lo)*float64(i)/float64(n-1)
-		}
-	}
-	return betas
+	return betaGrid(lo, hi, n)
 }

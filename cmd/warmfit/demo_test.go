@@ -128,6 +128,28 @@ func checkDemoFiles(t *testing.T, dir string) {
 	}
 }
 
+// checkMarkdownTables: every row of a table has as many cells as the
+// table's header, so no bare '|' inside a cell splits it (cells escape it
+// as &#124;; GitHub-flavoured Markdown tables, from memory).
+func checkMarkdownTables(t *testing.T, name, doc string) {
+	t.Helper()
+	cells := func(line string) int { return strings.Count(line, "|") - 1 }
+	want := 0
+	for i, line := range strings.Split(doc, "\n") {
+		if !strings.HasPrefix(line, "|") {
+			want = 0
+			continue
+		}
+		if want == 0 {
+			want = cells(line)
+			continue
+		}
+		if got := cells(line); got != want {
+			t.Errorf("%s:%d: %d table cells, the header has %d (unescaped '|'?): %s", name, i+1, got, want, line)
+		}
+	}
+}
+
 func checkDemoReport(t *testing.T, dir, stdout, stderr string) {
 	t.Helper()
 	report, err := os.ReadFile(filepath.Join(dir, "report.md"))
@@ -149,6 +171,7 @@ func checkDemoReport(t *testing.T, dir, stdout, stderr string) {
 			t.Errorf("report.md contains %q", bad)
 		}
 	}
+	checkMarkdownTables(t, "report.md", string(report))
 	if !strings.Contains(stdout, "array fit") || !strings.Contains(stdout, "report.md") || !strings.Contains(stdout, "every check passed") {
 		t.Errorf("stdout summary lacks the key lines:\n%s", stdout)
 	}

@@ -51,11 +51,14 @@ func fitVerdicts(rep *fit.Report) []demoVerdict {
 	case !tr.Known:
 		v = append(v, demoVerdict{OK: false, Text: "Array fit: the truncation error is unknown (no lower order to compare with)."})
 	case tr.OK:
-		v = append(v, demoVerdict{OK: true, Text: fmt.Sprintf("Array fit: truncation under control: the coefficients moved by at most %s between the last orders, under the target %s (a tenth of the median statistical error %s).",
+		v = append(v, demoVerdict{OK: true, Text: fmt.Sprintf("Array fit: truncation under control: the largest estimated truncation error of a coefficient is %s, under the target %s (a tenth of the median statistical error %s).",
 			fmtMaybePtr(tr.Error), fmtG3(tr.Target), fmtG3(tr.StatError))})
+	case tr.OverStderr == 0 && tr.StatError > 0:
+		v = append(v, demoVerdict{OK: true, Text: fmt.Sprintf("Array fit: the truncation error %s is above its target %s but below every coefficient's standard error: it moves no coefficient beyond its error bar.",
+			fmtMaybePtr(tr.Error), fmtG3(tr.Target))})
 	default:
-		v = append(v, demoVerdict{OK: false, Text: fmt.Sprintf("Array fit: the truncation error %s exceeds its target %s: the temperature is too low for order %d, the coefficients carry a systematic error comparable to their error bars.",
-			fmtMaybePtr(tr.Error), fmtG3(tr.Target), rep.Order)})
+		v = append(v, demoVerdict{OK: false, Text: fmt.Sprintf("Array fit: the truncation error %s exceeds its target %s and the standard error of %d coefficients: the temperature is too low for order %d, the coefficients carry a systematic error comparable to their error bars.",
+			fmtMaybePtr(tr.Error), fmtG3(tr.Target), tr.OverStderr, rep.Order)})
 	}
 	return v
 }

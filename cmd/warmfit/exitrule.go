@@ -11,9 +11,11 @@ import (
 // exitRule is the one statement of warmfit's exit status; README.md and
 // "warmfit help" quote it (a test checks that README does).
 const exitRule = `Exit status: 0 the result was written, trusted or with WARNING lines (on stderr and
-in the file) where it may mislead; 1 failure: no result (unreadable or bad input,
-numerical failure, a fit that did not converge), or any WARNING under --strict;
-2 usage error (bad flags or arguments; nothing was written).`
+in the file) where it may mislead; 1 failure: the work was attempted and gave no result
+(unreadable or bad input, numerical failure, a fit that did not converge), or any WARNING
+under --strict; 2 usage error: nothing was attempted or written, because the flags or
+arguments are wrong or ask for more than can be done (a method past its size limit, a
+run over --budget or the memory; the message names the flag to change).`
 
 // strictUsage is the help line of --strict, which every command has.
 const strictUsage = "exit 1 when any WARNING was printed (the result is still written)"

@@ -183,3 +183,38 @@ func TestSweepVerdictNamesTheLastTrustedBeta(t *testing.T) {
 		t.Errorf("a fully trusted sweep warns: %q", v)
 	}
 }
+
+// TestRefusedRequestsAreUsageErrors: a request the flags make that is
+// refused before any work starts (a method past its size limit, a run
+// over --budget) exits 2, like every other usage error (exitRule), and
+// is refused before the command prints what it is about to do.
+func TestRefusedRequestsAreUsageErrors(t *testing.T) {
+	dir := t.TempDir()
+	big := filepath.Join(dir, "big.json")
+	if code, _, errs := runCmd("model", "--lattice", "square:6x6", "--preset", "xxz", "--set", "Jxy=0.2,Jz=0.15,hz=0.4,hx=0.2", "--beta", "0.35", "-o", big); code != exitOK {
+		t.Fatalf("model: exit %d: %s", code, errs)
+	}
+	chain := filepath.Join(dir, "chain.json")
+	if code, _, errs := runCmd("model", "--lattice", "chain:10", "--preset", "tfim", "--beta", "0.5", "-o", chain); code != exitOK {
+		t.Fatalf("model: exit %d: %s", code, errs)
+	}
+	for _, tc := range []struct {
+		args    []string
+		want    string // in the message
+		notSaid string // a plan line that must not come first
+	}{
+		{[]string{"sample", "--model", chain, "--shots", "1000000000", "--generator", "exact"}, "--budget", "sample: 10 qubits"},
+		{[]string{"sample", "--model", big, "--shots", "100", "--generator", "exact"}, "--generator exact", "sample: 36 qubits"},
+		{[]string{"sample", "--model", big, "--shots", "100", "--bases", "covering:3", "--generator", "binomial"}, "covering:3", "sample: 36 qubits"},
+		{[]string{"predict", "--model", big, "--method", "exact"}, "--method exact", "exact:"},
+		{[]string{"predict", "--model", big, "--order", "9", "--budget", "1s"}, "--budget", "predict: linked-cluster"},
+	} {
+		code, out, errs := runCmd(tc.args...)
+		if code != exitUsage || !strings.Contains(errs, tc.want) || out != "" {
+			t.Errorf("warmfit %s: exit %d, want %d naming %s\n%s", strings.Join(tc.args, " "), code, exitUsage, tc.want, errs)
+		}
+		if strings.Contains(errs, tc.notSaid) {
+			t.Errorf("warmfit %s: printed %q before refusing\n%s", strings.Join(tc.args, " "), tc.notSaid, errs)
+		}
+	}
+}

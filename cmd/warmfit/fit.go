@@ -1,6 +1,7 @@
 package main
 
 import (
+	"bytes"
 	"encoding/csv"
 	"fmt"
 	"io"
@@ -68,7 +69,7 @@ func init() {
 			addBetaFlag(fs, &o.beta, "inverse temperature (overrides the template's; without either, beta*lambda is fitted)")
 			o.beta.omitted = betaOmittedFits
 			addOrderFlag(fs, &o.order, "expansion order (largest cluster), or auto")
-			fs.IntVar(&o.maxOrder, "max-order", 0, "highest order --order auto may use (default: sites, at most 12)")
+			fs.IntVar(&o.maxOrder, "max-order", 0, "highest order --order auto may use (default: the automatic ceiling, "+autoCeilingText+")")
 			addBudgetFlag(fs, &o.budget)
 			fs.StringVar(&o.truth, "truth", "", "true model `FILE`: report z-scores and L2/Linf errors against it")
 			fs.StringVar(&o.scale, "scale-from", "", "without beta: fix the energy scale from `TERM=VALUE` (a calibrated coefficient, e.g. \"ZZ 0 1=0.25\") or beta=B; VALUE may be V+-ERR")
@@ -90,8 +91,8 @@ func init() {
 	})
 }
 
-const fitLong = `Fit finds the coefficients lambda of H = sum_k lambda_k E_k whose Gibbs state
-exp(-beta H)/Z reproduces the measured expectation values e_k, by minimising the
+const fitLong = `The coefficients lambda of H = sum_k lambda_k E_k are those whose Gibbs state
+exp(-beta H)/Z reproduces the measured expectation values e_k, found by minimising the
 convex maximum-entropy dual G(lambda) = log Z(lambda) + beta sum_k lambda_k e_k with
 log Z from the numerical linked-cluster expansion. Newton steps are solved by
 conjugate gradients on the sparse Hessian and damped by a line search on G. On
@@ -117,16 +118,19 @@ writes its last iterate to OUT.unconverged.json.
 Error bars: delta method, Cov(theta) = M Cov(e) M^T with M = (A^T R A)^{-1} A^T,
 R = d<E>/d lambda at the solution, of order L or, on large lattices, L-1 (the
 report's "error_bars_response_order"; the two differ by about 1%). The lower
-orders L-2 and L-1 are fitted first, each from the solution below, and measure
-the truncation error (the larger of the last two changes
-of any coefficient: partial sums can stall for one order). With --order auto (the
-default), the order rises until that error is at most 0.1 x the median statistical
-error, the order reaches the automatic ceiling (8 in two dimensions, or the number of
-sites of a small lattice, where the expansion is exact), or the next order would take
-the fit past its work limit (6e10 units of D^3
+orders L-4 to L-1 are fitted first, each from the solution below, and estimate
+every coefficient's truncation error: its changes over those orders extrapolated
+per parity (even and odd cluster sizes contribute unequally), times a safety
+factor 2, calibrated against exact results (README). A WARNING says when some
+coefficient's estimate exceeds its stderr. With --order auto (the default), the
+order rises until the largest estimate is at most 0.1 x the median statistical
+error and the fitted expectations' series have converged, until it reaches the automatic ceiling
+(` + autoCeilingText + `;
+past that, all the sites of a small lattice when that is cheap: there the expansion is
+exact), or until the next order would take the fit past its work limit (6e10 units of D^3
 work, about a minute on the reference 2-core machine, counted from the cost model
 and the Newton iterations, so the same data give the same order on any machine);
-the report says plainly when the truncation error is larger. --budget only guards
+the report says plainly when the truncation error matters. --budget only guards
 the wall time: when this machine is too slow for it and it stops the rise first,
 a WARNING says the order is machine-dependent ("order_stopped_by_budget" in the
 report) and that a larger --budget gives the reproducible result. The report also gives the sufficient-temperature bound,
@@ -136,9 +140,6 @@ tied groups, and, with --truth, z-scores and L2/Linf errors.
 Structure learning: every coefficient gets "significant": true/false from the
 two-sided z = |coeff|/stderr with the Benjamini-Hochberg rule at false-discovery
 rate --fdr (default q = 0.05).
-
-Without beta (neither --beta nor the template's), the products beta*lambda are
-fitted and written with beta = 1; the report says so.
 
 ` + scaleFromHelp + `
 
@@ -169,7 +170,7 @@ func runFit(env *runEnv, args []string) error {
 	if err := checkOutputs(withCSV("-o", o.out, o.csv), o.model, o.data, o.truth); err != nil {
 		return err
 	}
-	tmpl, err := model.ReadFile(o.model)
+	tmpl, err := readModelFlag("--model", o.model, "the template model")
 	if err != nil {
 		return err
 	}
@@ -184,14 +185,19 @@ func runFit(env *runEnv, args []string) error {
 	if err != nil {
 		return err
 	}
-	if err := admitFit(env, &o, tmpl, order); err != nil {
+	// A request past the limits is refused before the data are read, but
+	// the estimate line waits for the data to parse: a file that does not
+	// parse fails before any line about the work to come.
+	var estimate bytes.Buffer
+	if err := admitFit(&runEnv{Stdout: env.Stdout, Stderr: &estimate, Stdin: env.Stdin}, &o, tmpl, order); err != nil {
+		env.Stderr.Write(estimate.Bytes())
 		return err
 	}
-
 	est, dataSummary, err := fit.LoadEstimates(o.data, tmpl.Lattice, tmpl.Terms, fit.CovarianceOptions{Distance: o.covDist})
 	if err != nil {
 		return err
 	}
+	env.Stderr.Write(estimate.Bytes())
 	kind := dataSummary.Kind
 	opt, bar := fitRunOptions(env, &o, tmpl, order)
 	announceFit(env, &o, tmpl, kind, beta, betaSource, calibration)
@@ -321,7 +327,7 @@ func readFitTruth(o *fitFlags, tmpl *model.Model) (*model.Model, error) {
 	if o.truth == "" {
 		return nil, nil
 	}
-	truth, err := model.ReadFile(o.truth)
+	truth, err := readModelFlag("--truth", o.truth, "the true model")
 	if err != nil {
 		return nil, err
 	}
@@ -525,18 +531,18 @@ func fitWriteCSV(w io.Writer, res *fit.Result, cmp *fit.TruthComparison) error {
 		}
 		se, sig := "", ""
 		if t.HasStderr {
-			se = strconv.FormatFloat(t.Stderr, 'g', -1, 64)
+			se = fmtExact(t.Stderr)
 		}
 		if res.Significance != nil {
 			sig = strconv.FormatBool(res.Significance.Significant[res.Params.Of[k]])
 		}
-		rec := []string{t.Pauli, lattice.SitesString(t.Sites), strconv.FormatFloat(t.Coeff, 'g', -1, 64), se, sig}
+		rec := []string{t.Pauli, lattice.SitesString(t.Sites), fmtExact(t.Coeff), se, sig}
 		if cmp != nil {
 			z := ""
 			if v := cmp.Z[k]; !math.IsNaN(v) && !math.IsInf(v, 0) {
 				z = fmtExact(v)
 			}
-			rec = append(rec, strconv.FormatFloat(cmp.True[k], 'g', -1, 64), z)
+			rec = append(rec, fmtExact(cmp.True[k]), z)
 		}
 		if err := cw.Write(rec); err != nil {
 			return err
@@ -567,8 +573,16 @@ func fitSummary(w io.Writer, res *fit.Result, rep *fit.Report, cmp *fit.TruthCom
 	if res.Exact {
 		grad = "mean residual " + fmtG3(res.GradientAbs) + " (exact data)"
 	}
-	p("%s at order %d (%s selection, orders %v) after %s, %s, %.1fs",
-		status, res.Order, rep.OrderMode, rep.Truncation.Orders, newtonIterations(res.TotalIterations, res.Iterations, res.Order), grad, res.Elapsed.Seconds())
+	how := "order given by --order"
+	if rep.OrderMode == "auto" {
+		word := "orders"
+		if len(rep.Truncation.Orders) == 1 {
+			word = "order"
+		}
+		how = "order chosen automatically; fitted at " + word + " " + joinInts(rep.Truncation.Orders, ", ")
+	}
+	p("%s at order %d (%s) after %s, %s, %.1fs",
+		status, res.Order, how, newtonIterations(res.TotalIterations, res.Iterations, res.Order), grad, res.Elapsed.Seconds())
 	p("%d terms, %d fitted parameters", len(res.Terms), res.Params.NumParams())
 	if n := len(res.Unmeasured); n > 0 {
 		p("%d terms had no data and were fitted through their group (moment matching on measured members)", n)
@@ -581,7 +595,7 @@ func fitSummary(w io.Writer, res *fit.Result, rep *fit.Report, cmp *fit.TruthCom
 	case tr.Exact:
 		p("truncation: none, the order covers the whole lattice")
 	case tr.Known:
-		p("truncation error %s (largest change of a coefficient over the last orders) vs target %s", fmtG3(tr.Error), fmtG3(tr.Target))
+		p("truncation error %s (largest of a coefficient, extrapolated from the changes over the last orders) vs target %s (from the final error bars; each order line above compared with the target of its own fit); %d parameters with truncation error above their stderr", fmtG3(tr.Error), fmtG3(tr.Target), tr.OverStderr)
 	case res.Converged:
 		p("truncation error unknown")
 	}

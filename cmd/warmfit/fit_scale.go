@@ -18,7 +18,8 @@ import (
 // from one calibrated coefficient or a known beta (fit.ScaleEnergy), and
 // everything written without it is labelled beta*lambda.
 
-const scaleFromHelp = `Unknown temperature: without beta the data fix only the products beta*lambda. They
+const scaleFromHelp = `Unknown temperature: without beta (neither --beta nor the template's) the data fix
+only the products beta*lambda. They
 are written as such: the report says "coefficients": "beta*lambda" and "beta_source":
 "unknown", the CSV columns are beta_coeff and beta_coeff_stderr, the model's units say
 so, and beta = 1 in the file is a convention, not a measured temperature (plan and

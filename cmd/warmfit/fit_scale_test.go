@@ -223,12 +223,15 @@ func TestResolveScaleGroup(t *testing.T) {
 // With --scale-from, the fit's stderr summary and its WARNING lines quote
 // the truncation error, its target and beta in one unit system, lambda
 // with the recovered beta (review finding 7): the warning's truncation
-// error equals the summary's, its target is 0.1 x its statistical error,
+// error equals the summary's, the target is 0.1 x its statistical error,
 // and the convergence-bound warning names the recovered beta, not the
 // convention beta = 1 (common practice: one output, one unit system).
 func TestFitScaleFromOneUnitSystem(t *testing.T) {
 	dir := t.TempDir()
-	_, data, _ := noisyChainFiles(t, dir)
+	// Stderr 2e-5 per value: small enough that order 3's truncation
+	// exceeds some coefficients' error bars, so that the warning comes.
+	data := filepath.Join(dir, "e.csv")
+	writeExactTable(t, fitTruth(t), 2e-5, data)
 	tmpl := unknownBetaTemplate(t, dir)
 	code, _, errs := runCmd("fit", "--model", tmpl, "--data", data, "--order", "3", "--scale-from", "ZZ 0 1=0.5", "-o", filepath.Join(dir, "o.json"))
 	if code != exitOK {
@@ -247,10 +250,10 @@ func TestFitScaleFromOneUnitSystem(t *testing.T) {
 		return v
 	}
 	beta := num(`beta = ([0-9.e+-]+) \+-`)
-	sumErr := num(`truncation error ([0-9.e+-]+) \(largest change`)
+	sumErr := num(`truncation error ([0-9.e+-]+) \(largest of a coefficient`)
 	sumTarget := num(`vs target ([0-9.e+-]+)`)
 	warnErr := num(`WARNING: truncation error ([0-9.e+-]+) exceeds`)
-	warnStat := num(`x statistical error ([0-9.e+-]+)`)
+	warnStat := num(`median statistical error ([0-9.e+-]+)`)
 	warnBeta := num(`WARNING: beta ([0-9.e+-]+) is above the sufficient`)
 	if math.Abs(warnErr-sumErr) > 1e-3*sumErr || math.Abs(0.1*warnStat-sumTarget) > 1e-2*sumTarget {
 		t.Errorf("summary truncation %g vs target %g, warning %g vs 0.1 x %g: two unit systems\n%s", sumErr, sumTarget, warnErr, warnStat, errs)

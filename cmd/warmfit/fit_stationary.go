@@ -529,9 +529,9 @@ func stationaryWriteCSV(w io.Writer, terms []lattice.Term) error {
 	for _, t := range terms {
 		se := ""
 		if t.HasStderr {
-			se = strconv.FormatFloat(t.Stderr, 'g', -1, 64)
+			se = fmtExact(t.Stderr)
 		}
-		fmt.Fprintf(w, "%s,%s,%s,%s\n", t.Pauli, lattice.SitesString(t.Sites), strconv.FormatFloat(t.Coeff, 'g', -1, 64), se)
+		fmt.Fprintf(w, "%s,%s,%s,%s\n", t.Pauli, lattice.SitesString(t.Sites), fmtExact(t.Coeff), se)
 	}
 	return nil
 }

@@ -34,7 +34,7 @@ func init() {
 		Name:  "lattice",
 		Short: "describe a lattice, count its connected clusters, draw it",
 		Usage: "warmfit lattice --lattice SPEC [--shells 2] [--clusters L] [--format text|json] [--svg FILE]",
-		Long: `Lattice builds the lattice named by --lattice and describes it: kind, size,
+		Long: `The lattice named by --lattice is built and described: kind, size,
 boundary, number of sites, nearest-neighbour (NN) and next-nearest-neighbour
 (NNN) bonds, the coordination numbers of the interaction graph and its
 connected components.

@@ -127,7 +127,7 @@ func TestLatticeSVGAndOutputFiles(t *testing.T) {
 
 func TestLatticeHelp(t *testing.T) {
 	code, out, _ := runLatticeCmd("--help")
-	for _, w := range []string{"usage: warmfit lattice", "--clusters", "Example:", "warmfit lattice --lattice square:20x20 --clusters 8"} {
+	for _, w := range []string{"warmfit lattice — ", "--clusters", "Example:", "warmfit lattice --lattice square:20x20 --clusters 8"} {
 		if code != exitOK || !strings.Contains(out, w) {
 			t.Errorf("help lacks %q", w)
 		}

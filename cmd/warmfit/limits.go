@@ -13,14 +13,15 @@ import (
 	"github.com/spf13/pflag"
 
 	"warmfit/cluster"
+	"warmfit/validate"
 )
 
 // Limits before allocation. Every size a command takes from a flag or a
 // file is turned into an estimate of time and memory before the work
 // starts; the estimate goes to stderr, and a request over the machine's
 // memory or over --budget is refused, naming the limit and the flag that
-// changes it. A refusal of a flag's request is a usage error (exit 2); a
-// refusal of what a file asks for is a failure (exit 1). Go's own
+// changes it. A refusal is a usage error (exit 2; exitRule): nothing was
+// attempted, and changing the flag named gets the run through. Go's own
 // out-of-memory crash would exit 2 with a goroutine dump: it must never
 // be reached, so memory is checked, not caught.
 //
@@ -28,6 +29,16 @@ import (
 // cluster.SecondsPerWorkUnit, calibrated in cluster/cost.go); the few
 // constants below are for work outside the expansion, measured on the
 // reference 2-core machine and quoted as "about".
+
+// typicalityQubits is the largest system any command runs thermal
+// typicality on (predict --method exact, crosscheck's references): the
+// one limit, validate's own; --budget and the memory check guard the
+// time and space of each request below it.
+const typicalityQubits = validate.MaxTypicalityQubits
+
+// autoCeilingText is the automatic order ceiling of cluster.NewOrderPolicy
+// in words, for the help of fit (a test checks it against the policy).
+const autoCeilingText = "12 on a chain, 9 on a ladder, 8 in 2D, 6 in 3D, at most the number of sites"
 
 // defaultBudget is the --budget of every command that can run long.
 const defaultBudget = 60 * time.Second
@@ -96,10 +107,8 @@ type workEstimate struct {
 	Duration time.Duration // predicted wall time
 	Bytes    float64       // predicted peak memory of the request's own data
 	// Flag names the flag whose value decides the size ("--order"), so
-	// a refusal can say what to lower; FromFile marks sizes a file asked
-	// for (exit 1 instead of 2).
-	Flag     string
-	FromFile bool
+	// a refusal can say what to lower.
+	Flag string
 }
 
 // seconds turns a count of operations at a per-op cost into a duration,
@@ -152,12 +161,7 @@ func admit(w io.Writer, cmd string, e workEstimate, budget time.Duration) error 
 		line += ", " + describeBytes(e.Bytes)
 	}
 	fmt.Fprintln(w, line+" (reference 2-core machine)")
-	refuse := func(format string, args ...any) error {
-		if e.FromFile {
-			return fmt.Errorf(format, args...)
-		}
-		return usagef(format, args...)
-	}
+	refuse := usagef
 	if limit := memoryLimit(); e.Bytes > float64(limit) {
 		return refuse("%s needs about %s, more than the %s this run may use (half the machine's available memory); lower %s",
 			e.What, describeBytes(e.Bytes), describeBytes(float64(limit)), e.Flag)

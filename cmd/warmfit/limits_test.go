@@ -1,10 +1,14 @@
 package main
 
 import (
+	"fmt"
 	"path/filepath"
 	"strings"
 	"testing"
 	"time"
+
+	"warmfit/cluster"
+	"warmfit/lattice"
 )
 
 // TestLimitsRefuseBeforeAllocating sends every oversized request of
@@ -93,5 +97,36 @@ func TestSuggestBudget(t *testing.T) {
 		if s := suggestBudget(d); s < d && d < 1000*time.Hour {
 			t.Errorf("suggestBudget(%v) = %v, below the prediction", d, s)
 		}
+	}
+}
+
+// The help of fit states the automatic order ceiling of the one order
+// policy (review finding: it said "8 in two dimensions" while --max-order
+// said "at most 12"); the numbers come from cluster.NewOrderPolicy.
+func TestAutoCeilingTextMatchesPolicy(t *testing.T) {
+	for _, tc := range []struct {
+		spec, words string
+	}{
+		{"chain:40", "12 on a chain"},
+		{"ladder:20", "9 on a ladder"},
+		{"square:10x10", "8 in 2D"},
+		{"triangular:10x10", "8 in 2D"},
+		{"cubic:5x5x5", "6 in 3D"},
+	} {
+		lat, err := lattice.Open(tc.spec)
+		if err != nil {
+			t.Fatal(err)
+		}
+		p := cluster.NewOrderPolicy(lat, nil)
+		if want := fmt.Sprintf("%d ", p.Ceiling); !strings.Contains(autoCeilingText, tc.words) || !strings.HasPrefix(tc.words, want) {
+			t.Errorf("%s: the policy's ceiling is %d; autoCeilingText says %q", tc.spec, p.Ceiling, autoCeilingText)
+		}
+	}
+	_, help, _ := runCmd("help", "fit")
+	if strings.Count(help, autoCeilingText) != 2 {
+		t.Errorf("help fit does not quote the ceiling in the text and at --max-order")
+	}
+	if strings.Contains(help, "Without beta (neither") {
+		t.Errorf("help fit says the unknown-temperature rule twice")
 	}
 }

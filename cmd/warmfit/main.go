@@ -79,10 +79,15 @@ func run(env *runEnv, args []string) int {
 		if len(args) > 1 && args[1] == "formats" {
 			return printFormatsHelp(env.Stdout, env.Stderr, args[2:])
 		}
+		if len(args) > 1 && args[1] == "help" {
+			printHelpHelp(env.Stdout)
+			return exitOK
+		}
 		if len(args) > 1 {
 			c, ok := commands[args[1]]
 			if !ok {
-				fmt.Fprintf(env.Stderr, "warmfit help: unknown command %q%s\n%s", args[1], didYouMean(args[1], commandNames()), commandListHint)
+				topics := append(commandNames(), "formats", "help")
+				fmt.Fprintf(env.Stderr, "warmfit help: no help on %q%s\n%s", args[1], didYouMean(args[1], topics), commandListHint)
 				return exitUsage
 			}
 			printCommandHelp(env.Stdout, c, nil)
@@ -104,7 +109,11 @@ func run(env *runEnv, args []string) int {
 			printCommandHelp(env.Stdout, c, fs)
 			return exitOK
 		}
-		fmt.Fprintf(env.Stderr, "warmfit %s: %v%s\n%s", c.Name, err, flagSuggestion(err, fs), commandHelpHint(c.Name))
+		hint := flagSuggestion(err, fs)
+		if c.NoStrict && err.Error() == "unknown flag: --strict" {
+			hint = fmt.Sprintf(": %s never prints a WARNING line, so it has no --strict", c.Name)
+		}
+		fmt.Fprintf(env.Stderr, "warmfit %s: %v%s\n%s", c.Name, err, hint, commandHelpHint(c.Name))
 		return exitUsage
 	}
 	counter := &warningCounter{w: env.Stderr}
@@ -118,30 +127,63 @@ func run(env *runEnv, args []string) int {
 		}
 		return exitOK
 	}
+	hint := nameSuggestion(err.Error())
 	var ue *usageError
 	if errors.As(err, &ue) {
-		fmt.Fprintf(env.Stderr, "warmfit %s: %v\n%s", c.Name, err, commandHelpHint(c.Name))
+		fmt.Fprintf(env.Stderr, "warmfit %s: %v%s\n%s", c.Name, err, hint, commandHelpHint(c.Name))
 		return exitUsage
 	}
-	fmt.Fprintf(env.Stderr, "warmfit %s: %v\n", c.Name, err)
+	fmt.Fprintf(env.Stderr, "warmfit %s: %v%s\n", c.Name, err, hint)
 	return exitFailure
 }
 
+// helpIndent indents the body of every section of warmfit's help.
+const helpIndent = "  "
+
+// printCommandList writes warmfit's own top-level help: a title line, the
+// synopsis, the commands in an aligned column, where to read more, and
+// the exit status.
 func printCommandList(w io.Writer) {
-	fmt.Fprint(w, `warmfit learns local Hamiltonians from measurements of their thermal states.
-
-Run it as: warmfit COMMAND [flags] [arguments]. The commands:
-
-`)
+	fmt.Fprintf(w, "warmfit — learn local Hamiltonians from measurements of their thermal states\n\n")
+	fmt.Fprintf(w, "Synopsis:\n%swarmfit COMMAND [flags] [arguments]\n\nCommands:\n", helpIndent)
 	names := commandNames()
 	width := 0
 	for _, n := range names {
 		width = max(width, len(n))
 	}
 	for _, n := range names {
-		fmt.Fprintf(w, "\t%-*s  %s\n", width, n, commands[n].Short)
+		fmt.Fprintf(w, "%s%-*s  %s\n", helpIndent, width, n, commands[n].Short)
 	}
-	fmt.Fprint(w, "\nEach command explains its flags and gives examples: warmfit help COMMAND.\nThe file formats: warmfit help formats. The version: warmfit --version.\n\n"+exitRule+"\n")
+	fmt.Fprintf(w, "\nMore help:\n")
+	for _, l := range [][2]string{
+		{"warmfit help COMMAND", "one command: what it does, its flags, examples"},
+		{"warmfit help formats", "the file formats (warmfit help formats SECTION: one section)"},
+		{"warmfit --version", "the version"},
+	} {
+		fmt.Fprintf(w, "%s%-22s%s\n", helpIndent, l[0], l[1])
+	}
+	fmt.Fprint(w, "\n"+exitRule+"\n")
+}
+
+// printHelpHelp is the help of "help" itself, in the layout of every
+// command's help.
+func printHelpHelp(w io.Writer) {
+	fmt.Fprintf(w, `warmfit help — what warmfit, one of its commands or its file formats do
+
+Synopsis:
+%[1]swarmfit help
+%[1]swarmfit help COMMAND
+%[1]swarmfit help formats [SECTION]
+
+Description:
+%[1]sWithout a topic: the commands and the exit status. With a command: what it does,
+%[1]sits flags and examples (the same as warmfit COMMAND --help). With formats: the
+%[1]sformat contract of every file warmfit reads or writes, or one section of it.
+
+Example:
+%[1]swarmfit help fit
+%[1]swarmfit help formats table
+`, helpIndent)
 }
 
 // commandListHint ends the message about a command that does not exist.
@@ -152,10 +194,14 @@ func commandHelpHint(name string) string {
 	return fmt.Sprintf("Flags and examples of %s: warmfit help %s\n", name, name)
 }
 
+// printCommandHelp writes the help of one command in warmfit's layout:
+// the title line "warmfit NAME — what it does", then the sections
+// Synopsis, Description, Flags and Example, each body indented.
 func printCommandHelp(w io.Writer, c *command, fs *pflag.FlagSet) {
-	fmt.Fprintf(w, "usage: %s\n\n", c.Usage)
+	fmt.Fprintf(w, "warmfit %s — %s\n\n", c.Name, c.Short)
+	fmt.Fprintf(w, "Synopsis:\n%s\n\n", indent(strings.ReplaceAll(c.Usage, "\n       ", "\n"), helpIndent))
 	if c.Long != "" {
-		fmt.Fprintf(w, "%s\n\n", strings.TrimSpace(c.Long))
+		fmt.Fprintf(w, "Description:\n%s\n\n", indent(strings.TrimSpace(c.Long), helpIndent))
 	}
 	if fs == nil {
 		fs, _ = commandFlags(c)
@@ -163,7 +209,7 @@ func printCommandHelp(w io.Writer, c *command, fs *pflag.FlagSet) {
 	if fs.HasFlags() {
 		fmt.Fprintf(w, "Flags:\n%s\n", fs.FlagUsages())
 	}
-	fmt.Fprintf(w, "Example:\n\n%s\n", indent(strings.TrimSpace(c.Example), "\t"))
+	fmt.Fprintf(w, "Example:\n%s\n", indent(strings.TrimSpace(c.Example), helpIndent))
 }
 
 func indent(s, prefix string) string {

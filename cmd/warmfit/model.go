@@ -73,9 +73,9 @@ warmfit model --check tfim.json`
 
 func modelLong() string {
 	var b strings.Builder
-	b.WriteString(`Model writes a model file (JSON, see the file-format contract) holding a
-standard Hamiltonian laid out on the bonds and sites of a lattice, or, with
---check, validates a model file and prints a short summary of it.
+	b.WriteString(`The model file written (JSON, see the file-format contract) holds a standard
+Hamiltonian laid out on the bonds and sites of a lattice; with --check, a model
+file is validated instead and summarised in one paragraph.
 
 Coefficients are literal: H = sum_k coeff_k P_k with Pauli operators and no
 hidden signs or factors of 1/2 (J > 0 is antiferromagnetic). --set changes
@@ -281,7 +281,9 @@ func modelSummary(name string, m *model.Model) string {
 		}
 	}
 	unit := ""
-	if m.Units != "" {
+	if m.Units != "" && !fittedWithoutScale(m) {
+		// A fit without beta has units "dimensionless: beta*lambda ...";
+		// the sentence on beta*lambda below says it once.
 		unit = " " + m.Units
 	}
 	fmt.Fprintf(&b, ". Coefficients from %s to %s%s (max |coeff| %s)", formatG(lo, 4), formatG(hi, 4), unit, formatG(maxAbs, 4))

@@ -12,6 +12,8 @@ import (
 	"strings"
 	"sync"
 	"syscall"
+
+	"warmfit/lattice/model"
 )
 
 // The command package's one output helper. Every result a command writes
@@ -325,4 +327,20 @@ func (r *tempRegistry) removeAll() []string {
 		}
 	}
 	return removed
+}
+
+// readModelFlag reads the model file given to flag (what names the model
+// that flag takes, "the true model"). A data file given there is named
+// by the flag, so the message says which file went where.
+func readModelFlag(flag, path, what string) (*model.Model, error) {
+	m, err := model.ReadFile(path)
+	var me *model.Error
+	if errors.As(err, &me) && me.Err != nil {
+		if msg, ok := strings.CutSuffix(me.Err.Error(), ": were the model and the data swapped?"); ok {
+			e := *me
+			e.Err = fmt.Errorf("%s: %s takes %s (a model file), and the data go to --data", msg, flag, what)
+			return nil, &e
+		}
+	}
+	return m, err
 }

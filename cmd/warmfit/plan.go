@@ -72,10 +72,10 @@ func init() {
 	})
 }
 
-const planLong = `Plan predicts how many shots per measurement basis a fit needs to learn the model's
-coefficients to precision eps, before any data are taken. It evaluates the expectations
-e_k and the response R = d<E>/d lambda at the model (linked-cluster expansion) and
-propagates shot noise by the delta method used by 'warmfit fit':
+const planLong = `Before any data are taken: how many shots per measurement basis a fit needs to learn
+the model's coefficients to precision eps. The expectations
+e_k and the response R = d<E>/d lambda are evaluated at the model (linked-cluster
+expansion), and shot noise is propagated by the delta method used by 'warmfit fit':
 
   Var(e_k) = (1 - e_k^2) / (N n_k)    (N shots per basis, n_k bases measure term k)
   Cov(lambda) = P^{-1} A^T Cov(e) A P^{-1},  P = -A^T R A

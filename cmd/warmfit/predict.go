@@ -42,14 +42,14 @@ func init() {
 		Name:  "predict",
 		Short: "expectation of every term of a model in its Gibbs state",
 		Usage: "warmfit predict --model M.json [--beta B] [--method expansion|exact] [--order L|auto] [-o FILE]",
-		Long: `Predict computes <E_k> = tr(rho E_k) for every term E_k of the model, with
-rho = exp(-beta H)/Z, and writes the expectation table (pauli,sites,value,stderr).
+		Long: `The result is the expectation table (pauli,sites,value,stderr): one row per term E_k
+of the model, with its value <E_k> = tr(rho E_k) in rho = exp(-beta H)/Z.
 
 --method expansion (the default) sums the numerical linked-cluster expansion over
 connected clusters of up to --order sites; it works for any lattice size. Four extra
 columns say how far each value can be trusted: step (change from the previous
-order), trunc_error (estimated truncation error, from the geometric decay of the
-changes over pairs of orders), resummed (Wynn epsilon acceleration of the partial
+order), trunc_error (estimated truncation error, extrapolated from the last
+changes between orders), resummed (Wynn epsilon acceleration of the partial
 sums) and trusted (trunc_error <= --tol). The stderr column says "exact": the value
 is the expansion's own prediction at that order, which is the Gibbs value only where
 trusted is true. Rows marked trusted=false are NOT exact Gibbs values (their distance
@@ -64,7 +64,7 @@ the expansion is exact, when that order costs a few seconds. stderr says which o
 was used and why.
 
 --method exact diagonalises the whole system: densely up to ` + fmt.Sprint(denseExactQubits) + ` qubits (stderr
-"exact"), and by thermal typicality with random vectors up to ` + fmt.Sprint(validate.MaxTypicalityQubits) + ` qubits, in which
+"exact"), and by thermal typicality with random vectors up to ` + fmt.Sprint(typicalityQubits) + ` qubits, in which
 case stderr holds the statistical error of each value.
 
 ` + csvOutputHelp,
@@ -288,8 +288,8 @@ func predictByExpansion(env *runEnv, m *model.Model, beta float64, order int, to
 func expansionVerdict(unconverged, unknown, total int, worst, tol, beta float64, order int) string {
 	var parts []string
 	if unconverged > 0 {
-		parts = append(parts, fmt.Sprintf("WARNING: %d of %d values have NOT converged (estimated truncation error up to %.2g > %.2g): beta = %s is too low a temperature for order %d; raise --order or do not trust the rows marked trusted=false",
-			unconverged, total, worst, tol, fmtFloat(beta), order))
+		parts = append(parts, fmt.Sprintf("WARNING: %d of %d values have NOT converged (estimated truncation error up to %.2g > %.2g): the temperature is too low for order %d (beta = %s is too large); raise --order or do not trust the rows marked trusted=false",
+			unconverged, total, worst, tol, order, fmtFloat(beta)))
 	}
 	if unknown > 0 {
 		parts = append(parts, fmt.Sprintf("WARNING: %d of %d values cannot be judged: order %d leaves fewer than two orders past their smallest cluster (trunc_error n/a, trusted false); raise --order",
@@ -314,9 +314,9 @@ func boundLine(b cluster.ThresholdBound, beta float64) string {
 
 func predictExact(env *runEnv, m *model.Model, beta float64, vectors int, seed uint64, budget time.Duration, meta map[string]any) (*fit.Table, error) {
 	n := m.Lattice.NumSites()
-	if n > validate.MaxTypicalityQubits {
-		return nil, fmt.Errorf("--method exact handles at most %d qubits (dense up to %d, thermal typicality beyond); this model has %d: use --method expansion",
-			validate.MaxTypicalityQubits, denseExactQubits, n)
+	if n > typicalityQubits {
+		return nil, usagef("--method exact handles at most %d qubits (dense up to %d, thermal typicality beyond); this model has %d: use --method expansion",
+			typicalityQubits, denseExactQubits, n)
 	}
 	cost := denseEstimate(n, "the number of qubits (or use --method expansion)")
 	if n > denseExactQubits {

@@ -156,12 +156,12 @@ func TestReadmeNumbersAgreeWithCode(t *testing.T) {
 	// The crosscheck row quotes its --dense-qubits default and size limit.
 	cfs := pflag.NewFlagSet("crosscheck", pflag.ContinueOnError)
 	commands["crosscheck"].Flags(cfs)
-	if want := fmt.Sprintf("dense to %s qubits, typicality to %d", cfs.Lookup("dense-qubits").DefValue, maxCrosscheckQubits); !strings.Contains(readme, want) {
+	if want := fmt.Sprintf("dense to %s qubits, typicality to %d", cfs.Lookup("dense-qubits").DefValue, typicalityQubits); !strings.Contains(readme, want) {
 		t.Errorf("README.md does not say %q (crosscheck's defaults)", want)
 	}
 	// Any other "N qubits" in the README must be one of the code's limits.
 	limits := map[string]bool{}
-	for _, n := range []int{denseExactQubits, cluster.MaxDenseQubits, validate.MaxTypicalityQubits, maxCrosscheckQubits} {
+	for _, n := range []int{denseExactQubits, cluster.MaxDenseQubits, typicalityQubits} {
 		limits[fmt.Sprint(n)] = true
 	}
 	for _, m := range regexp.MustCompile(`(?:to|up to|at most) (\d+) (?:qubits|sites)`).FindAllStringSubmatch(readme, -1) {
@@ -221,6 +221,7 @@ func TestReadmeCommandTableListsEveryCommand(t *testing.T) {
 	// Only the table whose header row starts with "| command": other
 	// tables (reach, calibration) have lowercase first columns too.
 	text := readmeText(t)
+	checkMarkdownTables(t, "README.md", text)
 	start := regexp.MustCompile(`(?m)^\| command +\|`).FindStringIndex(text)
 	if start == nil {
 		t.Fatal("README.md has no command table (a header row starting with \"| command\")")

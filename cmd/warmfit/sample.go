@@ -42,8 +42,8 @@ func init() {
 		Name:  "sample",
 		Short: "synthetic measurement data from a model's Gibbs state",
 		Usage: "warmfit sample --model M.json [--beta B] --shots N [--bases covering|random:K] [--generator exact|binomial|auto] [--order L|auto] [--seed S] [-o FILE]",
-		Long: `Sample simulates measuring the Gibbs state of a model in product bases, N shots per
-basis, for testing a fit or planning an experiment.
+		Long: `The data are simulated measurements of the model's Gibbs state in product bases, N
+shots per basis: made to test a fit or to plan an experiment.
 
 --generator exact (the default up to ` + fmt.Sprint(denseExactQubits) + ` qubits; possible up to ` + fmt.Sprint(cluster.MaxDenseQubits) + `) draws whole snapshots
 from the exact Gibbs state and writes a snapshot file (basis,outcome,count), just as a
@@ -124,6 +124,14 @@ warmfit sample --model big.json --shots 100000 --generator binomial -o big-data.
 				return usagef("--bases covering:3 is for fit --method stationary, which needs whole snapshots (2- and 3-local correlators), but %s: it writes only the model's own %d term expectations, never those correlators. Use --generator exact (at most %d qubits; this model has %d), or sample a patch of the model that small",
 					why, len(m.Terms), cluster.MaxDenseQubits, n)
 			}
+			if gen == generatorExact && n > cluster.MaxDenseQubits {
+				return usagef("--generator exact draws snapshots by dense diagonalisation, at most %d qubits; this model has %d: use --generator binomial", cluster.MaxDenseQubits, n)
+			}
+			if gen == generatorExact {
+				if err := admit(env.Stderr, "sample", exactSampleEstimate(n, len(basisList), shots), budget); err != nil {
+					return err
+				}
+			}
 			fmt.Fprintf(env.Stderr, "sample: %d qubits, %d bases x %d shots, %s generator, seed %d\n", n, len(basisList), shots, gen, seed)
 			meta := &csvMeta{Command: "sample"}
 			meta.set("model", modelPath)
@@ -133,12 +141,6 @@ warmfit sample --model big.json --shots 100000 --generator binomial -o big-data.
 			meta.set("shots_per_basis", shots)
 			meta.set("seed", seed)
 			if gen == generatorExact {
-				if n > cluster.MaxDenseQubits {
-					return fmt.Errorf("exact snapshots need dense diagonalisation, at most %d qubits; this model has %d: use --generator binomial", cluster.MaxDenseQubits, n)
-				}
-				if err := admit(env.Stderr, "sample", exactSampleEstimate(n, len(basisList), shots), budget); err != nil {
-					return err
-				}
 				return sampleExact(env, m, b, basisList, shots, seed, out, csvOut, meta)
 			}
 			return sampleBinomial(env, m, b, basisList, shots, seed, order.L, budget, workers, out, csvOut, meta)

@@ -2,6 +2,7 @@ package main
 
 import (
 	"fmt"
+	"regexp"
 	"sort"
 	"strings"
 
@@ -57,6 +58,25 @@ func flagSuggestion(err error, fs *pflag.FlagSet) string {
 	var flags []string
 	fs.VisitAll(func(f *pflag.Flag) { flags = append(flags, "--"+f.Name) })
 	return didYouMean("--"+name, flags)
+}
+
+// unknownNamePattern matches the messages of the lattice and model
+// packages about a name not in their list: `unknown preset "tfimm"
+// (known: a, b, ...)`, `unknown lattice kind "sqare" (known: ...)`.
+var unknownNamePattern = regexp.MustCompile(`unknown (?:preset|lattice kind) "([^"]*)" \(known: ([^)]*)\)`)
+
+// nameSuggestion is didYouMean for the name of such a message, among the
+// names it lists, or "".
+func nameSuggestion(msg string) string {
+	m := unknownNamePattern.FindStringSubmatch(msg)
+	if m == nil {
+		return ""
+	}
+	known := strings.Split(m[2], ",")
+	for i := range known {
+		known[i] = strings.TrimSpace(known[i])
+	}
+	return didYouMean(m[1], known)
 }
 
 // editDistance is the Levenshtein distance of a and b in bytes (insert,

@@ -32,11 +32,13 @@ func init() {
 		Name:  "sweep",
 		Short: "per-site thermodynamics over a temperature grid",
 		Usage: "warmfit sweep --model M.json --beta-grid from=A,to=B,points=N [--order L|auto] [-o FILE]",
-		Long: `Sweep sums the linked-cluster expansion of the model for N inverse temperatures
-evenly spaced from A to B (both included) and writes, per site: log Z, energy, entropy (nats) and heat
-capacity, with the estimated truncation error of energy and heat capacity and
-whether both are within --tol. Each cluster is diagonalised
-once for the whole grid. The model's own beta is ignored.
+		Long: `The linked-cluster expansion of the model is summed at N inverse temperatures evenly
+spaced from A to B. Both ends are exactly the numbers given; the points between are
+rounded to 12 significant digits, so from=0.05,to=1,points=20 steps by exactly 0.05
+and T = 1/beta is 2 at beta 0.5. Per site the table gives log Z, energy, entropy
+(nats) and heat capacity, the estimated truncation error of energy and heat capacity,
+and whether both are within --tol. Each cluster is diagonalised once for the whole
+grid. The model's own beta is ignored.
 
 Rows with trusted=false lie at temperatures too low for the order: the stderr summary
 gives the trusted range.
@@ -46,7 +48,7 @@ gives the trusted range.
 warmfit sweep --model h.json --beta-grid from=0.05,to=1,points=20 --order 6`,
 		Flags: func(fs *pflag.FlagSet) {
 			addModelFlag(fs, &modelPath, "")
-			fs.StringVar(&betaGrid, "beta-grid", "", "inverse temperatures: from=A,to=B,points=N (evenly spaced, both ends included)")
+			fs.StringVar(&betaGrid, "beta-grid", "", "inverse temperatures: from=A,to=B,points=N (evenly spaced, both ends included exactly, the points between rounded to 12 significant digits)")
 			fs.StringVar(&oldRange, "beta-range", "", "replaced by --beta-grid")
 			_ = fs.MarkHidden("beta-range")
 			addOrderFlag(fs, &orderOpt, "largest cluster size, or auto (the highest the automatic work limit and --budget afford)")
@@ -186,14 +188,37 @@ func parseBetaGrid(s string) ([]float64, error) {
 	case n == 1 && a != b:
 		return nil, usagef("--beta-grid %q: one point needs from = to", s)
 	}
+	return betaGrid(a, b, n), nil
+}
+
+// gridDigits is the significant digits an interior grid point is rounded
+// to: a + (b-a)*i/(n-1) in binary floating point lands a few ulps off the
+// decimal the user means (0.39999999999999997 for 0.4), and 12 digits
+// keep every distinct point of a grid of up to maxGridPoints points apart
+// while dropping that noise.
+const gridDigits = 12
+
+// betaGrid is n inverse temperatures evenly spaced from a to b: the ends
+// exactly a and b, the points between rounded to gridDigits significant
+// digits. sweep and the demo's sweep use it, so they sweep one grid.
+func betaGrid(a, b float64, n int) []float64 {
 	betas := make([]float64, n)
 	for i := range betas {
-		betas[i] = a
-		if n > 1 {
-			betas[i] = a + (b-a)*float64(i)/float64(n-1)
+		switch {
+		case i == 0:
+			betas[i] = a
+		case i == n-1:
+			betas[i] = b
+		default:
+			x := a + (b-a)*float64(i)/float64(n-1)
+			r, _ := strconv.ParseFloat(strconv.FormatFloat(x, 'g', gridDigits, 64), 64)
+			if r < a || r > b {
+				r = x // an end of more digits: rounding would step past it
+			}
+			betas[i] = r
 		}
 	}
-	return betas, nil
+	return betas
 }
 
 // retiredBetaRange answers the old --beta-range A:B:N with the equivalent

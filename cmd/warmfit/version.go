@@ -12,9 +12,9 @@ const version = "0.1.0-dev"
 func init() {
 	register(&command{
 		Name:    "version",
-		Short:   "print the warmfit version",
+		Short:   "which warmfit this is, and the Go toolchain that built it",
 		Usage:   "warmfit version",
-		Long:    "Version prints the warmfit version and the Go runtime it was built with.",
+		Long:    "One line: the warmfit release, then the Go toolchain, operating system and\narchitecture of this build.",
 		Example: "warmfit version",
 		Flags:   func(fs *pflag.FlagSet) {},
 		// It prints no warnings, so --strict would mean nothing.

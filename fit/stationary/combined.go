@@ -324,24 +324,21 @@ func (ws *weighted) influenceAt(theta []float64, ns int) (g, u *mat.Dense) {
 	np := ws.np
 	savedW, savedR := append([]float64(nil), ws.w...), append([]float64(nil), ws.r...)
 	savedCorr, savedPen := ws.corr, ws.penalty
+	savedFull, savedWinv := ws.haveFull, ws.winv
 	defer func() {
 		copy(ws.w, savedW)
 		copy(ws.r, savedR)
 		ws.corr, ws.penalty = savedCorr, savedPen
+		ws.haveFull, ws.winv = savedFull, savedWinv
 	}()
 	ws.reweight(theta)
 	ws.corr, ws.penalty = noCorrection, nil
 	g = mat.NewDense(np, np, ws.dense())
 	u = mat.NewDense(np, ns, nil)
-	for a := range ws.rows() {
-		lo, hi, _ := ws.block(a)
-		for e := lo; e < hi; e++ {
-			c := ws.coef[e] * theta[ws.param[e]] * ws.w[a]
-			j := int(ws.str[e])
-			for f := lo; f < hi; f++ {
-				p := int(ws.param[f])
-				u.Set(p, j, u.At(p, j)+c*ws.val[f])
-			}
+	// Per-row or full-covariance weights, as G (weighted_full.go).
+	for j, col := range ws.influence(theta) {
+		for p, v := range col {
+			u.Set(int(p), int(j), v)
 		}
 	}
 	return g, u

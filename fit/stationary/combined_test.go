@@ -1,6 +1,7 @@
 package stationary
 
 import (
+	"errors"
 	"fmt"
 	"math"
 	"os"
@@ -53,22 +54,32 @@ func errorsOf(got, se, truth []float64) combinedErrors {
 
 func (c combinedCase) run(t *testing.T, seed uint64) combinedRun {
 	t.Helper()
-	sys, est, d, err := c.sc.run(t, c.shots, seed)
-	if err != nil {
-		t.Fatalf("%s seed %d: stationarity: %v", c.sc.name, seed, err)
+	nan := combinedErrors{math.NaN(), math.NaN(), math.NaN()}
+	sys, est, d, serr := c.sc.run(t, c.shots, seed)
+	if serr != nil && !errors.Is(serr, ErrNoInformation) {
+		t.Fatalf("%s seed %d: stationarity: %v", c.sc.name, seed, serr)
 	}
 	truth := coeffs(sys.Terms())
 	l, _ := testModel(t, c.sc.spec, c.sc.preset, c.sc.values, c.sc.disorder, 11)
+	fr, err := fit.Fit(&fit.Problem{Lattice: l, Terms: sys.Terms(), Data: termEstimates(sys, est), Beta: c.sc.beta}, fit.Options{Order: c.order})
+	expOK := err == nil && fr.Converged
+	if serr != nil {
+		// Stationarity refuses (no information): the combined estimator
+		// is the expansion alone.
+		if !expOK {
+			t.Fatalf("%s seed %d: both fail: %v; %v", c.sc.name, seed, serr, err)
+		}
+		e := errorsOf(fr.Coeffs, fr.ThetaStderr, truth)
+		return combinedRun{expansion: e, stationarity: nan, combined: e, choice: UseExpansion}
+	}
 	sr, err := Fix(sys, est, d, Gauge{Beta: c.sc.beta, Evaluate: exactEvaluator(sys.NumQubits(), sys.Terms())}, Options{})
 	if err != nil {
 		t.Fatalf("%s seed %d: stationarity fix: %v", c.sc.name, seed, err)
 	}
 	stat := errorsOf(sr.Lambda, sr.StdErr, truth)
-	fr, err := fit.Fit(&fit.Problem{Lattice: l, Terms: sys.Terms(), Data: termEstimates(sys, est), Beta: c.sc.beta}, fit.Options{Order: c.order})
-	if err != nil || !fr.Converged {
+	if !expOK {
 		// The expansion fails (not convex at this order and temperature):
 		// the combined estimator is stationarity alone.
-		nan := combinedErrors{math.NaN(), math.NaN(), math.NaN()}
 		return combinedRun{expansion: nan, stationarity: stat, combined: stat, choice: UseStationary}
 	}
 	trusted := fr.Truncation.Exact || fr.Truncation.OK && len(fr.Untrusted) == 0
@@ -89,7 +100,11 @@ func (c combinedCase) run(t *testing.T, seed uint64) combinedRun {
 	}
 	switch choice {
 	case UseCombined:
-		out.combined = errorsOf(comb.Theta, comb.StdErr, truth)
+		p := sys.Params()
+		lambda, se := make([]float64, len(truth)), make([]float64, len(truth))
+		p.Expand(lambda, comb.Theta)
+		p.Expand(se, comb.StdErr)
+		out.combined = errorsOf(lambda, se, truth)
 	case UseExpansion:
 		out.combined = out.expansion
 	default:
@@ -113,9 +128,10 @@ func (c combinedCase) run(t *testing.T, seed uint64) combinedRun {
 // error bars conservative: pulls down to 0.6 are accepted there.
 // WARMFIT_COMBINED_SEEDS sets the seeds (default 4; 2 with -short, with
 // loose bounds); WARMFIT_STATIONARY_HEAVY=1 adds the 3x3 XXZ model of
-// review finding 1 at beta 1 and the 10-site chain at beta 0.3 and 1,
-// exact and at order 7 (minutes); WARMFIT_COMBINED_ONLY=NAME runs only
-// the cases of that scenario.
+// review finding 1 at beta 1, a U(1) XXZ chain (total Z invisible to
+// stationarity, fixed by the expansion) and the 10-site chain at beta
+// 0.3 and 1, exact and at order 7 (minutes to hours under load);
+// WARMFIT_COMBINED_ONLY=NAME runs only the cases of that scenario.
 func TestCombinedNeverWorse(t *testing.T) {
 	tfim := map[string]float64{"J": 1, "hx": 0.8, "hz": 0.3}
 	xxz := map[string]float64{"Jxy": 0.4, "Jz": 0.3, "hz": 0.2, "hx": 0.1}
@@ -136,6 +152,8 @@ func TestCombinedNeverWorse(t *testing.T) {
 		{combinedCase{tfimAt(0.7), 6, 20000}, 0.6, false},
 		{combinedCase{tfimAt(0.7), 3, 20000}, 0.8, false},
 		{combinedCase{tfimAt(1.2), 6, 20000}, 0.8, false},
+		// U(1): total Z is invisible to stationarity; the expansion fixes it.
+		{combinedCase{scenario{name: "xxzu1-8", spec: "chain:8", preset: "xxz", values: xxz, disorder: 0.1, beta: 0.7, u1: true}, 8, 200000}, 0.8, true},
 		{combinedCase{scenario{name: "xxz3x3", spec: "square:3x3", preset: "xxz", values: xxz, disorder: 0.1, beta: 1}, 9, 200000}, 0.8, true},
 		{combinedCase{tfim10At(0.3), 10, 20000}, 0.8, true},
 		{combinedCase{tfim10At(1), 10, 20000}, 0.8, true},
@@ -170,7 +188,7 @@ func TestCombinedNeverWorse(t *testing.T) {
 				pull2[i] += e.pull * e.pull / float64(seeds)
 			}
 			if r.comb == nil {
-				t.Logf("%s order %d seed %d: the expansion fit failed; stationarity %.4g/%.4g", c.sc.name, c.order, s, r.stationarity.worst, r.stationarity.rms)
+				t.Logf("%s order %d seed %d: one estimator refused; expansion %.4g/%.4g, stationarity %.4g/%.4g", c.sc.name, c.order, s, r.expansion.worst, r.expansion.rms, r.stationarity.worst, r.stationarity.rms)
 				continue
 			}
 			t.Logf("%s order %d seed %d: chi2 %.3g/%d (p %.3g), variance ratio %.3g, choice %s; expansion %.4g/%.4g, stationarity %.4g/%.4g, combined %.4g/%.4g (pull %.3g)",
@@ -182,10 +200,15 @@ func TestCombinedNeverWorse(t *testing.T) {
 		}
 		t.Logf("%s order %d, %d seeds x %d shots/basis: max/rms error (pull rms): expansion %.4g/%.4g (%.3g), stationarity %.4g/%.4g (%.3g), combined %.4g/%.4g (%.3g); choices %v",
 			c.sc.name, c.order, seeds, c.shots, mean[0].worst, mean[0].rms, mean[0].pull, mean[1].worst, mean[1].rms, mean[1].pull, mean[2].worst, mean[2].rms, mean[2].pull, counts)
+		// The better of the two alone, over the seeds where each ran
+		// (NaN marks a seed where one refused; its mean is then NaN).
 		best := func(i func(combinedErrors) float64) float64 {
 			a, b := i(mean[0]), i(mean[1])
-			if math.IsNaN(a) {
+			switch {
+			case math.IsNaN(a):
 				return b
+			case math.IsNaN(b):
+				return a
 			}
 			return min(a, b)
 		}
@@ -195,8 +218,11 @@ func TestCombinedNeverWorse(t *testing.T) {
 		if r, b := mean[2].rms, best(func(e combinedErrors) float64 { return e.rms }); r > tolerance*b {
 			t.Errorf("%s order %d: combined rms error %.4g above %.2g x the better alone (%.4g)", c.sc.name, c.order, r, tolerance, b)
 		}
-		if p, plo := mean[2].pull, c.pullLo*lo; p < plo || p > hi {
-			t.Errorf("%s order %d: combined pull rms %.3g outside %.2g-%.2g", c.sc.name, c.order, p, plo, hi)
+		// The band applies where the combination was used; where every
+		// seed fell back to one estimator alone its own tests check its
+		// pulls (stationarity: TestPullsThermalMatch), logged above.
+		if p, plo := mean[2].pull, c.pullLo*lo; counts[UseCombined] > 0 && (p < plo || p > hi) {
+			t.Errorf("%s order %d: combined pull rms %.3g outside %.3g-%.3g", c.sc.name, c.order, p, plo, hi)
 		}
 	}
 }

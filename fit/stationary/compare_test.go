@@ -402,6 +402,9 @@ func TestWeightingEffect(t *testing.T) {
 		{scenario{name: "tfim8-1", spec: "chain:8", preset: "tfim", values: tfim, disorder: 0.3, beta: 1 / 1.3}, 20000, "cal"},
 		{scenario{name: "xxz3x3-1", spec: "square:3x3", preset: "xxz", values: xxz, disorder: 0.1, beta: 1}, 200000, "cal"},
 		{scenario{name: "xxz3x3-0.35", spec: "square:3x3", preset: "xxz", values: xxz, disorder: 0.1, beta: 0.35}, 200000, "cal"},
+		// The heavy checks' XXZ couplings (heavy_test.go) on 3x3.
+		{scenario{name: "xxzh3x3-1", spec: "square:3x3", preset: "xxz", values: map[string]float64{"Jxy": 1, "Jz": 0.6, "hz": 0.4, "hx": 0.3}, disorder: 0.2, beta: 1 / 1.2}, 20000, "cal"},
+		{scenario{name: "xxzh3x3-1-320k", spec: "square:3x3", preset: "xxz", values: map[string]float64{"Jxy": 1, "Jz": 0.6, "hz": 0.4, "hx": 0.3}, disorder: 0.2, beta: 1 / 1.2}, 320000, "cal"},
 	}
 	if f := os.Getenv("WARMFIT_STATIONARY_EFFECT_CASES"); f != "" {
 		cases = slices.DeleteFunc(cases, func(c struct {
@@ -446,5 +449,86 @@ func TestWeightingEffect(t *testing.T) {
 			t.Logf("%s %d shots, %d seeds, gauge %s, variant %s (full weights %v, pair distance %d): direction error %.4g, coefficient rms error %.4g, pull rms %.3g, refused %d [%.0fs]",
 				c.sc.name, c.shots, seeds, c.gauge, v.name, v.full, v.pairDist, de, ce, pr, ref, time.Since(start).Seconds())
 		}
+	}
+}
+
+// TestBootstrapEffect compares, on fixed seeds, the pull rms of the
+// delta-method error bars with that of the parametric bootstrap
+// (Bootstrap) and of the larger of the two. Rerun with
+//
+//	WARMFIT_STATIONARY_EFFECT=1 go test -run TestBootstrapEffect -v ./fit/stationary/
+//
+// (WARMFIT_STATIONARY_EFFECT_SEEDS, default 6; _CASES filters by name;
+// WARMFIT_STATIONARY_BOOT the resamples, default 20).
+func TestBootstrapEffect(t *testing.T) {
+	if os.Getenv("WARMFIT_STATIONARY_EFFECT") == "" {
+		t.Skip("set WARMFIT_STATIONARY_EFFECT=1 (minutes)")
+	}
+	seeds, boots := 6, 20
+	if v, err := strconv.Atoi(os.Getenv("WARMFIT_STATIONARY_EFFECT_SEEDS")); err == nil {
+		seeds = v
+	}
+	if v, err := strconv.Atoi(os.Getenv("WARMFIT_STATIONARY_BOOT")); err == nil {
+		boots = v
+	}
+	tfim := map[string]float64{"J": 1, "hx": 0.8, "hz": 0.3}
+	xxz := map[string]float64{"Jxy": 0.4, "Jz": 0.3, "hz": 0.2, "hx": 0.1}
+	cases := []struct {
+		sc    scenario
+		shots int
+	}{
+		{scenario{name: "tfim8-0.3", spec: "chain:8", preset: "tfim", values: tfim, disorder: 0.3, beta: 0.3 / 1.3}, 20000},
+		{scenario{name: "xxz3x3-1", spec: "square:3x3", preset: "xxz", values: xxz, disorder: 0.1, beta: 1}, 200000},
+		{scenario{name: "xxz3x3-0.35", spec: "square:3x3", preset: "xxz", values: xxz, disorder: 0.1, beta: 0.35}, 200000},
+	}
+	f := os.Getenv("WARMFIT_STATIONARY_EFFECT_CASES")
+	for _, c := range cases {
+		if f != "" && !strings.Contains(f, c.sc.name) {
+			continue
+		}
+		start := time.Now()
+		var d2, b2, m2 float64
+		var count, refused, weak int
+		for s := range seeds {
+			sys, est, d, err := c.sc.run(t, c.shots, uint64(100+s))
+			if err != nil {
+				refused++
+				continue
+			}
+			g := calibrateFirst(sys)
+			res, err := Fix(sys, est, d, g, Options{})
+			if err != nil {
+				refused++
+				continue
+			}
+			boot, _, err := Bootstrap(sys, est, g, Options{}, boots, uint64(s))
+			if err != nil {
+				refused++
+				continue
+			}
+			if d.Weak {
+				weak++
+			}
+			truth := coeffs(sys.Terms())
+			for k := range truth {
+				p := sys.Params().Of[k]
+				if res.StdErr[p] <= 0 || boot[p] <= 0 {
+					continue
+				}
+				diff := res.Lambda[k] - truth[k]
+				d2 += diff * diff / (res.StdErr[p] * res.StdErr[p])
+				b2 += diff * diff / (boot[p] * boot[p])
+				mx := max(res.StdErr[p], boot[p])
+				m2 += diff * diff / (mx * mx)
+				count++
+			}
+		}
+		if count == 0 {
+			t.Logf("%s: every seed refused", c.sc.name)
+			continue
+		}
+		n := float64(count)
+		t.Logf("%s %d shots, %d seeds (%d refused, %d weak), %d resamples: pull rms delta method %.3g, bootstrap %.3g, larger of the two %.3g [%.0fs]",
+			c.sc.name, c.shots, seeds, refused, weak, boots, math.Sqrt(d2/n), math.Sqrt(b2/n), math.Sqrt(m2/n), time.Since(start).Seconds())
 	}
 }

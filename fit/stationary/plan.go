@@ -257,9 +257,20 @@ func PlanShots(n int, terms []lattice.Term, bases []string, probs BasisProbabili
 			w[q] += lambda[k] / norm
 		}
 		pl.ScaleRelVarPerShot = mres.matchCov.quadratic(w) / (norm * norm) * ref
+		// Fix scales error bars up by sqrt(chi²/dof) of the match; on
+		// predicted data that chi² measures only how far the evaluator
+		// (an expansion, say) is from the predicted expectations, not
+		// noise, so the plan undoes it and says so.
+		f := 1.0
+		if mres.ErrorScale > 1 {
+			f = 1 / mres.ErrorScale
+			if mres.ErrorScale > 1.5 {
+				pl.Warnings = append(pl.Warnings, fmt.Sprintf("the thermal match's evaluator disagrees with the predicted expectations beyond %.0g shots' noise (chi2/dof %.3g): at this temperature the scale is only as good as the evaluator, whatever the shots", ref, mres.ErrorScale*mres.ErrorScale))
+			}
+		}
 		pl.VarPerShot = make([]float64, len(terms))
 		for k := range terms {
-			se := mres.StdErr[sys.params.Of[k]]
+			se := mres.StdErr[sys.params.Of[k]] * f
 			pl.VarPerShot[k] = se * se * ref
 		}
 		for _, w := range mres.Warnings {

@@ -34,8 +34,13 @@ type Prediction struct {
 	Bases int
 }
 
-// maxPredictQubits bounds the 2^n outcome distributions Predict handles.
-const maxPredictQubits = 24
+// maxPredictQubits bounds the 2^n outcome distributions Predict handles,
+// maxPredictStrings the correlators whose covariance it keeps dense (8
+// bytes per pair: 800 MB at the bound).
+const (
+	maxPredictQubits  = 24
+	maxPredictStrings = 10000
+)
 
 // Predict computes the Prediction of the strings of sys in the given
 // bases from the outcome probabilities of each basis.
@@ -57,6 +62,9 @@ func Predict(sys *System, bases []string, probs BasisProbabilities) (*Prediction
 		return nil, fmt.Errorf("stationary: predicting %d qubits from outcome distributions needs 2^%d entries per basis; the limit is %d qubits", n, n, maxPredictQubits)
 	}
 	ns := len(sys.Strings)
+	if ns > maxPredictStrings {
+		return nil, fmt.Errorf("stationary: %d correlators: the prediction keeps their covariance dense, up to %d", ns, maxPredictStrings)
+	}
 	masks := make([]uint64, ns)
 	for j, s := range sys.Strings {
 		for _, q := range s.Sites {

@@ -127,8 +127,9 @@ type planCase struct {
 // samples that many exact snapshots (validate's exact sampler) over
 // seeds and solves: the achieved rms direction error is within 25% of
 // the target (a delta-method prediction holds to that accuracy once the
-// estimator is in its linear regime; common practice). The 3x3 XXZ case
-// runs with WARMFIT_STATIONARY_HEAVY=1.
+// estimator is in its linear regime; common practice). The 3x3 XXZ cases
+// and the chain's scale check (thermal match per seed) run with
+// WARMFIT_STATIONARY_HEAVY=1.
 func TestPlanAchieved(t *testing.T) {
 	cases := []planCase{
 		{scenario{name: "tfim8", spec: "chain:8", preset: "tfim", values: map[string]float64{"J": 1, "hx": 0.8, "hz": 0.3}, disorder: 0.3, beta: 0.7}, 0.02, 24, false, true},
@@ -144,7 +145,9 @@ func TestPlanAchieved(t *testing.T) {
 		if testing.Short() {
 			seeds = 6
 		}
-		withScale := c.scale && !testing.Short()
+		// The scale check fixes every seed by a thermal match (dozens of
+		// diagonalisations each): with the heavy cases only.
+		withScale := c.scale && os.Getenv("WARMFIT_STATIONARY_HEAVY") != "" && !testing.Short()
 		achieved, scale, pl := planAndMeasure(t, c.sc, c.target, seeds, withScale)
 		t.Logf("%s (beta x max|c| %.3g): target rms %.3g -> %d shots/basis x %d bases (direction %d, linear regime %d); predicted rms %.4g, achieved %.4g over %d seeds (ratio %.3g)",
 			c.sc.name, pl.BetaMaxCoeff, c.target, pl.ShotsPerBasis, len(pl.Bases), pl.ShotsDirection, pl.ShotsLinear, pl.DirectionRMS(), achieved, seeds, achieved/pl.DirectionRMS())

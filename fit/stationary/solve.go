@@ -140,6 +140,8 @@ func Solve(sys *System, est *fit.Estimates, opt Options) (*Direction, error) {
 	np := ws.np
 	k := min(opt.Low, np)
 	d := &Direction{ws: ws, Rows: ws.rows(), Dropped: ws.dropped, params: sys.params}
+	// The sparse path (assembled X) has per-row weights only.
+	ws.full = ws.full && np <= opt.DenseLimit
 	var asm *assembled // the pattern of X, built once for Lanczos
 	eig := func(w *weighted, start [][]float64) (lowEigen, error) {
 		if np <= opt.DenseLimit {

@@ -407,6 +407,11 @@ func (res *Result) sparseErrorBars(sys *System, est *fit.Estimates, calRows []in
 	np := ws.np
 	theta := res.Theta
 	ws.reweight(theta)
+	if ws.haveFull {
+		// Only systems of at most fullRowLimit rows are weighted with
+		// the rows' full covariance, and they rarely pass the dense limit.
+		res.Warnings = append(res.Warnings, "the sparse error bars use per-row weights while the solve weighted the rows with their full covariance: they are approximate (raise Options.DenseLimit for the exact sandwich)")
+	}
 	// G, not the noise-corrected X, as in errorBars.
 	saved := append([]float64(nil), ws.r...)
 	clear(ws.r)

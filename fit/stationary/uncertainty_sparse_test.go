@@ -32,6 +32,12 @@ func TestSparseErrorBarsMatchDense(t *testing.T) {
 	if testing.Short() {
 		t.Skip("6x6 patch model: several seconds")
 	}
+	// The sparse path serves systems beyond the dense limit, which have
+	// more rows than fullRowLimit and so per-row weights: compare the
+	// two sandwiches under those weights.
+	savedWeights := fullWeights
+	fullWeights = false
+	defer func() { fullWeights = savedWeights }()
 	l, terms := testModel(t, "square:6x6", "xxz", map[string]float64{"Jxy": 0.5, "Jz": 0.4, "hz": 0.4, "hx": 0.3}, 0.1, 7)
 	sys, err := NewSystem(l.NumSites(), terms)
 	if err != nil {
