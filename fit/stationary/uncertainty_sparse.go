@@ -47,11 +47,12 @@ import (
 // signs seeded by the colour: results do not depend on scheduling.
 
 // The sparse delta method's settings (variables only so that tests can
-// vary them). Measured against the dense sandwich on the 10x10 benchmark
-// model (739 free parameters; TestSparseErrorBarsMatchDense and
-// BenchmarkStationarySquare12x12ErrorBars): with 20 deflated modes,
-// colouring at distance 1 (71 colours) the standard errors differ by 2.1%
-// rms (13% at most), at distance 2 (204 colours) by 0.9% rms (7% at most).
+// vary them). Measured against the dense sandwich on the benchmark's patch
+// model with one calibrated coupling (TestSparseErrorBarsMatchDense on
+// 6x6: 0.7% rms, 6% at most; one-off runs of the same comparison on 10x10,
+// 739 free parameters: distance 1 (71 colours) 2.1% rms, 13% at most,
+// distance 2 (204 colours) 0.9% rms, 7% at most; on 12x12, 1079 free
+// parameters, distance 2: 1.1% rms, 5.3% at most).
 var (
 	// sparseDeflation is the number of lowest eigenvectors of A deflated
 	// (Lanczos, started from the smooth modes below).
