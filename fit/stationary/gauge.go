@@ -209,7 +209,10 @@ func Fix(sys *System, est *fit.Estimates, d *Direction, g Gauge, opt Options) (*
 	}
 	res.StdErr = make([]float64, np)
 	errorBars, method := res.errorBars, "dense"
-	if np > opt.DenseLimit {
+	// Full-covariance weights (weighted_full.go) exist only up to
+	// fullRowLimit rows, hence for dense-sized systems; the sparse path
+	// uses per-row weights.
+	if np > opt.DenseLimit && !d.ws.full {
 		errorBars, method = res.sparseErrorBars, "sparse"
 	}
 	if err := errorBars(sys, est, calRows, basis, null); err != nil {

@@ -147,6 +147,9 @@ func Solve(sys *System, est *fit.Estimates, opt Options) (*Direction, error) {
 		if np <= opt.DenseLimit {
 			return denseLowest(w.dense(), np, k)
 		}
+		if w.haveFull { // not per-row: no assembled form
+			return lanczosLowest(w.mulVec, np, k, start, 1e-9, 20000)
+		}
 		if asm == nil {
 			asm = newAssembled(w)
 		}

@@ -76,8 +76,11 @@ func TestSparseErrorBarsMatchDense(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	// Both without the direction's noise through the match.
+	// Both without the direction's noise through the match, and both with
+	// per-row weights (the sparse path's; full-covariance weights exist
+	// only for dense-sized systems).
 	res.Match.evaluate = nil
+	d.ws.full = false
 	basis := [][]float64{d.Theta}
 	for _, inv := range d.Invisible {
 		basis = append(basis, inv.Vector)
