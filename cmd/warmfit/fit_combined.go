@@ -27,8 +27,8 @@ those components against their covariance) comes first: when it fails, an
 expansion that is trusted (every series converged, or exact on a small lattice) is
 kept, and one that is not is dropped as biased and stationarity alone is used (it
 then needs --beta or --calibrate for its scale). An expansion that is not trusted
-but agrees enters with its truncation errors (each coefficient's larger last change
-between orders), which widen the error bars. auto prefers the combination
+but agrees enters with its truncation errors (each coefficient's calibrated
+truncation estimate, as in the fit report), which widen the error bars. auto prefers the combination
 wherever both hold: after choosing the expansion as above it combines it with the
 stationarity constraints when their checks pass (and the lattice is small enough
 for the dense combination), and where it would choose stationarity over an
