@@ -442,6 +442,22 @@ func (r *CrosscheckResult) orderCheck(o int) OrderCheck {
 	return oc
 }
 
+// patchesNoun names the patches checked.
+func patchesNoun(n int) string {
+	if n == 1 {
+		return "this patch"
+	}
+	return "these patches"
+}
+
+// thesePatches is the subject of a sentence about the patches checked.
+func thesePatches(n int) string {
+	if n == 1 {
+		return "this patch is"
+	}
+	return "these patches are"
+}
+
 // verdict words the outcome; lastOpen is the highest order below the
 // patch size.
 func (r *CrosscheckResult) verdict(lastOpen int) []string {
@@ -464,12 +480,12 @@ func (r *CrosscheckResult) verdict(lastOpen int) []string {
 			// Only the orders next to the patch size confirm it, and a
 			// patch holds few of the large clusters those orders add on
 			// a big lattice.
-			lines = append(lines, fmt.Sprintf("WARNING: the agreement from order %d is confirmed only by order %d, next to the patch size: these patches are too small to show that order %d converges on a large lattice at beta = %.4g; cut larger patches (--shape) to confirm",
-				r.AgreeOrder, lastOpen, r.AgreeOrder, r.Beta))
+			lines = append(lines, fmt.Sprintf("WARNING: the agreement from order %d is confirmed only by order %d, next to the patch size: %s too small to show that order %d converges on a large lattice at beta = %.4g; cut larger patches (--shape) to confirm",
+				r.AgreeOrder, lastOpen, thesePatches(np), r.AgreeOrder, r.Beta))
 		}
 	case r.AgreeOrder > 0:
-		lines = append(lines, fmt.Sprintf("WARNING: at beta = %.4g the expansion agrees with exact results within %.2g only at order %d, the last below the patch size: these patches are too small to show convergence at this temperature; use larger patches or a higher temperature",
-			r.Beta, r.Tol, r.AgreeOrder))
+		lines = append(lines, fmt.Sprintf("WARNING: at beta = %.4g the expansion agrees with exact results within %.2g only at order %d, the last below the patch size: %s too small to show convergence at this temperature; use larger patches or a higher temperature",
+			r.Beta, r.Tol, r.AgreeOrder, thesePatches(np)))
 	case r.NoisyOrder > 0:
 		oc := r.Orders[lastOpen-1]
 		line := fmt.Sprintf("WARNING: inconclusive: the typicality references are too noisy to judge at tolerance %.2g (2 standard errors up to %.2g): from order %d on the expansion differs from them by no more than their noise explains, but %d of %d values at order %d miss tolerance + 2 standard errors, so agreement within %.2g is neither shown nor refuted at beta = %.4g",
@@ -489,8 +505,8 @@ func (r *CrosscheckResult) verdict(lastOpen int) []string {
 		if noise > 0 {
 			beyond = ", by more than the references' noise explains,"
 		}
-		lines = append(lines, fmt.Sprintf("WARNING: at beta = %.4g the expansion does NOT agree with exact results within %.2g at any order below the patch size%s (smallest largest difference %.2g, at order %d): the temperature is too low for the orders these patches check; do not trust expansion values at this temperature",
-			r.Beta, r.Tol, beyond, best.MaxDiff, best.Order))
+		lines = append(lines, fmt.Sprintf("WARNING: at beta = %.4g the expansion does NOT agree with exact results within %.2g at any order below the patch size%s (smallest largest difference %.2g, at order %d): the temperature is too low for the orders checked on %s; do not trust expansion values at this temperature",
+			r.Beta, r.Tol, beyond, best.MaxDiff, best.Order, patchesNoun(np)))
 	}
 	if 2*noise > r.Tol && r.NoisyOrder == 0 {
 		lines = append(lines, fmt.Sprintf("WARNING: the typicality references carry statistical errors up to %.2g (2 sigma %.2g > tolerance %.2g): agreement is resolved only to that level; use more random vectors (--vectors)", noise, 2*noise, r.Tol))
