@@ -157,8 +157,9 @@ warmfit model --lattice square:4x4 --preset xxz --set Jxy=1,Jz=1,hz=1 --beta 0.5
 warmfit predict --model truth.json --order 8 -o e.csv
 warmfit fit --model template.json --data e.csv --truth truth.json -o fitted.json
 
-# snapshots, fixed order, coefficients as CSV
-warmfit fit --model template.json --data shots.csv --order 5 --format csv -o fitted.csv`
+# snapshots of the same 16 qubits, fixed order, coefficients as CSV
+warmfit sample --model truth.json --shots 20000 -o shots4.csv
+warmfit fit --model template.json --data shots4.csv --order 5 --format csv -o fitted.csv`
 
 func runFit(env *runEnv, args []string) error {
 	o := fitOptions

@@ -70,7 +70,7 @@ For example:
   warmfit model --lattice square:3x3 --preset xxz --set Jxy=0.4,Jz=0.3,hz=0.2,hx=0.1 --beta 1 -o device.json
   warmfit sample --model device.json --shots 200000 --bases covering:3 -o shots.csv
   warmfit fit --model device.json --data shots.csv --method stationary -o fitted.json
-  warmfit fit --model template.json --data shots.csv --method stationary --calibrate ZZ:0:1=0.2`
+  warmfit fit --model device.json --data shots.csv --method stationary --calibrate ZZ:0:1=0.3`
 
 // addFitMethodFlags registers the method flags on the fit command.
 func addFitMethodFlags(fs *pflag.FlagSet) {
