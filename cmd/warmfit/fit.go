@@ -313,6 +313,8 @@ func checkFitScale(o *fitFlags, tmpl *model.Model, calibration *fit.Calibration,
 	switch mo := fitMethodOptions; {
 	case calibration != nil && mo.method == fitMethodStationary:
 		return nil, usagef("--scale-from fixes the scale of the expansion fit at unknown temperature; --method stationary takes its known coefficients from --calibrate NAME=VALUE")
+	case o.order.L > 0 && mo.method == fitMethodStationary:
+		return nil, usagef("--order sets the order of the expansion fit; --method stationary fits no expansion (its thermal match chooses its own order): drop --order, or use --method combined to combine an order-%d expansion fit with the stationarity constraints", o.order.L)
 	case mo.calibrate != "" && mo.method == fitMethodExpansion:
 		return nil, usagef("--calibrate is for --method stationary (or auto, combined); the expansion fit at unknown temperature fixes its energy scale with --scale-from TERM=VALUE (one calibrated coefficient) or --scale-from beta=B")
 	}

@@ -189,6 +189,7 @@ func TestFitScaleFromErrors(t *testing.T) {
 		{[]string{"--model", tmpl, "--scale-from", "J=1"}, exitUsage, `"J" is neither a term`},
 		{[]string{"--model", tmpl, "--scale-from", "beta=0.3", "--method", "stationary"}, exitUsage, "--method stationary takes its known coefficients from --calibrate"},
 		{[]string{"--model", tmpl, "--calibrate", "ZZ:0:1=0.9"}, exitUsage, "--calibrate is for --method stationary"},
+		{[]string{"--model", tmpl, "--method", "stationary"}, exitUsage, "--method stationary fits no expansion"},
 	} {
 		args := append([]string{"fit", "--data", data, "--order", "4", "-o", out}, tc.args...)
 		code, _, errs := runCmd(args...)
