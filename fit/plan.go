@@ -117,6 +117,7 @@ func PlanShots(lat *lattice.Lattice, terms []lattice.Term, beta float64, opt Pla
 	}
 	L := opt.Order
 	orderReason := fmt.Sprintf("order %d as asked", L)
+	var budgetNote string
 	if L <= 0 {
 		policy := cluster.NewOrderPolicy(lat, terms)
 		policy.Budget = opt.Budget
@@ -125,6 +126,20 @@ func PlanShots(lat *lattice.Lattice, terms []lattice.Term, beta float64, opt Pla
 			return nil, err
 		}
 		L, orderReason = choice.Order, "order chosen automatically: "+choice.Reason
+		// The choice judged expectations; the plan also needs the
+		// response, several times their cost: the budget guards that
+		// evaluation too.
+		if opt.Budget > 0 {
+			chosen := L
+			for L > minL && exp.PredictEvaluation(L, true) > opt.Budget {
+				L--
+			}
+			if L < chosen {
+				budgetNote = fmt.Sprintf("the order was lowered from %d to %d because the response evaluation at order %d is predicted to take %v, more than the budget %v: the plan depends on this machine's speed; raise --budget or give --order for a reproducible plan",
+					chosen, L, chosen, exp.PredictEvaluation(chosen, true).Round(time.Second), opt.Budget)
+				orderReason += fmt.Sprintf("; lowered to %d by the budget", L)
+			}
+		}
 	}
 	if L < minL {
 		return nil, fmt.Errorf("plan: order %d cannot hold terms on %d sites", L, minL)
@@ -137,6 +152,9 @@ func PlanShots(lat *lattice.Lattice, terms []lattice.Term, beta float64, opt Pla
 		}
 	}
 	p := &Plan{Bases: bases, Norm: opt.Norm, Target: opt.Target, Confidence: opt.Confidence, Order: L, OrderReason: orderReason}
+	if budgetNote != "" {
+		p.Warnings = append(p.Warnings, budgetNote)
+	}
 	if p.Coverage, err = basisCoverage(bases, n, terms); err != nil {
 		return nil, err
 	}
