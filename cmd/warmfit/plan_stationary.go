@@ -222,7 +222,7 @@ func planStationaryText(w io.Writer, terms []lattice.Term, ps *planStationary, s
 		fmt.Fprintf(w, "scale error     %s relative (thermal match)\n", fmtFloat(p.ScaleStderr))
 	}
 	if p.Stderr != nil {
-		fmt.Fprintf(w, "stderr          largest %s, rms %s (scale by the thermal match)\n", fmtFloat(maxOf(p.Stderr)), fmtFloat(rmsOf(p.Stderr)))
+		fmt.Fprintf(w, "stderr          largest %s, rms %s (scale by the thermal match)\n", fmtFloat(p.StderrMax()), fmtFloat(p.StderrRMS()))
 	}
 	fmt.Fprintf(w, "expectations    %s\n", ps.source)
 	fmt.Fprintf(w, "constraints     %d rows, %d correlators, %d parameters, beta x max|coeff| %s\n", p.Rows, p.Strings, p.Params, fmtG3(p.BetaMaxCoeff))
@@ -305,7 +305,7 @@ func planStationaryOut(ps *planStationary, scheme string, terms []lattice.Term) 
 		out.Confidence, out.Z = p.Confidence, p.Z
 	}
 	if p.Stderr != nil {
-		mx, r := maxOf(p.Stderr), rmsOf(p.Stderr)
+		mx, r := p.StderrMax(), p.StderrRMS()
 		out.MaxStderr, out.RMSStderr = &mx, &r
 	}
 	for k, t := range terms {
@@ -337,23 +337,4 @@ func planStationaryCSV(w io.Writer, terms []lattice.Term, p *stationary.Plan) er
 	}
 	cw.Flush()
 	return cw.Error()
-}
-
-func maxOf(v []float64) float64 {
-	var m float64
-	for _, x := range v {
-		m = max(m, x)
-	}
-	return m
-}
-
-func rmsOf(v []float64) float64 {
-	if len(v) == 0 {
-		return 0
-	}
-	var s float64
-	for _, x := range v {
-		s += x * x
-	}
-	return math.Sqrt(s / float64(len(v)))
 }

@@ -451,6 +451,19 @@ func (pl *Plan) DirectionRMS() float64 { return rms(pl.DirectionStderr) }
 // DirectionMax is the largest predicted direction standard error.
 func (pl *Plan) DirectionMax() float64 { return floats.Max(pl.DirectionStderr) }
 
+// StderrRMS is the rms of the predicted full error bars (0 without a
+// thermal match, when Stderr is nil).
+func (pl *Plan) StderrRMS() float64 { return rms(pl.Stderr) }
+
+// StderrMax is the largest predicted full error bar (0 without a
+// thermal match).
+func (pl *Plan) StderrMax() float64 {
+	if len(pl.Stderr) == 0 {
+		return 0
+	}
+	return floats.Max(pl.Stderr)
+}
+
 func rms(v []float64) float64 {
 	if len(v) == 0 {
 		return 0

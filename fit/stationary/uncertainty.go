@@ -133,13 +133,7 @@ func (res *Result) errorBars(sys *System, est *fit.Estimates, calRows []int, bas
 	// The matched multipliers: theta = sum_j a_j basis_j with
 	// a = aPart + null t and Cov(t) from the match.
 	m := res.Match
-	dirs := make([][]float64, len(null))
-	for j, nv := range null {
-		dirs[j] = make([]float64, np)
-		for i, b := range basis {
-			floats.AddScaled(dirs[j], nv[i], b)
-		}
-	}
+	dirs := matchedDirections(null, basis, np)
 	// The direction's own noise moves the matched multipliers too
 	// (directionNoise): its largest error directions are replaced by
 	// their correlated versions.
@@ -160,11 +154,7 @@ func (res *Result) errorBars(sys *System, est *fit.Estimates, calRows []int, bas
 		for j := range g {
 			v += g[j][p]*g[j][p] - sig[j]*sig[j]*vs[j][p]*vs[j][p]
 		}
-		for i := range dirs {
-			for j := range dirs {
-				v += dirs[i][p] * m.tCov.At(i, j) * dirs[j][p]
-			}
-		}
+		v += matchedVariance(dirs, m.tCov, p)
 		res.StdErr[p] = math.Sqrt(max(v, 0))
 		if calibrated[p] {
 			res.StdErr[p] = 0
@@ -183,4 +173,30 @@ func orthonormalise(vs [][]float64) {
 			floats.Scale(1/n, vs[i])
 		}
 	}
+}
+
+// matchedDirections returns the parameter-space directions of the
+// thermal match's free multipliers: direction j is sum_i null[j][i]
+// basis[i], over np parameters.
+func matchedDirections(null, basis [][]float64, np int) [][]float64 {
+	dirs := make([][]float64, len(null))
+	for j, nv := range null {
+		dirs[j] = make([]float64, np)
+		for i, b := range basis {
+			floats.AddScaled(dirs[j], nv[i], b)
+		}
+	}
+	return dirs
+}
+
+// matchedVariance is parameter p's share of the matched multipliers'
+// covariance tCov along dirs.
+func matchedVariance(dirs [][]float64, tCov mat.Symmetric, p int) float64 {
+	var v float64
+	for i := range dirs {
+		for j := range dirs {
+			v += dirs[i][p] * tCov.At(i, j) * dirs[j][p]
+		}
+	}
+	return v
 }

@@ -453,20 +453,10 @@ func (res *Result) sparseErrorBars(sys *System, est *fit.Estimates, calRows []in
 		return err
 	}
 	m := res.Match
-	dirs := make([][]float64, len(null))
-	for j, nv := range null {
-		dirs[j] = make([]float64, np)
-		for i, b := range basis {
-			floats.AddScaled(dirs[j], nv[i], b)
-		}
-	}
+	dirs := matchedDirections(null, basis, np)
 	for p := range np {
 		v := vars[p]
-		for i := range dirs {
-			for j := range dirs {
-				v += dirs[i][p] * m.tCov.At(i, j) * dirs[j][p]
-			}
-		}
+		v += matchedVariance(dirs, m.tCov, p)
 		res.StdErr[p] = math.Sqrt(max(v, 0))
 		if calibrated[p] {
 			res.StdErr[p] = 0
