@@ -200,23 +200,7 @@ func (bk *blocks) setup(h *Hamiltonian, sym Symmetry) (*Hamiltonian, error) {
 
 // blockSquares returns the sum over the sectors of sym on nq qubits of
 // the square of their dimensions (the size of the eigenvector blocks).
-func blockSquares(nq int, sym Symmetry) float64 {
-	switch sym.sectorKind() {
-	case byPopcount:
-		var w, binom float64 = 0, 1
-		for k := 0; k <= nq; k++ {
-			w += binom * binom
-			binom = binom * float64(nq-k) / float64(k+1)
-		}
-		return w
-	case byParity:
-		if nq == 0 {
-			return 1
-		}
-		return 2 * math.Pow(4, float64(nq-1))
-	}
-	return math.Pow(4, float64(nq))
-}
+func blockSquares(nq int, sym Symmetry) float64 { return sectorPowerSum(nq, sym, 2) }
 
 // blockCount returns the number of sectors of sym on nq qubits.
 func blockCount(nq int, sym Symmetry) float64 {
@@ -232,12 +216,21 @@ func blockCount(nq int, sym Symmetry) float64 {
 // blockWork returns the cost of diagonalising nq qubits with the blocks
 // of sym, in units of one dense D^3 = 8^nq: the sum over sectors of the
 // cube of their dimensions.
-func blockWork(nq int, sym Symmetry) float64 {
+func blockWork(nq int, sym Symmetry) float64 { return sectorPowerSum(nq, sym, 3) }
+
+// sectorPowerSum returns the sum over the sectors of sym on nq qubits of
+// their dimensions to the given power.
+func sectorPowerSum(nq int, sym Symmetry, power int) float64 {
+	dense := float64(int(1) << power) // (2^nq)^power = dense^nq
 	switch sym.sectorKind() {
 	case byPopcount:
 		var w, binom float64 = 0, 1
 		for k := 0; k <= nq; k++ {
-			w += binom * binom * binom
+			term := binom
+			for range power - 1 {
+				term *= binom
+			}
+			w += term
 			binom = binom * float64(nq-k) / float64(k+1)
 		}
 		return w
@@ -245,7 +238,7 @@ func blockWork(nq int, sym Symmetry) float64 {
 		if nq == 0 {
 			return 1
 		}
-		return 2 * math.Pow(8, float64(nq-1))
+		return 2 * math.Pow(dense, float64(nq-1))
 	}
-	return math.Pow(8, float64(nq))
+	return math.Pow(dense, float64(nq))
 }
