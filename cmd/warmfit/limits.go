@@ -193,11 +193,16 @@ func suggestBudget(d time.Duration) time.Duration {
 // stored.
 func expansionEstimate(exp *cluster.Expansion, sites, order int, response bool, flag string) workEstimate {
 	nc, _ := exp.EstimateWork(order)
-	what := fmt.Sprintf("order-%d expansion of %d sites (about %.3g clusters)", order, sites, float64(nc))
+	what := expansionWhat(order, sites, float64(nc))
 	if response {
 		what += " with its response matrix"
 	}
 	return workEstimate{What: what, Duration: exp.PredictEvaluation(order, response), Flag: flag}
+}
+
+// expansionWhat names an expansion run in an estimate line.
+func expansionWhat(order, sites int, clusters float64) string {
+	return fmt.Sprintf("order-%d expansion of %d sites (about %.3g clusters)", order, sites, clusters)
 }
 
 // denseEstimate predicts the dense diagonalisation of n qubits: work

@@ -236,11 +236,10 @@ func retiredBetaRange(old string) error {
 // 2^|c| levels, and per anchor block an accumulator of 3 x points x order
 // numbers.
 func sweepEstimate(exp *cluster.Expansion, lat *lattice.Lattice, order, points int) workEstimate {
-	e := expansionEstimate(exp, lat.NumSites(), order, false, "--order or --beta-grid points")
 	// A sweep needs eigenvalues only: the diagonalisations' D^3 work, not
 	// the expectations the calibrated evaluation includes.
-	_, work := exp.EstimateWork(order)
-	e.Duration = cluster.PredictDuration(work)
+	nc, work := exp.EstimateWork(order)
+	e := workEstimate{What: expansionWhat(order, lat.NumSites(), float64(nc)), Duration: cluster.PredictDuration(work), Flag: "--order or --beta-grid points"}
 	var levels, clusters float64
 	for s, c := range lat.EstimateClusterSizes(order) {
 		levels += c * math.Exp2(float64(s+1))
