@@ -453,9 +453,9 @@ func patchesNoun(n int) string {
 // thesePatches is the subject of a sentence about the patches checked.
 func thesePatches(n int) string {
 	if n == 1 {
-		return "this patch is"
+		return patchesNoun(n) + " is"
 	}
-	return "these patches are"
+	return patchesNoun(n) + " are"
 }
 
 // verdict words the outcome; lastOpen is the highest order below the
